@@ -1,0 +1,121 @@
+package expr
+
+import (
+	"fmt"
+	"sort"
+)
+
+// Binding is a defined name.
+type Binding struct {
+	Name  string
+	Value Value // nil when Unavailable
+	Pos   Pos   // where it is defined
+	// Unavailable marks a name whose definition failed; lines that use it
+	// report that once, pointing at Pos, instead of repeating the error.
+	Unavailable bool
+	// Display is how the definition asked the value to be shown, or nil.
+	Display *Display
+}
+
+// Func is a user function f(a, b) = body.
+type Func struct {
+	Name   string
+	Params []string
+	Body   Node
+	Pos    Pos
+}
+
+// Env is the set of names a block sees: everything defined above it.
+// Names are defined once; Define refuses a second definition.
+type Env struct {
+	vars  map[string]*Binding
+	funcs map[string]*Func
+	order []string
+}
+
+// NewEnv returns an empty environment.
+func NewEnv() *Env {
+	return &Env{vars: map[string]*Binding{}, funcs: map[string]*Func{}}
+}
+
+// Lookup returns the binding of a name, or nil.
+func (e *Env) Lookup(name string) *Binding { return e.vars[name] }
+
+// LookupFunc returns a user function, or nil.
+func (e *Env) LookupFunc(name string) *Func { return e.funcs[name] }
+
+// Names lists the defined value names in the order they were defined.
+func (e *Env) Names() []string { return append([]string(nil), e.order...) }
+
+// IsBuiltin reports whether name is a built-in function or constant.
+func IsBuiltin(name string) bool {
+	if _, ok := builtins[name]; ok {
+		return true
+	}
+	_, ok := constants[name]
+	return ok || reserved[name]
+}
+
+var reserved = map[string]bool{"check": true}
+
+// BuiltinNames lists the built-in functions, sorted.
+func BuiltinNames() []string {
+	var out []string
+	for n := range builtins {
+		out = append(out, n)
+	}
+	sort.Strings(out)
+	return out
+}
+
+// CanDefine reports why name cannot be defined at pos, or nil.
+func (e *Env) CanDefine(name string, pos Pos) *Error {
+	if IsBuiltin(name) {
+		what := "built-in function"
+		if _, ok := constants[name]; ok {
+			what = "built-in constant"
+		}
+		if reserved[name] {
+			what = "keyword"
+		}
+		return Errorf(pos, "%q is a %s and cannot be redefined: choose another name", name, what)
+	}
+	if b := e.vars[name]; b != nil {
+		return Errorf(pos, "%q is already defined at line %d: each name is defined once (choose another name, e.g. %s_2)", name, b.Pos.Line, name)
+	}
+	if f := e.funcs[name]; f != nil {
+		return Errorf(pos, "%q is already defined as a function at line %d: each name is defined once", name, f.Pos.Line)
+	}
+	return nil
+}
+
+// Define adds a value. It returns an error when the name is taken.
+func (e *Env) Define(b *Binding) *Error {
+	if err := e.CanDefine(b.Name, b.Pos); err != nil {
+		return err
+	}
+	e.vars[b.Name] = b
+	e.order = append(e.order, b.Name)
+	return nil
+}
+
+// DefineFunc adds a user function.
+func (e *Env) DefineFunc(f *Func) *Error {
+	if err := e.CanDefine(f.Name, f.Pos); err != nil {
+		return err
+	}
+	e.funcs[f.Name] = f
+	return nil
+}
+
+// UnavailableError is the error of an expression that uses a name whose
+// definition failed.
+type UnavailableError struct {
+	Pos  Pos    // where the name is used
+	Name string // the name
+	Def  Pos    // where its definition failed
+}
+
+func (u *UnavailableError) Error() string {
+	return fmt.Sprintf("%s: %q has no value because its definition at line %d failed", u.Pos, u.Name, u.Def.Line)
+}

@@ -1,0 +1,513 @@
+package expr
+
+import (
+	"fmt"
+	"math"
+	"math/cmplx"
+	"strings"
+)
+
+// Trace records the value of every node evaluated, so that a sheet can
+// show the formula with the values substituted.
+type Trace map[Node]Value
+
+// MaxCallDepth bounds nested user-function calls.
+const MaxCallDepth = 64
+
+type evaluator struct {
+	env    *Env
+	trace  Trace
+	locals map[string]Value
+	depth  int
+}
+
+// Eval evaluates an expression in env. When trace is not nil, the value of
+// every node is recorded in it (nodes inside user-function bodies are not).
+// The error is an *Error or an *UnavailableError.
+func (e *Env) Eval(n Node, trace Trace) (Value, error) {
+	ev := &evaluator{env: e, trace: trace}
+	return ev.eval(n)
+}
+
+// EvalWith evaluates n with extra local names (the parameters of a user
+// function, a sweep variable) that hide nothing but are seen first.
+func (e *Env) EvalWith(n Node, locals map[string]Value, trace Trace) (Value, error) {
+	ev := &evaluator{env: e, trace: trace, locals: locals}
+	return ev.eval(n)
+}
+
+func (ev *evaluator) eval(n Node) (Value, error) {
+	v, err := ev.eval1(n)
+	if err == nil && ev.trace != nil {
+		ev.trace[n] = v
+	}
+	return v, err
+}
+
+func scalarOf(v Value) (*Scalar, bool) {
+	s, ok := v.(*Scalar)
+	return s, ok
+}
+
+// Describe names a value for an error message: "3 V", "a 3×3 matrix".
+func Describe(v Value) string {
+	switch x := v.(type) {
+	case *Scalar:
+		sh := FormatScalar(x, nil, 4)
+		sh.A, sh.B = trimZeros(sh.A), trimZeros(sh.B)
+		return sh.String()
+	case *Matrix:
+		if x.Cols == 1 {
+			return fmt.Sprintf("a vector of %d entries", x.Rows)
+		}
+		return fmt.Sprintf("a %d×%d matrix", x.Rows, x.Cols)
+	}
+	return "?"
+}
+
+func (ev *evaluator) eval1(n Node) (Value, error) {
+	switch n := n.(type) {
+	case *Number:
+		if n.Imag {
+			return &Scalar{Z: complex(0, n.Value)}, nil
+		}
+		return &Scalar{Z: complex(n.Value, 0)}, nil
+	case *Ident:
+		return ev.ident(n)
+	case *Paren:
+		return ev.eval(n.X)
+	case *WithUnit:
+		x, err := ev.eval(n.X)
+		if err != nil {
+			return nil, err
+		}
+		s, ok := scalarOf(x)
+		if !ok {
+			m := x.(*Matrix)
+			out := NewMatrix(m.Rows, m.Cols)
+			for i, e := range m.E {
+				out.E[i] = Scalar{Z: e.Z * complex(n.Unit.Scale, 0), Dim: e.Dim.Mul(n.Unit.Dim)}
+			}
+			return out, nil
+		}
+		return &Scalar{Z: s.Z * complex(n.Unit.Scale, 0), Dim: s.Dim.Mul(n.Unit.Dim), Angle: n.Unit.Angle && s.Dim.IsZero()}, nil
+	case *Unary:
+		x, err := ev.eval(n.X)
+		if err != nil {
+			return nil, err
+		}
+		if n.Op == ADD {
+			return x, nil
+		}
+		return neg(x), nil
+	case *Abs:
+		x, err := ev.eval(n.X)
+		if err != nil {
+			return nil, err
+		}
+		s, ok := scalarOf(x)
+		if !ok {
+			return nil, Errorf(n.P, "|x| needs a single value, not %s (use det for a determinant)", Describe(x))
+		}
+		return &Scalar{Z: complex(cmplx.Abs(s.Z), 0), Dim: s.Dim}, nil
+	case *Binary:
+		x, err := ev.eval(n.X)
+		if err != nil {
+			return nil, err
+		}
+		y, err := ev.eval(n.Y)
+		if err != nil {
+			return nil, err
+		}
+		return binaryOp(n, x, y)
+	case *Call:
+		return ev.call(n)
+	case *MatrixLit:
+		m := NewMatrix(len(n.Rows), len(n.Rows[0]))
+		for i, row := range n.Rows {
+			for j, en := range row {
+				v, err := ev.eval(en)
+				if err != nil {
+					return nil, err
+				}
+				s, ok := scalarOf(v)
+				if !ok {
+					return nil, Errorf(en.Pos(), "a matrix entry must be a single value, not %s", Describe(v))
+				}
+				m.Set(i, j, *s)
+			}
+		}
+		return m, nil
+	case *Compare:
+		return nil, Errorf(n.P, "a comparison is allowed only in a check")
+	case *BadExpr:
+		return nil, Errorf(n.P, "this expression could not be read")
+	}
+	return nil, Errorf(n.Pos(), "cannot evaluate this expression")
+}
+
+func (ev *evaluator) ident(n *Ident) (Value, error) {
+	if v, ok := ev.locals[n.Name]; ok {
+		return v, nil
+	}
+	if b := ev.env.vars[n.Name]; b != nil {
+		if b.Unavailable {
+			return nil, &UnavailableError{Pos: n.P, Name: n.Name, Def: b.Pos}
+		}
+		return b.Value, nil
+	}
+	if c, ok := constants[n.Name]; ok {
+		return c, nil
+	}
+	if _, ok := builtins[n.Name]; ok {
+		return nil, Errorf(n.P, "%q is a function: call it with parentheses, e.g. %s(x)", n.Name, n.Name)
+	}
+	if f := ev.env.funcs[n.Name]; f != nil {
+		return nil, Errorf(n.P, "%q is a function defined at line %d: call it with parentheses", n.Name, f.Pos.Line)
+	}
+	return nil, Errorf(n.P, "unknown name %q%s", n.Name, ev.suggestName(n.Name))
+}
+
+func (ev *evaluator) suggestName(name string) string {
+	best, bestD := "", 3
+	for _, k := range ev.env.order {
+		if d := editDistance(name, k); d < bestD && d <= len(name)/2 {
+			best, bestD = k, d
+		}
+	}
+	for k := range ev.locals {
+		if d := editDistance(name, k); d < bestD && d <= len(name)/2 {
+			best, bestD = k, d
+		}
+	}
+	if best != "" {
+		return fmt.Sprintf(" (did you mean %q?)", best)
+	}
+	if _, _, _, ok := lookupSymbol(name); ok {
+		return fmt.Sprintf(" (%q is a unit: write a unit after a number, e.g. 1 %s)", name, name)
+	}
+	return ""
+}
+
+// constants are the built-in constants.
+var constants = map[string]*Scalar{
+	"pi": {Z: complex(math.Pi, 0)},
+	"π":  {Z: complex(math.Pi, 0)},
+	"j":  {Z: complex(0, 1)},
+}
+
+func neg(x Value) Value {
+	switch x := x.(type) {
+	case *Scalar:
+		return &Scalar{Z: -x.Z, Dim: x.Dim, Angle: x.Angle}
+	case *Matrix:
+		out := NewMatrix(x.Rows, x.Cols)
+		for i, e := range x.E {
+			out.E[i] = Scalar{Z: -e.Z, Dim: e.Dim}
+		}
+		return out
+	}
+	return x
+}
+
+func opName(k Kind) string {
+	switch k {
+	case ADD:
+		return "add"
+	case SUB:
+		return "subtract"
+	case PAR:
+		return "combine in parallel"
+	}
+	return k.String()
+}
+
+func binaryOp(n *Binary, x, y Value) (Value, error) {
+	xs, xok := scalarOf(x)
+	ys, yok := scalarOf(y)
+	if !xok || !yok {
+		return matrixOp(n, x, y)
+	}
+	switch n.Op {
+	case ADD, SUB:
+		d, ok := sumDim(xs, ys)
+		if !ok {
+			return nil, unitMismatch(n, opName(n.Op), xs, ys)
+		}
+		z := xs.Z + ys.Z
+		if n.Op == SUB {
+			z = xs.Z - ys.Z
+		}
+		return &Scalar{Z: z, Dim: d, Angle: d.IsZero() && (xs.Angle || ys.Angle)}, nil
+	case MUL:
+		return &Scalar{Z: xs.Z * ys.Z, Dim: xs.Dim.Mul(ys.Dim), Angle: (xs.Angle && ys.Dim.IsZero() && !ys.Angle) || (ys.Angle && xs.Dim.IsZero() && !xs.Angle)}, nil
+	case DIV:
+		if ys.Z == 0 {
+			return nil, Errorf(n.Y.Pos(), "division by zero: the divisor is 0")
+		}
+		return &Scalar{Z: xs.Z / ys.Z, Dim: xs.Dim.Div(ys.Dim), Angle: xs.Angle && ys.Dim.IsZero() && !ys.Angle}, nil
+	case PAR:
+		if xs.Dim != ys.Dim {
+			return nil, unitMismatch(n, opName(n.Op), xs, ys)
+		}
+		sum := xs.Z + ys.Z
+		if sum == 0 {
+			if xs.Z == 0 {
+				return &Scalar{Dim: xs.Dim}, nil
+			}
+			return nil, Errorf(n.P, "parallel combination is infinite: the two sides sum to zero (a∥b = a·b/(a+b))")
+		}
+		return &Scalar{Z: xs.Z * ys.Z / sum, Dim: xs.Dim}, nil
+	case ANGLE:
+		if !ys.Dim.IsZero() {
+			return nil, Errorf(n.Y.Pos(), "the angle after ∠ must be an angle (e.g. 30° or 0.5 rad), not %s", Describe(ys))
+		}
+		if !ys.IsReal() {
+			return nil, Errorf(n.Y.Pos(), "the angle after ∠ must be real, not %s", Describe(ys))
+		}
+		if !xs.IsReal() {
+			return nil, Errorf(n.X.Pos(), "the magnitude before ∠ must be real, not %s (use abs() for a magnitude)", Describe(xs))
+		}
+		return &Scalar{Z: complex(real(xs.Z), 0) * cmplx.Rect(1, real(ys.Z)), Dim: xs.Dim}, nil
+	case POW:
+		return power(n, xs, ys)
+	}
+	return nil, Errorf(n.P, "unknown operator %s", n.Op)
+}
+
+func unitMismatch(n *Binary, verb string, x, y *Scalar) error {
+	return Errorf(n.P, "cannot %s %s and %s: the units differ (%s and %s)", verb, Describe(x), Describe(y), dimWord(x.Dim), dimWord(y.Dim))
+}
+
+// dimWord names a dimension in the words of the trade.
+func dimWord(d Dim) string {
+	switch d {
+	case Dim{}:
+		return "a plain number"
+	case DimVoltage:
+		return "a voltage"
+	case DimCurrent:
+		return "a current"
+	case DimImpedance:
+		return "an impedance"
+	case DimAdmittance:
+		return "an admittance"
+	case DimPower:
+		return "a power"
+	case DimEnergy:
+		return "an energy"
+	case DimFrequency:
+		return "a frequency"
+	case DimTime:
+		return "a time"
+	case DimLength:
+		return "a length"
+	case DimCapacitance:
+		return "a capacitance"
+	case DimInductance:
+		return "an inductance"
+	case DimArea:
+		return "an area"
+	case DimCharge:
+		return "a charge"
+	}
+	return "a quantity in " + d.String()
+}
+
+// DimWord names a dimension in words ("a voltage", "an impedance").
+func DimWord(d Dim) string { return dimWord(d) }
+
+// power computes x^y. y must be dimensionless; when x has a unit, y must be
+// real and make every exponent of the unit whole. Whole exponents are
+// computed by repeated multiplication, so that j^2 is exactly -1.
+func power(n *Binary, x, y *Scalar) (Value, error) {
+	if !y.Dim.IsZero() {
+		return nil, Errorf(n.Y.Pos(), "an exponent must be a plain number, not %s", Describe(y))
+	}
+	if !x.Dim.IsZero() {
+		if !y.IsReal() {
+			return nil, Errorf(n.Y.Pos(), "a quantity with a unit can only be raised to a real power")
+		}
+		p := real(y.Z)
+		var d Dim
+		for i, e := range x.Dim {
+			v := float64(e) * p
+			r := math.Round(v)
+			if math.Abs(v-r) > 1e-9 || math.Abs(r) > 100 {
+				return nil, Errorf(n.Y.Pos(), "cannot raise %s to the power %g: the unit's exponents would not be whole numbers", dimWord(x.Dim), p)
+			}
+			d[i] = int8(r)
+		}
+		return &Scalar{Z: powZ(x.Z, y.Z), Dim: d}, nil
+	}
+	z := powZ(x.Z, y.Z)
+	if x.Z == 0 && real(y.Z) < 0 {
+		return nil, Errorf(n.P, "0 raised to a negative power is infinite")
+	}
+	return &Scalar{Z: z}, nil
+}
+
+func powZ(x, y complex128) complex128 {
+	if imag(y) == 0 {
+		p := real(y)
+		if p == math.Trunc(p) && math.Abs(p) <= 64 {
+			k := int(math.Abs(p))
+			r := complex(1, 0)
+			b := x
+			for k > 0 {
+				if k&1 == 1 {
+					r *= b
+				}
+				b *= b
+				k >>= 1
+			}
+			if p < 0 {
+				return 1 / r
+			}
+			return r
+		}
+		if imag(x) == 0 && real(x) >= 0 {
+			return complex(math.Pow(real(x), p), 0)
+		}
+	}
+	return cmplx.Pow(x, y)
+}
+
+func (ev *evaluator) call(n *Call) (Value, error) {
+	name := n.Fun.Name
+	// an entry of a matrix value: M(i, j), v(i)
+	if v, ok := ev.locals[name]; ok {
+		return ev.index(n, v)
+	}
+	if b := ev.env.vars[name]; b != nil {
+		if b.Unavailable {
+			return nil, &UnavailableError{Pos: n.Fun.P, Name: name, Def: b.Pos}
+		}
+		return ev.index(n, b.Value)
+	}
+	args := make([]Value, len(n.Args))
+	for i, a := range n.Args {
+		v, err := ev.eval(a)
+		if err != nil {
+			return nil, err
+		}
+		args[i] = v
+	}
+	if f := ev.env.funcs[name]; f != nil {
+		if len(args) != len(f.Params) {
+			return nil, Errorf(n.P, "%s takes %d argument%s (defined at line %d), not %d", name, len(f.Params), plural(len(f.Params)), f.Pos.Line, len(args))
+		}
+		if ev.depth >= MaxCallDepth {
+			return nil, Errorf(n.P, "functions call each other too deeply (more than %d levels)", MaxCallDepth)
+		}
+		locals := make(map[string]Value, len(args))
+		for i, p := range f.Params {
+			locals[p] = args[i]
+		}
+		sub := &evaluator{env: ev.env, locals: locals, depth: ev.depth + 1}
+		v, err := sub.eval(f.Body)
+		if err != nil {
+			if e, ok := err.(*Error); ok {
+				return nil, Errorf(n.P, "in %s (defined at line %d): %s", name, f.Pos.Line, e.Msg)
+			}
+			return nil, err
+		}
+		return v, nil
+	}
+	bf, ok := builtins[name]
+	if !ok {
+		return nil, Errorf(n.Fun.P, "unknown function %q%s", name, ev.suggestFunc(name))
+	}
+	if len(args) < bf.min || (bf.max >= 0 && len(args) > bf.max) {
+		want := fmt.Sprint(bf.min)
+		if bf.max != bf.min {
+			if bf.max < 0 {
+				want = fmt.Sprintf("at least %d", bf.min)
+			} else {
+				want = fmt.Sprintf("%d to %d", bf.min, bf.max)
+			}
+		}
+		return nil, Errorf(n.P, "%s takes %s argument%s, not %d", name, want, plural(bf.min), len(args))
+	}
+	v, err := bf.fn(args)
+	if err != nil {
+		return nil, Errorf(n.P, "%s: %s", name, err.Error())
+	}
+	return v, nil
+}
+
+func (ev *evaluator) suggestFunc(name string) string {
+	best, bestD := "", 3
+	for k := range builtins {
+		if d := editDistance(name, k); d < bestD && d <= len(name)/2 {
+			best, bestD = k, d
+		}
+	}
+	for k := range ev.env.funcs {
+		if d := editDistance(name, k); d < bestD && d <= len(name)/2 {
+			best, bestD = k, d
+		}
+	}
+	if best != "" {
+		return fmt.Sprintf(" (did you mean %q?)", best)
+	}
+	return ""
+}
+
+func plural(n int) string {
+	if n == 1 {
+		return ""
+	}
+	return "s"
+}
+
+func (ev *evaluator) index(n *Call, v Value) (Value, error) {
+	m, ok := v.(*Matrix)
+	if !ok {
+		return nil, Errorf(n.P, "%q is a value, not a function or a matrix: it cannot be called or indexed", n.Fun.Name)
+	}
+	idx := make([]int, len(n.Args))
+	for i, a := range n.Args {
+		x, err := ev.eval(a)
+		if err != nil {
+			return nil, err
+		}
+		s, ok := scalarOf(x)
+		if !ok || !s.Dim.IsZero() || !s.IsReal() || real(s.Z) != math.Trunc(real(s.Z)) {
+			return nil, Errorf(a.Pos(), "an index must be a whole number counting from 1, not %s", Describe(x))
+		}
+		idx[i] = int(real(s.Z))
+	}
+	switch len(idx) {
+	case 1:
+		k := idx[0]
+		if m.Cols != 1 && m.Rows != 1 {
+			return nil, Errorf(n.P, "%q is a %d×%d matrix: pick an entry with two indices, %s(row, column)", n.Fun.Name, m.Rows, m.Cols, n.Fun.Name)
+		}
+		if k < 1 || k > len(m.E) {
+			return nil, Errorf(n.Args[0].Pos(), "index %d out of range: %s has %d entries (counting from 1)", k, n.Fun.Name, len(m.E))
+		}
+		s := m.E[k-1]
+		return &s, nil
+	case 2:
+		i, j := idx[0], idx[1]
+		if i < 1 || i > m.Rows {
+			return nil, Errorf(n.Args[0].Pos(), "row %d out of range: %s has %d rows (counting from 1)", i, n.Fun.Name, m.Rows)
+		}
+		if j < 1 || j > m.Cols {
+			return nil, Errorf(n.Args[1].Pos(), "column %d out of range: %s has %d columns (counting from 1)", j, n.Fun.Name, m.Cols)
+		}
+		s := m.At(i-1, j-1)
+		return &s, nil
+	}
+	return nil, Errorf(n.P, "an entry is picked with one index (a vector) or two (a matrix), not %d", len(idx))
+}
+
+// trimZeros drops trailing zeros after a decimal point: "3.000" -> "3".
+func trimZeros(s string) string {
+	if !strings.Contains(s, ".") || strings.ContainsAny(s, "e∞") {
+		return s
+	}
+	s = strings.TrimRight(s, "0")
+	return strings.TrimSuffix(s, ".")
+}

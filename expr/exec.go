@@ -1,0 +1,274 @@
+package expr
+
+import (
+	"fmt"
+	"math"
+	"math/cmplx"
+)
+
+// CheckResult is the outcome of a check: the value of every operand of
+// the comparison chain, whether each comparison holds, and whether all do.
+type CheckResult struct {
+	Pass   bool
+	Values []*Scalar
+	Holds  []bool
+	// Utilisation is the share of the limit used, for a check of the form
+	// a <= b, a < b (a/b) or a >= b, a > b (b/a), with both sides real and
+	// positive; HasUtil says whether it applies.
+	Utilisation float64
+	HasUtil     bool
+}
+
+// EqualTolerance is the relative tolerance of "==" and "!=" in a check:
+// a == b holds when |a − b| <= 1e-9·max(|a|, |b|).
+const EqualTolerance = 1e-9
+
+// EvalCheck evaluates a comparison chain.
+func (e *Env) EvalCheck(c *Compare, trace Trace) (*CheckResult, error) {
+	ev := &evaluator{env: e, trace: trace}
+	res := &CheckResult{Pass: true}
+	for _, x := range c.X {
+		v, err := ev.eval(x)
+		if err != nil {
+			return nil, err
+		}
+		s, ok := v.(*Scalar)
+		if !ok {
+			return nil, Errorf(x.Pos(), "a check compares single values, not %s", shapeWord(v))
+		}
+		res.Values = append(res.Values, s)
+	}
+	for i, op := range c.Ops {
+		a, b := res.Values[i], res.Values[i+1]
+		if _, ok := sumDim(a, b); !ok {
+			return nil, Errorf(c.X[i+1].Pos(), "cannot compare %s with %s: the units differ (%s and %s)", Describe(a), Describe(b), dimWord(a.Dim), dimWord(b.Dim))
+		}
+		var h bool
+		switch op {
+		case EQ, NE:
+			diff := cmplx.Abs(a.Z - b.Z)
+			eq := diff <= EqualTolerance*math.Max(cmplx.Abs(a.Z), cmplx.Abs(b.Z))
+			h = eq == (op == EQ)
+		default:
+			for k, s := range []*Scalar{a, b} {
+				if !s.IsReal() {
+					return nil, Errorf(c.X[i+k].Pos(), "cannot compare the complex value %s with %s: compare abs(...), re(...) or im(...)", Describe(s), op)
+				}
+			}
+			x, y := real(a.Z), real(b.Z)
+			switch op {
+			case LT:
+				h = x < y
+			case LE:
+				h = x <= y
+			case GT:
+				h = x > y
+			case GE:
+				h = x >= y
+			}
+		}
+		res.Holds = append(res.Holds, h)
+		res.Pass = res.Pass && h
+	}
+	if len(c.Ops) == 1 && res.Values[0].IsReal() && res.Values[1].IsReal() {
+		x, y := real(res.Values[0].Z), real(res.Values[1].Z)
+		switch c.Ops[0] {
+		case LT, LE:
+			if x >= 0 && y > 0 {
+				res.Utilisation, res.HasUtil = x/y, true
+			}
+		case GT, GE:
+			if y >= 0 && x > 0 {
+				res.Utilisation, res.HasUtil = y/x, true
+			}
+		}
+	}
+	return res, nil
+}
+
+// Result is what executing one statement gives.
+type Result struct {
+	Stmt  Stmt
+	Value Value        // the value of an assignment or a bare expression
+	Check *CheckResult // for a check
+	Trace Trace        // the value of every node of the statement's expression
+	Err   error        // an *Error or an *UnavailableError, or nil
+}
+
+// Exec evaluates one statement in e and defines what it names. A name
+// whose definition fails is defined as unavailable, so later lines that
+// use it say so once instead of repeating the error.
+func (e *Env) Exec(s Stmt) *Result {
+	r := &Result{Stmt: s, Trace: Trace{}}
+	switch s := s.(type) {
+	case *Note, *BadStmt:
+	case *Assign:
+		for _, id := range s.Names {
+			if err := e.CanDefine(id.Name, id.P); err != nil {
+				r.Err = err
+				return r
+			}
+		}
+		v, err := e.Eval(s.X, r.Trace)
+		if err != nil {
+			r.Err = err
+			e.defineUnavailable(s.Names)
+			return r
+		}
+		r.Value = v
+		if len(s.Names) > 1 {
+			m, ok := v.(*Matrix)
+			if !ok || (m.Cols != 1 && m.Rows != 1) || len(m.E) != len(s.Names) {
+				r.Err = Errorf(s.Names[0].P, "%d names are assigned but the value is %s: give as many names as it has entries", len(s.Names), shapeWord(v))
+				e.defineUnavailable(s.Names)
+				return r
+			}
+			for i, id := range s.Names {
+				x := m.E[i]
+				e.Define(&Binding{Name: id.Name, Value: &x, Pos: id.P, Display: s.Display})
+			}
+			return r
+		}
+		if err := CheckDisplay(v, s.Display); err != nil {
+			r.Err = Errorf(s.Display.P, "%s: %s", s.Names[0].Name, err.Error())
+		}
+		e.Define(&Binding{Name: s.Names[0].Name, Value: v, Pos: s.Names[0].P, Display: s.Display})
+	case *FuncDef:
+		if err := e.CanDefine(s.Name.Name, s.Name.P); err != nil {
+			r.Err = err
+			return r
+		}
+		params := map[string]bool{}
+		var names []string
+		for _, p := range s.Params {
+			if params[p.Name] {
+				r.Err = Errorf(p.P, "parameter %q is listed twice", p.Name)
+				return r
+			}
+			if IsBuiltin(p.Name) {
+				r.Err = Errorf(p.P, "parameter %q would hide a built-in: choose another name", p.Name)
+				return r
+			}
+			params[p.Name] = true
+			names = append(names, p.Name)
+		}
+		if err := e.checkBody(s.Body, s.Name.Name, params); err != nil {
+			r.Err = err
+			return r
+		}
+		e.DefineFunc(&Func{Name: s.Name.Name, Params: names, Body: s.Body, Pos: s.Name.P})
+	case *Check:
+		c, err := e.EvalCheck(s.Cmp, r.Trace)
+		r.Check, r.Err = c, err
+	case *ExprStmt:
+		v, err := e.Eval(s.X, r.Trace)
+		r.Value, r.Err = v, err
+		if err == nil {
+			if derr := CheckDisplay(v, s.Display); derr != nil {
+				r.Err = Errorf(s.Display.P, "%s", derr.Error())
+			}
+		}
+	default:
+		r.Err = Errorf(s.Pos(), "this statement is not allowed here")
+	}
+	return r
+}
+
+func (e *Env) defineUnavailable(names []*Ident) {
+	for _, id := range names {
+		if e.CanDefine(id.Name, id.P) == nil {
+			e.Define(&Binding{Name: id.Name, Pos: id.P, Unavailable: true})
+		}
+	}
+}
+
+// checkBody makes sure every name in a function body is a parameter, a
+// name defined above, a constant, or a function defined above; a function
+// may not call itself.
+func (e *Env) checkBody(n Node, self string, params map[string]bool) error {
+	var err error
+	Walk(n, func(n Node) bool {
+		if err != nil {
+			return false
+		}
+		switch n := n.(type) {
+		case *Call:
+			name := n.Fun.Name
+			if name == self {
+				err = Errorf(n.Fun.P, "%s cannot call itself", self)
+				return false
+			}
+			if params[name] || e.vars[name] != nil || e.funcs[name] != nil {
+				return true
+			}
+			if _, ok := builtins[name]; ok {
+				return true
+			}
+			err = Errorf(n.Fun.P, "unknown function %q (a function can use only functions defined above it)", name)
+			return false
+		case *Ident:
+			if params[n.Name] || e.vars[n.Name] != nil {
+				return true
+			}
+			if _, ok := constants[n.Name]; ok {
+				return true
+			}
+			if n.Name == self {
+				err = Errorf(n.P, "%s cannot use itself", self)
+				return false
+			}
+			err = Errorf(n.P, "unknown name %q in the body of %s (use a parameter or a name defined above)", n.Name, self)
+			return false
+		}
+		return true
+	})
+	return err
+}
+
+// Walk calls f for n and, while f returns true, for its children in order.
+func Walk(n Node, f func(Node) bool) {
+	if n == nil || !f(n) {
+		return
+	}
+	switch n := n.(type) {
+	case *WithUnit:
+		Walk(n.X, f)
+	case *Unary:
+		Walk(n.X, f)
+	case *Binary:
+		Walk(n.X, f)
+		Walk(n.Y, f)
+	case *Paren:
+		Walk(n.X, f)
+	case *Abs:
+		Walk(n.X, f)
+	case *Call:
+		for _, a := range n.Args {
+			Walk(a, f)
+		}
+	case *MatrixLit:
+		for _, r := range n.Rows {
+			for _, x := range r {
+				Walk(x, f)
+			}
+		}
+	case *Compare:
+		for _, x := range n.X {
+			Walk(x, f)
+		}
+	}
+}
+
+// String returns a short description of a Result for debugging.
+func (r *Result) String() string {
+	if r.Err != nil {
+		return "error: " + r.Err.Error()
+	}
+	if r.Check != nil {
+		return fmt.Sprintf("check pass=%v", r.Check.Pass)
+	}
+	if r.Value != nil {
+		return FormatValue(r.Value, nil, 4)
+	}
+	return ""
+}

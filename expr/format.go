@@ -1,0 +1,334 @@
+package expr
+
+import (
+	"fmt"
+	"math"
+	"math/cmplx"
+	"strconv"
+	"strings"
+)
+
+// ShownKind says how a value was laid out.
+type ShownKind int
+
+// The layouts of a shown value.
+const (
+	ShownReal  ShownKind = iota // A
+	ShownPolar                  // A∠B°
+	ShownRect                   // A + jB (B carries its sign)
+)
+
+// Shown is a value laid out for the sheet: its number (in parts, so the
+// renderer can typeset it) and its unit. Numbers use "-" for minus and may
+// be in exponent form ("1.234e-15") when no SI prefix fits.
+type Shown struct {
+	Kind ShownKind
+	A, B string
+	Unit string
+}
+
+// String writes the value as text: "1.595∠-33.69° kA", "3.000 + j4.000 Ω",
+// "36.87°".
+func (s Shown) String() string {
+	var num string
+	switch s.Kind {
+	case ShownReal:
+		num = s.A
+	case ShownPolar:
+		num = s.A + "∠" + s.B + "°"
+	case ShownRect:
+		if s.A == "" {
+			num = "j" + s.B
+			if strings.HasPrefix(s.B, "-") {
+				num = "-j" + s.B[1:]
+			}
+		} else if strings.HasPrefix(s.B, "-") {
+			num = s.A + " - j" + s.B[1:]
+		} else {
+			num = s.A + " + j" + s.B
+		}
+	}
+	switch {
+	case s.Unit == "":
+		return num
+	case s.Unit == "°" || s.Unit == "%":
+		if s.Unit == "%" {
+			return num + " %"
+		}
+		return num + s.Unit
+	}
+	return num + " " + s.Unit
+}
+
+// engineering prefixes, by power of ten / 3 + 4
+var engPrefix = []string{"p", "n", "µ", "m", "", "k", "M", "G", "T"}
+
+// CheckDisplay reports an error when a display unit does not fit the
+// value's dimension.
+func CheckDisplay(v Value, d *Display) error {
+	if d == nil || d.Unit == nil {
+		return nil
+	}
+	check := func(s *Scalar) error {
+		if s.Dim != d.Unit.Dim && !isPlainZero(s) {
+			return fmt.Errorf("the unit %s is %s, but the value is %s", d.Unit.Text, dimWord(d.Unit.Dim), dimWord(s.Dim))
+		}
+		return nil
+	}
+	switch x := v.(type) {
+	case *Scalar:
+		return check(x)
+	case *Matrix:
+		for i := range x.E {
+			if err := check(&x.E[i]); err != nil {
+				return fmt.Errorf("%s: %s", entryName(x, i/x.Cols, i%x.Cols), err.Error())
+			}
+		}
+	}
+	return nil
+}
+
+// FormatValue writes any value as text; a matrix as "[a, b; c, d]".
+func FormatValue(v Value, d *Display, digits int) string {
+	switch x := v.(type) {
+	case *Scalar:
+		return FormatScalar(x, d, digits).String()
+	case *Matrix:
+		var b strings.Builder
+		b.WriteByte('[')
+		for i := 0; i < x.Rows; i++ {
+			if i > 0 {
+				b.WriteString("; ")
+			}
+			for j := 0; j < x.Cols; j++ {
+				if j > 0 {
+					b.WriteString(", ")
+				}
+				e := x.At(i, j)
+				b.WriteString(FormatScalar(&e, d, digits).String())
+			}
+		}
+		b.WriteByte(']')
+		return b.String()
+	}
+	return ""
+}
+
+// DefaultForm is the form a value of dimension d is shown in: polar for
+// voltages and currents, rectangular for the rest.
+func DefaultForm(d Dim) Form {
+	if d == DimVoltage || d == DimCurrent {
+		return FormPolar
+	}
+	return FormRect
+}
+
+// FormatScalar lays a scalar out with digits significant figures, in the
+// display unit and form of d (nil: the defaults of its dimension). A value
+// whose imaginary part is negligible is shown as a real number unless d
+// asks for a form.
+func FormatScalar(s *Scalar, d *Display, digits int) Shown {
+	if digits < 2 {
+		digits = 2
+	}
+	if digits > 15 {
+		digits = 15
+	}
+	form := FormAuto
+	if d != nil {
+		form = d.Form
+	}
+	z := s.Z
+	if cmplx.IsNaN(z) {
+		return Shown{A: "NaN"}
+	}
+	// the unit
+	var unit string
+	var scale float64 = 1
+	auto := true
+	if d != nil && d.Unit != nil && (d.Unit.Dim == s.Dim || isPlainZero(s)) {
+		unit, scale, auto = d.Unit.Text, d.Unit.Scale, false
+		if unit == "deg" {
+			unit = "°"
+		}
+	}
+	real0 := isRealZ(z)
+	if form == FormAuto {
+		if real0 {
+			form = -1
+		} else {
+			form = DefaultForm(s.Dim)
+		}
+	}
+	if auto && s.Dim.IsZero() && s.Angle && form == -1 {
+		return Shown{Kind: ShownReal, A: fmtSig(real(z)*180/math.Pi, digits), Unit: "°"}
+	}
+	var base string
+	pow := 1
+	prefixable := false
+	if auto {
+		base, pow, prefixable = defaultSymbol(s.Dim, !real0)
+		unit = base
+		if s.Dim == DimMass {
+			scale = 1e-3 // shown in grams
+		}
+	}
+	z /= complex(scale, 0)
+	mag := cmplx.Abs(z)
+	if form == -1 {
+		mag = math.Abs(real(z))
+	} else if form == FormRect {
+		mag = math.Max(math.Abs(real(z)), math.Abs(imag(z)))
+	}
+	if auto && prefixable && mag != 0 && !math.IsInf(mag, 0) {
+		pf, f := choosePrefix(roundSig(mag, digits), pow)
+		if pf != "" || f != 1 {
+			unit = pf + base
+			z /= complex(f, 0)
+			mag /= f
+		}
+	}
+	switch form {
+	case FormPolar:
+		m := cmplx.Abs(z)
+		deg := cmplx.Phase(z) * 180 / math.Pi
+		if m == 0 {
+			deg = 0
+		}
+		return Shown{Kind: ShownPolar, A: fmtNum(m, digits), B: fmtAngle(deg, digits), Unit: unit}
+	case FormRect:
+		dec := decimalsFor(mag, digits)
+		if dec < 0 || mag != 0 && (mag >= 1e15 || mag < 1e-12) {
+			return Shown{Kind: ShownRect, A: fmtNum(real(z), digits), B: fmtNum(imag(z), digits), Unit: unit}
+		}
+		sh := Shown{Kind: ShownRect, A: fmtFixed(real(z), dec), B: fmtFixed(imag(z), dec), Unit: unit}
+		if math.Abs(real(z)) <= 1e-12*mag {
+			sh.A = "" // purely imaginary: "-j318.3 Ω"
+		}
+		return sh
+	}
+	return Shown{Kind: ShownReal, A: fmtNum(real(z), digits), Unit: unit}
+}
+
+// defaultSymbol is the unit a dimension is shown in when its line names
+// none, the power its prefix is raised to (m² takes prefixes in steps of
+// 10⁶), and whether it takes an SI prefix.
+func defaultSymbol(d Dim, complexValue bool) (sym string, pow int, prefixable bool) {
+	switch d {
+	case Dim{}:
+		return "", 1, false
+	case DimPower:
+		if complexValue {
+			return "VA", 1, true
+		}
+		return "W", 1, true
+	case DimArea:
+		return "m²", 2, true
+	case DimVolume:
+		return "m³", 3, true
+	}
+	if u := CoherentUnit(d); u != "" {
+		if d == DimMass {
+			return "g", 1, true
+		}
+		return u, 1, true
+	}
+	if u, pre := compoundUnit(d); u != "" {
+		return u, 1, pre
+	}
+	return d.SI(), 1, false
+}
+
+// choosePrefix picks the engineering prefix that puts mag in [1, 1000)
+// (for a unit raised to pow, the largest prefix that keeps mag ≥ 1). mass
+// is shown in g, so its coherent value (kg) is scaled by 1000 first by the
+// caller's base symbol choice.
+func choosePrefix(mag float64, pow int) (string, float64) {
+	best := 4
+	for k := 0; k < len(engPrefix); k++ {
+		f := math.Pow(10, float64(3*(k-4)*pow))
+		if mag/f >= 1-1e-12 {
+			best = k
+		}
+	}
+	if mag < math.Pow(10, float64(-12*pow)) {
+		best = 0
+	}
+	return engPrefix[best], math.Pow(10, float64(3*(best-4)*pow))
+}
+
+func roundSig(x float64, n int) float64 {
+	if x == 0 || math.IsInf(x, 0) || math.IsNaN(x) {
+		return x
+	}
+	v, _ := strconv.ParseFloat(strconv.FormatFloat(x, 'e', n-1, 64), 64)
+	return v
+}
+
+// decimalsFor is the number of decimals that shows mag with n significant
+// figures, or -1 when mag needs more digits before the point than n.
+func decimalsFor(mag float64, n int) int {
+	if mag == 0 {
+		return n - 1
+	}
+	s := strconv.FormatFloat(mag, 'e', n-1, 64)
+	e, _ := strconv.Atoi(s[strings.IndexByte(s, 'e')+1:])
+	dec := n - 1 - e
+	if dec < 0 {
+		return 0
+	}
+	return dec
+}
+
+func fmtFixed(x float64, dec int) string {
+	s := strconv.FormatFloat(x, 'f', dec, 64)
+	if strings.HasPrefix(s, "-") && strings.Trim(s[1:], "0.") == "" {
+		s = s[1:]
+	}
+	return s
+}
+
+// fmtSig writes x with n significant figures in fixed notation.
+func fmtSig(x float64, n int) string {
+	return fmtFixed(x, decimalsFor(math.Abs(x), n))
+}
+
+// fmtNum writes x with n significant figures, in exponent form outside
+// [1e-3, 1e6).
+func fmtNum(x float64, n int) string {
+	if math.IsInf(x, 1) {
+		return "∞"
+	}
+	if math.IsInf(x, -1) {
+		return "-∞"
+	}
+	a := math.Abs(roundSig(x, n))
+	if a != 0 && (a >= 1e6 || a < 1e-3) {
+		s := strconv.FormatFloat(x, 'e', n-1, 64)
+		// 1.234e-05 -> 1.234e-5
+		i := strings.IndexByte(s, 'e')
+		e, _ := strconv.Atoi(s[i+1:])
+		return s[:i] + "e" + strconv.Itoa(e)
+	}
+	return fmtSig(x, n)
+}
+
+// fmtAngle writes an angle in degrees in (-180, 180], with n significant
+// figures but at most n-2 decimals, so that tiny angles read as 0.
+func fmtAngle(deg float64, n int) string {
+	if deg <= -180 {
+		deg += 360
+	}
+	dec := decimalsFor(math.Abs(deg), n)
+	if dec > n-2 {
+		dec = n - 2
+	}
+	s := fmtFixed(deg, dec)
+	if strings.Trim(s, "0.-") == "" {
+		return "0"
+	}
+	if s == "-180" || strings.HasPrefix(s, "-180.") && strings.Trim(s[5:], "0") == "" {
+		s = s[1:]
+	}
+	return s
+}

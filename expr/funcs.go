@@ -1,0 +1,203 @@
+package expr
+
+import (
+	"fmt"
+	"math"
+	"math/cmplx"
+)
+
+type builtin struct {
+	min, max int // argument count; max < 0: any number
+	fn       func(args []Value) (Value, error)
+}
+
+var builtins map[string]builtin
+
+func init() {
+	builtins = map[string]builtin{
+		"re":   {1, 1, elementwise(func(s Scalar) Scalar { return Scalar{Z: complex(real(s.Z), 0), Dim: s.Dim, Angle: s.Angle} })},
+		"im":   {1, 1, elementwise(func(s Scalar) Scalar { return Scalar{Z: complex(imag(s.Z), 0), Dim: s.Dim} })},
+		"abs":  {1, 1, elementwise(func(s Scalar) Scalar { return Scalar{Z: complex(cmplx.Abs(s.Z), 0), Dim: s.Dim, Angle: s.Angle} })},
+		"conj": {1, 1, elementwise(func(s Scalar) Scalar { return Scalar{Z: cmplx.Conj(s.Z), Dim: s.Dim, Angle: s.Angle} })},
+		"arg": {1, 1, scalarFn(func(s *Scalar) (Value, error) {
+			if s.Z == 0 {
+				return nil, fmt.Errorf("the angle of zero is undefined")
+			}
+			return &Scalar{Z: complex(cmplx.Phase(s.Z), 0), Angle: true}, nil
+		})},
+		"sqrt": {1, 1, scalarFn(func(s *Scalar) (Value, error) {
+			var d Dim
+			for i, e := range s.Dim {
+				if e%2 != 0 {
+					return nil, fmt.Errorf("the square root of %s has no unit (the exponents of %s are not all even)", dimWord(s.Dim), s.Dim.SI())
+				}
+				d[i] = e / 2
+			}
+			if imag(s.Z) == 0 && real(s.Z) >= 0 {
+				return &Scalar{Z: complex(math.Sqrt(real(s.Z)), 0), Dim: d}, nil
+			}
+			return &Scalar{Z: cmplx.Sqrt(s.Z), Dim: d}, nil
+		})},
+		"exp":   {1, 1, plain(cmplx.Exp, false)},
+		"ln":    {1, 1, plainChecked(cmplx.Log, "the logarithm of zero is -∞")},
+		"log10": {1, 1, plainChecked(cmplx.Log10, "the logarithm of zero is -∞")},
+		"sin":   {1, 1, plain(cmplx.Sin, false)},
+		"cos":   {1, 1, plain(cmplx.Cos, false)},
+		"tan":   {1, 1, plain(cmplx.Tan, false)},
+		"asin":  {1, 1, plain(cmplx.Asin, true)},
+		"acos":  {1, 1, plain(cmplx.Acos, true)},
+		"atan":  {1, 1, plain(cmplx.Atan, true)},
+		"sinh":  {1, 1, plain(cmplx.Sinh, false)},
+		"cosh":  {1, 1, plain(cmplx.Cosh, false)},
+		"tanh":  {1, 1, plain(cmplx.Tanh, false)},
+		"atan2": {2, 2, func(a []Value) (Value, error) {
+			y, x, err := twoScalars(a)
+			if err != nil {
+				return nil, err
+			}
+			if !sameDim(y, x) {
+				return nil, fmt.Errorf("both arguments need the same unit (%s and %s)", dimWord(y.Dim), dimWord(x.Dim))
+			}
+			if !y.IsReal() || !x.IsReal() {
+				return nil, fmt.Errorf("both arguments must be real")
+			}
+			return &Scalar{Z: complex(math.Atan2(real(y.Z), real(x.Z)), 0), Angle: true}, nil
+		}},
+		"polar": {2, 2, func(a []Value) (Value, error) {
+			m, ang, err := twoScalars(a)
+			if err != nil {
+				return nil, err
+			}
+			if !ang.Dim.IsZero() || !ang.IsReal() {
+				return nil, fmt.Errorf("the second argument must be a real angle (e.g. 30° or 0.5 rad), not %s", Describe(ang))
+			}
+			if !m.IsReal() {
+				return nil, fmt.Errorf("the magnitude must be real, not %s (use abs() for a magnitude)", Describe(m))
+			}
+			return &Scalar{Z: complex(real(m.Z), 0) * cmplx.Rect(1, real(ang.Z)), Dim: m.Dim}, nil
+		}},
+		"min": {1, -1, minMax(false)},
+		"max": {1, -1, minMax(true)},
+		// vectors and matrices
+		"inv":       {1, 1, matInv},
+		"det":       {1, 1, matDet},
+		"transpose": {1, 1, matTranspose},
+		"diag":      {1, 1, matDiag},
+		"seq":       {1, 3, seqFn},
+		"abc":       {1, 3, abcFn},
+	}
+}
+
+func sameDim(a, b *Scalar) bool {
+	return a.Dim == b.Dim || isPlainZero(a) || isPlainZero(b)
+}
+
+// isPlainZero reports whether s is a dimensionless exact zero, which matches
+// any unit in a sum or a comparison ("check I > 0").
+func isPlainZero(s *Scalar) bool { return s.Z == 0 && s.Dim.IsZero() }
+
+func oneScalar(a []Value) (*Scalar, error) {
+	s, ok := a[0].(*Scalar)
+	if !ok {
+		return nil, fmt.Errorf("needs a single value, not %s", Describe(a[0]))
+	}
+	return s, nil
+}
+
+func twoScalars(a []Value) (*Scalar, *Scalar, error) {
+	x, ok1 := a[0].(*Scalar)
+	y, ok2 := a[1].(*Scalar)
+	if !ok1 || !ok2 {
+		return nil, nil, fmt.Errorf("needs single values, not vectors or matrices")
+	}
+	return x, y, nil
+}
+
+func scalarFn(f func(*Scalar) (Value, error)) func([]Value) (Value, error) {
+	return func(a []Value) (Value, error) {
+		s, err := oneScalar(a)
+		if err != nil {
+			return nil, err
+		}
+		return f(s)
+	}
+}
+
+func elementwise(f func(Scalar) Scalar) func([]Value) (Value, error) {
+	return func(a []Value) (Value, error) {
+		switch x := a[0].(type) {
+		case *Scalar:
+			r := f(*x)
+			return &r, nil
+		case *Matrix:
+			out := NewMatrix(x.Rows, x.Cols)
+			for i, e := range x.E {
+				out.E[i] = f(e)
+			}
+			return out, nil
+		}
+		return nil, fmt.Errorf("bad argument")
+	}
+}
+
+// plain wraps a complex function of a dimensionless argument. angle marks
+// the inverse trigonometric functions, whose real results are angles.
+func plain(f func(complex128) complex128, angle bool) func([]Value) (Value, error) {
+	return scalarFn(func(s *Scalar) (Value, error) {
+		if !s.Dim.IsZero() {
+			return nil, fmt.Errorf("needs a plain number or an angle, not %s (divide by a unit first, e.g. x / (1 V))", Describe(s))
+		}
+		z := f(s.Z)
+		if cmplx.IsNaN(z) || cmplx.IsInf(z) {
+			return nil, fmt.Errorf("the result is not finite for %s", Describe(s))
+		}
+		r := &Scalar{Z: z}
+		r.Angle = angle && r.IsReal()
+		return r, nil
+	})
+}
+
+func plainChecked(f func(complex128) complex128, zeroMsg string) func([]Value) (Value, error) {
+	g := plain(f, false)
+	return func(a []Value) (Value, error) {
+		if s, ok := a[0].(*Scalar); ok && s.Z == 0 && s.Dim.IsZero() {
+			return nil, fmt.Errorf("%s", zeroMsg)
+		}
+		return g(a)
+	}
+}
+
+func minMax(isMax bool) func([]Value) (Value, error) {
+	return func(a []Value) (Value, error) {
+		var vals []*Scalar
+		for _, v := range a {
+			switch x := v.(type) {
+			case *Scalar:
+				vals = append(vals, x)
+			case *Matrix:
+				for i := range x.E {
+					vals = append(vals, &x.E[i])
+				}
+			}
+		}
+		var best *Scalar
+		for _, s := range vals {
+			if !s.IsReal() {
+				return nil, fmt.Errorf("cannot order complex values such as %s: compare abs, re or im", Describe(s))
+			}
+			if best == nil {
+				best = s
+				continue
+			}
+			if !sameDim(best, s) {
+				return nil, fmt.Errorf("all arguments need the same unit (%s and %s)", dimWord(best.Dim), dimWord(s.Dim))
+			}
+			if (isMax && real(s.Z) > real(best.Z)) || (!isMax && real(s.Z) < real(best.Z)) {
+				best = s
+			}
+		}
+		r := *best
+		r.Z = complex(real(r.Z), 0)
+		return &r, nil
+	}
+}

@@ -1,0 +1,711 @@
+package expr
+
+import (
+	"fmt"
+	"strings"
+)
+
+// Mode selects the statements a block may hold.
+type Mode int
+
+// Block modes.
+const (
+	CalcMode     Mode = iota // statements of a calc block
+	EquationMode             // equations of a solve block: [label:] lhs = rhs
+)
+
+// Equation is one equation of a solve block.
+type Equation struct {
+	span
+	desc
+	Label    *Ident // nil when unlabelled
+	LHS, RHS Node
+}
+
+// ParseBlock parses the statements of a block. Each statement is one line,
+// continued onto the next while a parenthesis or bracket is open. Errors
+// are added to errs; a statement that cannot be parsed becomes a *BadStmt
+// and parsing goes on with the next line.
+func ParseBlock(src *Source, mode Mode, errs *ErrorList) []Stmt {
+	toks := Scan(src, errs)
+	p := &parser{src: src, errs: errs}
+	var out []Stmt
+	for _, st := range p.split(toks) {
+		if s := p.stmt(st, mode); s != nil {
+			out = append(out, s)
+		}
+	}
+	return out
+}
+
+// ParseExpr parses a single expression, optionally followed by a display
+// bracket "[unit form]" (as in an inline value). Extra text is an error.
+func ParseExpr(src *Source, errs *ErrorList) (Node, *Display) {
+	toks := Scan(src, errs)
+	p := &parser{src: src, errs: errs}
+	var clean []Token
+	for _, t := range toks {
+		if t.Kind != NEWLINE {
+			clean = append(clean, t)
+		}
+	}
+	if len(clean) == 0 {
+		errs.Add(src.PosAt(0), "empty expression")
+		return &BadExpr{span{src.PosAt(0), src.PosAt(0)}}, nil
+	}
+	p.toks = clean
+	p.i = 0
+	x, disp, ok := p.exprWithDisplay()
+	if !ok {
+		return &BadExpr{span{src.PosAt(0), src.PosAt(len(src.Text))}}, nil
+	}
+	return x, disp
+}
+
+type parser struct {
+	src   *Source
+	errs  *ErrorList
+	toks  []Token // the current statement's tokens
+	i     int
+	depth int
+	bad   bool
+}
+
+type bail struct{}
+
+func (p *parser) pos(off int) Pos { return p.src.PosAt(off) }
+
+func (p *parser) fail(off int, format string, args ...any) {
+	p.errs.Add(p.pos(off), fmt.Sprintf(format, args...))
+	panic(bail{})
+}
+
+// split cuts the token stream into statements at line breaks outside
+// parentheses and brackets. An unclosed parenthesis is reported where it
+// opened, and the statement is cut at the end of that line so that the
+// lines after it are still read.
+func (p *parser) split(toks []Token) [][]Token {
+	var out [][]Token
+	i := 0
+	for i < len(toks) {
+		var open []Token
+		start := i
+		j := i
+		for ; j < len(toks); j++ {
+			t := toks[j]
+			if t.Kind == NEWLINE && len(open) == 0 {
+				break
+			}
+			switch t.Kind {
+			case LPAREN, LBRACK:
+				open = append(open, t)
+			case RPAREN, RBRACK:
+				if len(open) > 0 {
+					open = open[:len(open)-1]
+				}
+			}
+		}
+		if len(open) > 0 {
+			o := open[0]
+			what := "parenthesis"
+			closer := ")"
+			if o.Kind == LBRACK {
+				what, closer = "bracket", "]"
+			}
+			p.errs.Add(p.pos(o.Off), fmt.Sprintf("unclosed %s: this %q is never closed (add %q)", what, o.Text, closer))
+			// cut at the first line break after the opening token
+			k := start
+			for k < len(toks) && !(toks[k].Kind == NEWLINE && toks[k].Off > o.Off) {
+				k++
+			}
+			bad := toks[start:k]
+			if len(bad) > 0 {
+				out = append(out, append([]Token{{Kind: ILLEGAL, Off: bad[0].Off, End: bad[len(bad)-1].End, Text: "unclosed"}}, bad...))
+			}
+			i = k + 1
+			continue
+		}
+		var st []Token
+		for _, t := range toks[start:j] {
+			if t.Kind != NEWLINE {
+				st = append(st, t)
+			}
+		}
+		if len(st) > 0 {
+			out = append(out, st)
+		}
+		i = j + 1
+	}
+	return out
+}
+
+func (p *parser) stmt(toks []Token, mode Mode) (s Stmt) {
+	if toks[0].Kind == ILLEGAL && toks[0].Text == "unclosed" {
+		return &BadStmt{span: span{p.pos(toks[0].Off), p.pos(toks[0].End)}}
+	}
+	first, last := toks[0], toks[len(toks)-1]
+	sp := span{p.pos(first.Off), p.pos(last.End)}
+	if first.Kind == COMMENT {
+		return &Note{span: sp, Text: first.Text}
+	}
+	// descriptions: every comment in the statement, joined
+	var comments []string
+	var body []Token
+	for _, t := range toks {
+		if t.Kind == COMMENT {
+			if t.Text != "" {
+				comments = append(comments, t.Text)
+			}
+			continue
+		}
+		body = append(body, t)
+	}
+	d := desc{strings.Join(comments, " ")}
+	for _, t := range body {
+		if t.Kind == ILLEGAL {
+			// the scanner has reported it already
+			return &BadStmt{span: sp, desc: d}
+		}
+	}
+	sp = span{p.pos(body[0].Off), p.pos(body[len(body)-1].End)}
+	p.toks = body
+	p.i = 0
+	p.depth = 0
+	defer func() {
+		if r := recover(); r != nil {
+			if _, ok := r.(bail); !ok {
+				panic(r)
+			}
+			s = &BadStmt{span: sp, desc: d}
+		}
+	}()
+	if mode == EquationMode {
+		return p.equation(sp, d)
+	}
+	if body[0].Kind == IDENT && body[0].Text == "check" && len(body) > 1 && body[1].Kind != ASSIGN {
+		p.i = 1
+		cmp := p.comparison()
+		p.expectEnd()
+		return &Check{span: sp, desc: d, Cmp: cmp}
+	}
+	if eq := p.topAssign(); eq >= 0 {
+		return p.assignment(eq, sp, d)
+	}
+	x, disp, _ := p.exprWithDisplay()
+	return &ExprStmt{span: sp, desc: d, X: x, Display: disp}
+}
+
+// topAssign finds "=" outside parentheses and brackets, or -1.
+func (p *parser) topAssign() int {
+	depth := 0
+	for i, t := range p.toks {
+		switch t.Kind {
+		case LPAREN, LBRACK:
+			depth++
+		case RPAREN, RBRACK:
+			depth--
+		case ASSIGN:
+			if depth == 0 {
+				return i
+			}
+		}
+	}
+	return -1
+}
+
+func (p *parser) equation(sp span, d desc) Stmt {
+	eq := &Equation{span: sp, desc: d}
+	if len(p.toks) > 2 && p.toks[0].Kind == IDENT && p.toks[1].Kind == COLON {
+		eq.Label = p.ident(p.toks[0])
+		p.i = 2
+	}
+	k := p.topAssign()
+	if k < 0 {
+		if cmp := p.firstComparison(); cmp >= 0 {
+			p.fail(p.toks[cmp].Off, "an equation is written with \"=\", not %q", p.toks[cmp].Text)
+		}
+		p.fail(p.toks[p.i].Off, "an equation needs \"=\": write lhs = rhs")
+	}
+	if k == p.i {
+		p.fail(p.toks[k].Off, "missing left side before \"=\"")
+	}
+	rest := p.toks
+	p.toks = rest[:k]
+	eq.LHS = p.expr()
+	p.expectEnd()
+	p.toks = rest
+	p.i = k + 1
+	if p.i >= len(p.toks) {
+		p.fail(p.toks[k].End, "missing right side after \"=\"")
+	}
+	eq.RHS = p.expr()
+	p.expectEnd()
+	return eq
+}
+
+func (p *parser) firstComparison() int {
+	for i, t := range p.toks {
+		if t.Kind.IsComparison() {
+			return i
+		}
+	}
+	return -1
+}
+
+func (p *parser) ident(t Token) *Ident {
+	return &Ident{span: span{p.pos(t.Off), p.pos(t.End)}, Name: t.Text}
+}
+
+func (p *parser) assignment(eq int, sp span, d desc) Stmt {
+	lhs := p.toks[:eq]
+	if len(lhs) == 0 {
+		p.fail(p.toks[eq].Off, "missing name before \"=\"")
+	}
+	if eq+1 >= len(p.toks) {
+		p.fail(p.toks[eq].End, "missing expression after \"=\"")
+	}
+	if lhs[0].Kind != IDENT {
+		p.fail(lhs[0].Off, "the left side of \"=\" must be a name, a name[unit] or a function f(x) (to compare, use check with ==)")
+	}
+	parseRHS := func() Node {
+		p.i = eq + 1
+		x := p.expr()
+		p.expectEnd()
+		return x
+	}
+	switch {
+	case len(lhs) == 1:
+		return &Assign{span: sp, desc: d, Names: []*Ident{p.ident(lhs[0])}, X: parseRHS()}
+	case lhs[1].Kind == LBRACK:
+		if lhs[len(lhs)-1].Kind != RBRACK {
+			p.fail(lhs[1].Off, "a display bracket must close before \"=\": write name[unit] = ...")
+		}
+		disp := p.display(lhs[1], lhs[len(lhs)-1])
+		return &Assign{span: sp, desc: d, Names: []*Ident{p.ident(lhs[0])}, Display: disp, X: parseRHS()}
+	case lhs[1].Kind == LPAREN:
+		fd := &FuncDef{span: sp, desc: d, Name: p.ident(lhs[0])}
+		i := 2
+		for i < len(lhs) && lhs[i].Kind != RPAREN {
+			if lhs[i].Kind != IDENT {
+				p.fail(lhs[i].Off, "a function's parameters must be names, separated by commas")
+			}
+			fd.Params = append(fd.Params, p.ident(lhs[i]))
+			i++
+			if i < len(lhs) && lhs[i].Kind == COMMA {
+				i++
+				continue
+			}
+			if i < len(lhs) && lhs[i].Kind != RPAREN {
+				p.fail(lhs[i].Off, "expected \",\" or \")\" in the parameter list")
+			}
+		}
+		if i != len(lhs)-1 {
+			p.fail(lhs[min(i, len(lhs)-1)].Off, "unexpected text after the parameter list")
+		}
+		if len(fd.Params) == 0 {
+			p.fail(lhs[1].Off, "a function needs at least one parameter")
+		}
+		fd.Body = parseRHS()
+		return fd
+	case lhs[1].Kind == COMMA:
+		a := &Assign{span: sp, desc: d}
+		for i := 0; i < len(lhs); i += 2 {
+			if lhs[i].Kind != IDENT {
+				p.fail(lhs[i].Off, "expected a name in the list of names before \"=\"")
+			}
+			a.Names = append(a.Names, p.ident(lhs[i]))
+			if i+1 < len(lhs) && lhs[i+1].Kind != COMMA {
+				p.fail(lhs[i+1].Off, "names before \"=\" are separated by commas")
+			}
+		}
+		a.X = parseRHS()
+		return a
+	}
+	p.fail(lhs[1].Off, "the left side of \"=\" must be a name, a name[unit] or a function f(x) (to compare, use check with ==)")
+	return nil
+}
+
+// display parses the text between "[" and "]" as "unit", "form" or "unit form".
+func (p *parser) display(lb, rb Token) *Display {
+	text := strings.TrimSpace(p.src.Text[lb.End:rb.Off])
+	d, err := ParseDisplay(text)
+	if err != nil {
+		p.fail(lb.End, "%s", err.Error())
+	}
+	d.span = span{p.pos(lb.Off), p.pos(rb.End)}
+	return d
+}
+
+// ParseDisplay reads "kA", "polar", "kA polar", "Ω rect".
+func ParseDisplay(text string) (*Display, error) {
+	d := &Display{Text: text}
+	fields := strings.Fields(text)
+	if len(fields) == 0 {
+		return nil, fmt.Errorf("empty brackets: write a unit and/or a form, e.g. [kA] or [polar]")
+	}
+	for _, f := range fields {
+		switch f {
+		case "polar":
+			d.Form = FormPolar
+		case "rect":
+			d.Form = FormRect
+		default:
+			if d.Unit != nil {
+				return nil, fmt.Errorf("two units in brackets (%q and %q): write one unit and optionally polar or rect", d.Unit.Text, f)
+			}
+			u, err := ParseUnit(f)
+			if err != nil {
+				return nil, err
+			}
+			d.Unit = u
+		}
+	}
+	return d, nil
+}
+
+func (p *parser) exprWithDisplay() (x Node, d *Display, ok bool) {
+	defer func() {
+		if r := recover(); r != nil {
+			if _, isBail := r.(bail); !isBail {
+				panic(r)
+			}
+			ok = false
+		}
+	}()
+	x = p.expr()
+	if p.i < len(p.toks) && p.toks[p.i].Kind == LBRACK && p.toks[len(p.toks)-1].Kind == RBRACK {
+		d = p.display(p.toks[p.i], p.toks[len(p.toks)-1])
+		p.i = len(p.toks)
+	}
+	p.expectEnd()
+	return x, d, true
+}
+
+func (p *parser) peek() Kind {
+	if p.i < len(p.toks) {
+		return p.toks[p.i].Kind
+	}
+	return EOF
+}
+
+func (p *parser) tok() Token {
+	if p.i < len(p.toks) {
+		return p.toks[p.i]
+	}
+	end := 0
+	if len(p.toks) > 0 {
+		end = p.toks[len(p.toks)-1].End
+	}
+	return Token{Kind: EOF, Off: end, End: end}
+}
+
+func (p *parser) expectEnd() {
+	if p.i < len(p.toks) {
+		t := p.toks[p.i]
+		switch t.Kind {
+		case RPAREN:
+			p.fail(t.Off, "unexpected \")\": no parenthesis is open here")
+		case RBRACK:
+			p.fail(t.Off, "unexpected \"]\": no bracket is open here")
+		case ASSIGN:
+			p.fail(t.Off, "unexpected \"=\" (to compare, use check with ==)")
+		case IDENT, NUMBER, LPAREN:
+			p.fail(t.Off, "unexpected %s %q: an operator is missing before it (write * to multiply)", t.Kind, t.Text)
+		case UNIT:
+			p.fail(t.Off, "unexpected unit %q here", t.Text)
+		}
+		p.fail(t.Off, "unexpected %q", t.Text)
+	}
+}
+
+func (p *parser) enter(off int) {
+	p.depth++
+	if p.depth > MaxDepth {
+		p.fail(off, "expression nested too deeply (more than %d levels)", MaxDepth)
+	}
+}
+func (p *parser) leave() { p.depth-- }
+
+func (p *parser) expr() Node { return p.add() }
+
+func (p *parser) comparison() *Compare {
+	x := p.add()
+	c := &Compare{X: []Node{x}}
+	for p.peek().IsComparison() {
+		c.Ops = append(c.Ops, p.peek())
+		p.i++
+		c.X = append(c.X, p.add())
+	}
+	if len(c.Ops) == 0 {
+		if p.peek() == ASSIGN {
+			p.fail(p.tok().Off, "a check compares with ==, not =")
+		}
+		p.fail(p.tok().Off, "a check needs a comparison: <, <=, >, >=, == or !=")
+	}
+	c.span = span{x.Pos(), c.X[len(c.X)-1].End()}
+	return c
+}
+
+func (p *parser) binary(op Kind, x, y Node) Node {
+	return &Binary{span: span{x.Pos(), y.End()}, Op: op, X: x, Y: y}
+}
+
+func (p *parser) add() Node {
+	p.enter(p.tok().Off)
+	defer p.leave()
+	x := p.par()
+	for k := p.peek(); k == ADD || k == SUB; k = p.peek() {
+		p.i++
+		x = p.binary(k, x, p.par())
+	}
+	return x
+}
+
+// isParallel reports whether the parser stands on "∥", or on two adjacent
+// "|" followed by something that starts an operand.
+func (p *parser) isParallel() int {
+	if p.peek() == PAR {
+		return 1
+	}
+	if p.peek() == BAR && p.i+2 < len(p.toks) {
+		a, b, c := p.toks[p.i], p.toks[p.i+1], p.toks[p.i+2]
+		if b.Kind == BAR && b.Off == a.End && startsOperand(c.Kind) {
+			return 2
+		}
+	}
+	return 0
+}
+
+func startsOperand(k Kind) bool {
+	switch k {
+	case NUMBER, IDENT, LPAREN, LBRACK, BAR, SUB, ADD:
+		return true
+	}
+	return false
+}
+
+func (p *parser) par() Node {
+	x := p.mul()
+	for n := p.isParallel(); n > 0; n = p.isParallel() {
+		p.i += n
+		x = p.binary(PAR, x, p.mul())
+	}
+	return x
+}
+
+func (p *parser) mul() Node {
+	x := p.unary()
+	for k := p.peek(); k == MUL || k == DIV; k = p.peek() {
+		p.i++
+		x = p.binary(k, x, p.unary())
+	}
+	return x
+}
+
+func (p *parser) unary() Node {
+	if k := p.peek(); k == SUB || k == ADD {
+		t := p.tok()
+		p.i++
+		p.enter(t.Off)
+		defer p.leave()
+		x := p.unary()
+		return &Unary{span: span{p.pos(t.Off), x.End()}, Op: k, X: x}
+	}
+	return p.angle()
+}
+
+// signed is an operand that may carry its own sign, as on the right of ∠ and ^.
+func (p *parser) signed(next func() Node) Node {
+	if k := p.peek(); k == SUB || k == ADD {
+		t := p.tok()
+		p.i++
+		p.enter(t.Off)
+		defer p.leave()
+		x := p.signed(next)
+		return &Unary{span: span{p.pos(t.Off), x.End()}, Op: k, X: x}
+	}
+	return next()
+}
+
+func (p *parser) angle() Node {
+	x := p.pow()
+	for p.peek() == ANGLE {
+		p.i++
+		y := p.signed(p.pow)
+		// "16∠-40° A": a unit after the angle applies to the whole phasor.
+		y, u := liftPhasorUnit(y)
+		x = p.binary(ANGLE, x, y)
+		if u != nil {
+			x = &WithUnit{span: span{x.Pos(), u.E}, X: x, Unit: u.Unit, UPos: u.UPos}
+		}
+	}
+	return x
+}
+
+// liftPhasorUnit takes a unit written after an angle unit off the angle.
+func liftPhasorUnit(y Node) (Node, *WithUnit) {
+	switch n := y.(type) {
+	case *Unary:
+		inner, u := liftPhasorUnit(n.X)
+		if u != nil {
+			return &Unary{span: span{n.P, inner.End()}, Op: n.Op, X: inner}, u
+		}
+	case *WithUnit:
+		if in, ok := n.X.(*WithUnit); ok && in.Unit.Angle && !n.Unit.Angle {
+			return in, n
+		}
+	}
+	return y, nil
+}
+
+func (p *parser) pow() Node {
+	x := p.postfix()
+	if p.peek() == POW {
+		t := p.tok()
+		p.i++
+		p.enter(t.Off)
+		defer p.leave()
+		y := p.signed(p.pow)
+		return p.binary(POW, x, y)
+	}
+	return x
+}
+
+func (p *parser) postfix() Node {
+	x := p.primary()
+	for p.peek() == UNIT {
+		t := p.tok()
+		p.i++
+		u, err := ParseUnit(t.Text)
+		if err != nil {
+			msg := err.Error()
+			if strings.ContainsAny(t.Text, "*/·") {
+				msg += fmt.Sprintf(" in %q (inside a unit, * and / join symbols; to multiply or divide by a name, put spaces around the operator)", t.Text)
+			} else if _, isNum := x.(*Number); isNum && !t.SpaceBefore {
+				msg += fmt.Sprintf(" (to multiply a number by a name, write %s*%s)", p.src.Text[p.toks[p.i-2].Off:p.toks[p.i-2].End], t.Text)
+			}
+			p.fail(t.Off, "%s", msg)
+		}
+		x = &WithUnit{span: span{x.Pos(), p.pos(t.End)}, X: x, Unit: u, UPos: p.pos(t.Off)}
+	}
+	return x
+}
+
+func (p *parser) primary() Node {
+	t := p.tok()
+	switch t.Kind {
+	case NUMBER:
+		p.i++
+		return &Number{span: span{p.pos(t.Off), p.pos(t.End)}, Text: t.Text, Value: t.Num, Imag: t.Imag}
+	case IDENT:
+		p.i++
+		id := p.ident(t)
+		if p.peek() == LPAREN {
+			return p.call(id)
+		}
+		return id
+	case LPAREN:
+		p.i++
+		p.enter(t.Off)
+		defer p.leave()
+		x := p.expr()
+		if p.peek() != RPAREN {
+			p.closeErr(t, ")")
+		}
+		e := p.tok()
+		p.i++
+		return &Paren{span: span{p.pos(t.Off), p.pos(e.End)}, X: x}
+	case BAR:
+		p.i++
+		p.enter(t.Off)
+		defer p.leave()
+		x := p.expr()
+		if p.peek() != BAR {
+			p.closeErr(t, "|")
+		}
+		e := p.tok()
+		p.i++
+		return &Abs{span: span{p.pos(t.Off), p.pos(e.End)}, X: x}
+	case LBRACK:
+		return p.matrix()
+	case EOF:
+		p.fail(t.Off, "expression ends too soon: a value is missing")
+	case RPAREN:
+		p.fail(t.Off, "unexpected \")\": a value is missing before it")
+	case UNIT:
+		p.fail(t.Off, "unexpected unit %q", t.Text)
+	}
+	p.fail(t.Off, "unexpected %q: a value is missing here", t.Text)
+	return nil
+}
+
+func (p *parser) closeErr(open Token, closer string) {
+	t := p.tok()
+	if t.Kind == EOF {
+		p.fail(open.Off, "unclosed %q: add %q", open.Text, closer)
+	}
+	p.fail(t.Off, "expected %q to close the %q at %s, found %q", closer, open.Text, p.pos(open.Off), t.Text)
+}
+
+func (p *parser) call(id *Ident) Node {
+	open := p.tok()
+	p.i++
+	p.enter(open.Off)
+	defer p.leave()
+	c := &Call{Fun: id}
+	if p.peek() != RPAREN {
+		for {
+			c.Args = append(c.Args, p.expr())
+			if p.peek() == COMMA {
+				p.i++
+				continue
+			}
+			break
+		}
+	}
+	if p.peek() != RPAREN {
+		p.closeErr(open, ")")
+	}
+	e := p.tok()
+	p.i++
+	c.span = span{id.P, p.pos(e.End)}
+	return c
+}
+
+func (p *parser) matrix() Node {
+	open := p.tok()
+	p.i++
+	p.enter(open.Off)
+	defer p.leave()
+	m := &MatrixLit{}
+	row := []Node{}
+	for {
+		if p.peek() == RBRACK && len(row) == 0 && len(m.Rows) == 0 {
+			p.fail(open.Off, "empty matrix []")
+		}
+		row = append(row, p.expr())
+		switch p.peek() {
+		case COMMA:
+			p.i++
+			continue
+		case SEMI:
+			p.i++
+			m.Rows = append(m.Rows, row)
+			row = []Node{}
+			continue
+		case RBRACK:
+			m.Rows = append(m.Rows, row)
+			e := p.tok()
+			p.i++
+			m.span = span{p.pos(open.Off), p.pos(e.End)}
+			for i, r := range m.Rows {
+				if len(r) != len(m.Rows[0]) {
+					p.errs.Add(r[0].Pos(), fmt.Sprintf("row %d of the matrix has %d entries, row 1 has %d: every row needs as many", i+1, len(r), len(m.Rows[0])))
+					panic(bail{})
+				}
+			}
+			return m
+		}
+		p.closeErr(open, "]")
+	}
+}

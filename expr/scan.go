@@ -1,0 +1,421 @@
+package expr
+
+import (
+	"sort"
+	"strconv"
+	"strings"
+	"unicode"
+	"unicode/utf8"
+)
+
+// Source is the text of one block (or one line) and where each of its lines
+// stands in the document, so that every position is a position in the .md
+// file.
+type Source struct {
+	Text   string
+	Lines  []Pos // position in the file of the first character of each line of Text
+	starts []int
+}
+
+// NewSource builds a Source whose first line starts at first in the file
+// and whose later lines start at column 1 of the following file lines.
+func NewSource(text string, first Pos) *Source {
+	s := &Source{Text: text}
+	s.index()
+	s.Lines = make([]Pos, len(s.starts))
+	for i := range s.starts {
+		if i == 0 {
+			s.Lines[i] = first
+		} else {
+			s.Lines[i] = Pos{Line: first.Line + i, Col: 1}
+		}
+	}
+	return s
+}
+
+// NewSourceLines builds a Source from lines already split, each with its
+// position in the file.
+func NewSourceLines(lines []string, pos []Pos) *Source {
+	s := &Source{Text: strings.Join(lines, "\n"), Lines: append([]Pos(nil), pos...)}
+	s.index()
+	return s
+}
+
+func (s *Source) index() {
+	s.starts = []int{0}
+	for i := 0; i < len(s.Text); i++ {
+		if s.Text[i] == '\n' {
+			s.starts = append(s.starts, i+1)
+		}
+	}
+}
+
+// PosAt converts a byte offset into Text to a position in the file.
+func (s *Source) PosAt(off int) Pos {
+	if off < 0 {
+		off = 0
+	}
+	if off > len(s.Text) {
+		off = len(s.Text)
+	}
+	i := sort.Search(len(s.starts), func(i int) bool { return s.starts[i] > off }) - 1
+	if i < 0 {
+		i = 0
+	}
+	base := Pos{Line: 1, Col: 1}
+	if i < len(s.Lines) {
+		base = s.Lines[i]
+	}
+	return Pos{Line: base.Line, Col: base.Col + utf8.RuneCountInString(s.Text[s.starts[i]:off])}
+}
+
+// Kind is the kind of a token.
+type Kind int
+
+// Token kinds.
+const (
+	EOF Kind = iota
+	NEWLINE
+	COMMENT // "#" to the end of the line; Text is what follows "#"
+	NUMBER  // 12, 0.5, 1e-3, and imaginary literals j4, j0.5
+	IDENT
+	UNIT // a unit after a number or ")": V, kA, Ω/km, °
+	ADD  // +
+	SUB  // -
+	MUL  // *
+	DIV  // /
+	POW  // ^
+	ANGLE
+	PAR // ∥ (and || in operator position, see the parser)
+	BAR // |
+	LPAREN
+	RPAREN
+	LBRACK
+	RBRACK
+	COMMA
+	SEMI
+	ASSIGN // =
+	COLON
+	LT
+	LE
+	GT
+	GE
+	EQ
+	NE
+	ILLEGAL
+)
+
+var kindNames = map[Kind]string{
+	EOF: "end of line", NEWLINE: "end of line", COMMENT: "comment", NUMBER: "number", IDENT: "name",
+	UNIT: "unit", ADD: "+", SUB: "-", MUL: "*", DIV: "/", POW: "^", ANGLE: "∠", PAR: "∥", BAR: "|",
+	LPAREN: "(", RPAREN: ")", LBRACK: "[", RBRACK: "]", COMMA: ",", SEMI: ";", ASSIGN: "=",
+	COLON: ":", LT: "<", LE: "<=", GT: ">", GE: ">=", EQ: "==", NE: "!=", ILLEGAL: "illegal character",
+}
+
+func (k Kind) String() string { return kindNames[k] }
+
+// IsComparison reports whether k is one of the comparisons of a check.
+func (k Kind) IsComparison() bool { return k >= LT && k <= NE }
+
+// Token is one token, with its byte span in the Source text.
+type Token struct {
+	Kind        Kind
+	Text        string
+	Off, End    int     // byte offsets in Source.Text
+	Num         float64 // NUMBER: the value (the imaginary part for an imaginary literal)
+	Imag        bool    // NUMBER: an imaginary literal such as j4
+	SpaceBefore bool
+}
+
+// Limits that keep every input bounded.
+const (
+	MaxNumberLen = 64  // characters in one numeric literal
+	MaxDepth     = 200 // nesting of parentheses, brackets and operators
+	MaxTokens    = 1 << 20
+)
+
+// Scan splits src into tokens. Every line break is a NEWLINE token; the
+// parser joins lines while a parenthesis or bracket is open. Errors
+// (an illegal character, a number out of range) are added to errs and
+// scanning goes on.
+func Scan(src *Source, errs *ErrorList) []Token {
+	sc := scanner{src: src, text: src.Text, errs: errs}
+	return sc.run()
+}
+
+type scanner struct {
+	src  *Source
+	text string
+	off  int
+	errs *ErrorList
+	toks []Token
+}
+
+func (s *scanner) errAt(off int, msg string) { s.errs.Add(s.src.PosAt(off), msg) }
+
+func (s *scanner) peekRune(off int) (rune, int) {
+	if off >= len(s.text) {
+		return -1, 0
+	}
+	return utf8.DecodeRuneInString(s.text[off:])
+}
+
+func isLetter(r rune) bool {
+	return r >= 'a' && r <= 'z' || r >= 'A' && r <= 'Z' || r >= 0x80 && unicode.IsLetter(r)
+}
+func isDigit(r rune) bool { return r >= '0' && r <= '9' }
+
+// unitStart reports whether r may begin a unit.
+func unitStart(r rune) bool { return isLetter(r) || r == '°' || r == '%' || r == 'Ω' }
+
+func (s *scanner) emit(t Token) { s.toks = append(s.toks, t) }
+
+func (s *scanner) last() Kind {
+	if len(s.toks) == 0 {
+		return NEWLINE
+	}
+	return s.toks[len(s.toks)-1].Kind
+}
+
+func (s *scanner) run() []Token {
+	for s.off < len(s.text) {
+		if len(s.toks) > MaxTokens {
+			s.errAt(s.off, "too many tokens in one block")
+			break
+		}
+		start := s.off
+		r, w := s.peekRune(s.off)
+		space := false
+		if r == ' ' || r == '\t' || r == '\r' {
+			for r == ' ' || r == '\t' || r == '\r' {
+				s.off += w
+				r, w = s.peekRune(s.off)
+			}
+			space = true
+			start = s.off
+			if r == -1 {
+				break
+			}
+		}
+		// A unit may follow a number or ")" directly or after one space, and
+		// a second unit may follow an angle unit ("16∠-40° A").
+		if unitStart(r) && s.unitAllowed(space, start) {
+			s.scanUnit(start, space)
+			continue
+		}
+		switch {
+		case r == '\n':
+			s.off += w
+			s.emit(Token{Kind: NEWLINE, Off: start, End: s.off})
+		case r == '#':
+			end := strings.IndexByte(s.text[s.off:], '\n')
+			if end < 0 {
+				end = len(s.text)
+			} else {
+				end += s.off
+			}
+			s.emit(Token{Kind: COMMENT, Text: strings.TrimSpace(s.text[s.off+1 : end]), Off: start, End: end, SpaceBefore: space})
+			s.off = end
+		case isDigit(r) || r == '.' && s.nextIsDigit(s.off+1):
+			s.scanNumber(start, false, space)
+		case r == 'j' && (s.nextIsDigit(s.off+1) || s.byteAt(s.off+1) == '.' && s.nextIsDigit(s.off+2)):
+			s.off++
+			s.scanNumber(start, true, space)
+		case isLetter(r):
+			for isLetter(r) || isDigit(r) || r == '_' {
+				s.off += w
+				r, w = s.peekRune(s.off)
+			}
+			s.emit(Token{Kind: IDENT, Text: s.text[start:s.off], Off: start, End: s.off, SpaceBefore: space})
+		default:
+			s.off += w
+			k := ILLEGAL
+			switch r {
+			case '+':
+				k = ADD
+			case '-', '−':
+				k = SUB
+			case '*', '·', '×':
+				k = MUL
+			case '/':
+				k = DIV
+				if s.byteAt(s.off) == '_' {
+					s.off++
+					k = ANGLE
+				}
+			case '^':
+				k = POW
+			case '∠':
+				k = ANGLE
+			case '∥':
+				k = PAR
+			case '|':
+				k = BAR
+			case '(':
+				k = LPAREN
+			case ')':
+				k = RPAREN
+			case '[':
+				k = LBRACK
+			case ']':
+				k = RBRACK
+			case ',':
+				k = COMMA
+			case ';':
+				k = SEMI
+			case ':':
+				k = COLON
+			case '=':
+				k = ASSIGN
+				if s.byteAt(s.off) == '=' {
+					s.off++
+					k = EQ
+				}
+			case '<':
+				k = LT
+				if s.byteAt(s.off) == '=' {
+					s.off++
+					k = LE
+				}
+			case '>':
+				k = GT
+				if s.byteAt(s.off) == '=' {
+					s.off++
+					k = GE
+				}
+			case '!':
+				if s.byteAt(s.off) == '=' {
+					s.off++
+					k = NE
+				}
+			case '≤':
+				k = LE
+			case '≥':
+				k = GE
+			case '≠':
+				k = NE
+			case '°':
+				// "°" after a name or a closing parenthesis with no space
+				k = UNIT
+			}
+			if k == ILLEGAL {
+				msg := "unexpected character " + strconv.QuoteRune(r)
+				if r == utf8.RuneError && w == 1 {
+					msg = "invalid UTF-8 in the source"
+				} else if r == '!' {
+					msg = "unexpected \"!\" (write != for \"not equal\")"
+				}
+				s.errAt(start, msg)
+			}
+			t := Token{Kind: k, Text: s.text[start:s.off], Off: start, End: s.off, SpaceBefore: space}
+			s.emit(t)
+		}
+	}
+	return s.toks
+}
+
+func (s *scanner) byteAt(off int) byte {
+	if off < len(s.text) {
+		return s.text[off]
+	}
+	return 0
+}
+
+func (s *scanner) nextIsDigit(off int) bool { return off < len(s.text) && isDigit(rune(s.text[off])) }
+
+// unitAllowed reports whether a unit may start here: after a number or a
+// closing parenthesis (directly or after one space), or after an angle
+// unit (after one space).
+func (s *scanner) unitAllowed(space bool, start int) bool {
+	if len(s.toks) == 0 {
+		return false
+	}
+	prev := s.toks[len(s.toks)-1]
+	if space && start-prev.End != 1 {
+		return false // more than one space ends it
+	}
+	switch prev.Kind {
+	case NUMBER, RPAREN:
+		return true
+	case UNIT:
+		if !space {
+			return false
+		}
+		u := prev.Text
+		return u == "°" || u == "deg" || u == "rad"
+	case IDENT:
+		// only "°" directly after a name
+		r, _ := s.peekRune(start)
+		return !space && r == '°'
+	}
+	return false
+}
+
+func (s *scanner) scanUnit(start int, space bool) {
+	for s.off < len(s.text) {
+		r, w := s.peekRune(s.off)
+		switch {
+		case unitStart(r) || r == 'µ' || r == 'μ' || r == '²' || r == '³':
+			s.off += w
+		case r == '^':
+			s.off += w
+			if c := s.byteAt(s.off); c == '-' || c == '+' {
+				s.off++
+			}
+			for s.nextIsDigit(s.off) {
+				s.off++
+			}
+		case r == '·' || r == '*' || r == '/' || r == '⋅':
+			// a joiner only when a unit symbol follows directly
+			r2, _ := s.peekRune(s.off + w)
+			if !unitStart(r2) {
+				goto done
+			}
+			s.off += w
+		default:
+			goto done
+		}
+	}
+done:
+	s.emit(Token{Kind: UNIT, Text: s.text[start:s.off], Off: start, End: s.off, SpaceBefore: space})
+}
+
+func (s *scanner) scanNumber(start int, imag bool, space bool) {
+	numStart := s.off
+	for s.nextIsDigit(s.off) {
+		s.off++
+	}
+	if s.byteAt(s.off) == '.' && s.nextIsDigit(s.off+1) {
+		s.off++
+		for s.nextIsDigit(s.off) {
+			s.off++
+		}
+	} else if s.byteAt(s.off) == '.' && !s.nextIsDigit(s.off+1) && s.byteAt(s.off+1) != '.' {
+		s.off++ // "12." is 12
+	}
+	if c := s.byteAt(s.off); c == 'e' || c == 'E' {
+		o := s.off + 1
+		if c2 := s.byteAt(o); c2 == '+' || c2 == '-' {
+			o++
+		}
+		if s.nextIsDigit(o) {
+			s.off = o
+			for s.nextIsDigit(s.off) {
+				s.off++
+			}
+		}
+	}
+	text := s.text[numStart:s.off]
+	t := Token{Kind: NUMBER, Text: s.text[start:s.off], Off: start, End: s.off, Imag: imag, SpaceBefore: space}
+	if len(text) > MaxNumberLen {
+		s.errAt(start, "number too long (more than 64 characters)")
+	} else {
+		v, err := strconv.ParseFloat(text, 64)
+		if err != nil {
+			s.errAt(start, "number "+text+" is out of range")
+			v = 0
+		}
+		t.Num = v
+	}
+	s.emit(t)
+}

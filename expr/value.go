@@ -1,0 +1,63 @@
+package expr
+
+import (
+	"math"
+	"math/cmplx"
+)
+
+// Value is the result of an expression: a *Scalar or a *Matrix. Callers
+// switch on the concrete type; every value knows its shape.
+type Value interface {
+	// Shape is rows × columns: 1 × 1 for a scalar, n × 1 for a column vector.
+	Shape() (rows, cols int)
+	isValue()
+}
+
+// Scalar is one complex quantity: Z in coherent SI units and its
+// dimension. Angle marks a dimensionless value that is a plane angle in
+// radians (from an angle unit, arg, or an inverse trigonometric function),
+// so that the sheet shows it in degrees.
+type Scalar struct {
+	Z     complex128
+	Dim   Dim
+	Angle bool
+}
+
+// Matrix is a rows × cols array of quantities, stored row by row. Each
+// entry carries its own dimension. A column vector has Cols == 1.
+type Matrix struct {
+	Rows, Cols int
+	E          []Scalar
+}
+
+func (*Scalar) isValue()                 {}
+func (*Matrix) isValue()                 {}
+func (*Scalar) Shape() (int, int)        { return 1, 1 }
+func (m *Matrix) Shape() (int, int)      { return m.Rows, m.Cols }
+func (m *Matrix) At(i, j int) Scalar     { return m.E[i*m.Cols+j] }
+func (m *Matrix) Set(i, j int, s Scalar) { m.E[i*m.Cols+j] = s }
+
+// NewMatrix returns a zero rows × cols matrix.
+func NewMatrix(rows, cols int) *Matrix {
+	return &Matrix{Rows: rows, Cols: cols, E: make([]Scalar, rows*cols)}
+}
+
+// Real returns a dimensionless real scalar.
+func Real(x float64) *Scalar { return &Scalar{Z: complex(x, 0)} }
+
+// Quantity returns a scalar z with dimension d.
+func Quantity(z complex128, d Dim) *Scalar { return &Scalar{Z: z, Dim: d} }
+
+// IsReal reports whether the imaginary part is negligible: zero, or at
+// most 1e-12 of the magnitude (rounding in a chain of complex arithmetic).
+func (s *Scalar) IsReal() bool { return isRealZ(s.Z) }
+
+func isRealZ(z complex128) bool {
+	im := math.Abs(imag(z))
+	return im == 0 || im <= 1e-12*cmplx.Abs(z)
+}
+
+// IsFinite reports whether both parts are finite.
+func (s *Scalar) IsFinite() bool {
+	return !math.IsNaN(real(s.Z)) && !math.IsNaN(imag(s.Z)) && !math.IsInf(real(s.Z), 0) && !math.IsInf(imag(s.Z), 0)
+}
