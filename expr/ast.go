@@ -156,8 +156,10 @@ type ExprStmt struct {
 }
 
 // BadStmt is a statement that could not be parsed; its errors are in the
-// parser's list.
+// parser's list. Names holds the names it appears to define (the names
+// before a top-level "="), so that they can be marked unavailable.
 type BadStmt struct {
 	span
 	desc
+	Names []*Ident
 }

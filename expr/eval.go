@@ -199,11 +199,11 @@ var constants = map[string]*Scalar{
 func neg(x Value) Value {
 	switch x := x.(type) {
 	case *Scalar:
-		return &Scalar{Z: -x.Z, Dim: x.Dim, Angle: x.Angle}
+		return &Scalar{Z: canonZ(-x.Z), Dim: x.Dim, Angle: x.Angle}
 	case *Matrix:
 		out := NewMatrix(x.Rows, x.Cols)
 		for i, e := range x.E {
-			out.E[i] = Scalar{Z: -e.Z, Dim: e.Dim}
+			out.E[i] = Scalar{Z: canonZ(-e.Z), Dim: e.Dim}
 		}
 		return out
 	}
@@ -348,6 +348,7 @@ func power(n *Binary, x, y *Scalar) (Value, error) {
 }
 
 func powZ(x, y complex128) complex128 {
+	x, y = canonZ(x), canonZ(y)
 	if imag(y) == 0 {
 		p := real(y)
 		if p == math.Trunc(p) && math.Abs(p) <= 64 {

@@ -101,7 +101,9 @@ type Result struct {
 func (e *Env) Exec(s Stmt) *Result {
 	r := &Result{Stmt: s, Trace: Trace{}}
 	switch s := s.(type) {
-	case *Note, *BadStmt:
+	case *Note:
+	case *BadStmt:
+		e.defineUnavailable(s.Names)
 	case *Assign:
 		for _, id := range s.Names {
 			if err := e.CanDefine(id.Name, id.P); err != nil {

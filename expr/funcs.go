@@ -18,12 +18,12 @@ func init() {
 		"re":   {1, 1, elementwise(func(s Scalar) Scalar { return Scalar{Z: complex(real(s.Z), 0), Dim: s.Dim, Angle: s.Angle} })},
 		"im":   {1, 1, elementwise(func(s Scalar) Scalar { return Scalar{Z: complex(imag(s.Z), 0), Dim: s.Dim} })},
 		"abs":  {1, 1, elementwise(func(s Scalar) Scalar { return Scalar{Z: complex(cmplx.Abs(s.Z), 0), Dim: s.Dim, Angle: s.Angle} })},
-		"conj": {1, 1, elementwise(func(s Scalar) Scalar { return Scalar{Z: cmplx.Conj(s.Z), Dim: s.Dim, Angle: s.Angle} })},
+		"conj": {1, 1, elementwise(func(s Scalar) Scalar { return Scalar{Z: canonZ(cmplx.Conj(s.Z)), Dim: s.Dim, Angle: s.Angle} })},
 		"arg": {1, 1, scalarFn(func(s *Scalar) (Value, error) {
 			if s.Z == 0 {
 				return nil, fmt.Errorf("the angle of zero is undefined")
 			}
-			return &Scalar{Z: complex(cmplx.Phase(s.Z), 0), Angle: true}, nil
+			return &Scalar{Z: complex(cmplx.Phase(canonZ(s.Z)), 0), Angle: true}, nil
 		})},
 		"sqrt": {1, 1, scalarFn(func(s *Scalar) (Value, error) {
 			var d Dim
@@ -36,7 +36,7 @@ func init() {
 			if imag(s.Z) == 0 && real(s.Z) >= 0 {
 				return &Scalar{Z: complex(math.Sqrt(real(s.Z)), 0), Dim: d}, nil
 			}
-			return &Scalar{Z: cmplx.Sqrt(s.Z), Dim: d}, nil
+			return &Scalar{Z: cmplx.Sqrt(canonZ(s.Z)), Dim: d}, nil
 		})},
 		"exp":   {1, 1, plain(cmplx.Exp, false)},
 		"ln":    {1, 1, plainChecked(cmplx.Log, "the logarithm of zero is -∞")},
@@ -147,7 +147,7 @@ func plain(f func(complex128) complex128, angle bool) func([]Value) (Value, erro
 		if !s.Dim.IsZero() {
 			return nil, fmt.Errorf("needs a plain number or an angle, not %s (divide by a unit first, e.g. x / (1 V))", Describe(s))
 		}
-		z := f(s.Z)
+		z := f(canonZ(s.Z))
 		if cmplx.IsNaN(z) || cmplx.IsInf(z) {
 			return nil, fmt.Errorf("the result is not finite for %s", Describe(s))
 		}

@@ -45,6 +45,10 @@ func ParseExpr(src *Source, errs *ErrorList) (Node, *Display) {
 	p := &parser{src: src, errs: errs}
 	var clean []Token
 	for _, t := range toks {
+		if t.Kind == ILLEGAL {
+			// the scanner has reported it already
+			return &BadExpr{span{src.PosAt(0), src.PosAt(len(src.Text))}}, nil
+		}
 		if t.Kind != NEWLINE {
 			clean = append(clean, t)
 		}
@@ -141,7 +145,8 @@ func (p *parser) split(toks []Token) [][]Token {
 
 func (p *parser) stmt(toks []Token, mode Mode) (s Stmt) {
 	if toks[0].Kind == ILLEGAL && toks[0].Text == "unclosed" {
-		return &BadStmt{span: span{p.pos(toks[0].Off), p.pos(toks[0].End)}}
+		p.toks = toks[1:]
+		return &BadStmt{span: span{p.pos(toks[0].Off), p.pos(toks[0].End)}, Names: p.guessNames()}
 	}
 	first, last := toks[0], toks[len(toks)-1]
 	sp := span{p.pos(first.Off), p.pos(last.End)}
@@ -176,7 +181,7 @@ func (p *parser) stmt(toks []Token, mode Mode) (s Stmt) {
 			if _, ok := r.(bail); !ok {
 				panic(r)
 			}
-			s = &BadStmt{span: sp, desc: d}
+			s = &BadStmt{span: sp, desc: d, Names: p.guessNames()}
 		}
 	}()
 	if mode == EquationMode {
@@ -191,8 +196,35 @@ func (p *parser) stmt(toks []Token, mode Mode) (s Stmt) {
 	if eq := p.topAssign(); eq >= 0 {
 		return p.assignment(eq, sp, d)
 	}
-	x, disp, _ := p.exprWithDisplay()
+	x, disp, ok := p.exprWithDisplay()
+	if !ok {
+		// the error is in the list; a half-read expression is not evaluated
+		return &BadStmt{span: sp, desc: d}
+	}
 	return &ExprStmt{span: sp, desc: d, X: x, Display: disp}
+}
+
+// guessNames returns the names a statement that failed to parse appears
+// to define: "a = ...", "a[unit] = ...", "a, b = ...".
+func (p *parser) guessNames() []*Ident {
+	k := p.topAssign()
+	if k < 1 || p.toks[0].Kind != IDENT {
+		return nil
+	}
+	lhs := p.toks[:k]
+	if len(lhs) > 1 && lhs[1].Kind == LBRACK {
+		return []*Ident{p.ident(lhs[0])}
+	}
+	var out []*Ident
+	for i, t := range lhs {
+		if i%2 == 0 && t.Kind != IDENT || i%2 == 1 && t.Kind != COMMA {
+			return nil
+		}
+		if t.Kind == IDENT {
+			out = append(out, p.ident(t))
+		}
+	}
+	return out
 }
 
 // topAssign finds "=" outside parentheses and brackets, or -1.

@@ -407,13 +407,16 @@ func (s *scanner) scanNumber(start int, imag bool, space bool) {
 	}
 	text := s.text[numStart:s.off]
 	t := Token{Kind: NUMBER, Text: s.text[start:s.off], Off: start, End: s.off, Imag: imag, SpaceBefore: space}
+	// A number that cannot be read is an ILLEGAL token, so that the
+	// statement holding it is not evaluated with a made-up value.
 	if len(text) > MaxNumberLen {
 		s.errAt(start, "number too long (more than 64 characters)")
+		t.Kind = ILLEGAL
 	} else {
 		v, err := strconv.ParseFloat(text, 64)
 		if err != nil {
 			s.errAt(start, "number "+text+" is out of range")
-			v = 0
+			t.Kind = ILLEGAL
 		}
 		t.Num = v
 	}

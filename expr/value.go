@@ -57,6 +57,21 @@ func isRealZ(z complex128) bool {
 	return im == 0 || im <= 1e-12*cmplx.Abs(z)
 }
 
+// canonZ replaces a negative zero in either part of z by +0. The engine's
+// numbers are complex values, not signed zeros: -4 is the real number -4,
+// so sqrt(-4) = j2, ln(-1) = jπ and arg(-1) = π (principal values, taken
+// from above the branch cut on the negative real axis).
+func canonZ(z complex128) complex128 {
+	re, im := real(z), imag(z)
+	if re == 0 {
+		re = 0
+	}
+	if im == 0 {
+		im = 0
+	}
+	return complex(re, im)
+}
+
 // IsFinite reports whether both parts are finite.
 func (s *Scalar) IsFinite() bool {
 	return !math.IsNaN(real(s.Z)) && !math.IsNaN(imag(s.Z)) && !math.IsInf(real(s.Z), 0) && !math.IsInf(imag(s.Z), 0)

@@ -1,0 +1,83 @@
+package calcdoc
+
+import (
+	"fmt"
+	"sort"
+
+	"calcdoc/expr"
+
+	"github.com/yuin/goldmark/ast"
+)
+
+// Block is one evaluated fenced block: its kind word ("calc", "solve",
+// ...), the rest of its info string, its lines with their positions in the
+// file, and what its kind made of it.
+type Block struct {
+	Kind    string
+	Arg     string   // the info string after the kind word
+	ArgPos  expr.Pos // where Arg starts
+	InfoPos expr.Pos
+	Pos     expr.Pos // the opening fence line
+	Lines   []string
+	LinePos []expr.Pos
+	Node    ast.Node
+	// Result is what the block's kind made of it: []*Stmt for calc, and
+	// the kind's own type for the others.
+	Result any
+	Errors []*expr.Error
+	doc    *Document
+}
+
+// Doc returns the document the block belongs to.
+func (b *Block) Doc() *Document { return b.doc }
+
+// Env is the environment of names the block sees and defines into.
+func (b *Block) Env() *expr.Env { return b.doc.Env }
+
+// Errorf records an error of the block.
+func (b *Block) Errorf(pos expr.Pos, format string, args ...any) {
+	b.Errors = append(b.Errors, expr.Errorf(pos, format, args...))
+}
+
+// AddValue lists a defined name among the document's values.
+func (b *Block) AddValue(v *NamedValue) { b.doc.Values = append(b.doc.Values, v) }
+
+// AddCheck lists a check among the document's checks.
+func (b *Block) AddCheck(c *CheckRecord) { b.doc.Checks = append(b.doc.Checks, c) }
+
+// Kind evaluates one kind of fenced block. A kind is registered by the
+// word its info string starts with; the renderer registers how each kind
+// is drawn in the same way.
+type Kind interface {
+	Eval(b *Block)
+}
+
+// KindFunc adapts a function to Kind.
+type KindFunc func(b *Block)
+
+// Eval calls f(b).
+func (f KindFunc) Eval(b *Block) { f(b) }
+
+var kinds = map[string]Kind{}
+
+// RegisterKind makes blocks whose info string starts with word evaluate
+// with k. It panics if word is taken: registration happens in init.
+func RegisterKind(word string, k Kind) {
+	if _, dup := kinds[word]; dup {
+		panic(fmt.Sprintf("calcdoc: block kind %q registered twice", word))
+	}
+	kinds[word] = k
+}
+
+// LookupKind returns the kind registered for word, or nil.
+func LookupKind(word string) Kind { return kinds[word] }
+
+// Kinds lists the registered block words, sorted.
+func Kinds() []string {
+	var out []string
+	for k := range kinds {
+		out = append(out, k)
+	}
+	sort.Strings(out)
+	return out
+}

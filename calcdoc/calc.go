@@ -1,0 +1,120 @@
+package calcdoc
+
+import (
+	"strings"
+	"unicode/utf8"
+
+	"calcdoc/expr"
+)
+
+// Stmt is one evaluated statement of a calc block.
+type Stmt struct {
+	Stmt expr.Stmt
+	Res  *expr.Result
+	// Errs are the statement's own errors (parse and evaluation).
+	Errs []*expr.Error
+	// Unavailable is set when the statement could not be evaluated because
+	// it uses a name whose definition failed; it is not a new error.
+	Unavailable *expr.UnavailableError
+	Text        string // the statement's source text
+}
+
+// Display is the display bracket of the statement, or nil.
+func (s *Stmt) Display() *expr.Display {
+	switch st := s.Stmt.(type) {
+	case *expr.Assign:
+		return st.Display
+	case *expr.ExprStmt:
+		return st.Display
+	}
+	return nil
+}
+
+func init() {
+	RegisterKind("calc", KindFunc(evalCalc))
+}
+
+// Text returns the source between two positions of the block.
+func (b *Block) Text(from, to expr.Pos) string {
+	var parts []string
+	for i, p := range b.LinePos {
+		if p.Line < from.Line || p.Line > to.Line {
+			continue
+		}
+		line := b.Lines[i]
+		startCol, endCol := 0, utf8.RuneCountInString(line)
+		if p.Line == from.Line {
+			startCol = from.Col - p.Col
+		}
+		if p.Line == to.Line {
+			endCol = to.Col - p.Col
+		}
+		parts = append(parts, runeSlice(line, startCol, endCol))
+	}
+	return strings.Join(parts, "\n")
+}
+
+func runeSlice(s string, a, b int) string {
+	r := []rune(s)
+	a = max(0, min(a, len(r)))
+	b = max(a, min(b, len(r)))
+	return string(r[a:b])
+}
+
+// EvalStatements runs parsed statements of a block in its environment and
+// records values, checks and errors. Parse errors in errs are attached to
+// the statements they fall in.
+func EvalStatements(b *Block, stmts []expr.Stmt, errs expr.ErrorList) []*Stmt {
+	var out []*Stmt
+	attached := make([]bool, len(errs))
+	for _, s := range stmts {
+		st := &Stmt{Stmt: s, Text: b.Text(s.Pos(), s.End())}
+		for i, e := range errs {
+			if !attached[i] && e.Pos.Line >= s.Pos().Line && e.Pos.Line <= s.End().Line {
+				st.Errs = append(st.Errs, e)
+				attached[i] = true
+			}
+		}
+		st.Res = b.Env().Exec(s)
+		if err := st.Res.Err; err != nil {
+			switch e := err.(type) {
+			case *expr.UnavailableError:
+				st.Unavailable = e
+			case *expr.Error:
+				st.Errs = append(st.Errs, e)
+			}
+		}
+		switch s := s.(type) {
+		case *expr.Assign:
+			if st.Res.Value != nil {
+				if len(s.Names) == 1 {
+					b.AddValue(&NamedValue{Name: s.Names[0].Name, Pos: s.Names[0].Pos(), Value: st.Res.Value, Display: s.Display})
+				} else if m, ok := st.Res.Value.(*expr.Matrix); ok && len(m.E) == len(s.Names) {
+					for i, id := range s.Names {
+						e := m.E[i]
+						b.AddValue(&NamedValue{Name: id.Name, Pos: id.Pos(), Value: &e, Display: s.Display})
+					}
+				}
+			}
+		case *expr.Check:
+			b.AddCheck(&CheckRecord{Pos: s.Pos(), Text: b.Text(s.Cmp.Pos(), s.Cmp.End()), Result: st.Res.Check})
+		}
+		b.Errors = append(b.Errors, st.Errs...)
+		out = append(out, st)
+	}
+	for i, e := range errs {
+		if !attached[i] {
+			b.Errors = append(b.Errors, e)
+		}
+	}
+	return out
+}
+
+func evalCalc(b *Block) {
+	if b.Arg != "" {
+		b.Errorf(b.ArgPos, "a calc block takes nothing after the word calc (found %q)", b.Arg)
+	}
+	var errs expr.ErrorList
+	stmts := expr.ParseBlock(b.Source(), expr.CalcMode, &errs)
+	b.Result = EvalStatements(b, stmts, errs)
+}

@@ -1,0 +1,299 @@
+// Package calcdoc reads a calculation document (Markdown with front matter
+// and evaluated fenced blocks), evaluates it top to bottom in one set of
+// names, and keeps everything a sheet needs: the front matter, the
+// Markdown tree, each block's results, the values, the checks and one list
+// of errors sorted by position.
+package calcdoc
+
+import (
+	"bytes"
+	"os"
+	"sort"
+	"strings"
+	"unicode/utf8"
+
+	"calcdoc/expr"
+
+	"github.com/yuin/goldmark"
+	"github.com/yuin/goldmark/ast"
+	"github.com/yuin/goldmark/extension"
+	"github.com/yuin/goldmark/text"
+)
+
+// Document is one evaluated calculation document.
+type Document struct {
+	Path   string // as given
+	Source []byte // the file's bytes, as read (never written)
+	Front  FrontMatter
+	// Markdown is the goldmark tree of the body; Text is the source it
+	// was parsed from (the file with the front matter blanked out and
+	// invalid UTF-8 replaced), so offsets match the file.
+	Markdown ast.Node
+	Text     []byte
+	Blocks   []*Block  // the evaluated blocks, in document order
+	Inline   []*Inline // the inline values, in document order
+	Values   []*NamedValue
+	Checks   []*CheckRecord
+	Errors   expr.ErrorList // sorted by position
+	Warnings expr.ErrorList // sorted by position
+	Env      *expr.Env
+
+	lines   []int // byte offset of each line start in Text
+	byNode  map[ast.Node]*Block
+	inlineN map[ast.Node]*Inline
+}
+
+// NamedValue is a defined name with its value, as the values JSON and the
+// sheet list it.
+type NamedValue struct {
+	Name    string
+	Pos     expr.Pos
+	Value   expr.Value
+	Display *expr.Display
+}
+
+// CheckRecord is one evaluated check.
+type CheckRecord struct {
+	Pos    expr.Pos
+	Text   string
+	Result *expr.CheckResult // nil when the check could not be evaluated
+}
+
+// Inline is an inline value `=expr` in prose.
+type Inline struct {
+	Pos     expr.Pos
+	Text    string // the expression, without "="
+	Node    ast.Node
+	Value   expr.Value
+	Display *expr.Display
+	Err     error
+}
+
+// Digits is the number of significant figures the sheet shows.
+func (d *Document) Digits() int {
+	if d.Front.Digits != 0 {
+		return d.Front.Digits
+	}
+	return DefaultDigits
+}
+
+// BlockFor returns the evaluated block of a fenced code block node, or nil.
+func (d *Document) BlockFor(n ast.Node) *Block { return d.byNode[n] }
+
+// InlineFor returns the inline value of a code span node, or nil.
+func (d *Document) InlineFor(n ast.Node) *Inline { return d.inlineN[n] }
+
+// FailedChecks counts the checks that do not hold.
+func (d *Document) FailedChecks() int {
+	n := 0
+	for _, c := range d.Checks {
+		if c.Result != nil && !c.Result.Pass {
+			n++
+		}
+	}
+	return n
+}
+
+// PosAt converts a byte offset of the file into a line and column.
+func (d *Document) PosAt(off int) expr.Pos {
+	i := sort.Search(len(d.lines), func(i int) bool { return d.lines[i] > off }) - 1
+	if i < 0 {
+		i = 0
+	}
+	end := min(off, len(d.Text))
+	return expr.Pos{Line: i + 1, Col: utf8.RuneCount(d.Text[d.lines[i]:end]) + 1}
+}
+
+// Load reads and evaluates the document at path.
+func Load(path string) (*Document, error) {
+	src, err := os.ReadFile(path)
+	if err != nil {
+		return nil, err
+	}
+	return Parse(path, src), nil
+}
+
+// markdown is the goldmark configuration: CommonMark with GFM tables.
+var markdown = goldmark.New(goldmark.WithExtensions(extension.Table, extension.Strikethrough))
+
+// Markdown returns the goldmark instance calcdoc parses prose with, so
+// that renderers use the same configuration.
+func Markdown() goldmark.Markdown { return markdown }
+
+// Parse evaluates a document from its bytes. It never fails: every problem
+// is in the document's Errors, and evaluation goes on past each one.
+func Parse(path string, src []byte) *Document {
+	d := &Document{Path: path, Source: src, Env: expr.NewEnv(), byNode: map[ast.Node]*Block{}, inlineN: map[ast.Node]*Inline{}}
+	txt := src
+	var bad []int
+	if !utf8.Valid(src) {
+		txt, bad = sanitizeUTF8(src)
+	}
+	d.Text = txt
+	d.index()
+	for _, off := range bad {
+		d.Errors.Add(d.PosAt(off), "invalid UTF-8 in the file: save it as UTF-8 (the byte is shown as �)")
+	}
+	body := txt
+	if y, n, ok := splitFrontMatter(txt); n > 0 {
+		if !ok {
+			d.Errors.Add(expr.Pos{Line: 1, Col: 1}, "front matter starts with --- but is never closed: add a line --- after it")
+		} else {
+			parseFrontMatter(y, &d.Front, &d.Errors, &d.Warnings)
+			// blank the front matter out, keeping every offset
+			body = append([]byte(nil), txt...)
+			end := d.lines[min(n, len(d.lines)-1)]
+			if n >= len(d.lines) {
+				end = len(txt)
+			}
+			for i := 0; i < end; i++ {
+				if body[i] != '\n' {
+					body[i] = ' '
+				}
+			}
+			d.Text = body
+		}
+	}
+	d.Markdown = markdown.Parser().Parse(text.NewReader(d.Text))
+	d.evaluate()
+	d.Errors.Sort()
+	d.Warnings.Sort()
+	return d
+}
+
+func sanitizeUTF8(src []byte) ([]byte, []int) {
+	var out bytes.Buffer
+	var bad []int
+	for i := 0; i < len(src); {
+		r, w := utf8.DecodeRune(src[i:])
+		if r == utf8.RuneError && w == 1 {
+			if len(bad) < 20 {
+				bad = append(bad, out.Len())
+			}
+			out.WriteString("\uFFFD")
+			i++
+			continue
+		}
+		out.Write(src[i : i+w])
+		i += w
+	}
+	return out.Bytes(), bad
+}
+
+func (d *Document) index() {
+	d.lines = []int{0}
+	for i, c := range d.Text {
+		if c == '\n' {
+			d.lines = append(d.lines, i+1)
+		}
+	}
+}
+
+// lineText returns line n (from 1) of the file without its line break.
+func (d *Document) lineText(n int) string {
+	if n < 1 || n > len(d.lines) {
+		return ""
+	}
+	start := d.lines[n-1]
+	end := len(d.Text)
+	if n < len(d.lines) {
+		end = d.lines[n] - 1
+	}
+	return strings.TrimRight(string(d.Text[start:end]), "\r")
+}
+
+// evaluate walks the Markdown tree in document order, evaluating each
+// block and inline value as it comes, so each sees only what is above it.
+func (d *Document) evaluate() {
+	ast.Walk(d.Markdown, func(n ast.Node, entering bool) (ast.WalkStatus, error) {
+		if !entering {
+			return ast.WalkContinue, nil
+		}
+		switch n := n.(type) {
+		case *ast.FencedCodeBlock:
+			d.fenced(n)
+			return ast.WalkSkipChildren, nil
+		case *ast.CodeSpan:
+			d.codeSpan(n)
+			return ast.WalkSkipChildren, nil
+		}
+		return ast.WalkContinue, nil
+	})
+}
+
+func (d *Document) fenced(n *ast.FencedCodeBlock) {
+	if n.Info == nil {
+		return
+	}
+	info := string(n.Info.Segment.Value(d.Text))
+	word, rest, _ := strings.Cut(strings.TrimSpace(info), " ")
+	kind := LookupKind(word)
+	if kind == nil {
+		return
+	}
+	b := &Block{Kind: word, Node: n, InfoPos: d.PosAt(n.Info.Segment.Start)}
+	// the argument after the word, with its position
+	b.Arg = strings.TrimSpace(rest)
+	if b.Arg != "" {
+		b.ArgPos = d.PosAt(n.Info.Segment.Start + strings.Index(info, b.Arg))
+	}
+	lines := n.Lines()
+	for i := 0; i < lines.Len(); i++ {
+		seg := lines.At(i)
+		t := strings.TrimRight(string(seg.Value(d.Text)), "\r\n")
+		b.Lines = append(b.Lines, t)
+		b.LinePos = append(b.LinePos, d.PosAt(seg.Start))
+	}
+	b.Pos = expr.Pos{Line: b.InfoPos.Line, Col: 1}
+	b.doc = d
+	d.Blocks = append(d.Blocks, b)
+	d.byNode[n] = b
+	kind.Eval(b)
+	for _, e := range b.Errors {
+		d.Errors = append(d.Errors, e)
+	}
+}
+
+// Source returns the block's lines as an expr.Source, positions included.
+func (b *Block) Source() *expr.Source { return expr.NewSourceLines(b.Lines, b.LinePos) }
+
+func (d *Document) codeSpan(n *ast.CodeSpan) {
+	var buf bytes.Buffer
+	start := -1
+	for c := n.FirstChild(); c != nil; c = c.NextSibling() {
+		if t, ok := c.(*ast.Text); ok {
+			if start < 0 {
+				start = t.Segment.Start
+			}
+			buf.Write(t.Segment.Value(d.Text))
+		}
+	}
+	s := buf.String()
+	if !strings.HasPrefix(s, "=") || start < 0 {
+		return
+	}
+	// position of the text after "=" (a code span's content may start after a space)
+	off := start + bytes.IndexByte(d.Text[start:], '=') + 1
+	in := &Inline{Pos: d.PosAt(off), Text: strings.TrimSpace(s[1:]), Node: n}
+	lead := len(s[1:]) - len(strings.TrimLeft(s[1:], " "))
+	src := expr.NewSource(strings.TrimSpace(s[1:]), expr.Pos{Line: in.Pos.Line, Col: in.Pos.Col + lead})
+	var errs expr.ErrorList
+	x, disp := expr.ParseExpr(src, &errs)
+	if len(errs) > 0 {
+		in.Err = errs[0]
+		d.Errors = append(d.Errors, errs...)
+	} else {
+		v, err := d.Env.Eval(x, nil)
+		if err == nil {
+			if derr := expr.CheckDisplay(v, disp); derr != nil {
+				err = expr.Errorf(in.Pos, "%s", derr.Error())
+			}
+		}
+		in.Value, in.Display, in.Err = v, disp, err
+		if e, ok := err.(*expr.Error); ok {
+			d.Errors = append(d.Errors, e)
+		}
+	}
+	d.Inline = append(d.Inline, in)
+	d.inlineN[n] = in
+}

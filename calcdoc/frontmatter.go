@@ -1,0 +1,191 @@
+package calcdoc
+
+import (
+	"bytes"
+	"fmt"
+	"regexp"
+	"time"
+
+	"calcdoc/expr"
+
+	"go.yaml.in/yaml/v3"
+)
+
+// Revision is one row of the revision history.
+type Revision struct {
+	Rev, Date, By, Note string
+}
+
+// FrontMatter holds the keys of a document's front matter (LANGUAGE.md
+// section 1).
+type FrontMatter struct {
+	Title, Project, Number, Revision string
+	Prepared, Checked, Approved      string
+	Date, Client                     string
+	Revisions                        []Revision
+	Digits                           int    // significant figures shown, 2 to 12
+	Phasors                          string // "rms" or "peak"
+	Paper                            string // "a4" or "letter"
+	Present                          bool   // the document has front matter
+}
+
+// DefaultDigits is the number of significant figures shown when the front
+// matter does not say.
+const DefaultDigits = 4
+
+var dateRE = regexp.MustCompile(`^\d{4}-\d{2}-\d{2}$`)
+
+// splitFrontMatter finds the front matter: the first line is "---" and
+// the block ends at the next line that is "---" (or "..."). It returns the
+// YAML text, the number of lines it spans (fences included) and whether
+// it was closed.
+func splitFrontMatter(src []byte) (yamlText []byte, lines int, ok bool) {
+	if !bytes.HasPrefix(src, []byte("---\n")) && !bytes.HasPrefix(src, []byte("---\r\n")) {
+		return nil, 0, false
+	}
+	rest := src[bytes.IndexByte(src, '\n')+1:]
+	n := 1
+	off := 0
+	for off <= len(rest) {
+		end := bytes.IndexByte(rest[off:], '\n')
+		var line []byte
+		if end < 0 {
+			line = rest[off:]
+		} else {
+			line = rest[off : off+end]
+		}
+		n++
+		l := bytes.TrimRight(line, "\r \t")
+		if string(l) == "---" || string(l) == "..." {
+			return rest[:off], n, true
+		}
+		if end < 0 {
+			break
+		}
+		off += end + 1
+	}
+	return nil, n, false
+}
+
+// parseFrontMatter reads the YAML of the front matter. Line numbers in its
+// errors are lines of the .md file (the YAML starts on line 2).
+func parseFrontMatter(text []byte, fm *FrontMatter, errs, warns *expr.ErrorList) {
+	fm.Present = true
+	var root yaml.Node
+	if err := yaml.Unmarshal(text, &root); err != nil {
+		errs.Add(expr.Pos{Line: 2, Col: 1}, "front matter is not valid YAML: "+err.Error())
+		return
+	}
+	if len(root.Content) == 0 {
+		return
+	}
+	m := root.Content[0]
+	if m.Kind != yaml.MappingNode {
+		errs.Add(expr.Pos{Line: m.Line + 1, Col: m.Column}, "front matter must be a list of key: value lines")
+		return
+	}
+	pos := func(n *yaml.Node) expr.Pos { return expr.Pos{Line: n.Line + 1, Col: n.Column} }
+	str := func(k, v *yaml.Node) string {
+		if v.Kind != yaml.ScalarNode {
+			errs.Add(pos(v), fmt.Sprintf("front matter key %q needs a single value", k.Value))
+			return ""
+		}
+		return v.Value
+	}
+	seen := map[string]bool{}
+	for i := 0; i+1 < len(m.Content); i += 2 {
+		k, v := m.Content[i], m.Content[i+1]
+		if seen[k.Value] {
+			errs.Add(pos(k), fmt.Sprintf("front matter key %q is given twice", k.Value))
+			continue
+		}
+		seen[k.Value] = true
+		switch k.Value {
+		case "title":
+			fm.Title = str(k, v)
+		case "project":
+			fm.Project = str(k, v)
+		case "number":
+			fm.Number = str(k, v)
+		case "revision":
+			fm.Revision = str(k, v)
+		case "prepared":
+			fm.Prepared = str(k, v)
+		case "checked":
+			fm.Checked = str(k, v)
+		case "approved":
+			fm.Approved = str(k, v)
+		case "client":
+			fm.Client = str(k, v)
+		case "date":
+			fm.Date = str(k, v)
+			if fm.Date != "" && !validDate(fm.Date) {
+				errs.Add(pos(v), fmt.Sprintf("front matter key \"date\": %q is not a date written YYYY-MM-DD", fm.Date))
+			}
+		case "digits":
+			s := str(k, v)
+			var d int
+			if _, err := fmt.Sscanf(s, "%d", &d); err != nil || fmt.Sprint(d) != s || d < 2 || d > 12 {
+				errs.Add(pos(v), fmt.Sprintf("front matter key \"digits\": %q is not a whole number from 2 to 12", s))
+			} else {
+				fm.Digits = d
+			}
+		case "phasors":
+			s := str(k, v)
+			if s != "rms" && s != "peak" {
+				errs.Add(pos(v), fmt.Sprintf("front matter key \"phasors\": %q must be rms or peak", s))
+			} else {
+				fm.Phasors = s
+			}
+		case "paper":
+			s := str(k, v)
+			if s != "a4" && s != "letter" {
+				errs.Add(pos(v), fmt.Sprintf("front matter key \"paper\": %q must be a4 or letter", s))
+			} else {
+				fm.Paper = s
+			}
+		case "revisions":
+			if v.Kind != yaml.SequenceNode {
+				errs.Add(pos(v), "front matter key \"revisions\" must be a list of {rev, date, by, note}")
+				continue
+			}
+			for _, item := range v.Content {
+				if item.Kind != yaml.MappingNode {
+					errs.Add(pos(item), "each revision must be {rev, date, by, note}")
+					continue
+				}
+				var r Revision
+				for j := 0; j+1 < len(item.Content); j += 2 {
+					rk, rv := item.Content[j], item.Content[j+1]
+					val := str(rk, rv)
+					switch rk.Value {
+					case "rev":
+						r.Rev = val
+					case "date":
+						r.Date = val
+						if val != "" && !validDate(val) {
+							errs.Add(pos(rv), fmt.Sprintf("revision date %q is not a date written YYYY-MM-DD", val))
+						}
+					case "by":
+						r.By = val
+					case "note":
+						r.Note = val
+					default:
+						warns.Add(pos(rk), fmt.Sprintf("unknown revision key %q (known: rev, date, by, note)", rk.Value))
+					}
+				}
+				fm.Revisions = append(fm.Revisions, r)
+			}
+		default:
+			warns.Add(pos(k), fmt.Sprintf("unknown front matter key %q (known: title, project, number, revision, prepared, checked, approved, date, client, revisions, digits, phasors, paper)", k.Value))
+		}
+	}
+}
+
+func validDate(s string) bool {
+	if !dateRE.MatchString(s) {
+		return false
+	}
+	_, err := time.Parse("2006-01-02", s)
+	return err == nil
+}
