@@ -70,9 +70,10 @@ func findExecutable(candidates []string, missing error) (string, error) {
 // headless Chromium, loading the page from its file:// URL so that its
 // relative links resolve beside it. The page's own CSS (@page size, margins
 // and margin boxes) sets the paper; Chromium's own header and footer are
-// off. Chromium runs with a fresh profile in a temporary folder, which is
-// removed afterwards, and with background networking, component updates,
-// sync and QUIC off.
+// off. Chromium runs with a fresh profile in a temporary folder (its
+// XDG_CONFIG_HOME and XDG_CACHE_HOME too, and TMPDIR where that is short
+// enough), which is removed afterwards, and
+// with background networking, component updates, sync and QUIC off.
 //
 // The PDF is written to a temporary file in pdfPath's folder and renamed
 // into place only when Chromium has exited successfully and the file begins
@@ -126,11 +127,11 @@ func Print(ctx context.Context, htmlPath, pdfPath string) (err error) {
 		}
 	}()
 
-	profile, err := os.MkdirTemp("", "calcdoc-chromium-")
+	profile, err := os.MkdirTemp("", "calcdoc-cr-")
 	if err != nil {
 		return fmt.Errorf("print to PDF: cannot make a Chromium profile folder: %w", err)
 	}
-	defer os.RemoveAll(profile)
+	defer removeAll(profile)
 	// Chromium's output goes to a file, not a pipe, so that a helper
 	// process it leaves behind cannot hold Print up.
 	logFile, err := os.CreateTemp(profile, "stderr-*.log")
@@ -163,15 +164,30 @@ func Print(ctx context.Context, htmlPath, pdfPath string) (err error) {
 	cmd := exec.CommandContext(ctx, chrome, args...)
 	cmd.Stdout = logFile
 	cmd.Stderr = logFile
+	// Chromium keeps its crash reports and caches under the XDG folders
+	// whatever its profile folder; these point into the temporary one, so
+	// that printing leaves nothing in the user's home.
+	cmd.Env = append(os.Environ(),
+		"XDG_CONFIG_HOME="+filepath.Join(profile, "config"),
+		"XDG_CACHE_HOME="+filepath.Join(profile, "cache"))
+	// Its scratch folder goes under TMPDIR and holds a Unix socket, whose
+	// path must fit in 104 bytes (the smallest sun_path among the systems
+	// above; Linux allows 108). Where the socket path
+	// "PROFILE/org.chromium.Chromium.XXXXXX/SingletonSocket" fits, TMPDIR
+	// points into the profile too, so that even a killed Chromium leaves
+	// nothing behind; else Chromium keeps the system's TMPDIR.
+	if len(profile)+len("/org.chromium.Chromium.XXXXXX/SingletonSocket") < 104 {
+		cmd.Env = append(cmd.Env, "TMPDIR="+profile)
+	}
 	cmd.WaitDelay = 5 * time.Second
 	ownProcessGroup(cmd)
 	runErr := cmd.Run()
 	killProcessGroup(cmd)
 
-	if runErr != nil || ctx.Err() != nil {
+	if runErr != nil {
 		why := fmt.Sprint(runErr)
 		if ctx.Err() == context.DeadlineExceeded {
-			why = fmt.Sprintf("no result within the time allowed (at most %v)", PrintTimeout)
+			why = fmt.Sprintf("it did not finish in time (%v; Print allows at most %v)", ctx.Err(), PrintTimeout)
 		} else if ctx.Err() != nil {
 			why = "cancelled: " + ctx.Err().Error()
 		}
@@ -188,11 +204,30 @@ func Print(ctx context.Context, htmlPath, pdfPath string) (err error) {
 		return fmt.Errorf("chromium (%s) wrote no PDF for %s (the file is empty or lacks the %%PDF- header)%s",
 			chrome, src, outputTail(logFile))
 	}
+	// The temporary file was made private (0600); the PDF gets the
+	// permissions of the file it replaces, or else rw-r--r--.
+	perm := os.FileMode(0o644)
+	if fi, err := os.Stat(dst); err == nil {
+		perm = fi.Mode().Perm()
+	}
+	if err := os.Chmod(tmpName, perm); err != nil {
+		return fmt.Errorf("print to PDF: %w", err)
+	}
 	if err := os.Rename(tmpName, dst); err != nil {
 		return fmt.Errorf("print to PDF: cannot put the PDF in place: %w", err)
 	}
 	renamed = true
 	return nil
+}
+
+// removeAll removes the temporary profile folder, trying once more a
+// moment later when a Chromium helper that outlived the browser (its crash
+// handler, which leaves the process group) was still writing in it.
+func removeAll(dir string) {
+	if os.RemoveAll(dir) != nil {
+		time.Sleep(200 * time.Millisecond)
+		_ = os.RemoveAll(dir)
+	}
 }
 
 // outputTail returns "; chromium said: ..." with the last lines that
@@ -226,7 +261,7 @@ func outputTail(f *os.File) string {
 }
 
 // regularFile returns the absolute path of path, which must name an
-// existing regular file.
+// existing regular file that can be opened for reading.
 func regularFile(path, what string) (string, error) {
 	if path == "" {
 		return "", fmt.Errorf("no %s given", what)
@@ -242,6 +277,12 @@ func regularFile(path, what string) (string, error) {
 	if !fi.Mode().IsRegular() {
 		return "", fmt.Errorf("%s %s is not a regular file", what, abs)
 	}
+	// A file the tools could not read would give an error page, not an error.
+	f, err := os.Open(abs)
+	if err != nil {
+		return "", fmt.Errorf("%s: %w", what, err)
+	}
+	f.Close()
 	return abs, nil
 }
 

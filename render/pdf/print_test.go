@@ -11,6 +11,7 @@ import (
 	"strconv"
 	"strings"
 	"testing"
+	"time"
 
 	"calcdoc/render/pdf"
 	"calcdoc/render/pdf/pdftest"
@@ -81,6 +82,13 @@ func TestPrintPages(t *testing.T) {
 	// ISO 32000-1, 7.5.2: a PDF file begins with the header "%PDF-".
 	if !strings.HasPrefix(string(data), "%PDF-") {
 		t.Fatalf("%s does not begin with %%PDF-: %q", pdfPath, data[:min(len(data), 16)])
+	}
+	// It keeps the permissions of the file it replaced, not the temporary
+	// file's 0600.
+	if fi, err := os.Stat(pdfPath); err != nil {
+		t.Error(err)
+	} else if fi.Mode().Perm() != 0o644 {
+		t.Errorf("PDF mode %v, want -rw-r--r--", fi.Mode())
 	}
 	// Only the PDF is left in its folder: no temporary file.
 	entries, err := os.ReadDir(outDir)
@@ -198,6 +206,65 @@ func TestPrintErrors(t *testing.T) {
 			names = append(names, e.Name())
 		}
 		t.Errorf("folder holds %q, want only ok.html", names)
+	}
+}
+
+func TestPrintTimeout(t *testing.T) {
+	pdftest.Chromium(t)
+	dir := t.TempDir()
+	// Print's temporary profile goes under TMPDIR, so every process of this
+	// Chromium names this folder in its command line (--user-data-dir=...,
+	// --database=...).
+	tmp := filepath.Join(dir, "t")
+	if err := os.Mkdir(tmp, 0o755); err != nil {
+		t.Fatal(err)
+	}
+	t.Setenv("TMPDIR", tmp)
+	// A page whose script never ends never finishes loading, so Chromium
+	// never prints it.
+	htmlPath := filepath.Join(dir, "hang.html")
+	if err := os.WriteFile(htmlPath, []byte("<p>x</p><script>for(;;){}</script>"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	ctx, cancel := context.WithTimeout(context.Background(), 2*time.Second)
+	defer cancel()
+	err := pdf.Print(ctx, htmlPath, filepath.Join(dir, "hang.pdf"))
+	if err == nil || !strings.Contains(err.Error(), "did not finish in time") {
+		t.Fatalf("Print error = %v, want a timeout", err)
+	}
+	// Print moves Chromium's scratch folder into its profile only where the
+	// socket path in it stays under 104 bytes (see Print); with a TMPDIR too
+	// long for that, Chromium's own scratch folder may be left.
+	checked := []string{dir, tmp}
+	if len(tmp)+len("/calcdoc-cr-4294967295")+len("/org.chromium.Chromium.XXXXXX/SingletonSocket") >= 104 {
+		t.Logf("TMPDIR %s is too long for the scratch folder to move; not checking that it is left empty", tmp)
+		checked = checked[:1]
+	}
+	for _, d := range checked {
+		entries, err := os.ReadDir(d)
+		if err != nil {
+			t.Fatal(err)
+		}
+		var names []string
+		for _, e := range entries {
+			names = append(names, e.Name())
+		}
+		want := map[string]int{dir: 2, tmp: 0}[d] // dir: hang.html and t
+		if len(names) != want {
+			t.Errorf("%s holds %q after the timeout, want %d entries", d, names, want)
+		}
+	}
+	// No process of that Chromium is left running (a zombie has an empty
+	// command line). Linux's /proc lists the processes.
+	procs, err := filepath.Glob("/proc/[0-9]*/cmdline")
+	if err != nil || len(procs) == 0 {
+		t.Skip("no /proc to list processes")
+	}
+	for _, p := range procs {
+		cmdline, err := os.ReadFile(p)
+		if err == nil && strings.Contains(string(cmdline), tmp) {
+			t.Errorf("%s still runs: %.200q", p, strings.ReplaceAll(string(cmdline), "\x00", " "))
+		}
 	}
 }
 

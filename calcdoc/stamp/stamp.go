@@ -1,0 +1,420 @@
+// Package stamp records what traces a calculation sheet to its source: the
+// SHA-256 of the source bytes and, when the source lives in a git work tree,
+// the commit that last changed it and whether the bytes read are the bytes
+// committed at HEAD.
+//
+// Of never fails: every problem with git (not installed, not a repository, a
+// timeout, an unreadable repository) becomes a State and a Detail sentence
+// that the sheet prints, so a build goes on and the sheet says honestly how
+// far it can be traced.
+package stamp
+
+import (
+	"bytes"
+	"context"
+	"crypto/sha256"
+	"encoding/hex"
+	"errors"
+	"fmt"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"strings"
+	"time"
+)
+
+// State says how the source bytes relate to git.
+type State int
+
+const (
+	// Unknown is the zero value: git was found but its answer could not be
+	// had or read (a timeout, a damaged repository, a path git refuses).
+	// Detail says what happened. A zero Stamp never claims to be Clean.
+	Unknown State = iota
+	// Clean: the bytes read are byte for byte the file's blob at HEAD.
+	// Commit is then the last commit that changed the file.
+	Clean
+	// Modified: HEAD holds the file, but the bytes read differ from its
+	// blob at HEAD, whether the change is unstaged or staged and not yet
+	// committed. Commit is the last commit that changed the file, i.e. the
+	// commit the uncommitted changes start from.
+	Modified
+	// Untracked: HEAD does not hold the file. It was never added, or it is
+	// ignored, or it is only added to the index and never committed, or the
+	// repository has no commit yet. Commit is "".
+	Untracked
+	// NoRepo: the file is not inside a git work tree. Commit is "".
+	NoRepo
+	// NoGit: no git executable was found in PATH. Commit is "".
+	NoGit
+)
+
+// String returns a lower-case name for the state: "unknown", "clean",
+// "modified", "untracked", "no-repo" or "no-git".
+func (s State) String() string {
+	switch s {
+	case Unknown:
+		return "unknown"
+	case Clean:
+		return "clean"
+	case Modified:
+		return "modified"
+	case Untracked:
+		return "untracked"
+	case NoRepo:
+		return "no-repo"
+	case NoGit:
+		return "no-git"
+	}
+	return fmt.Sprintf("State(%d)", int(s))
+}
+
+// Stamp traces one source file.
+type Stamp struct {
+	// SHA256 is the lower-case hex SHA-256 (FIPS 180-4) of the source
+	// bytes exactly as given to Of, 64 characters.
+	SHA256 string
+	// Commit is the full hash of the last commit in HEAD's history that
+	// changed the file (as `git log -1 --format=%H -- FILE`), or "" when
+	// State is not Clean or Modified.
+	Commit string
+	// CommitDate is that commit's committer date in strict ISO 8601 with
+	// the committer's offset (as `git log -1 --format=%cI`), e.g.
+	// "2024-03-05T10:20:30+01:00"; "" when Commit is "".
+	CommitDate string
+	// State says how the bytes relate to git.
+	State State
+	// Detail is one sentence for the sheet that says what State means for
+	// this file, e.g. "git is not installed; no commit recorded".
+	Detail string
+}
+
+// Timeout bounds each git command that Of runs; a command that has not
+// answered by then is killed and the stamp is Unknown.
+const Timeout = 5 * time.Second
+
+// timeout is Timeout; the tests shorten it.
+var timeout = Timeout
+
+// Hash returns the lower-case hexadecimal SHA-256 digest (FIPS 180-4) of
+// src: 64 characters, the same as the first field that `sha256sum` prints.
+func Hash(src []byte) string {
+	sum := sha256.Sum256(src)
+	return hex.EncodeToString(sum[:])
+}
+
+// Of stamps the source file at path whose bytes, as the caller read them,
+// are src. It runs git in the file's own work tree (found from the file's
+// real directory after resolving symbolic links) and never fails: problems
+// become State and Detail. The comparison that decides Clean is made on src,
+// not on the file as it is now on disk, so a sheet is never called Clean
+// unless the exact bytes it was computed from are the bytes at HEAD.
+//
+// The blob at HEAD is compared without git's filters (no end-of-line or
+// smudge conversion): a working copy whose line endings git converts on
+// checkout is Modified, since the committed bytes, whose SHA-256 a reader
+// can recompute from the commit, are not the bytes the sheet was made from.
+func Of(path string, src []byte) Stamp {
+	st := Stamp{SHA256: Hash(src)}
+	gitPath, err := exec.LookPath("git")
+	if err != nil {
+		st.State = NoGit
+		st.Detail = "git is not installed; no commit recorded"
+		return st
+	}
+	g := runner{git: gitPath}
+
+	file, err := resolve(path)
+	if err != nil {
+		st.State = Unknown
+		st.Detail = fmt.Sprintf("the source path cannot be resolved (%v); no commit recorded", err)
+		return st
+	}
+	if fi, err := os.Stat(file); err != nil || !fi.Mode().IsRegular() {
+		st.State = Unknown
+		if err != nil {
+			st.Detail = fmt.Sprintf("the source file cannot be examined (%v); no commit recorded", err)
+		} else {
+			st.Detail = "the source path is not a regular file; no commit recorded"
+		}
+		return st
+	}
+	dir := filepath.Dir(file)
+
+	top, err := g.run(dir, "rev-parse", "--show-toplevel")
+	if err != nil {
+		var ge *gitError
+		if errors.As(err, &ge) && strings.Contains(ge.stderr, "not a git repository") {
+			st.State = NoRepo
+			st.Detail = "not in a git repository; no commit recorded"
+			return st
+		}
+		return unknown(st, err)
+	}
+	topDir := strings.TrimRight(string(top), "\r\n")
+	if t, err := filepath.EvalSymlinks(topDir); err == nil {
+		topDir = t
+	}
+	rel, err := filepath.Rel(topDir, file)
+	if err != nil || rel == "." || rel == ".." || strings.HasPrefix(rel, ".."+string(filepath.Separator)) {
+		st.State = Unknown
+		st.Detail = fmt.Sprintf("git places the file outside its work tree %s; no commit recorded", topDir)
+		return st
+	}
+	rel = filepath.ToSlash(rel)
+
+	// The blob of the file at HEAD, if HEAD exists and holds the file.
+	headBlob, kind, err := g.headEntry(topDir, rel)
+	if err != nil {
+		return unknown(st, err)
+	}
+	if kind == absent {
+		return untracked(g, st, topDir, rel)
+	}
+	var content []byte
+	if kind == regular {
+		if content, err = g.run(topDir, "cat-file", "blob", headBlob); err != nil {
+			return unknown(st, err)
+		}
+	}
+
+	out, err := g.run(topDir, "log", "-1", "--format=%H%x00%cI", "--", rel)
+	if err != nil {
+		return unknown(st, err)
+	}
+	hash, date, ok := strings.Cut(strings.TrimRight(string(out), "\r\n"), "\x00")
+	if !ok || hash == "" {
+		st.State = Unknown
+		st.Detail = "HEAD holds the file but git names no commit that changed it; no commit recorded"
+		return st
+	}
+	st.Commit, st.CommitDate = hash, date
+	shallow := ""
+	if out, err := g.run(topDir, "rev-parse", "--is-shallow-repository"); err == nil &&
+		strings.TrimSpace(string(out)) == "true" {
+		shallow = " (in a shallow clone, so the change may be older than this commit)"
+	}
+
+	if kind == regular && bytes.Equal(content, src) {
+		st.State = Clean
+		st.Detail = fmt.Sprintf("source is as committed in %s of %s%s", short(hash), date, shallow)
+		return st
+	}
+	st.State = Modified
+	if kind == other {
+		st.Detail = fmt.Sprintf("source is a regular file where its last commit %s of %s%s holds a link or another kind of entry: uncommitted change",
+			short(hash), date, shallow)
+		return st
+	}
+	staged := ""
+	if idx, ok, err := g.indexBlob(topDir, rel); err == nil && ok && idx != headBlob {
+		staged = ", partly or wholly staged"
+	}
+	st.Detail = fmt.Sprintf("source differs from its last commit %s of %s%s: uncommitted changes%s",
+		short(hash), date, shallow, staged)
+	return st
+}
+
+// untracked fills st for a file that HEAD does not hold.
+func untracked(g runner, st Stamp, topDir, rel string) Stamp {
+	st.State = Untracked
+	if _, ok, err := g.indexBlob(topDir, rel); err == nil && ok {
+		st.Detail = "source is added to git's index but never committed; no commit recorded"
+		return st
+	}
+	// check-ignore exits 0 when the path is ignored and 1 when it is not.
+	// It takes no pathspec magic, so it runs without literal pathspecs
+	// (its arguments are paths matched against the ignore patterns).
+	if _, err := g.runPaths(topDir, false, "check-ignore", "-q", "--", rel); err == nil {
+		st.Detail = "source is ignored by git; no commit recorded"
+		return st
+	}
+	st.Detail = "source is not tracked by git; no commit recorded"
+	return st
+}
+
+func unknown(st Stamp, err error) Stamp {
+	st.State = Unknown
+	st.Detail = fmt.Sprintf("git could not tell the source's commit (%v); no commit recorded", err)
+	return st
+}
+
+// short abbreviates a commit hash to 12 characters for Detail.
+func short(hash string) string {
+	if len(hash) > 12 {
+		return hash[:12]
+	}
+	return hash
+}
+
+// resolve returns the absolute path of path with every symbolic link
+// resolved, so that git runs in the directory that really holds the file.
+func resolve(path string) (string, error) {
+	if path == "" {
+		return "", errors.New("empty path")
+	}
+	abs, err := filepath.Abs(path)
+	if err != nil {
+		return "", err
+	}
+	return filepath.EvalSymlinks(abs)
+}
+
+// runner runs git commands with a timeout, no pager, no prompts, no optional
+// locks and C-locale messages.
+type runner struct {
+	git string
+}
+
+type gitError struct {
+	args   []string
+	err    error
+	stderr string
+}
+
+func (e *gitError) Error() string {
+	msg := fmt.Sprintf("git %s: %v", strings.Join(e.args, " "), e.err)
+	if e.stderr != "" {
+		msg += ": " + e.stderr
+	}
+	return msg
+}
+
+func (e *gitError) Unwrap() error { return e.err }
+
+// droppedEnv lists the variables Of never passes on to git: those that
+// would make git look for the repository elsewhere than the file's own
+// directory (as inside a git hook), those that change how pathspecs are
+// read, and those Of sets itself.
+var droppedEnv = map[string]bool{
+	"GIT_DIR": true, "GIT_WORK_TREE": true, "GIT_INDEX_FILE": true, "GIT_OBJECT_DIRECTORY": true,
+	"GIT_ALTERNATE_OBJECT_DIRECTORIES": true, "GIT_COMMON_DIR": true, "GIT_NAMESPACE": true,
+	"GIT_PREFIX":            true,
+	"GIT_LITERAL_PATHSPECS": true, "GIT_GLOB_PATHSPECS": true, "GIT_NOGLOB_PATHSPECS": true,
+	"GIT_ICASE_PATHSPECS": true,
+	"LC_ALL":              true, "LANGUAGE": true, "GIT_PAGER": true, "PAGER": true,
+	"GIT_OPTIONAL_LOCKS": true, "GIT_TERMINAL_PROMPT": true,
+}
+
+// gitEnv is the process environment without droppedEnv, plus C-locale
+// messages (Of reads git's "not a git repository"), no pager, no prompt
+// and no optional locks (Of only reads; it must not write the index).
+func gitEnv() []string {
+	var env []string
+	for _, kv := range os.Environ() {
+		name, _, _ := strings.Cut(kv, "=")
+		if !droppedEnv[name] {
+			env = append(env, kv)
+		}
+	}
+	return append(env,
+		"LC_ALL=C", "LANGUAGE=C", "GIT_PAGER=cat", "PAGER=cat",
+		"GIT_OPTIONAL_LOCKS=0", "GIT_TERMINAL_PROMPT=0")
+}
+
+// run runs `git -C dir ARGS` with every pathspec taken literally (no glob
+// or magic) and returns its standard output.
+func (g runner) run(dir string, args ...string) ([]byte, error) {
+	return g.runPaths(dir, true, args...)
+}
+
+// runPaths runs `git -C dir ARGS`, with literal pathspecs if literal.
+func (g runner) runPaths(dir string, literal bool, args ...string) ([]byte, error) {
+	ctx, cancel := context.WithTimeout(context.Background(), timeout)
+	defer cancel()
+	full := []string{"--no-pager"}
+	if literal {
+		full = append(full, "--literal-pathspecs")
+	}
+	full = append(full,
+		"-c", "core.quotePath=false", "-c", "log.showSignature=false", "-c", "log.follow=false",
+		"-C", dir)
+	full = append(full, args...)
+	cmd := exec.CommandContext(ctx, g.git, full...)
+	cmd.Env = gitEnv()
+	cmd.WaitDelay = time.Second
+	var stdout, stderr bytes.Buffer
+	cmd.Stdout = &stdout
+	cmd.Stderr = &stderr
+	err := cmd.Run()
+	if ctx.Err() == context.DeadlineExceeded {
+		return nil, &gitError{args: args, err: fmt.Errorf("no answer within %v", timeout)}
+	}
+	if err != nil {
+		msg := strings.TrimSpace(stderr.String())
+		if len(msg) > 500 {
+			msg = msg[:500] + "…"
+		}
+		return nil, &gitError{args: args, err: err, stderr: msg}
+	}
+	return stdout.Bytes(), nil
+}
+
+// entryKind is what HEAD holds at a path.
+type entryKind int
+
+const (
+	absent  entryKind = iota // no commit yet, or no entry at the path
+	regular                  // a regular or executable file (mode 100644 or 100755)
+	other                    // a symbolic link, submodule or other entry
+)
+
+// headEntry returns the object name and kind of HEAD's entry at rel.
+func (g runner) headEntry(topDir, rel string) (string, entryKind, error) {
+	if _, err := g.run(topDir, "rev-parse", "--verify", "--quiet", "HEAD^{commit}"); err != nil {
+		var ge *gitError
+		var ee *exec.ExitError
+		if errors.As(err, &ge) && errors.As(ge.err, &ee) && ee.ExitCode() == 1 {
+			return "", absent, nil // unborn HEAD: no commit yet
+		}
+		return "", absent, err
+	}
+	out, err := g.run(topDir, "ls-tree", "-z", "--full-tree", "HEAD", "--", rel)
+	if err != nil {
+		return "", absent, err
+	}
+	return parseEntry(out, rel)
+}
+
+// indexBlob returns the object name of the file's stage-0 entry in the
+// index; ok is false when the index does not hold it.
+func (g runner) indexBlob(topDir, rel string) (blob string, ok bool, err error) {
+	out, err := g.run(topDir, "ls-files", "-z", "--stage", "--full-name", "--", rel)
+	if err != nil {
+		return "", false, err
+	}
+	// Each entry: "<mode> <object> <stage>\t<path>\x00".
+	for _, e := range bytes.Split(out, []byte{0}) {
+		meta, p, found := strings.Cut(string(e), "\t")
+		if !found || p != rel {
+			continue
+		}
+		f := strings.Fields(meta)
+		if len(f) == 3 && f[2] == "0" {
+			return f[1], true, nil
+		}
+		if len(f) == 3 {
+			return "", true, nil // unmerged: held, but no single blob
+		}
+	}
+	return "", false, nil
+}
+
+// parseEntry reads `git ls-tree -z` output: "<mode> <type> <object>\t<path>\x00".
+func parseEntry(out []byte, rel string) (string, entryKind, error) {
+	for _, e := range bytes.Split(out, []byte{0}) {
+		meta, p, found := strings.Cut(string(e), "\t")
+		if !found || p != rel {
+			continue
+		}
+		f := strings.Fields(meta)
+		if len(f) != 3 {
+			return "", absent, fmt.Errorf("git ls-tree: unreadable entry %q", string(e))
+		}
+		if f[1] == "blob" && (f[0] == "100644" || f[0] == "100755") {
+			return f[2], regular, nil
+		}
+		return f[2], other, nil
+	}
+	return "", absent, nil
+}
