@@ -1,0 +1,345 @@
+package solve
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"strconv"
+	"strings"
+
+	"gonum.org/v1/gonum/mat"
+)
+
+// Seeds of the PCG generator (math/rand/v2) that draws Linearize's probe
+// points. Fixed, so that classification is deterministic.
+const (
+	probeSeed1 = 0x63616c63646f6331 // "calcdoc1"
+	probeSeed2 = 0x736f6c7665707262 // "solveprb"
+)
+
+// Linear is the affine model r(x) = A x − b of a problem, as built by
+// Linearize.
+type Linear struct {
+	N, M int        // unknowns (columns of A) and equations (rows of A)
+	A    *mat.Dense // M×N: A_ik = ∂r_i/∂x_k
+	B    []float64  // len M: b = A x0 − r(x0)
+
+	// XScale (s_k, len N) and RScale (q_i, len M) are the scales with which
+	// SolveLinear equilibrates the matrix; ones if nil. Linearize copies them
+	// from the Problem (with complex pairs sharing their larger scale).
+	XScale, RScale []float64
+
+	// MaxDeviation is the largest relative departure from the affine model
+	// seen at the probe points, in the units of LinearTol (the left side of
+	// the test divided by the parenthesised magnitude); at most LinearTol.
+	MaxDeviation float64
+}
+
+// Linearize reports whether r is affine in x, r(x) = A x − b, and if so
+// returns A and b.
+//
+// It evaluates r at X0 and at X0 + h_k e_k for each unknown k, with
+// h_k = max(s_k, 2⁻²⁶|x0_k|) rounded so that x0_k + h_k is exact, and takes
+// column k of A as (r(x0 + h_k e_k) − r(x0))/h_k and b = A x0 − r(x0). It then
+// confirms the model at LinearProbes pseudo-random points p = x0 + d (fixed
+// seed), where |d_k| = u·s_k with u uniform in [0.5, 1.5); in the first
+// point every d_k is negative (opposite to the column steps, which catches a
+// kink such as |x| at x0), in the others each sign is random. Every residual
+// must pass the test stated at LinearTol at every point.
+//
+// ok is false, with lin nil and err nil, when the test fails, or when r
+// cannot be evaluated at one of the points other than X0 (an affine map is
+// defined everywhere). err is non-nil for an invalid problem (M ≠ N gives a
+// *DimensionError) or when r cannot be evaluated at X0 (an *EvalError).
+func Linearize(p *Problem) (lin *Linear, ok bool, err error) {
+	e, err := newEvaluator(p)
+	if err != nil {
+		return nil, false, err
+	}
+	return e.linearize()
+}
+
+// linearize is Linearize on a validated problem.
+func (e *evaluator) linearize() (lin *Linear, ok bool, err error) {
+	n, m := e.n, e.p.M
+	x0 := e.x0
+	r0 := make([]float64, m)
+	if err := e.eval(x0, r0); err != nil {
+		return nil, false, err
+	}
+
+	a := mat.NewDense(m, n, nil)
+	x := append([]float64(nil), x0...)
+	r := make([]float64, m)
+	for k := 0; k < n; k++ {
+		h := math.Max(e.scale[k], math.Abs(x0[k])*0x1p-26)
+		x[k] = x0[k] + h
+		h = x[k] - x0[k]
+		if err := e.eval(x, r); err != nil {
+			return nil, false, nil
+		}
+		x[k] = x0[k]
+		for i := 0; i < m; i++ {
+			a.Set(i, k, (r[i]-r0[i])/h)
+		}
+	}
+
+	b := make([]float64, m)
+	for i := 0; i < m; i++ {
+		row := a.RawRowView(i)
+		s := 0.0
+		for k, v := range row {
+			s += v * x0[k]
+		}
+		b[i] = s - r0[i]
+	}
+
+	rng := rand.New(rand.NewPCG(probeSeed1, probeSeed2))
+	d := make([]float64, n)
+	maxDev := 0.0
+	for j := 0; j < LinearProbes; j++ {
+		for k := 0; k < n; k++ {
+			u := 0.5 + rng.Float64()
+			if j == 0 || rng.IntN(2) == 0 {
+				u = -u
+			}
+			x[k] = x0[k] + u*e.scale[k]
+			d[k] = x[k] - x0[k]
+		}
+		if err := e.eval(x, r); err != nil {
+			return nil, false, nil
+		}
+		for i := 0; i < m; i++ {
+			row := a.RawRowView(i)
+			pred, size := r0[i], e.rscale[i]+math.Abs(r0[i])
+			for k, v := range row {
+				t := v * d[k]
+				pred += t
+				size += math.Abs(t)
+			}
+			dev := math.Abs(r[i]-pred) / size
+			if !(dev <= LinearTol) {
+				return nil, false, nil
+			}
+			maxDev = math.Max(maxDev, dev)
+		}
+	}
+
+	return &Linear{
+		N: n, M: m, A: a, B: b,
+		XScale:       append([]float64(nil), e.scale...),
+		RScale:       append([]float64(nil), e.rscale...),
+		MaxDeviation: maxDev,
+	}, true, nil
+}
+
+// SingularError reports a linear system (or matrix) that is singular or whose
+// condition number exceeds CondLimit. Indices refer to the unknowns
+// (columns) and equations (rows) of the system, from 0.
+//
+// The null spaces come from the SVD of the equilibrated matrix
+// Â = diag(1/q) A diag(s) with singular values σ₁ ≥ … ≥ σ_N. The numerical
+// rank is the number of σ_j > σ₁/CondLimit, but at most N−1, so that at
+// least the direction of σ_N is named. The columns of V and U belonging to
+// the remaining singular values span the right null space (directions in
+// which the unknowns can move without changing any residual) and the left
+// null space (combinations of the equations that cancel); see NullTol for
+// which indices are named.
+type SingularError struct {
+	Cond           float64   // 1-norm condition number estimate of Â (+Inf for a zero pivot)
+	ZeroPivot      bool      // LU met an exactly zero pivot
+	Rank           int       // numerical rank, as above
+	SingularValues []float64 // σ₁ ≥ … ≥ σ_N of Â
+	Unknowns       []int     // unknowns not determined by the equations
+	Equations      []int     // equations that depend on each other
+}
+
+func (e *SingularError) Error() string {
+	var sb strings.Builder
+	sb.WriteString("solve: the linear system is singular")
+	if e.ZeroPivot {
+		sb.WriteString(" (zero pivot)")
+	} else {
+		fmt.Fprintf(&sb, " or too badly conditioned to solve (condition number %.3g exceeds %.3g)", e.Cond, float64(CondLimit))
+	}
+	switch len(e.Unknowns) {
+	case 0:
+	case 1:
+		fmt.Fprintf(&sb, "; unknown %d is not determined", e.Unknowns[0])
+	default:
+		fmt.Fprintf(&sb, "; unknowns %s are not determined", joinInts(e.Unknowns))
+	}
+	switch len(e.Equations) {
+	case 0:
+	case 1:
+		fmt.Fprintf(&sb, "; equation %d has no effect on the unknowns (all its coefficients are zero or negligible)", e.Equations[0])
+	default:
+		fmt.Fprintf(&sb, "; equations %s are linearly dependent", joinInts(e.Equations))
+	}
+	return sb.String()
+}
+
+func joinInts(v []int) string {
+	s := make([]string, len(v))
+	for i, k := range v {
+		s[i] = strconv.Itoa(k)
+	}
+	return strings.Join(s, ", ")
+}
+
+// SolveLinear solves the square system A x = b.
+//
+// It equilibrates with the scales, Â = diag(1/q) A diag(s) and b̂_i = b_i/q_i,
+// factorises Â by LU with partial pivoting (gonum's mat.LU of Âᵀ, whose
+// max-row-sum condition estimate is the 1-norm estimate κ₁(Â) = ‖Â‖₁‖Â⁻¹‖₁,
+// LAPACK's dgecon method: a lower bound on κ₁ that is usually within a small
+// factor), solves Â y = b̂ and returns x_k = s_k y_k with cond = κ₁(Â).
+//
+// When a pivot is zero or cond exceeds CondLimit, x is nil and err is a
+// *SingularError; cond is still returned. A non-square A gives a
+// *DimensionError, other bad input an error wrapping ErrBadProblem.
+func SolveLinear(lin *Linear) (x []float64, cond float64, err error) {
+	as, bs, s, err := equilibrate(lin)
+	if err != nil {
+		return nil, 0, err
+	}
+	n := len(bs)
+	var lu mat.LU
+	lu.Factorize(as.T())
+	cond = lu.Cond()
+	logDet, _ := lu.LogDet()
+	zeroPivot := math.IsInf(logDet, -1) || math.IsNaN(logDet)
+	if zeroPivot {
+		cond = math.Inf(1)
+	}
+	if zeroPivot || math.IsNaN(cond) || cond > CondLimit {
+		return nil, cond, singular(as, cond, zeroPivot)
+	}
+	var y mat.VecDense
+	if err := lu.SolveVecTo(&y, true, mat.NewVecDense(n, bs)); err != nil {
+		return nil, cond, singular(as, cond, true)
+	}
+	x = make([]float64, n)
+	for k := range x {
+		x[k] = s[k] * y.AtVec(k)
+		if !finite(x[k]) {
+			return nil, cond, singular(as, cond, false)
+		}
+	}
+	return x, cond, nil
+}
+
+// equilibrate validates lin and returns Â, b̂ and s.
+func equilibrate(lin *Linear) (*mat.Dense, []float64, []float64, error) {
+	if lin == nil || lin.A == nil {
+		return nil, nil, nil, badProblem("nil Linear or nil matrix")
+	}
+	if lin.A.IsEmpty() {
+		return nil, nil, nil, badProblem("empty matrix")
+	}
+	m, n := lin.A.Dims()
+	if (lin.N != 0 && lin.N != n) || (lin.M != 0 && lin.M != m) {
+		return nil, nil, nil, badProblem("Linear says %d×%d but A is %d×%d", lin.M, lin.N, m, n)
+	}
+	if m != n {
+		return nil, nil, nil, &DimensionError{N: n, M: m}
+	}
+	if len(lin.B) != m {
+		return nil, nil, nil, badProblem("b has %d entries for %d equations", len(lin.B), m)
+	}
+	s, err := scales(lin.XScale, n, "XScale")
+	if err != nil {
+		return nil, nil, nil, err
+	}
+	q, err := scales(lin.RScale, m, "RScale")
+	if err != nil {
+		return nil, nil, nil, err
+	}
+	as := mat.NewDense(m, n, nil)
+	bs := make([]float64, m)
+	for i := 0; i < m; i++ {
+		if !finite(lin.B[i]) {
+			return nil, nil, nil, badProblem("b[%d] = %v is not finite", i, lin.B[i])
+		}
+		bs[i] = lin.B[i] / q[i]
+		for k := 0; k < n; k++ {
+			v := lin.A.At(i, k)
+			if !finite(v) {
+				return nil, nil, nil, badProblem("A[%d][%d] = %v is not finite", i, k, v)
+			}
+			w := v * s[k] / q[i]
+			if !finite(w) {
+				return nil, nil, nil, badProblem("A[%d][%d]·s_%d/q_%d overflows", i, k, k, i)
+			}
+			as.Set(i, k, w)
+		}
+	}
+	return as, bs, s, nil
+}
+
+func scales(v []float64, n int, name string) ([]float64, error) {
+	out := make([]float64, n)
+	if v == nil {
+		for i := range out {
+			out[i] = 1
+		}
+		return out, nil
+	}
+	if len(v) != n {
+		return nil, badProblem("%s has %d entries, want %d", name, len(v), n)
+	}
+	for i, x := range v {
+		if !finite(x) || !(x > 0) {
+			return nil, badProblem("%s[%d] = %v: must be finite and > 0", name, i, x)
+		}
+		out[i] = x
+	}
+	return out, nil
+}
+
+// singular builds the SingularError of the square equilibrated matrix as.
+func singular(as *mat.Dense, cond float64, zeroPivot bool) *SingularError {
+	n, _ := as.Dims()
+	se := &SingularError{Cond: cond, ZeroPivot: zeroPivot}
+	if zeroPivot {
+		se.Cond = math.Inf(1)
+	}
+	var svd mat.SVD
+	if !svd.Factorize(as, mat.SVDFull) {
+		// The SVD did not converge: name nothing rather than guess.
+		se.Rank = -1
+		return se
+	}
+	sv := svd.Values(nil)
+	se.SingularValues = sv
+	rank := 0
+	for _, v := range sv {
+		if v > sv[0]/CondLimit {
+			rank++
+		}
+	}
+	if rank > n-1 {
+		rank = n - 1
+	}
+	se.Rank = rank
+	var u, v mat.Dense
+	svd.UTo(&u)
+	svd.VTo(&v)
+	se.Unknowns = nullIndices(&v, rank)
+	se.Equations = nullIndices(&u, rank)
+	return se
+}
+
+// nullIndices returns the rows k of the orthogonal matrix q whose part in
+// columns rank.. has Euclidean norm above NullTol.
+func nullIndices(q *mat.Dense, rank int) []int {
+	rows, cols := q.Dims()
+	var out []int
+	for k := 0; k < rows; k++ {
+		row := q.RawRowView(k)
+		if scaledNorm(row[rank:cols], nil) > NullTol {
+			out = append(out, k)
+		}
+	}
+	return out
+}
