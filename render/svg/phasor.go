@@ -32,9 +32,10 @@ const (
 	phFill      = 0.9 // the longest arrow of the primary scale reaches phFill·R
 	phMinRings  = 2.0 // ring count limits of the primary scale, see phasorLayout
 	phMaxRings  = 8.0
-	phHeadLen   = 9.0 // arrowhead length
-	phHeadHalf  = 3.5 // arrowhead half-width at its base
-	phLabelGap  = 8.0 // gap between a tip and its label
+	phHeadLen   = 9.0  // arrowhead length
+	phHeadHalf  = 3.5  // arrowhead half-width at its base
+	phLabelGap  = 8.0  // distance of a label from its shaft
+	phLabelBack = 14.0 // distance of a label back from its tip
 	phFontSize  = 11.0
 	phSmallFont = 9.0
 	phLegendRow = 16.0
@@ -62,22 +63,8 @@ type phLayout struct {
 	mags   []float64
 }
 
-// phasorLayout validates the arrows and computes the scales and end points.
-//
-// Scales appear in the order of their first arrow; scale k has the largest
-// magnitude M_k = max |Re + j·Im| of its arrows and a ring value v_k of the
-// form d·10^e, d ∈ {1, 2, 5}. All scales share the ring spacing ρ pixels, so
-// scale k draws v_k units per ρ pixels (v_k/ρ units per pixel), and the
-// rings are the circles of radius n·ρ ≤ R, n = 1, 2, ....
-//
-// The primary scale p is the first scale with M_p > 0. For a candidate ring
-// value v_p with 2 ≤ M_p/v_p ≤ 8, ρ = 0.9·R·v_p/M_p: the longest arrow of
-// the primary scale reaches exactly 90% of the radius R. Every other scale
-// with M_k > 0 takes the smallest v_k ≥ M_k·v_p/M_p, so its longest arrow
-// reaches at most 90% of R. Of the candidates, the one whose worst other
-// scale reaches furthest is chosen (ties: the smaller v_p, more rings).
-// A scale whose arrows are all zero gets v_k = 1; if every arrow is zero,
-// ρ = R/5.
+// phasorLayout validates the arrows and computes the scales and end points
+// by the rule documented on PhasorGeometry.
 func phasorLayout(arrows []Arrow) (*phLayout, error) {
 	if len(arrows) == 0 {
 		return nil, fmt.Errorf("svg: phasor diagram: no arrows")
@@ -171,6 +158,22 @@ func phasorLayout(arrows []Arrow) (*phLayout, error) {
 // arrow's scale in units per pixel; SVG's y axis points down), and each
 // scale's units per pixel keyed by Arrow.Scale. A zero arrow ends at the
 // centre. For arrows PhasorDiagram rejects, it returns zeros and nil.
+//
+// The scales: they are taken in the order of their first arrow; scale k has
+// the largest magnitude M_k = max |Re + j·Im| of its arrows and a ring value
+// v_k of the form d·10^e, d ∈ {1, 2, 5}. All scales share the ring spacing ρ
+// pixels, so scale k draws v_k units per ρ pixels (u_k = v_k/ρ units per
+// pixel), and the rings are the circles of radius n·ρ ≤ R, n = 1, 2, ...,
+// where R is the radius of the grid (130 user units).
+//
+// The primary scale p is the first scale with M_p > 0. For each candidate
+// ring value v_p with 2 ≤ M_p/v_p ≤ 8, ρ = 0.9·R·v_p/M_p, so the longest
+// arrow of the primary scale reaches exactly 90% of R; every other scale
+// with M_k > 0 takes the smallest v_k ≥ M_k·v_p/M_p, so its longest arrow
+// reaches at most 90% of R. Of the candidates, the one whose least-filled
+// other scale reaches furthest is chosen (ties: the smaller v_p, that is
+// more rings). A scale whose arrows are all zero gets v_k = 1; if every
+// arrow is zero, ρ = R/5.
 func PhasorGeometry(arrows []Arrow) (cx, cy float64, ends [][2]float64, scales map[string]float64) {
 	L, err := phasorLayout(arrows)
 	if err != nil {
@@ -188,18 +191,18 @@ func PhasorGeometry(arrows []Arrow) (cx, cy float64, ends [][2]float64, scales m
 //
 // The grid has rings at round values of the primary (first non-zero) scale
 // and radial marks every 30°, labelled 0°, 30°, ..., 330° counter-clockwise
-// from the positive real axis. The scales are chosen as described for
-// PhasorGeometry and phasorLayout: every ring value is a 1-2-5 number, the
+// from the positive real axis. The scales are chosen as documented on
+// PhasorGeometry: every ring value is a 1-2-5 number, the
 // longest arrow of the primary scale reaches 90% of the grid radius, and no
 // arrow reaches beyond it. Each scale has its own line style (solid, dashed,
 // dotted, dash-dot, long dash, dash-dot-dot: at most six scales), and the
 // legend under the grid shows each style with its ring value, e.g.
 // "rings: 50 V". Each arrow has a filled arrowhead with its tip at the end
-// point and its label beyond the tip; a zero arrow is a dot at the centre
+// point and its label beside the tip; a zero arrow is a dot at the centre
 // with its label. A non-empty caption is written under the legend.
 //
 // It returns an error for no arrows, a non-finite Re or Im, a magnitude
-// above 1e300 or below 1e-300 (but not zero), or more than six scales.
+// above 1e280 or below 1e-280 (but not zero), or more than six scales.
 func PhasorDiagram(arrows []Arrow, caption string) (string, error) {
 	L, err := phasorLayout(arrows)
 	if err != nil {
@@ -306,19 +309,24 @@ func PhasorDiagram(arrows []Arrow, caption string) (string, error) {
 		w.raw(",")
 		w.num(by - ux*half)
 		w.raw(` Z"/>` + "\n")
-		// Label beyond the tip, anchored on the side facing away from it.
-		lx, ly := tx+ux*phLabelGap, ty+uy*phLabelGap
+		// Label beside the tip, on the counter-clockwise side of the shaft
+		// (normal n = u turned by +90° on the page), anchored so that the
+		// text runs away from the shaft. Keeping it within the arrow's
+		// radius keeps it clear of the angle labels outside the grid.
+		nx, ny := uy, -ux
+		back := math.Min(phLabelBack, length/2)
+		lx, ly := tx-ux*back+nx*phLabelGap, ty-uy*back+ny*phLabelGap
 		anchor := "middle"
 		switch {
-		case ux > 0.3:
+		case nx > 0.3:
 			anchor = "start"
-		case ux < -0.3:
+		case nx < -0.3:
 			anchor = "end"
 		}
 		switch {
-		case uy > 0.3: // pointing down: text below the tip
+		case ny > 0.3: // text below the anchor point
 			ly += phFontSize * 0.8
-		case uy >= -0.3: // roughly horizontal: centre the text on the tip
+		case ny >= -0.3: // text centred on the anchor point
 			ly += phFontSize * 0.35
 		}
 		w.raw(`<text class="label" font-size="11" text-anchor="` + anchor + `"`)

@@ -66,10 +66,9 @@ func parsePathStart(t *testing.T, d string) (float64, float64) {
 const svgTol = 0.0051
 
 var phasorCases = []struct {
-	name   string
-	in     []polar
-	rings  map[string]string // expected legend text per scale, from the rule in phasorLayout
-	hasTip bool
+	name  string
+	in    []polar
+	rings map[string]string // expected legend text per scale, from the rule in phasorLayout
 }{
 	{
 		// A balanced positive-sequence set, 230 V phase voltage (common
@@ -116,6 +115,16 @@ var phasorCases = []struct {
 		rings: map[string]string{"A": "rings: 1 A", "V": "rings: 1 V"},
 	},
 	{
+		// The ends of the drawable range, on two scales: no overflow.
+		name: "extreme magnitudes",
+		in:   []polar{{"V_big", 1e280, 30, "V"}, {"I_tiny", 1e-280, -60, "A"}},
+		// M_V = 1e280: candidates 5e279 (2) and 2e279 (5); 1e279 would give
+		// 10 rings. The current needs 1e-280·v/1e280 per ring: 5e-281 → 5e-281
+		// (90%) or 2e-281 → 2e-281 (90%): a tie, and the smaller v wins.
+		// Ring values beyond 10^±6 are written in E notation.
+		rings: map[string]string{"V": "rings: 2e279 V", "A": "rings: 2e-281 A"},
+	},
+	{
 		name: "four scales",
 		in: []polar{
 			{"V_s", 11000, 10, "V"},
@@ -132,6 +141,14 @@ var phasorCases = []struct {
 	},
 }
 
+// TestPhasorArrowEnds checks where each arrow ends. Sources: the expected
+// point is the polar-to-Cartesian conversion x = r·cos θ, y = r·sin θ
+// (common practice), placed in SVG user space, whose y axis points down
+// (W3C SVG 1.1, section 7.3 "The initial coordinate system"); the test
+// values are converted with math/cmplx.Rect. The scale is cross-checked
+// against what the sheet's reader sees: the legend's ring value over the
+// radius of the first ring. Ring values must be 1-2-5 numbers (common
+// practice for chart scales, and the brief).
 func TestPhasorArrowEnds(t *testing.T) {
 	for _, tc := range phasorCases {
 		t.Run(tc.name, func(t *testing.T) {
@@ -268,6 +285,10 @@ func TestPhasorArrowEnds(t *testing.T) {
 	}
 }
 
+// TestPhasorLabelsAndText checks the text of a diagram: subscripts as
+// LANGUAGE.md section 3 states them ("The first `_` starts a subscript"),
+// the angle labels every 30°, XML escaping (the text must read back through
+// encoding/xml, per XML 1.0), and caption wrapping at spaces.
 func TestPhasorLabelsAndText(t *testing.T) {
 	cases := []struct {
 		name     string
@@ -300,8 +321,9 @@ func TestPhasorLabelsAndText(t *testing.T) {
 			wantText: []string{"|V", "| max"},
 		},
 		{
-			name: "long caption wraps",
-			arrows: []Arrow{{Label: "I_1", Re: 1, Scale: "A"}},
+			name:    "long caption wraps",
+			arrows:  []Arrow{{Label: "I_1", Re: 1, Scale: "A"}},
+			wantSub: "1",
 			caption: "Feeder F3 at the end of the cable run, phase currents during the " +
 				"assumed single line to earth fault on phase a, source side",
 			wantText: []string{"Feeder F3"},
@@ -356,6 +378,14 @@ func TestPhasorLabelsAndText(t *testing.T) {
 				for _, sp := range caps[0].find("tspan", "") {
 					parts = append(parts, sp.text)
 				}
+				if len([]rune(tc.caption)) > phWrap && len(parts) < 2 {
+					t.Errorf("caption of %d characters not wrapped", len([]rune(tc.caption)))
+				}
+				for _, part := range parts {
+					if n := len([]rune(part)); n > phWrap {
+						t.Errorf("caption line of %d characters, more than %d", n, phWrap)
+					}
+				}
 				if strings.Join(parts, " ") != strings.Join(strings.Fields(tc.caption), " ") || got == "" {
 					t.Errorf("caption %q, want %q", strings.Join(parts, " "), tc.caption)
 				}
@@ -364,6 +394,9 @@ func TestPhasorLabelsAndText(t *testing.T) {
 	}
 }
 
+// TestPhasorLineStyles checks that scales differ in line style and are all
+// drawn in black, so black-and-white print tells them apart (common
+// practice for monochrome technical drawings).
 func TestPhasorLineStyles(t *testing.T) {
 	var arrows []Arrow
 	units := []string{"V", "A", "Ω", "VA", "S", "W"}
@@ -391,6 +424,8 @@ func TestPhasorLineStyles(t *testing.T) {
 	}
 }
 
+// TestPhasorErrors checks that bad input gives an error value naming the
+// problem, and no drawing.
 func TestPhasorErrors(t *testing.T) {
 	seven := make([]Arrow, 7)
 	for i := range seven {
@@ -406,8 +441,8 @@ func TestPhasorErrors(t *testing.T) {
 		{"infinite imaginary part", []Arrow{{Label: "V_a", Re: 1, Im: math.Inf(-1), Scale: "V"}}, "non-finite"},
 		{"NaN after a good arrow", []Arrow{{Label: "V_a", Re: 1, Scale: "V"}, {Label: "I_a", Im: math.NaN(), Scale: "A"}}, "arrow 2"},
 		{"too many scales", seven, "more than 6 scales"},
-		{"magnitude too large", []Arrow{{Label: "x", Re: 1e301, Scale: "V"}}, "drawable range"},
-		{"magnitude too small", []Arrow{{Label: "x", Re: 1e-301, Scale: "V"}}, "drawable range"},
+		{"magnitude too large", []Arrow{{Label: "x", Re: 1e281, Scale: "V"}}, "drawable range"},
+		{"magnitude too small", []Arrow{{Label: "x", Re: 1e-281, Scale: "V"}}, "drawable range"},
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {
@@ -429,6 +464,7 @@ func TestPhasorErrors(t *testing.T) {
 	}
 }
 
+// TestPhasorDeterministic checks that two renders give the same bytes.
 func TestPhasorDeterministic(t *testing.T) {
 	for _, tc := range phasorCases {
 		t.Run(tc.name, func(t *testing.T) {

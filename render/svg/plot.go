@@ -32,7 +32,6 @@ const (
 	plRight     = 20.0
 	plTop       = 30.0
 	plHeight    = 300.0 // plot area height
-	plFont      = 11.0
 	plTickFont  = 10.0
 	plTickLen   = 4.0
 	plMinorLen  = 2.5
@@ -92,11 +91,11 @@ func newAxis(lo, hi float64, log, expand bool) *axis {
 				d, e := linearStep(lo, hi)
 				s := val125(d, e)
 				klo := math.Floor(lo/s + 1e-9)
-				for multiple(klo, d, e) > lo {
+				for n := 0; n < 4 && multiple(klo, d, e) > lo; n++ {
 					klo--
 				}
 				khi := math.Ceil(hi/s - 1e-9)
-				for multiple(khi, d, e) < hi {
+				for n := 0; n < 4 && multiple(khi, d, e) < hi; n++ {
 					khi++
 				}
 				nlo, nhi := multiple(klo, d, e), multiple(khi, d, e)
@@ -144,7 +143,7 @@ func (p Plot) validate() (xlo, xhi, ylo, yhi float64, ok bool, err error) {
 			return 0, 0, 0, 0, false, fmt.Errorf("svg: plot: x value %d is %g, not a finite number", i+1, x)
 		case p.LogX && x <= 0:
 			return 0, 0, 0, 0, false, fmt.Errorf("svg: plot: x value %d is %g, but a logarithmic x axis needs x > 0", i+1, x)
-		case math.Abs(x) > maxMagnitude || (p.LogX && x < minPositive):
+		case math.Abs(x) > maxMagnitude || (x != 0 && math.Abs(x) < minPositive):
 			return 0, 0, 0, 0, false, fmt.Errorf("svg: plot: x value %d is %g, outside the drawable range", i+1, x)
 		}
 		xlo, xhi = math.Min(xlo, x), math.Max(xhi, x)
@@ -158,7 +157,7 @@ func (p Plot) validate() (xlo, xhi, ylo, yhi float64, ok bool, err error) {
 			if !p.drawable(y) {
 				continue
 			}
-			if math.Abs(y) > maxMagnitude || (p.LogY && y < minPositive) {
+			if math.Abs(y) > maxMagnitude || (y != 0 && math.Abs(y) < minPositive) {
 				return 0, 0, 0, 0, false, fmt.Errorf("svg: plot: series %q value %d is %g, outside the drawable range", s.Name, i+1, y)
 			}
 			ylo, yhi = math.Min(ylo, y), math.Max(yhi, y)
@@ -179,16 +178,27 @@ func (p Plot) drawable(y float64) bool {
 // axes (see Ticks). Linear axes are labelled with one SI prefix for the
 // whole axis; logarithmic axes label each decade with its own prefix ("10",
 // "100", "1k", "10k") and carry unlabelled minor marks at 2·10^k and 5·10^k.
-// The x axis spans the x data exactly; the y axis is widened to round ends
-// (see newAxis). Each series is a polyline in data order, broken at gaps; a
-// value standing alone between gaps is a dot. Series are told apart by dash
+// Magnitudes below 1e-12 or from 1e15 up, beyond the prefixes p to T, are
+// labelled in E notation ("1e+20").
+//
+// The x axis spans the x data exactly; the y axis spans the drawable y
+// values widened to round ends: on a linear axis to multiples of its tick
+// step, on a logarithmic axis to the enclosing numbers 1·10^k, 2·10^k or
+// 5·10^k. A range whose ends differ by at most 1e-9 of their magnitude (a
+// single value, say) is first widened to v ± |v|/10 (−1 to 1 for v = 0) on a
+// linear axis and to v/√10 to v·√10 on a logarithmic one, and then to round
+// ends, on the x axis too. With no drawable y value at all the y axis runs
+// from 0 to 1 (1 to 10 when logarithmic).
+//
+// Each series is a polyline in data order, broken at gaps; a value standing
+// alone between gaps is a dot. Series are told apart by dash
 // pattern (solid, dashed, dotted, dash-dot, long dash, dash-dot-dot, then
 // the same six in a heavier stroke), and a legend under the x label names
 // them when there is more than one.
 //
 // It returns an error for empty X, no series or more than 12, a series whose
 // length differs from X, a non-finite x, x ≤ 0 on a logarithmic x axis, or
-// a value beyond 1e300 in magnitude (below 1e-300 on a logarithmic axis).
+// a value beyond 1e280 in magnitude or non-zero below 1e-280 in magnitude.
 func (p Plot) Render() (string, error) {
 	xlo, xhi, ylo, yhi, ok, err := p.validate()
 	if err != nil {

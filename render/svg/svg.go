@@ -25,13 +25,14 @@ import (
 )
 
 // maxMagnitude bounds the absolute values this package draws. Beyond it,
-// differences and ratios of values may overflow; such input is rejected with
-// an error instead of producing a meaningless picture.
-const maxMagnitude = 1e300
+// differences and ratios of values, and the powers of ten that scales and
+// ticks are built from, may overflow; such input is rejected with an error
+// instead of producing a meaningless picture.
+const maxMagnitude = 1e280
 
-// minPositive is the smallest non-zero magnitude drawn on a phasor diagram
-// or a logarithmic axis, for the same reason.
-const minPositive = 1e-300
+// minPositive is the smallest non-zero magnitude drawn, for the same reason
+// (tick steps and scales must stay normal, non-zero float64 numbers).
+const minPositive = 1e-280
 
 // style is one line style used to tell scales or series apart in
 // black-and-white print.
@@ -158,8 +159,11 @@ func prev125(d, e int) (int, int) {
 }
 
 // plainNumber writes d·10^e as a plain decimal numeral ("50", "0.002",
-// "5000"), with no exponent and no trailing zeros.
+// "5000") when −6 ≤ e ≤ 6, and in E notation ("2e9", "5e-7") otherwise.
 func plainNumber(d, e int) string {
+	if e < -6 || e > 6 {
+		return strconv.Itoa(d) + "e" + strconv.Itoa(e)
+	}
 	if e >= 0 {
 		return strconv.Itoa(d) + strings.Repeat("0", e)
 	}

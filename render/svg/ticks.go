@@ -30,13 +30,22 @@ const maxDecadeTicks = 10
 // and when fewer than two of those lie in it, the linear ticks of the range.
 //
 // min == max gives the single tick min. Ticks returns nil when min or max is
-// not finite, min > max, or log is true and min ≤ 0.
+// not finite, min > max, log is true and min ≤ 0, |min| or |max| exceeds
+// 1e280 or (log true) min is below 1e-280, or min < max but the range is
+// too narrow to tick: max − min < 1e-280, or max − min ≤ 1e-12·max(|min|,
+// |max|) (below the resolution of float64 near the ends).
 func Ticks(min, max float64, log bool) []float64 {
 	if !finite(min) || !finite(max) || min > max || (log && min <= 0) {
 		return nil
 	}
+	if math.Abs(min) > maxMagnitude || math.Abs(max) > maxMagnitude || (log && min < minPositive) {
+		return nil
+	}
 	if min == max {
 		return []float64{min}
+	}
+	if max-min < minPositive || max-min <= 1e-12*math.Max(math.Abs(min), math.Abs(max)) {
+		return nil
 	}
 	if !log {
 		t, _, _ := linearTicks(min, max)
@@ -63,7 +72,9 @@ func linearTicks(min, max float64) ([]float64, int, int) {
 	kLo := math.Ceil(min/s - 1e-9)
 	kHi := math.Floor(max/s + 1e-9)
 	var ticks []float64
-	for k := kLo; k <= kHi && len(ticks) <= 4*maxLinearIntervals; k++ {
+	// kHi − kLo is at most 8 plus rounding; the count bounds the loop for
+	// any input regardless.
+	for k, n := kLo, 0; k <= kHi && n <= 4*maxLinearIntervals; k, n = k+1, n+1 {
 		t := multiple(k, d, e)
 		if t < min || t > max {
 			continue
@@ -108,7 +119,7 @@ func logTicks(min, max float64) (major, minor []float64, linear bool, e int) {
 	}
 	k1 := decadeFloor(max)
 	if k1-k0+1 >= 2 {
-		stride := 1
+		var stride int
 		for sd, se := 1, 0; ; sd, se = next125(sd, se) {
 			n := int(val125(sd, se))
 			if countMultiples(k0, k1, n) <= maxDecadeTicks {
@@ -207,6 +218,9 @@ func linearLabels(ticks []float64, e int) []string {
 	for _, t := range ticks {
 		big = math.Max(big, math.Abs(t))
 	}
+	if big != 0 && outsidePrefixes(big) {
+		return eLabels(ticks)
+	}
 	p := prefixExp(big)
 	dec := p - e
 	if dec < 0 {
@@ -224,6 +238,10 @@ func linearLabels(ticks []float64, e int) []string {
 func logLabels(ticks []float64) []string {
 	out := make([]string, len(ticks))
 	for i, t := range ticks {
+		if outsidePrefixes(t) {
+			out[i] = eLabels([]float64{t})[0]
+			continue
+		}
 		p := prefixExp(t)
 		k := decadeFloor(t)
 		dec := p - k
@@ -231,6 +249,28 @@ func logLabels(ticks []float64) []string {
 			dec = 0
 		}
 		out[i] = siLabel(t, p, dec)
+	}
+	return out
+}
+
+// outsidePrefixes reports whether a magnitude a > 0 lies outside what the
+// prefixes p to T write with at most three integer digits: below 1e-12 or
+// at or above 1e15.
+func outsidePrefixes(a float64) bool {
+	k := decadeFloor(a)
+	return k < -12 || k > 14
+}
+
+// eLabels writes each value in the shortest E notation that reads back as
+// the same float64 ("2e+279", "1.5e-13"); zero is written "0".
+func eLabels(ticks []float64) []string {
+	out := make([]string, len(ticks))
+	for i, t := range ticks {
+		if t == 0 {
+			out[i] = "0"
+			continue
+		}
+		out[i] = strconv.FormatFloat(t, 'e', -1, 64)
 	}
 	return out
 }

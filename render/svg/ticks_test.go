@@ -6,6 +6,10 @@ import (
 	"testing"
 )
 
+// TestTicksExact checks chosen ticks against hand-derived lists. Sources:
+// decade ticks on log axes and 1-2-5 steps on linear axes are common
+// practice for engineering charts; the step rule (smallest 1-2-5 step
+// giving at most 8 intervals) is the one Ticks documents.
 func TestTicksExact(t *testing.T) {
 	cases := []struct {
 		name     string
@@ -86,6 +90,8 @@ func checkTickProperties(t *testing.T, min, max float64, log bool) {
 	}
 }
 
+// TestTicksProperties checks the promises of Ticks (within range,
+// increasing, even 1-2-5 steps on linear axes) over many ranges.
 func TestTicksProperties(t *testing.T) {
 	cases := []struct {
 		name     string
@@ -118,6 +124,7 @@ func TestTicksProperties(t *testing.T) {
 	})
 }
 
+// TestTicksInvalid checks that ranges that cannot be ticked give nil.
 func TestTicksInvalid(t *testing.T) {
 	cases := []struct {
 		name     string
@@ -129,6 +136,10 @@ func TestTicksInvalid(t *testing.T) {
 		{"reversed", 2, 1, false},
 		{"log from zero", 0, 10, true},
 		{"log negative", -1, 10, true},
+		{"beyond 1e280", 0, 1e281, false},
+		{"log below 1e-280", 1e-281, 1, true},
+		{"narrower than float64 resolution", 1, 1 + 1e-13, false},
+		{"narrower than 1e-280", 0, 1e-281, false},
 	}
 	for _, tc := range cases {
 		t.Run(tc.name, func(t *testing.T) {

@@ -105,9 +105,13 @@ func checkRoot(t *testing.T, root *node) {
 }
 
 // checkSelfContained checks that the markup carries no script, no style
-// sheet and no reference to anything outside itself.
+// sheet and no reference to anything outside itself, and no non-finite
+// number (the test inputs carry no text "NaN" or "Inf").
 func checkSelfContained(t *testing.T, s string) {
 	t.Helper()
+	if strings.Contains(s, "NaN") || strings.Contains(s, "Inf") {
+		t.Errorf("SVG contains a non-finite number")
+	}
 	for _, bad := range []string{"<script", "<style", "href", "url(", "@import", "@font-face", "<image", "<foreignObject", "javascript:", "on" + "load="} {
 		if strings.Contains(s, bad) {
 			t.Errorf("SVG contains %q", bad)
