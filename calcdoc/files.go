@@ -1,0 +1,124 @@
+package calcdoc
+
+import (
+	"fmt"
+	"io/fs"
+	"os"
+	"path/filepath"
+	"regexp"
+	"sort"
+)
+
+// evaluatedFence matches the opening fence of a calc or solve block.
+var evaluatedFence = regexp.MustCompile("(?m)^[ ]{0,3}(```+|~~~+)[ \t]*(calc|solve)([ \t]|$)")
+
+// HasCalc reports whether a document holds a calc or solve block.
+func HasCalc(src []byte) bool { return evaluatedFence.Match(src) }
+
+// Input is one document to process and the path of the output relative to
+// the PATH it was found under.
+type Input struct {
+	Path string // the file
+	Rel  string // relative to the PATH given (its base name for a file)
+}
+
+// Collect expands the PATHs of the command line: a file is taken as it is
+// (it must end in .md), a folder means every .md file below it that holds
+// a calc or solve block, in lexical order. A missing path, a file that is
+// not .md, or a folder without documents is an error.
+func Collect(paths []string) ([]Input, error) {
+	var out []Input
+	for _, p := range paths {
+		info, err := os.Stat(p)
+		if err != nil {
+			return nil, fmt.Errorf("%s: no such file or folder", p)
+		}
+		if !info.IsDir() {
+			if filepath.Ext(p) != ".md" {
+				return nil, fmt.Errorf("%s: not a Markdown document (the name must end in .md)", p)
+			}
+			out = append(out, Input{Path: p, Rel: filepath.Base(p)})
+			continue
+		}
+		var found []Input
+		err = filepath.WalkDir(p, func(path string, d fs.DirEntry, err error) error {
+			if err != nil {
+				return nil // unreadable entries are skipped
+			}
+			if d.IsDir() {
+				if path != p && (d.Name() == ".git" || d.Name() == "node_modules") {
+					return filepath.SkipDir
+				}
+				return nil
+			}
+			if filepath.Ext(path) != ".md" || !d.Type().IsRegular() {
+				return nil
+			}
+			src, rerr := os.ReadFile(path)
+			if rerr != nil || !HasCalc(src) {
+				return nil
+			}
+			rel, _ := filepath.Rel(p, path)
+			found = append(found, Input{Path: path, Rel: rel})
+			return nil
+		})
+		if err != nil {
+			return nil, err
+		}
+		if len(found) == 0 {
+			return nil, fmt.Errorf("%s: no document with a calc or solve block in this folder", p)
+		}
+		sort.Slice(found, func(i, j int) bool { return found[i].Path < found[j].Path })
+		out = append(out, found...)
+	}
+	return out, nil
+}
+
+// WriteFileAtomic writes data to a temporary file in the target's folder
+// and renames it into place, so that a reader sees the old file or the
+// new one, never a part. On any error the old file is left as it was.
+func WriteFileAtomic(path string, data []byte) error {
+	dir := filepath.Dir(path)
+	tmp, err := os.CreateTemp(dir, "."+filepath.Base(path)+".tmp-*")
+	if err != nil {
+		return err
+	}
+	name := tmp.Name()
+	fail := func(e error) error {
+		tmp.Close()
+		os.Remove(name)
+		return e
+	}
+	if _, err := tmp.Write(data); err != nil {
+		return fail(err)
+	}
+	if err := tmp.Sync(); err != nil {
+		return fail(err)
+	}
+	if err := tmp.Close(); err != nil {
+		os.Remove(name)
+		return err
+	}
+	mode := os.FileMode(0o644)
+	if st, err := os.Stat(path); err == nil {
+		mode = st.Mode().Perm()
+	}
+	os.Chmod(name, mode)
+	if err := os.Rename(name, path); err != nil {
+		os.Remove(name)
+		return err
+	}
+	return nil
+}
+
+// SameFile reports whether writing out would overwrite the source.
+func SameFile(a, b string) bool {
+	ia, err1 := os.Stat(a)
+	ib, err2 := os.Stat(b)
+	if err1 == nil && err2 == nil {
+		return os.SameFile(ia, ib)
+	}
+	aa, _ := filepath.Abs(a)
+	bb, _ := filepath.Abs(b)
+	return aa == bb
+}

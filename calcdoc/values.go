@@ -1,0 +1,112 @@
+package calcdoc
+
+import (
+	"bytes"
+	"encoding/json"
+	"math"
+
+	"calcdoc/expr"
+)
+
+// ValuesJSON is the object `calcdoc values` prints (LANGUAGE.md section 8).
+type ValuesJSON struct {
+	File   string      `json:"file"`
+	Values []ValueJSON `json:"values"`
+	Checks []CheckJSON `json:"checks"`
+	Errors []ErrorJSON `json:"errors"`
+}
+
+// ValueJSON is one named value: re and im in coherent SI units, unit the
+// coherent SI unit of its dimension. For a vector or matrix, Re, Im and
+// Unit are arrays of rows.
+type ValueJSON struct {
+	Name  string `json:"name"`
+	Line  int    `json:"line"`
+	Re    any    `json:"re"`
+	Im    any    `json:"im"`
+	Unit  any    `json:"unit"`
+	Shown string `json:"shown"`
+}
+
+// CheckJSON is one check; Pass is null when the check could not be evaluated.
+type CheckJSON struct {
+	Line int    `json:"line"`
+	Text string `json:"text"`
+	Pass *bool  `json:"pass"`
+}
+
+// ErrorJSON is one error.
+type ErrorJSON struct {
+	Line    int    `json:"line"`
+	Col     int    `json:"col"`
+	Message string `json:"message"`
+}
+
+// jsonNum is a float for JSON: NaN and infinities, which JSON cannot
+// hold, become null.
+func jsonNum(x float64) any {
+	if math.IsNaN(x) || math.IsInf(x, 0) {
+		return nil
+	}
+	return x
+}
+
+// SIUnit is the coherent SI unit of a dimension as the values JSON writes
+// it: "V", "Ω", "W", or base units such as "kg·m²·s⁻³"; "" when
+// dimensionless.
+func SIUnit(d expr.Dim) string {
+	if d.IsZero() {
+		return ""
+	}
+	if u := expr.CoherentUnit(d); u != "" {
+		return u
+	}
+	return d.SI()
+}
+
+// Values builds the values JSON of a document.
+func (d *Document) ValuesJSON() *ValuesJSON {
+	out := &ValuesJSON{File: d.Path, Values: []ValueJSON{}, Checks: []CheckJSON{}, Errors: []ErrorJSON{}}
+	for _, v := range d.Values {
+		vj := ValueJSON{Name: v.Name, Line: v.Pos.Line, Shown: expr.FormatValue(v.Value, v.Display, d.Digits())}
+		switch x := v.Value.(type) {
+		case *expr.Scalar:
+			vj.Re, vj.Im, vj.Unit = jsonNum(real(x.Z)), jsonNum(imag(x.Z)), SIUnit(x.Dim)
+		case *expr.Matrix:
+			re, im, un := make([][]any, x.Rows), make([][]any, x.Rows), make([][]string, x.Rows)
+			for i := 0; i < x.Rows; i++ {
+				for j := 0; j < x.Cols; j++ {
+					e := x.At(i, j)
+					re[i] = append(re[i], jsonNum(real(e.Z)))
+					im[i] = append(im[i], jsonNum(imag(e.Z)))
+					un[i] = append(un[i], SIUnit(e.Dim))
+				}
+			}
+			vj.Re, vj.Im, vj.Unit = re, im, un
+		}
+		out.Values = append(out.Values, vj)
+	}
+	for _, c := range d.Checks {
+		cj := CheckJSON{Line: c.Pos.Line, Text: c.Text}
+		if c.Result != nil {
+			p := c.Result.Pass
+			cj.Pass = &p
+		}
+		out.Checks = append(out.Checks, cj)
+	}
+	for _, e := range d.Errors {
+		out.Errors = append(out.Errors, ErrorJSON{Line: e.Pos.Line, Col: e.Pos.Col, Message: e.Msg})
+	}
+	return out
+}
+
+// MarshalValues writes the values JSON with two-space indentation and
+// without HTML escaping, ending in a newline.
+func (d *Document) MarshalValues() []byte {
+	var buf bytes.Buffer
+	enc := json.NewEncoder(&buf)
+	enc.SetEscapeHTML(false)
+	enc.SetIndent("", "  ")
+	enc.Encode(d.ValuesJSON())
+	return buf.Bytes()
+}

@@ -1,0 +1,292 @@
+// Command calcdoc evaluates calculation documents (Markdown files with
+// calc, solve, phasors and sweep blocks) and writes HTML calculation
+// sheets. See the README for the language and the commands.
+package main
+
+import (
+	"flag"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"strings"
+
+	"calcdoc/calcdoc"
+	"calcdoc/calcdoc/stamp"
+	"calcdoc/render"
+)
+
+// version is calcdoc's version; a release build may set it with
+// -ldflags "-X main.version=...".
+var version = "0.1.0"
+
+// Exit statuses (LANGUAGE.md section 8).
+const (
+	exitOK        = 0
+	exitCheckFail = 1
+	exitUsage     = 2
+	exitError     = 3
+)
+
+const usage = `calcdoc: calculation sheets from Markdown documents
+
+usage:
+  calcdoc build [-o OUT] PATH...       an HTML sheet for each document
+  calcdoc check PATH...                evaluate only, print a summary
+  calcdoc values PATH                  JSON of one document's values, checks and errors
+  calcdoc watch [--addr HOST:PORT] [-o OUT] PATH...
+                                       rebuild on every save and serve a live preview
+  calcdoc package [-o FILE] [--pdf FILE] PATH...
+                                       one stamped calculation package
+  calcdoc verify SHEET.html...         re-evaluate the source a sheet carries and
+                                       confirm the sheet still matches it
+  calcdoc version
+
+A PATH that is a folder means every .md file below it that holds a calc or
+solve block. Exit status: 0 all evaluated and every check holds, 1 a check
+fails, 3 a document has an error, 2 a usage error.
+`
+
+type cli struct {
+	stdout, stderr io.Writer
+}
+
+func main() {
+	c := &cli{stdout: os.Stdout, stderr: os.Stderr}
+	os.Exit(c.run(os.Args[1:]))
+}
+
+// commands maps each subcommand to its function; other files add to it.
+var commands = map[string]func(c *cli, args []string) int{}
+
+func init() {
+	commands["build"] = (*cli).build
+	commands["check"] = (*cli).check
+	commands["values"] = (*cli).values
+	commands["version"] = func(c *cli, args []string) int {
+		fmt.Fprintf(c.stdout, "calcdoc %s\n", version)
+		return exitOK
+	}
+}
+
+func (c *cli) run(args []string) int {
+	if len(args) == 0 {
+		fmt.Fprint(c.stderr, usage)
+		return exitUsage
+	}
+	switch args[0] {
+	case "-h", "--help", "help":
+		fmt.Fprint(c.stdout, usage)
+		return exitOK
+	case "--version", "-version":
+		args[0] = "version"
+	}
+	fn, ok := commands[args[0]]
+	if !ok {
+		fmt.Fprintf(c.stderr, "calcdoc: unknown command %q\n\n%s", args[0], usage)
+		return exitUsage
+	}
+	return fn(c, args[1:])
+}
+
+func (c *cli) usageErr(format string, args ...any) int {
+	fmt.Fprintf(c.stderr, "calcdoc: "+format+"\n", args...)
+	fmt.Fprintf(c.stderr, "run 'calcdoc help' for usage\n")
+	return exitUsage
+}
+
+// flagSet returns a flag set that reports errors as usage errors.
+func (c *cli) flagSet(name string) *flag.FlagSet {
+	fs := flag.NewFlagSet(name, flag.ContinueOnError)
+	fs.SetOutput(c.stderr)
+	return fs
+}
+
+// parseFlags parses flags that may stand before or among the paths.
+func parseFlags(fs *flag.FlagSet, args []string) ([]string, error) {
+	var paths []string
+	for {
+		if err := fs.Parse(args); err != nil {
+			return nil, err
+		}
+		rest := fs.Args()
+		if len(rest) == 0 {
+			return paths, nil
+		}
+		if rest[0] == "--" {
+			return append(paths, rest[1:]...), nil
+		}
+		paths = append(paths, rest[0])
+		args = rest[1:]
+	}
+}
+
+// status folds one document's outcome into the exit status.
+func status(doc *calcdoc.Document, st int) int {
+	switch {
+	case len(doc.Errors) > 0:
+		return exitError
+	case doc.FailedChecks() > 0 && st != exitError:
+		return exitCheckFail
+	}
+	return st
+}
+
+// printErrors writes each error as file:line:col: message.
+func (c *cli) printErrors(doc *calcdoc.Document) {
+	for _, e := range doc.Errors {
+		fmt.Fprintf(c.stderr, "%s:%d:%d: %s\n", doc.Path, e.Pos.Line, e.Pos.Col, e.Msg)
+	}
+	for _, e := range doc.Warnings {
+		fmt.Fprintf(c.stderr, "%s:%d:%d: warning: %s\n", doc.Path, e.Pos.Line, e.Pos.Col, e.Msg)
+	}
+}
+
+// SheetOptions are the options of a built sheet: stamped and carrying its
+// source.
+func sheetOptions(doc *calcdoc.Document) render.Options {
+	st := stamp.Of(doc.Path, doc.Source)
+	return render.Options{Version: version, Stamp: &st, EmbedSource: true}
+}
+
+func (c *cli) build(args []string) int {
+	fs := c.flagSet("build")
+	out := fs.String("o", "", "output folder, or the output file for one document")
+	paths, err := parseFlags(fs, args)
+	if err != nil {
+		return exitUsage
+	}
+	if len(paths) == 0 {
+		return c.usageErr("build needs at least one PATH")
+	}
+	inputs, err := calcdoc.Collect(paths)
+	if err != nil {
+		return c.usageErr("%v", err)
+	}
+	single := *out != "" && strings.HasSuffix(strings.ToLower(*out), ".html")
+	if single && len(inputs) != 1 {
+		return c.usageErr("-o %s names one file, but there are %d documents: give a folder", *out, len(inputs))
+	}
+	st := exitOK
+	for _, in := range inputs {
+		doc, err := calcdoc.Load(in.Path)
+		if err != nil {
+			fmt.Fprintf(c.stderr, "calcdoc: %v\n", err)
+			st = max(st, exitUsage)
+			continue
+		}
+		c.printErrors(doc)
+		html, err := render.Sheet(doc, sheetOptions(doc))
+		if err != nil {
+			fmt.Fprintf(c.stderr, "%s: cannot render: %v\n", in.Path, err)
+			st = exitError
+			continue
+		}
+		target := strings.TrimSuffix(in.Path, ".md") + ".html"
+		switch {
+		case single:
+			target = *out
+		case *out != "":
+			target = filepath.Join(*out, strings.TrimSuffix(in.Rel, ".md")+".html")
+		}
+		if calcdoc.SameFile(target, in.Path) {
+			fmt.Fprintf(c.stderr, "%s: refusing to write the sheet over its source\n", in.Path)
+			st = exitUsage
+			continue
+		}
+		if err := os.MkdirAll(filepath.Dir(target), 0o755); err != nil {
+			fmt.Fprintf(c.stderr, "calcdoc: %v\n", err)
+			st = exitError
+			continue
+		}
+		if err := calcdoc.WriteFileAtomic(target, html); err != nil {
+			fmt.Fprintf(c.stderr, "calcdoc: cannot write %s: %v\n", target, err)
+			st = exitError
+			continue
+		}
+		fmt.Fprintf(c.stdout, "%s -> %s: %s\n", in.Path, target, summaryLine(doc))
+		st = status(doc, st)
+	}
+	return st
+}
+
+// summaryLine says how a document evaluated.
+func summaryLine(doc *calcdoc.Document) string {
+	held, failed := 0, 0
+	for _, ch := range doc.Checks {
+		if ch.Result != nil {
+			if ch.Result.Pass {
+				held++
+			} else {
+				failed++
+			}
+		}
+	}
+	s := fmt.Sprintf("%d values, %d checks (%d satisfied, %d not satisfied), %d errors", len(doc.Values), len(doc.Checks), held, failed, len(doc.Errors))
+	if len(doc.Warnings) > 0 {
+		s += fmt.Sprintf(", %d warnings", len(doc.Warnings))
+	}
+	return s
+}
+
+func (c *cli) check(args []string) int {
+	fs := c.flagSet("check")
+	paths, err := parseFlags(fs, args)
+	if err != nil {
+		return exitUsage
+	}
+	if len(paths) == 0 {
+		return c.usageErr("check needs at least one PATH")
+	}
+	inputs, err := calcdoc.Collect(paths)
+	if err != nil {
+		return c.usageErr("%v", err)
+	}
+	st := exitOK
+	for _, in := range inputs {
+		doc, err := calcdoc.Load(in.Path)
+		if err != nil {
+			fmt.Fprintf(c.stderr, "calcdoc: %v\n", err)
+			st = max(st, exitUsage)
+			continue
+		}
+		fmt.Fprintf(c.stdout, "%s: %s\n", doc.Path, summaryLine(doc))
+		for _, ch := range doc.Checks {
+			if ch.Result != nil && !ch.Result.Pass {
+				fmt.Fprintf(c.stdout, "%s:%d: check not satisfied: %s\n", doc.Path, ch.Pos.Line, ch.Text)
+			}
+		}
+		for _, e := range doc.Errors {
+			fmt.Fprintf(c.stdout, "%s:%d:%d: %s\n", doc.Path, e.Pos.Line, e.Pos.Col, e.Msg)
+		}
+		for _, e := range doc.Warnings {
+			fmt.Fprintf(c.stdout, "%s:%d:%d: warning: %s\n", doc.Path, e.Pos.Line, e.Pos.Col, e.Msg)
+		}
+		st = status(doc, st)
+	}
+	return st
+}
+
+func (c *cli) values(args []string) int {
+	fs := c.flagSet("values")
+	paths, err := parseFlags(fs, args)
+	if err != nil {
+		return exitUsage
+	}
+	if len(paths) != 1 {
+		return c.usageErr("values takes exactly one document")
+	}
+	info, err := os.Stat(paths[0])
+	if err != nil {
+		return c.usageErr("%s: no such file", paths[0])
+	}
+	if info.IsDir() || filepath.Ext(paths[0]) != ".md" {
+		return c.usageErr("%s: values takes one .md document, not a folder", paths[0])
+	}
+	doc, err := calcdoc.Load(paths[0])
+	if err != nil {
+		return c.usageErr("%v", err)
+	}
+	c.stdout.Write(doc.MarshalValues())
+	return status(doc, exitOK)
+}

@@ -1,0 +1,180 @@
+package render
+
+import (
+	"strings"
+
+	"calcdoc/calcdoc"
+	"calcdoc/expr"
+)
+
+func init() {
+	RegisterBlock("calc", renderCalc)
+}
+
+// exprML returns a typesetter for a formula (subst false) or its
+// substitution (subst true) in the document's names.
+func (w *Writer) exprML(subst bool, trace expr.Trace) *ExprML {
+	env := w.Doc.Env
+	return &ExprML{
+		Subst: subst, Trace: trace, Digits: w.Digits(),
+		DisplayOf: func(name string) *expr.Display {
+			if b := env.Lookup(name); b != nil {
+				return b.Display
+			}
+			return nil
+		},
+		IsFunc: func(name string) bool { return env.LookupFunc(name) != nil },
+	}
+}
+
+// hasNames reports whether an expression uses any name other than a
+// constant, so that its substitution says something new.
+func hasNames(n expr.Node) bool {
+	found := false
+	expr.Walk(n, func(n expr.Node) bool {
+		switch n := n.(type) {
+		case *expr.Ident:
+			if !isConstant(n.Name) {
+				found = true
+			}
+		case *expr.Call:
+			found = true
+		}
+		return !found
+	})
+	return found
+}
+
+func renderCalc(w *Writer, b *calcdoc.Block) {
+	w.Printf("<div class=\"block calc\" id=\"B%d\">\n", b.Pos.Line)
+	stmts, _ := b.Result.([]*calcdoc.Stmt)
+	for _, st := range stmts {
+		w.Stmt(st)
+	}
+	// errors that belong to no statement
+	for _, e := range b.Errors {
+		if !inStmts(stmts, e) {
+			w.ErrorRow(e)
+		}
+	}
+	w.WriteString("</div>\n")
+}
+
+func inStmts(stmts []*calcdoc.Stmt, e *expr.Error) bool {
+	for _, st := range stmts {
+		for _, x := range st.Errs {
+			if x == e {
+				return true
+			}
+		}
+	}
+	return false
+}
+
+// Stmt writes one statement row: the gutter with its source line, the
+// formula, the substitution and the result, and the description.
+func (w *Writer) Stmt(st *calcdoc.Stmt) {
+	line := st.Stmt.Pos().Line
+	if n, ok := st.Stmt.(*expr.Note); ok {
+		w.Printf("<div class=\"row note\" id=\"L%d\"><div class=\"ln\">%d</div><div class=\"txt\">%s</div></div>\n", line, line, esc(n.Text))
+		return
+	}
+	w.Printf("<div class=\"row\" id=\"L%d\"><div class=\"ln\">%d</div><div class=\"math\">", line, line)
+	res := st.Res
+	ok := len(st.Errs) == 0 && st.Unavailable == nil
+	f := w.exprML(false, nil)
+	s := w.exprML(true, res.Trace)
+	switch x := st.Stmt.(type) {
+	case *expr.Assign:
+		var lhs []string
+		for _, id := range x.Names {
+			lhs = append(lhs, NameML(id.Name))
+		}
+		l := strings.Join(lhs, "<mo>,</mo>")
+		w.Printf("<div class=\"f\">%s</div>", Math(l+"<mo>=</mo>"+f.Node(x.X, false)))
+		if ok && res.Value != nil {
+			if hasNames(x.X) {
+				w.Printf("<div class=\"s\">%s</div>", Math("<mo>=</mo>"+s.Node(x.X, false)))
+			}
+			if len(x.Names) > 1 {
+				w.Printf("<div class=\"r\" data-value=\"%s\" data-line=\"%d\">%s</div>", esc(joinNames(x.Names)), line, Math("<mo>=</mo>"+ValueML(res.Value, x.Display, w.Digits(), false)))
+				if m, isM := res.Value.(*expr.Matrix); isM {
+					for i, id := range x.Names {
+						e := m.E[i]
+						w.Printf("<div class=\"r\" data-value=\"%s\" data-line=\"%d\">%s</div>", esc(id.Name), line, Math(NameML(id.Name)+"<mo>=</mo>"+ValueML(&e, x.Display, w.Digits(), false)))
+					}
+				}
+			} else {
+				w.Printf("<div class=\"r\" data-value=\"%s\" data-line=\"%d\">%s</div>", esc(x.Names[0].Name), line, Math("<mo>=</mo>"+ValueML(res.Value, x.Display, w.Digits(), false)))
+			}
+		}
+	case *expr.FuncDef:
+		var ps []string
+		for _, p := range x.Params {
+			ps = append(ps, NameML(p.Name))
+		}
+		head := "<mi>" + esc(x.Name.Name) + "</mi>"
+		if len([]rune(x.Name.Name)) == 1 || strings.Contains(x.Name.Name, "_") {
+			head = NameML(x.Name.Name)
+		}
+		w.Printf("<div class=\"f\">%s<span class=\"kindtag\">function</span></div>", Math(head+"<mo>(</mo>"+strings.Join(ps, "<mo>,</mo>")+"<mo>)</mo><mo>=</mo>"+f.Node(x.Body, false)))
+	case *expr.Check:
+		w.Printf("<div class=\"f\"><span class=\"kindtag\">check</span> %s</div>", Math(f.Node(x.Cmp, false)))
+		if ok && res.Check != nil {
+			c := res.Check
+			var parts []string
+			for i, v := range c.Values {
+				if i > 0 {
+					parts = append(parts, "<mo>"+opML[x.Cmp.Ops[i-1]]+"</mo>")
+				}
+				parts = append(parts, ValueML(v, nil, w.Digits(), false))
+			}
+			verdict := "<span class=\"verdict pass\">satisfied</span>"
+			if !c.Pass {
+				verdict = "<span class=\"verdict fail\">NOT SATISFIED</span>"
+			}
+			util := ""
+			if c.HasUtil {
+				util = "<span class=\"util\">utilisation " + esc(percent(c.Utilisation)) + " of the limit</span>"
+			}
+			tol := ""
+			for _, op := range x.Cmp.Ops {
+				if op == expr.EQ || op == expr.NE {
+					tol = " <span class=\"tol\">(equal within a relative tolerance of 1e-9)</span>"
+				}
+			}
+			w.Printf("<div class=\"s\" data-check=\"%d\">%s%s%s%s</div>", line, Math(strings.Join(parts, "")), verdict, util, tol)
+		}
+	case *expr.ExprStmt:
+		w.Printf("<div class=\"f\">%s</div>", Math(f.Node(x.X, false)))
+		if ok && res.Value != nil {
+			if hasNames(x.X) {
+				w.Printf("<div class=\"s\">%s</div>", Math("<mo>=</mo>"+s.Node(x.X, false)))
+			}
+			w.Printf("<div class=\"r\" data-value=\"\" data-line=\"%d\">%s</div>", line, Math("<mo>=</mo>"+ValueML(res.Value, x.Display, w.Digits(), false)))
+		}
+	case *expr.BadStmt:
+		w.Printf("<div class=\"f\"><code>%s</code></div>", esc(st.Text))
+	}
+	for _, e := range st.Errs {
+		w.ErrorRow(e)
+	}
+	if st.Unavailable != nil {
+		w.UnavailableRow(st.Unavailable)
+	}
+	w.Printf("</div><div class=\"desc\">%s</div></div>\n", esc(st.Stmt.Desc()))
+}
+
+func joinNames(ids []*expr.Ident) string {
+	var s []string
+	for _, id := range ids {
+		s = append(s, id.Name)
+	}
+	return strings.Join(s, ",")
+}
+
+// percent writes a utilisation as "87.0 %".
+func percent(u float64) string {
+	sh := expr.FormatScalar(expr.Real(u*100), nil, 3)
+	return sh.A + " %"
+}

@@ -1,0 +1,314 @@
+package render
+
+import (
+	"html"
+	"strings"
+
+	"calcdoc/expr"
+)
+
+// greek maps spelled Greek names to their letters.
+var greek = map[string]string{
+	"alpha": "α", "beta": "β", "gamma": "γ", "delta": "δ", "epsilon": "ε", "zeta": "ζ",
+	"eta": "η", "theta": "θ", "iota": "ι", "kappa": "κ", "lambda": "λ", "mu": "μ",
+	"nu": "ν", "xi": "ξ", "pi": "π", "rho": "ρ", "sigma": "σ", "tau": "τ",
+	"upsilon": "υ", "phi": "φ", "chi": "χ", "psi": "ψ", "omega": "ω",
+	"Gamma": "Γ", "Delta": "Δ", "Theta": "Θ", "Lambda": "Λ", "Xi": "Ξ", "Pi": "Π",
+	"Sigma": "Σ", "Phi": "Φ", "Psi": "Ψ", "Omega": "Ω",
+}
+
+func greekOf(s string) string {
+	if g, ok := greek[s]; ok {
+		return g
+	}
+	return s
+}
+
+func esc(s string) string { return html.EscapeString(s) }
+
+// NameML typesets a name: the first "_" starts a subscript, spelled Greek
+// names become letters.
+func NameML(name string) string {
+	base, sub, hasSub := strings.Cut(name, "_")
+	b := "<mi>" + esc(greekOf(base)) + "</mi>"
+	if !hasSub || sub == "" {
+		return b
+	}
+	parts := strings.Split(sub, "_")
+	for i, p := range parts {
+		parts[i] = greekOf(p)
+	}
+	return "<msub>" + b + "<mi>" + esc(strings.Join(parts, ",")) + "</mi></msub>"
+}
+
+// NameHTML writes a name as HTML text with a <sub> subscript.
+func NameHTML(name string) string {
+	base, sub, hasSub := strings.Cut(name, "_")
+	b := esc(greekOf(base))
+	if !hasSub || sub == "" {
+		return "<var>" + b + "</var>"
+	}
+	parts := strings.Split(sub, "_")
+	for i, p := range parts {
+		parts[i] = greekOf(p)
+	}
+	return "<var>" + b + "<sub>" + esc(strings.Join(parts, ",")) + "</sub></var>"
+}
+
+// numML typesets a number written by the formatter: "-" becomes a minus
+// sign and "1.2e-5" becomes 1.2×10⁻⁵.
+func numML(s string) string {
+	neg := strings.HasPrefix(s, "-")
+	if neg {
+		s = s[1:]
+	}
+	var out string
+	if m, e, ok := strings.Cut(s, "e"); ok {
+		e = strings.Replace(e, "-", "−", 1)
+		out = "<mn>" + esc(m) + "</mn><mo>×</mo><msup><mn>10</mn><mn>" + esc(e) + "</mn></msup>"
+	} else {
+		out = "<mn>" + esc(s) + "</mn>"
+	}
+	if neg {
+		// the sign belongs to the number: no operator spacing
+		return strings.Replace(out, "<mn>", "<mn>−", 1)
+	}
+	return out
+}
+
+// unitText writes a unit for display: "mm^2" becomes "mm²", "*" becomes "·".
+func unitText(u string) string {
+	r := strings.NewReplacer("^2", "²", "^3", "³", "^-1", "⁻¹", "^-2", "⁻²", "^-3", "⁻³", "*", "·", "u", "u")
+	u = r.Replace(u)
+	// an ASCII "u" prefix reads as µ
+	if len(u) > 1 && u[0] == 'u' && u != "unit" {
+		u = "µ" + u[1:]
+	}
+	return u
+}
+
+func unitML(u string) string {
+	if u == "" {
+		return ""
+	}
+	if u == "°" {
+		return "<mo>°</mo>"
+	}
+	return "<mspace width=\"0.25em\"/><mi mathvariant=\"normal\">" + esc(unitText(u)) + "</mi>"
+}
+
+// ShownML typesets a shown value. paren wraps a rectangular value with a
+// unit, or a polar one, in parentheses (inside a larger formula).
+func ShownML(s expr.Shown, paren bool) string {
+	var num string
+	switch s.Kind {
+	case expr.ShownReal:
+		num = numML(s.A)
+	case expr.ShownPolar:
+		num = numML(s.A) + "<mo>∠</mo>" + numML(s.B) + "<mo>°</mo>"
+	case expr.ShownRect:
+		im := s.B
+		op := "+"
+		if strings.HasPrefix(im, "-") {
+			op, im = "−", im[1:]
+		}
+		if s.A == "" {
+			if op == "−" {
+				num = "<mo>−</mo>"
+			}
+			num += "<mi>j</mi>" + numML(im)
+		} else {
+			num = numML(s.A) + "<mo>" + op + "</mo><mi>j</mi>" + numML(im)
+		}
+		if s.Unit != "" && s.A != "" {
+			num = "<mo>(</mo>" + num + "<mo>)</mo>"
+		}
+	}
+	out := num + unitML(s.Unit)
+	if paren && (s.Kind == expr.ShownPolar || s.Kind == expr.ShownRect && (s.A != "" && s.Unit == "" || s.A == "") || s.Kind == expr.ShownReal && strings.HasPrefix(s.A, "-")) {
+		out = "<mo>(</mo>" + out + "<mo>)</mo>"
+	}
+	return "<mrow>" + out + "</mrow>"
+}
+
+// ValueML typesets any value: a scalar, or a matrix as a bracketed grid.
+func ValueML(v expr.Value, d *expr.Display, digits int, paren bool) string {
+	switch x := v.(type) {
+	case *expr.Scalar:
+		return ShownML(expr.FormatScalar(x, d, digits), paren)
+	case *expr.Matrix:
+		var b strings.Builder
+		b.WriteString("<mrow><mo>[</mo><mtable>")
+		for i := 0; i < x.Rows; i++ {
+			b.WriteString("<mtr>")
+			for j := 0; j < x.Cols; j++ {
+				e := x.At(i, j)
+				b.WriteString("<mtd>" + ShownML(expr.FormatScalar(&e, d, digits), false) + "</mtd>")
+			}
+			b.WriteString("</mtr>")
+		}
+		b.WriteString("</mtable><mo>]</mo></mrow>")
+		return b.String()
+	}
+	return ""
+}
+
+// Math wraps MathML content in a <math> element.
+func Math(content string) string {
+	return "<math display=\"inline\"><mrow>" + content + "</mrow></math>"
+}
+
+// ExprML typesets expression trees, either as written (the formula) or with
+// every name replaced by its value (the substitution).
+type ExprML struct {
+	Subst  bool
+	Trace  expr.Trace
+	Digits int
+	// DisplayOf returns how a name's value is shown (its definition's
+	// display bracket), or nil.
+	DisplayOf func(name string) *expr.Display
+	// IsFunc reports whether a name is a user function (not a matrix value).
+	IsFunc func(name string) bool
+}
+
+var opML = map[expr.Kind]string{
+	expr.ADD: "+", expr.SUB: "−", expr.MUL: "·", expr.PAR: "∥", expr.ANGLE: "∠",
+	expr.LT: "&lt;", expr.LE: "≤", expr.GT: "&gt;", expr.GE: "≥", expr.EQ: "=", expr.NE: "≠",
+}
+
+// Node typesets n. paren asks a substituted value to wrap itself when it
+// is complex or negative (it stands inside a product, a power, ...).
+func (m *ExprML) Node(n expr.Node, paren bool) string {
+	switch n := n.(type) {
+	case *expr.Number:
+		if n.Imag {
+			return "<mi>j</mi><mn>" + esc(strings.TrimPrefix(n.Text, "j")) + "</mn>"
+		}
+		return numLiteral(n.Text)
+	case *expr.Ident:
+		if m.Subst {
+			if v, ok := m.Trace[n]; ok && !isConstant(n.Name) {
+				var d *expr.Display
+				if m.DisplayOf != nil {
+					d = m.DisplayOf(n.Name)
+				}
+				return ValueML(v, d, m.Digits, paren)
+			}
+		}
+		if n.Name == "pi" {
+			return "<mi>π</mi>"
+		}
+		return NameML(n.Name)
+	case *expr.WithUnit:
+		return "<mrow>" + m.Node(n.X, true) + unitML(n.Unit.Text) + "</mrow>"
+	case *expr.Unary:
+		op := "−"
+		if n.Op == expr.ADD {
+			op = "+"
+		}
+		return "<mrow><mo>" + op + "</mo>" + m.Node(n.X, true) + "</mrow>"
+	case *expr.Paren:
+		return "<mrow><mo>(</mo>" + m.Node(n.X, false) + "<mo>)</mo></mrow>"
+	case *expr.Abs:
+		return "<mrow><mo>|</mo>" + m.Node(n.X, false) + "<mo>|</mo></mrow>"
+	case *expr.Binary:
+		switch n.Op {
+		case expr.DIV:
+			return "<mfrac>" + m.Node(unparen(n.X), false) + m.Node(unparen(n.Y), false) + "</mfrac>"
+		case expr.POW:
+			return "<msup>" + m.Node(n.X, true) + m.Node(unparen(n.Y), false) + "</msup>"
+		case expr.ADD, expr.SUB:
+			return "<mrow>" + m.Node(n.X, false) + "<mo>" + opML[n.Op] + "</mo>" + m.Node(n.Y, true) + "</mrow>"
+		}
+		return "<mrow>" + m.Node(n.X, true) + "<mo>" + opML[n.Op] + "</mo>" + m.Node(n.Y, true) + "</mrow>"
+	case *expr.Call:
+		return m.call(n, paren)
+	case *expr.MatrixLit:
+		var b strings.Builder
+		b.WriteString("<mrow><mo>[</mo><mtable>")
+		for _, row := range n.Rows {
+			b.WriteString("<mtr>")
+			for _, e := range row {
+				b.WriteString("<mtd>" + m.Node(e, false) + "</mtd>")
+			}
+			b.WriteString("</mtr>")
+		}
+		b.WriteString("</mtable><mo>]</mo></mrow>")
+		return b.String()
+	case *expr.Compare:
+		var b strings.Builder
+		b.WriteString("<mrow>")
+		for i, x := range n.X {
+			if i > 0 {
+				b.WriteString("<mo>" + opML[n.Ops[i-1]] + "</mo>")
+			}
+			b.WriteString(m.Node(x, false))
+		}
+		b.WriteString("</mrow>")
+		return b.String()
+	}
+	return "<merror><mtext>?</mtext></merror>"
+}
+
+func isConstant(name string) bool { return name == "pi" || name == "π" || name == "j" }
+
+func unparen(n expr.Node) expr.Node {
+	if p, ok := n.(*expr.Paren); ok {
+		return p.X
+	}
+	return n
+}
+
+func numLiteral(text string) string {
+	if m, e, ok := strings.Cut(strings.ToLower(text), "e"); ok {
+		e = strings.TrimPrefix(e, "+")
+		e = strings.Replace(e, "-", "−", 1)
+		return "<mrow><mn>" + esc(m) + "</mn><mo>×</mo><msup><mn>10</mn><mn>" + esc(e) + "</mn></msup></mrow>"
+	}
+	return "<mn>" + esc(text) + "</mn>"
+}
+
+func (m *ExprML) call(n *expr.Call, paren bool) string {
+	args := make([]string, len(n.Args))
+	for i, a := range n.Args {
+		args[i] = m.Node(a, false)
+	}
+	switch n.Fun.Name {
+	case "sqrt":
+		if len(args) == 1 {
+			return "<msqrt>" + args[0] + "</msqrt>"
+		}
+	case "conj":
+		if len(args) == 1 {
+			return "<msup>" + m.Node(n.Args[0], true) + "<mo>*</mo></msup>"
+		}
+	case "abs":
+		if len(args) == 1 {
+			return "<mrow><mo>|</mo>" + args[0] + "<mo>|</mo></mrow>"
+		}
+	}
+	var b strings.Builder
+	b.WriteString("<mrow>")
+	if m.Subst && !expr.IsBuiltin(n.Fun.Name) && (m.IsFunc == nil || !m.IsFunc(n.Fun.Name)) {
+		// an entry of a matrix value M(i, j) shows the picked value
+		if v, ok := m.Trace[n]; ok {
+			return ValueML(v, nil, m.Digits, paren)
+		}
+	}
+	name := n.Fun.Name
+	if strings.Contains(name, "_") || len([]rune(name)) == 1 {
+		b.WriteString(NameML(name))
+	} else {
+		b.WriteString("<mi>" + esc(name) + "</mi>")
+	}
+	b.WriteString("<mo>(</mo>")
+	for i, a := range args {
+		if i > 0 {
+			b.WriteString("<mo>,</mo>")
+		}
+		b.WriteString(a)
+	}
+	b.WriteString("<mo>)</mo></mrow>")
+	return b.String()
+}
+

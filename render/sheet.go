@@ -1,0 +1,420 @@
+// Package render writes a calculation sheet: one self-contained HTML file
+// per document, with inline CSS, no outside resource and no script. Prose
+// is rendered by goldmark; evaluated blocks are drawn by the renderer
+// registered for their kind (RegisterBlock), as goldmark renders by node
+// kind.
+package render
+
+import (
+	"bytes"
+	"fmt"
+	"sort"
+	"strings"
+
+	"calcdoc/calcdoc"
+	"calcdoc/expr"
+
+	"github.com/yuin/goldmark/ast"
+	"github.com/yuin/goldmark/extension"
+	"github.com/yuin/goldmark/renderer"
+	ghtml "github.com/yuin/goldmark/renderer/html"
+	"github.com/yuin/goldmark/util"
+)
+
+// Caution is printed on every sheet.
+const Caution = "Caution: these results are produced by software from the inputs shown. " +
+	"They must be checked by a competent person before use, and the design must follow the " +
+	"local codes and the licensed practice that apply where it is built."
+
+// Options change what a sheet carries beyond the document itself.
+type Options struct {
+	Version string // calcdoc's version, for the stamp
+	// Stamp, when not nil, is written into the sheet (source hash, commit,
+	// state); see stamp.go.
+	Stamp *StampInfo
+	// EmbedSource carries the source in the sheet, inert and escaped, so
+	// that verify can re-evaluate it.
+	EmbedSource bool
+	// HeadExtra is raw HTML added at the end of <head> (the live preview's
+	// reload script); built files leave it empty.
+	HeadExtra string
+}
+
+// BlockRenderer draws one evaluated block into w.
+type BlockRenderer func(w *Writer, b *calcdoc.Block)
+
+var blockRenderers = map[string]BlockRenderer{}
+
+// RegisterBlock makes blocks of a kind draw with fn.
+func RegisterBlock(kind string, fn BlockRenderer) {
+	if _, dup := blockRenderers[kind]; dup {
+		panic("render: block kind " + kind + " registered twice")
+	}
+	blockRenderers[kind] = fn
+}
+
+// Writer is what block renderers write into: the page buffer and the
+// document being drawn.
+type Writer struct {
+	bytes.Buffer
+	Doc *calcdoc.Document
+	// Appendix collects sections drawn at the end of the sheet (large
+	// matrices of a solve block).
+	Appendix bytes.Buffer
+}
+
+// Digits is the number of significant figures of the document.
+func (w *Writer) Digits() int { return w.Doc.Digits() }
+
+// Printf writes formatted text.
+func (w *Writer) Printf(format string, args ...any) { fmt.Fprintf(&w.Buffer, format, args...) }
+
+// ErrorRow writes an error in place: its position and message, on screen
+// and in print, marked by words (not colour alone).
+func (w *Writer) ErrorRow(e *expr.Error) {
+	w.Printf("<div class=\"err\" role=\"alert\"><span class=\"tag\">ERROR</span> <span class=\"at\">line %d, col %d:</span> %s</div>\n", e.Pos.Line, e.Pos.Col, esc(e.Msg))
+}
+
+// UnavailableRow writes the note of a line that could not be evaluated
+// because it uses a name whose definition failed.
+func (w *Writer) UnavailableRow(u *expr.UnavailableError) {
+	w.Printf("<div class=\"na\"><span class=\"tag\">NOT EVALUATED</span> uses %s, which has no value because its definition at line %d failed</div>\n", NameHTML(u.Name), u.Def.Line)
+}
+
+// Sheet writes the HTML sheet of a document.
+func Sheet(doc *calcdoc.Document, opt Options) ([]byte, error) {
+	w := &Writer{Doc: doc}
+	fm := doc.Front
+	title := fm.Title
+	if title == "" {
+		title = baseName(doc.Path)
+	}
+	w.WriteString("<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n")
+	w.Printf("<meta name=\"generator\" content=\"calcdoc %s\">\n", esc(opt.Version))
+	w.Printf("<title>%s</title>\n", esc(sheetTitle(fm, title)))
+	w.WriteString("<style>\n")
+	w.WriteString(css)
+	w.WriteString(pageCSS(fm, opt))
+	w.WriteString("</style>\n")
+	w.WriteString(opt.HeadExtra)
+	w.WriteString("</head>\n<body>\n")
+	if m := markerText(doc, opt); m != "" {
+		w.Printf("<div class=\"marker\" aria-hidden=\"true\"><span>%s</span></div>\n", esc(m))
+		w.Printf("<p class=\"marker-text\">%s</p>\n", esc(m))
+	}
+	titleBlock(w, fm, title, opt)
+	summary(w, doc)
+	w.WriteString("<main class=\"body\">\n")
+	if err := prose(w, doc); err != nil {
+		return nil, err
+	}
+	w.WriteString("</main>\n")
+	if w.Appendix.Len() > 0 {
+		w.WriteString("<section class=\"appendix\">\n<h2>Appendix: working of large equation sets</h2>\n")
+		w.Write(w.Appendix.Bytes())
+		w.WriteString("</section>\n")
+	}
+	if opt.Stamp != nil {
+		stampSection(w, doc, opt)
+	}
+	w.Printf("<footer class=\"caution\"><p>%s</p></footer>\n", esc(Caution))
+	if opt.EmbedSource {
+		embedSource(w, doc)
+	}
+	w.WriteString("</body>\n</html>\n")
+	return w.Bytes(), nil
+}
+
+func sheetTitle(fm calcdoc.FrontMatter, title string) string {
+	if fm.Number != "" {
+		return fm.Number + " " + title
+	}
+	return title
+}
+
+func baseName(p string) string {
+	if i := strings.LastIndexAny(p, "/\\"); i >= 0 {
+		p = p[i+1:]
+	}
+	return strings.TrimSuffix(p, ".md")
+}
+
+// cssString quotes s as a CSS string.
+func cssString(s string) string {
+	var b strings.Builder
+	b.WriteByte('"')
+	for _, r := range s {
+		switch {
+		case r == '"' || r == '\\':
+			b.WriteString(fmt.Sprintf("\\%x ", r))
+		case r < 0x20 || r == 0x7f || r == '<' || r == '>':
+			b.WriteString(fmt.Sprintf("\\%x ", r))
+		default:
+			b.WriteRune(r)
+		}
+	}
+	b.WriteByte('"')
+	return b.String()
+}
+
+// pageCSS is the @page rule: paper size and the margin boxes that put the
+// document number, revision and "page N of M" on every printed page.
+func pageCSS(fm calcdoc.FrontMatter, opt Options) string {
+	size := "A4"
+	if fm.Paper == "letter" {
+		size = "letter"
+	}
+	left := fm.Number
+	if left == "" {
+		left = "unnumbered"
+	}
+	if fm.Revision != "" {
+		left += " rev " + fm.Revision
+	}
+	center := ""
+	if opt.Stamp != nil && opt.Stamp.SHA256 != "" {
+		center = "source sha256 " + opt.Stamp.SHA256[:12]
+	}
+	return fmt.Sprintf(`@page {
+  size: %s;
+  margin: 16mm 14mm 18mm 14mm;
+  @bottom-left { content: %s; font: 8pt sans-serif; }
+  @bottom-center { content: %s; font: 7pt monospace; }
+  @bottom-right { content: "page " counter(page) " of " counter(pages); font: 8pt sans-serif; }
+}
+`, size, cssString(left), cssString(center))
+}
+
+func field(w *Writer, label, value string) {
+	if value == "" {
+		value = "—"
+	}
+	w.Printf("<td><span class=\"lbl\">%s</span><span class=\"val\">%s</span></td>", esc(label), esc(value))
+}
+
+func titleBlock(w *Writer, fm calcdoc.FrontMatter, title string, opt Options) {
+	w.WriteString("<header class=\"tb\">\n<table class=\"tb\">\n")
+	w.WriteString("<tr>")
+	field(w, "Project", fm.Project)
+	field(w, "Client", fm.Client)
+	field(w, "Document no.", fm.Number)
+	field(w, "Revision", fm.Revision)
+	w.WriteString("</tr>\n<tr class=\"tbtitle\">")
+	w.Printf("<td colspan=\"3\"><span class=\"lbl\">Title</span><span class=\"val title\">%s</span></td>", esc(title))
+	field(w, "Date", fm.Date)
+	w.WriteString("</tr>\n<tr>")
+	field(w, "Prepared", fm.Prepared)
+	field(w, "Checked", fm.Checked)
+	field(w, "Approved", fm.Approved)
+	ph := "RMS values"
+	if fm.Phasors == "peak" {
+		ph = "peak values"
+	}
+	field(w, "Phasors", ph)
+	w.WriteString("</tr>\n</table>\n")
+	if len(fm.Revisions) > 0 {
+		w.WriteString("<table class=\"revs\"><caption>Revision history</caption>\n<tr><th>Rev</th><th>Date</th><th>By</th><th>Description</th></tr>\n")
+		for _, r := range fm.Revisions {
+			w.Printf("<tr><td>%s</td><td>%s</td><td>%s</td><td>%s</td></tr>\n", esc(r.Rev), esc(r.Date), esc(r.By), esc(r.Note))
+		}
+		w.WriteString("</table>\n")
+	}
+	w.WriteString("</header>\n")
+}
+
+// summary states at the top whether the sheet evaluated, how many checks
+// hold, and lists every error and warning with its position.
+func summary(w *Writer, doc *calcdoc.Document) {
+	failed := doc.FailedChecks()
+	held := 0
+	for _, c := range doc.Checks {
+		if c.Result != nil && c.Result.Pass {
+			held++
+		}
+	}
+	notEval := len(doc.Checks) - held - failed
+	state := "Evaluated without errors."
+	if len(doc.Errors) > 0 {
+		state = fmt.Sprintf("%d error%s: the sheet is incomplete.", len(doc.Errors), plural(len(doc.Errors)))
+	}
+	w.Printf("<section class=\"summary\"><p><strong>%s</strong> Checks: %d satisfied, %d not satisfied", esc(state), held, failed)
+	if notEval > 0 {
+		w.Printf(", %d not evaluated", notEval)
+	}
+	w.WriteString(".</p>\n")
+	if len(doc.Errors) > 0 {
+		w.WriteString("<ol class=\"errlist\">\n")
+		for _, e := range doc.Errors {
+			w.Printf("<li><a href=\"#L%d\">line %d, col %d</a>: %s</li>\n", e.Pos.Line, e.Pos.Line, e.Pos.Col, esc(e.Msg))
+		}
+		w.WriteString("</ol>\n")
+	}
+	if len(doc.Warnings) > 0 {
+		w.WriteString("<ul class=\"warnlist\">\n")
+		for _, e := range doc.Warnings {
+			w.Printf("<li>warning, line %d: %s</li>\n", e.Pos.Line, esc(e.Msg))
+		}
+		w.WriteString("</ul>\n")
+	}
+	w.WriteString("</section>\n")
+}
+
+func plural(n int) string {
+	if n == 1 {
+		return ""
+	}
+	return "s"
+}
+
+// prose renders the Markdown body with goldmark, drawing evaluated blocks
+// and inline values through calcdoc's node renderers.
+func prose(w *Writer, doc *calcdoc.Document) error {
+	r := renderer.NewRenderer(renderer.WithNodeRenderers(
+		util.Prioritized(ghtml.NewRenderer(), 1000),
+		util.Prioritized(extension.NewTableHTMLRenderer(), 500),
+		util.Prioritized(extension.NewStrikethroughHTMLRenderer(), 500),
+		util.Prioritized(&nodes{w: w}, 100),
+	))
+	return r.Render(&w.Buffer, doc.Text, doc.Markdown)
+}
+
+// nodes renders the node kinds calcdoc changes: evaluated fenced blocks,
+// inline values, raw HTML (shown as text) and images (not loaded).
+type nodes struct{ w *Writer }
+
+func (n *nodes) RegisterFuncs(reg renderer.NodeRendererFuncRegisterer) {
+	reg.Register(ast.KindFencedCodeBlock, n.fenced)
+	reg.Register(ast.KindCodeSpan, n.codeSpan)
+	reg.Register(ast.KindRawHTML, n.rawHTML)
+	reg.Register(ast.KindHTMLBlock, n.htmlBlock)
+	reg.Register(ast.KindImage, n.image)
+}
+
+func (n *nodes) fenced(out util.BufWriter, src []byte, node ast.Node, entering bool) (ast.WalkStatus, error) {
+	// what goldmark has buffered goes first, so the page keeps its order
+	out.Flush()
+	if !entering {
+		return ast.WalkSkipChildren, nil
+	}
+	w := n.w
+	if b := w.Doc.BlockFor(node); b != nil {
+		if fn := blockRenderers[b.Kind]; fn != nil {
+			fn(w, b)
+			return ast.WalkSkipChildren, nil
+		}
+	}
+	fc := node.(*ast.FencedCodeBlock)
+	lang := ""
+	if fc.Info != nil {
+		lang = strings.Fields(string(fc.Info.Segment.Value(src)) + " ")[0]
+	}
+	w.WriteString("<pre class=\"code\"")
+	if lang != "" {
+		w.Printf(" data-lang=\"%s\"", esc(lang))
+	}
+	w.WriteString("><code>")
+	lines := fc.Lines()
+	for i := 0; i < lines.Len(); i++ {
+		seg := lines.At(i)
+		w.WriteString(esc(string(seg.Value(src))))
+	}
+	w.WriteString("</code></pre>\n")
+	return ast.WalkSkipChildren, nil
+}
+
+func (n *nodes) codeSpan(out util.BufWriter, src []byte, node ast.Node, entering bool) (ast.WalkStatus, error) {
+	// what goldmark has buffered goes first, so the page keeps its order
+	out.Flush()
+	if !entering {
+		return ast.WalkSkipChildren, nil
+	}
+	w := n.w
+	if in := w.Doc.InlineFor(node); in != nil {
+		switch {
+		case in.Err != nil:
+			msg := in.Err.Error()
+			if u, ok := in.Err.(*expr.UnavailableError); ok {
+				msg = fmt.Sprintf("%s has no value (its definition at line %d failed)", u.Name, u.Def.Line)
+			}
+			w.Printf("<span class=\"inl-err\" id=\"L%d\">[ERROR: %s]</span>", in.Pos.Line, esc(msg))
+		default:
+			w.Printf("<span class=\"inl\" title=\"%s\">%s</span>", esc(in.Text), Math(ValueML(in.Value, displayFor(w.Doc, in.Display, in.Text), w.Digits(), false)))
+		}
+		return ast.WalkSkipChildren, nil
+	}
+	w.WriteString("<code>")
+	for c := node.FirstChild(); c != nil; c = c.NextSibling() {
+		if t, ok := c.(*ast.Text); ok {
+			w.WriteString(esc(string(t.Segment.Value(src))))
+		}
+	}
+	w.WriteString("</code>")
+	return ast.WalkSkipChildren, nil
+}
+
+// displayFor is the display of an inline value: its own bracket, else the
+// display of the name it shows, when it is a bare name.
+func displayFor(doc *calcdoc.Document, d *expr.Display, text string) *expr.Display {
+	if d != nil {
+		return d
+	}
+	if b := doc.Env.Lookup(strings.TrimSpace(text)); b != nil {
+		return b.Display
+	}
+	return nil
+}
+
+func (n *nodes) rawHTML(out util.BufWriter, src []byte, node ast.Node, entering bool) (ast.WalkStatus, error) {
+	// what goldmark has buffered goes first, so the page keeps its order
+	out.Flush()
+	if entering {
+		raw := node.(*ast.RawHTML)
+		for i := 0; i < raw.Segments.Len(); i++ {
+			seg := raw.Segments.At(i)
+			n.w.Printf("<code class=\"rawhtml\">%s</code>", esc(string(seg.Value(src))))
+		}
+	}
+	return ast.WalkSkipChildren, nil
+}
+
+func (n *nodes) htmlBlock(out util.BufWriter, src []byte, node ast.Node, entering bool) (ast.WalkStatus, error) {
+	// what goldmark has buffered goes first, so the page keeps its order
+	out.Flush()
+	if entering {
+		hb := node.(*ast.HTMLBlock)
+		n.w.WriteString("<pre class=\"rawhtml\">")
+		lines := hb.Lines()
+		for i := 0; i < lines.Len(); i++ {
+			seg := lines.At(i)
+			n.w.WriteString(esc(string(seg.Value(src))))
+		}
+		if hb.HasClosure() {
+			n.w.WriteString(esc(string(hb.ClosureLine.Value(src))))
+		}
+		n.w.WriteString("</pre>\n")
+	}
+	return ast.WalkSkipChildren, nil
+}
+
+// image shows an image reference as text: a sheet loads nothing from
+// outside itself.
+func (n *nodes) image(out util.BufWriter, src []byte, node ast.Node, entering bool) (ast.WalkStatus, error) {
+	// what goldmark has buffered goes first, so the page keeps its order
+	out.Flush()
+	if entering {
+		img := node.(*ast.Image)
+		alt := string(img.Text(src)) //nolint:staticcheck // the alt text
+		n.w.Printf("<span class=\"imgref\">[figure: %s (%s), not embedded]</span>", esc(alt), esc(string(img.Destination)))
+	}
+	return ast.WalkSkipChildren, nil
+}
+
+// sortedKeys returns the keys of a map in order.
+func sortedKeys[M ~map[string]V, V any](m M) []string {
+	out := make([]string, 0, len(m))
+	for k := range m {
+		out = append(out, k)
+	}
+	sort.Strings(out)
+	return out
+}
