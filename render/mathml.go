@@ -311,4 +311,3 @@ func (m *ExprML) call(n *expr.Call, paren bool) string {
 	b.WriteString("<mo>)</mo></mrow>")
 	return b.String()
 }
-
