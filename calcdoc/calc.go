@@ -88,7 +88,11 @@ func EvalStatements(b *Block, stmts []expr.Stmt, errs expr.ErrorList) []*Stmt {
 		case *expr.Assign:
 			if st.Res.Value != nil {
 				if len(s.Names) == 1 {
-					b.AddValue(&NamedValue{Name: s.Names[0].Name, Pos: s.Names[0].Pos(), Value: st.Res.Value, Display: s.Display})
+					disp := s.Display
+					if bd := b.Env().Lookup(s.Names[0].Name); bd != nil && bd.Value == st.Res.Value {
+						disp = bd.Display // includes the unit a literal is written in
+					}
+					b.AddValue(&NamedValue{Name: s.Names[0].Name, Pos: s.Names[0].Pos(), Value: st.Res.Value, Display: disp})
 				} else if m, ok := st.Res.Value.(*expr.Matrix); ok && len(m.E) == len(s.Names) {
 					for i, id := range s.Names {
 						e := m.E[i]

@@ -134,7 +134,14 @@ func (e *Env) Exec(s Stmt) *Result {
 		if err := CheckDisplay(v, s.Display); err != nil {
 			r.Err = Errorf(s.Display.P, "%s: %s", s.Names[0].Name, err.Error())
 		}
-		e.Define(&Binding{Name: s.Names[0].Name, Value: v, Pos: s.Names[0].P, Display: s.Display})
+		disp := s.Display
+		if disp == nil {
+			// a value written as a literal is shown in the unit it is written in
+			if u := LiteralUnit(s.X); u != nil {
+				disp = &Display{Text: u.Text, Unit: u}
+			}
+		}
+		e.Define(&Binding{Name: s.Names[0].Name, Value: v, Pos: s.Names[0].P, Display: disp})
 	case *FuncDef:
 		if err := e.CanDefine(s.Name.Name, s.Name.P); err != nil {
 			r.Err = err
@@ -273,4 +280,40 @@ func (r *Result) String() string {
 		return FormatValue(r.Value, nil, 4)
 	}
 	return ""
+}
+
+// LiteralUnit returns the unit of an expression that is a number written
+// with a unit ("1.15 Ω/km", "-40 kV", "230 V∠-120°", "(0.12 + j0.08) Ω"),
+// or nil. Angle units and per-unit/percent are not returned: those values
+// are shown by their own rules.
+func LiteralUnit(n Node) *Unit {
+	switch n := n.(type) {
+	case *Unary:
+		return LiteralUnit(n.X)
+	case *Paren:
+		return LiteralUnit(n.X)
+	case *Binary:
+		if n.Op == ANGLE && isNumeric(n.Y) {
+			return LiteralUnit(n.X)
+		}
+	case *WithUnit:
+		if n.Unit.Angle || n.Unit.Dim.IsZero() || !isNumeric(n.X) {
+			return nil
+		}
+		return n.Unit
+	}
+	return nil
+}
+
+// isNumeric reports whether n uses no name: numbers, units and operators only.
+func isNumeric(n Node) bool {
+	ok := true
+	Walk(n, func(n Node) bool {
+		switch n.(type) {
+		case *Ident, *Call, *MatrixLit:
+			ok = false
+		}
+		return ok
+	})
+	return ok
 }

@@ -94,6 +94,7 @@ func FormatValue(v Value, d *Display, digits int) string {
 	case *Scalar:
 		return FormatScalar(x, d, digits).String()
 	case *Matrix:
+		x = DisplayMatrix(x)
 		var b strings.Builder
 		b.WriteByte('[')
 		for i := 0; i < x.Rows; i++ {
@@ -181,8 +182,13 @@ func FormatScalar(s *Scalar, d *Display, digits int) Shown {
 		mag = math.Max(math.Abs(real(z)), math.Abs(imag(z)))
 	}
 	if auto && prefixable && mag != 0 && !math.IsInf(mag, 0) {
-		pf, f := choosePrefix(roundSig(mag, digits), pow)
-		if pf != "" || f != 1 {
+		rm := roundSig(mag, digits)
+		pf, f := choosePrefix(rm, pow)
+		// Only a prefix that brings the number into [1, 1000) (for a unit
+		// raised to pow, [1, 1000^pow)) is used: below pico and above tera
+		// the value is shown in the base unit in exponent form, never as
+		// "0.1000 pF" or "1.000e8 TV".
+		if r := rm / f; (pf != "" || f != 1) && r >= 1-1e-12 && r < math.Pow(1000, float64(pow)) {
 			unit = pf + base
 			z /= complex(f, 0)
 			mag /= f
@@ -331,4 +337,29 @@ func fmtAngle(deg float64, n int) string {
 		s = s[1:]
 	}
 	return s
+}
+
+// DisplayMatrix returns m with every entry whose magnitude is below 1e-12
+// of the largest entry of the same dimension set to zero: rounding residue
+// of a matrix product (such as the off-diagonal terms of a transformed
+// symmetric matrix) is shown as 0, not as 4.441e-16. The values themselves
+// are not changed.
+func DisplayMatrix(m *Matrix) *Matrix {
+	big := map[Dim]float64{}
+	for _, e := range m.E {
+		big[e.Dim] = math.Max(big[e.Dim], cmplx.Abs(e.Z))
+	}
+	out := &Matrix{Rows: m.Rows, Cols: m.Cols, E: append([]Scalar(nil), m.E...)}
+	for i, e := range out.E {
+		tol := 1e-12 * big[e.Dim]
+		re, im := real(e.Z), imag(e.Z)
+		if math.Abs(re) < tol {
+			re = 0
+		}
+		if math.Abs(im) < tol {
+			im = 0
+		}
+		out.E[i].Z = complex(re, im)
+	}
+	return out
 }

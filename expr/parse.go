@@ -212,7 +212,7 @@ func (p *parser) guessNames() []*Ident {
 		return nil
 	}
 	lhs := p.toks[:k]
-	if len(lhs) > 1 && lhs[1].Kind == LBRACK {
+	if len(lhs) > 1 && lhs[1].Kind == DISPLAY {
 		return []*Ident{p.ident(lhs[0])}
 	}
 	var out []*Ident
@@ -308,12 +308,14 @@ func (p *parser) assignment(eq int, sp span, d desc) Stmt {
 	switch {
 	case len(lhs) == 1:
 		return &Assign{span: sp, desc: d, Names: []*Ident{p.ident(lhs[0])}, X: parseRHS()}
-	case lhs[1].Kind == LBRACK:
-		if lhs[len(lhs)-1].Kind != RBRACK {
-			p.fail(lhs[1].Off, "a display bracket must close before \"=\": write name[unit] = ...")
+	case lhs[1].Kind == DISPLAY:
+		if len(lhs) != 2 {
+			p.fail(lhs[2].Off, "unexpected %q after the display bracket: write name[unit] = ...", lhs[2].Text)
 		}
-		disp := p.display(lhs[1], lhs[len(lhs)-1])
+		disp := p.display(lhs[1])
 		return &Assign{span: sp, desc: d, Names: []*Ident{p.ident(lhs[0])}, Display: disp, X: parseRHS()}
+	case lhs[1].Kind == LBRACK:
+		p.fail(lhs[1].Off, "an unclosed display bracket: write name[unit] = ... with the \"]\" on the same line")
 	case lhs[1].Kind == LPAREN:
 		fd := &FuncDef{span: sp, desc: d, Name: p.ident(lhs[0])}
 		i := 2
@@ -357,14 +359,13 @@ func (p *parser) assignment(eq int, sp span, d desc) Stmt {
 	return nil
 }
 
-// display parses the text between "[" and "]" as "unit", "form" or "unit form".
-func (p *parser) display(lb, rb Token) *Display {
-	text := strings.TrimSpace(p.src.Text[lb.End:rb.Off])
-	d, err := ParseDisplay(text)
+// display parses a display bracket's text as "unit", "form" or "unit form".
+func (p *parser) display(t Token) *Display {
+	d, err := ParseDisplay(t.Text)
 	if err != nil {
-		p.fail(lb.End, "%s", err.Error())
+		p.fail(t.Off+1, "%s", err.Error())
 	}
-	d.span = span{p.pos(lb.Off), p.pos(rb.End)}
+	d.span = span{p.pos(t.Off), p.pos(t.End)}
 	return d
 }
 
@@ -405,9 +406,9 @@ func (p *parser) exprWithDisplay() (x Node, d *Display, ok bool) {
 		}
 	}()
 	x = p.expr()
-	if p.i < len(p.toks) && p.toks[p.i].Kind == LBRACK && p.toks[len(p.toks)-1].Kind == RBRACK {
-		d = p.display(p.toks[p.i], p.toks[len(p.toks)-1])
-		p.i = len(p.toks)
+	if p.i < len(p.toks) && p.toks[p.i].Kind == DISPLAY {
+		d = p.display(p.toks[p.i])
+		p.i++
 	}
 	p.expectEnd()
 	return x, d, true
@@ -445,6 +446,8 @@ func (p *parser) expectEnd() {
 			p.fail(t.Off, "unexpected %s %q: an operator is missing before it (write * to multiply)", t.Kind, t.Text)
 		case UNIT:
 			p.fail(t.Off, "unexpected unit %q here", t.Text)
+		case DISPLAY:
+			p.fail(t.Off, "a display bracket [%s] may stand only after the name being defined or at the end of a bare expression", t.Text)
 		}
 		p.fail(t.Off, "unexpected %q", t.Text)
 	}

@@ -102,6 +102,7 @@ const (
 	GE
 	EQ
 	NE
+	DISPLAY // "[kA polar]" directly after a name, a number, a unit or ")": Text is what the brackets hold
 	ILLEGAL
 )
 
@@ -109,7 +110,7 @@ var kindNames = map[Kind]string{
 	EOF: "end of line", NEWLINE: "end of line", COMMENT: "comment", NUMBER: "number", IDENT: "name",
 	UNIT: "unit", ADD: "+", SUB: "-", MUL: "*", DIV: "/", POW: "^", ANGLE: "∠", PAR: "∥", BAR: "|",
 	LPAREN: "(", RPAREN: ")", LBRACK: "[", RBRACK: "]", COMMA: ",", SEMI: ";", ASSIGN: "=",
-	COLON: ":", LT: "<", LE: "<=", GT: ">", GE: ">=", EQ: "==", NE: "!=", ILLEGAL: "illegal character",
+	COLON: ":", DISPLAY: "display bracket", LT: "<", LE: "<=", GT: ">", GE: ">=", EQ: "==", NE: "!=", ILLEGAL: "illegal character",
 }
 
 func (k Kind) String() string { return kindNames[k] }
@@ -257,6 +258,13 @@ func (s *scanner) run() []Token {
 				k = RPAREN
 			case '[':
 				k = LBRACK
+				if !space && s.displayAllowed() {
+					if end := strings.IndexAny(s.text[s.off:], "]\n"); end >= 0 && s.text[s.off+end] == ']' {
+						s.emit(Token{Kind: DISPLAY, Text: strings.TrimSpace(s.text[s.off : s.off+end]), Off: start, End: s.off + end + 1})
+						s.off += end + 1
+						continue
+					}
+				}
 			case ']':
 				k = RBRACK
 			case ',':
@@ -312,6 +320,17 @@ func (s *scanner) run() []Token {
 		}
 	}
 	return s.toks
+}
+
+// displayAllowed reports whether a "[" here opens a display bracket: it
+// follows a value directly (LANGUAGE.md: a "[" that follows a value is
+// never an index).
+func (s *scanner) displayAllowed() bool {
+	switch s.last() {
+	case IDENT, NUMBER, UNIT, RPAREN, BAR:
+		return true
+	}
+	return false
 }
 
 func (s *scanner) byteAt(off int) byte {

@@ -105,7 +105,11 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 					}
 				}
 			} else {
-				w.Printf("<div class=\"r\" data-value=\"%s\" data-line=\"%d\">%s</div>", esc(x.Names[0].Name), line, Math("<mo>=</mo>"+ValueML(res.Value, x.Display, w.Digits(), false)))
+				disp := x.Display
+				if bd := w.Doc.Env.Lookup(x.Names[0].Name); bd != nil && bd.Value == res.Value {
+					disp = bd.Display
+				}
+				w.Printf("<div class=\"r\" data-value=\"%s\" data-line=\"%d\">%s</div>", esc(x.Names[0].Name), line, Math("<mo>=</mo>"+ValueML(res.Value, disp, w.Digits(), false)))
 			}
 		}
 	case *expr.FuncDef:

@@ -137,6 +137,7 @@ func ValueML(v expr.Value, d *expr.Display, digits int, paren bool) string {
 	case *expr.Scalar:
 		return ShownML(expr.FormatScalar(x, d, digits), paren)
 	case *expr.Matrix:
+		x = expr.DisplayMatrix(x)
 		var b strings.Builder
 		b.WriteString("<mrow><mo>[</mo><mtable>")
 		for i := 0; i < x.Rows; i++ {
