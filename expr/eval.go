@@ -428,7 +428,11 @@ func (ev *evaluator) call(n *Call) (Value, error) {
 				want = fmt.Sprintf("%d to %d", bf.min, bf.max)
 			}
 		}
-		return nil, Errorf(n.P, "%s takes %s argument%s, not %d", name, want, plural(bf.min), len(args))
+		pl := plural(bf.max) // "1 to 3 arguments"
+		if bf.max < 0 {
+			pl = plural(bf.min) // "at least 1 argument"
+		}
+		return nil, Errorf(n.P, "%s takes %s argument%s, not %d", name, want, pl, len(args))
 	}
 	v, err := bf.fn(args)
 	if err != nil {

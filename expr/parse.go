@@ -169,7 +169,8 @@ func (p *parser) stmt(toks []Token, mode Mode) (s Stmt) {
 	for _, t := range body {
 		if t.Kind == ILLEGAL {
 			// the scanner has reported it already
-			return &BadStmt{span: sp, desc: d}
+			p.toks = body
+			return &BadStmt{span: sp, desc: d, Names: p.guessNames()}
 		}
 	}
 	sp = span{p.pos(body[0].Off), p.pos(body[len(body)-1].End)}

@@ -327,8 +327,18 @@ func (s *scanner) run() []Token {
 // never an index).
 func (s *scanner) displayAllowed() bool {
 	switch s.last() {
-	case IDENT, NUMBER, UNIT, RPAREN, BAR:
+	case IDENT, NUMBER, UNIT, RPAREN:
 		return true
+	case BAR:
+		// only after a closing bar, "|I|[kA]": an odd number of bars on the
+		// line so far means the last one opens, as in "|[3; 4]|"
+		n := 0
+		for i := len(s.toks) - 1; i >= 0 && s.toks[i].Kind != NEWLINE; i-- {
+			if s.toks[i].Kind == BAR {
+				n++
+			}
+		}
+		return n%2 == 0
 	}
 	return false
 }

@@ -365,7 +365,9 @@ func suggestUnits(sym string) []string {
 		if strings.HasPrefix(low, strings.ToLower(s)) && len(s) >= 2 {
 			d = 1
 		}
-		if d <= 1 || (d <= 2 && len(sym) > 3) {
+		// one edit away means nothing for a one-letter symbol (every
+		// one-letter unit is one edit from it): only exact case matches then
+		if d == 0 || d == 1 && len(low) > 1 || (d <= 2 && len(sym) > 3) {
 			cs = append(cs, cand{s, d})
 		}
 	}
