@@ -41,11 +41,13 @@ type Unary struct {
 	X  Node
 }
 
-// Binary is an infix operator: + - * / ^ ∥ ∠.
+// Binary is an infix operator: + - * / ^ ∥ ∠. OpPos is where the
+// operator is written.
 type Binary struct {
 	span
-	Op   Kind
-	X, Y Node
+	Op    Kind
+	OpPos Pos
+	X, Y  Node
 }
 
 // Paren is an expression in parentheses.

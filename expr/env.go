@@ -13,6 +13,9 @@ type Binding struct {
 	// Unavailable marks a name whose definition failed; lines that use it
 	// report that once, pointing at Pos, instead of repeating the error.
 	Unavailable bool
+	// Cause is where the failure that made the name unavailable lies: its
+	// own definition, or the root failure it depended on.
+	Cause Pos
 	// Display is how the definition asked the value to be shown, or nil.
 	Display *Display
 }

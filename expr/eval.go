@@ -14,11 +14,17 @@ type Trace map[Node]Value
 // MaxCallDepth bounds nested user-function calls.
 const MaxCallDepth = 64
 
+// MaxEvalSteps bounds the nodes evaluated for one expression, counting
+// every node of every user-function body each time it runs: without it,
+// functions that each call the one above twice would take 2^n steps.
+const MaxEvalSteps = 1000000
+
 type evaluator struct {
 	env    *Env
 	trace  Trace
 	locals map[string]Value
 	depth  int
+	steps  *int // nodes evaluated so far, shared with user-function calls
 }
 
 // Eval evaluates an expression in env. When trace is not nil, the value of
@@ -37,9 +43,20 @@ func (e *Env) EvalWith(n Node, locals map[string]Value, trace Trace) (Value, err
 }
 
 func (ev *evaluator) eval(n Node) (Value, error) {
+	if ev.steps == nil {
+		ev.steps = new(int)
+	}
+	if *ev.steps++; *ev.steps > MaxEvalSteps {
+		return nil, Errorf(n.Pos(), "this expression takes more than %d steps to evaluate (user functions calling each other many times?)", MaxEvalSteps)
+	}
 	v, err := ev.eval1(n)
-	if err == nil && ev.trace != nil {
-		ev.trace[n] = v
+	if err == nil {
+		if !dimsInRange(v) {
+			return nil, Errorf(n.Pos(), "the unit of this value has an exponent beyond ±%d: not a physical quantity", MaxExponent)
+		}
+		if ev.trace != nil {
+			ev.trace[n] = v
+		}
 	}
 	return v, err
 }
@@ -152,7 +169,7 @@ func (ev *evaluator) ident(n *Ident) (Value, error) {
 	}
 	if b := ev.env.vars[n.Name]; b != nil {
 		if b.Unavailable {
-			return nil, &UnavailableError{Pos: n.P, Name: n.Name, Def: b.Pos}
+			return nil, &UnavailableError{Pos: n.P, Name: n.Name, Def: b.cause()}
 		}
 		return b.Value, nil
 	}
@@ -255,7 +272,7 @@ func binaryOp(n *Binary, x, y Value) (Value, error) {
 			if xs.Z == 0 {
 				return &Scalar{Dim: xs.Dim}, nil
 			}
-			return nil, Errorf(n.P, "parallel combination is infinite: the two sides sum to zero (a∥b = a·b/(a+b))")
+			return nil, Errorf(n.OpPos, "parallel combination is infinite: the two sides sum to zero (a∥b = a·b/(a+b))")
 		}
 		return &Scalar{Z: xs.Z * ys.Z / sum, Dim: xs.Dim}, nil
 	case ANGLE:
@@ -276,7 +293,7 @@ func binaryOp(n *Binary, x, y Value) (Value, error) {
 }
 
 func unitMismatch(n *Binary, verb string, x, y *Scalar) error {
-	return Errorf(n.P, "cannot %s %s and %s: the units differ (%s and %s)", verb, Describe(x), Describe(y), dimWord(x.Dim), dimWord(y.Dim))
+	return Errorf(n.OpPos, "cannot %s %s and %s: the units differ (%s and %s)", verb, Describe(x), Describe(y), dimWord(x.Dim), dimWord(y.Dim))
 }
 
 // dimWord names a dimension in the words of the trade.
@@ -382,7 +399,7 @@ func (ev *evaluator) call(n *Call) (Value, error) {
 	}
 	if b := ev.env.vars[name]; b != nil {
 		if b.Unavailable {
-			return nil, &UnavailableError{Pos: n.Fun.P, Name: name, Def: b.Pos}
+			return nil, &UnavailableError{Pos: n.Fun.P, Name: name, Def: b.cause()}
 		}
 		return ev.index(n, b.Value)
 	}
@@ -405,7 +422,7 @@ func (ev *evaluator) call(n *Call) (Value, error) {
 		for i, p := range f.Params {
 			locals[p] = args[i]
 		}
-		sub := &evaluator{env: ev.env, locals: locals, depth: ev.depth + 1}
+		sub := &evaluator{env: ev.env, locals: locals, depth: ev.depth + 1, steps: ev.steps}
 		v, err := sub.eval(f.Body)
 		if err != nil {
 			if e, ok := err.(*Error); ok {
@@ -515,4 +532,11 @@ func trimZeros(s string) string {
 	}
 	s = strings.TrimRight(s, "0")
 	return strings.TrimSuffix(s, ".")
+}
+
+func (b *Binding) cause() Pos {
+	if b.Cause.IsValid() {
+		return b.Cause
+	}
+	return b.Pos
 }

@@ -114,7 +114,11 @@ func (e *Env) Exec(s Stmt) *Result {
 		v, err := e.Eval(s.X, r.Trace)
 		if err != nil {
 			r.Err = err
-			e.defineUnavailable(s.Names)
+			cause := s.Names[0].P
+			if u, ok := err.(*UnavailableError); ok {
+				cause = u.Def
+			}
+			e.defineUnavailableAt(s.Names, cause)
 			return r
 		}
 		r.Value = v
@@ -184,9 +188,17 @@ func (e *Env) Exec(s Stmt) *Result {
 }
 
 func (e *Env) defineUnavailable(names []*Ident) {
+	if len(names) > 0 {
+		e.defineUnavailableAt(names, names[0].P)
+	}
+}
+
+// defineUnavailableAt marks names as having no value because of the
+// failure at cause.
+func (e *Env) defineUnavailableAt(names []*Ident, cause Pos) {
 	for _, id := range names {
 		if e.CanDefine(id.Name, id.P) == nil {
-			e.Define(&Binding{Name: id.Name, Pos: id.P, Unavailable: true})
+			e.Define(&Binding{Name: id.Name, Pos: id.P, Unavailable: true, Cause: cause})
 		}
 	}
 }

@@ -6,6 +6,11 @@ import (
 	"math/cmplx"
 )
 
+// MaxMatrixEntries bounds the entries of a matrix that a product or diag
+// makes (a 100×100 matrix), so that no expression of a short line takes
+// minutes: the product of two such matrices is 10⁶ multiplications.
+const MaxMatrixEntries = 10000
+
 // sumDim is the dimension of a sum of a and b, where a plain zero takes
 // the other's dimension; ok is false when the units differ.
 func sumDim(a, b *Scalar) (Dim, bool) {
@@ -50,14 +55,14 @@ func matrixOp(n *Binary, x, y Value) (Value, error) {
 			return nil, Errorf(n.P, "cannot %s %s and %s", opName(n.Op), shapeWord(x), shapeWord(y))
 		}
 		if xm.Rows != ym.Rows || xm.Cols != ym.Cols {
-			return nil, Errorf(n.P, "cannot %s %s and %s: the shapes differ", opName(n.Op), shapeWord(x), shapeWord(y))
+			return nil, Errorf(n.OpPos, "cannot %s %s and %s: the shapes differ", opName(n.Op), shapeWord(x), shapeWord(y))
 		}
 		out := NewMatrix(xm.Rows, xm.Cols)
 		for i := range xm.E {
 			a, b := &xm.E[i], &ym.E[i]
 			d, ok := sumDim(a, b)
 			if !ok {
-				return nil, Errorf(n.P, "cannot %s %s: %s is %s, the other %s (the units differ)", opName(n.Op), entryName(xm, i/xm.Cols, i%xm.Cols), Describe(a), dimWord(a.Dim), dimWord(b.Dim))
+				return nil, Errorf(n.OpPos, "cannot %s %s: %s is %s, the other %s (the units differ)", opName(n.Op), entryName(xm, i/xm.Cols, i%xm.Cols), Describe(a), dimWord(a.Dim), dimWord(b.Dim))
 			}
 			z := a.Z + b.Z
 			if n.Op == SUB {
@@ -104,7 +109,10 @@ func scale(m *Matrix, s *Scalar, divide bool) *Matrix {
 // a sum must have the same dimension (a plain zero matches any).
 func matMul(n *Binary, a, b *Matrix) (Value, error) {
 	if a.Cols != b.Rows {
-		return nil, Errorf(n.P, "cannot multiply %s by %s: the first needs as many columns (%d) as the second has rows (%d)", shapeWord(a), shapeWord(b), a.Cols, b.Rows)
+		return nil, Errorf(n.OpPos, "cannot multiply %s by %s: the first needs as many columns (%d) as the second has rows (%d)", shapeWord(a), shapeWord(b), a.Cols, b.Rows)
+	}
+	if a.Rows*b.Cols > MaxMatrixEntries {
+		return nil, Errorf(n.P, "the product would be a %d×%d matrix: at most %d entries are allowed", a.Rows, b.Cols, MaxMatrixEntries)
 	}
 	out := NewMatrix(a.Rows, b.Cols)
 	for i := 0; i < a.Rows; i++ {
@@ -122,7 +130,7 @@ func matMul(n *Binary, a, b *Matrix) (Value, error) {
 				if !have {
 					d, have = td, true
 				} else if td != d {
-					return nil, Errorf(n.P, "in the product, %s of the result sums terms of different units: term %d is %s, an earlier one %s", entryName(out, i, j), k+1, dimWord(td), dimWord(d))
+					return nil, Errorf(n.OpPos, "in the product, %s of the result sums terms of different units: term %d is %s, an earlier one %s", entryName(out, i, j), k+1, dimWord(td), dimWord(d))
 				}
 			}
 			out.Set(i, j, Scalar{Z: sum, Dim: d})
@@ -302,9 +310,18 @@ func matDet(args []Value) (Value, error) {
 	for i, e := range m.E {
 		a[i] = e.Z
 	}
-	var d Dim
+	var acc [7]int
 	for i := 0; i < n; i++ {
-		d = d.Mul(r[i]).Mul(c[i])
+		for k := range acc {
+			acc[k] += int(r[i][k]) + int(c[i][k])
+		}
+	}
+	var d Dim
+	for k, x := range acc {
+		if x > MaxExponent || x < -MaxExponent {
+			return nil, fmt.Errorf("the determinant's unit would have an exponent of %d: beyond ±%d", x, MaxExponent)
+		}
+		d[k] = int8(x)
 	}
 	_, sign, singular := luDecompose(a, n)
 	if singular {
@@ -340,6 +357,9 @@ func matDiag(args []Value) (Value, error) {
 	}
 	if m.Cols == 1 || m.Rows == 1 {
 		n := len(m.E)
+		if n*n > MaxMatrixEntries {
+			return nil, fmt.Errorf("the diagonal matrix would be %d×%d: at most %d entries are allowed", n, n, MaxMatrixEntries)
+		}
 		out := NewMatrix(n, n)
 		for i := 0; i < n; i++ {
 			for j := 0; j < n; j++ {

@@ -73,6 +73,7 @@ type parser struct {
 	i     int
 	depth int
 	bad   bool
+	opPos Pos
 }
 
 type bail struct{}
@@ -483,7 +484,7 @@ func (p *parser) comparison() *Compare {
 }
 
 func (p *parser) binary(op Kind, x, y Node) Node {
-	return &Binary{span: span{x.Pos(), y.End()}, Op: op, X: x, Y: y}
+	return &Binary{span: span{x.Pos(), y.End()}, Op: op, OpPos: p.opPos, X: x, Y: y}
 }
 
 func (p *parser) add() Node {
@@ -491,8 +492,11 @@ func (p *parser) add() Node {
 	defer p.leave()
 	x := p.par()
 	for k := p.peek(); k == ADD || k == SUB; k = p.peek() {
+		op := p.pos(p.toks[p.i].Off)
 		p.i++
-		x = p.binary(k, x, p.par())
+		y := p.par()
+		p.opPos = op
+		x = p.binary(k, x, y)
 	}
 	return x
 }
@@ -523,8 +527,11 @@ func startsOperand(k Kind) bool {
 func (p *parser) par() Node {
 	x := p.mul()
 	for n := p.isParallel(); n > 0; n = p.isParallel() {
+		op := p.pos(p.toks[p.i].Off)
 		p.i += n
-		x = p.binary(PAR, x, p.mul())
+		y := p.mul()
+		p.opPos = op
+		x = p.binary(PAR, x, y)
 	}
 	return x
 }
@@ -532,8 +539,11 @@ func (p *parser) par() Node {
 func (p *parser) mul() Node {
 	x := p.unary()
 	for k := p.peek(); k == MUL || k == DIV; k = p.peek() {
+		op := p.pos(p.toks[p.i].Off)
 		p.i++
-		x = p.binary(k, x, p.unary())
+		y := p.unary()
+		p.opPos = op
+		x = p.binary(k, x, y)
 	}
 	return x
 }
@@ -566,10 +576,12 @@ func (p *parser) signed(next func() Node) Node {
 func (p *parser) angle() Node {
 	x := p.pow()
 	for p.peek() == ANGLE {
+		op := p.pos(p.toks[p.i].Off)
 		p.i++
 		y := p.signed(p.pow)
 		// "16∠-40° A": a unit after the angle applies to the whole phasor.
 		y, u := liftPhasorUnit(y)
+		p.opPos = op
 		x = p.binary(ANGLE, x, y)
 		if u != nil {
 			x = &WithUnit{span: span{x.Pos(), u.E}, X: x, Unit: u.Unit, UPos: u.UPos}
@@ -602,6 +614,7 @@ func (p *parser) pow() Node {
 		p.enter(t.Off)
 		defer p.leave()
 		y := p.signed(p.pow)
+		p.opPos = p.pos(t.Off)
 		return p.binary(POW, x, y)
 	}
 	return x

@@ -78,7 +78,7 @@ func (w *Writer) ErrorRow(e *expr.Error) {
 // UnavailableRow writes the note of a line that could not be evaluated
 // because it uses a name whose definition failed.
 func (w *Writer) UnavailableRow(u *expr.UnavailableError) {
-	w.Printf("<div class=\"na\"><span class=\"tag\">NOT EVALUATED</span> uses %s, which has no value because its definition at line %d failed</div>\n", NameHTML(u.Name), u.Def.Line)
+	w.Printf("<div class=\"na\"><span class=\"tag\">NOT EVALUATED</span> uses %s, which has no value: the definition at line %d failed</div>\n", NameHTML(u.Name), u.Def.Line)
 }
 
 // Sheet writes the HTML sheet of a document.
