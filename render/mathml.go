@@ -77,9 +77,10 @@ func numML(s string) string {
 }
 
 // unitText writes a unit for display: "mm^2" becomes "mm²", "*" becomes "·".
+var unitReplacer = strings.NewReplacer("^2", "²", "^3", "³", "^-1", "⁻¹", "^-2", "⁻²", "^-3", "⁻³", "*", "·")
+
 func unitText(u string) string {
-	r := strings.NewReplacer("^2", "²", "^3", "³", "^-1", "⁻¹", "^-2", "⁻²", "^-3", "⁻³", "*", "·", "u", "u")
-	u = r.Replace(u)
+	u = unitReplacer.Replace(u)
 	// an ASCII "u" prefix reads as µ
 	if len(u) > 1 && u[0] == 'u' && u != "unit" {
 		u = "µ" + u[1:]
