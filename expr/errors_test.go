@@ -6,7 +6,8 @@ import (
 )
 
 // Every error has a position (line:col in the file, LANGUAGE §8 "errors")
-// and a message in words an engineer understands. The rules that make
+// and a message in words an engineer understands. An error of an
+// operator (units or shapes that do not fit) stands on the operator. The rules that make
 // these inputs errors are those of LANGUAGE §2-§4; positions are counted
 // by hand on the source.
 
@@ -20,7 +21,7 @@ func TestErrors(t *testing.T) {
 		{"name inside a unit", "y = 2 V/x", "1:7", `in "V/x" (inside a unit, * and / join symbols`},
 		{"number glued to a name", "y = 2x", "1:6", `unknown unit "x" (to multiply a number by a name, write 2*x)`},
 		{"bad unit power", "a = 2 m^", "1:7", "bad power in unit"},
-		{"add different units", "P = 3 V + 2 A", "1:5", "cannot add 3 V and 2 A: the units differ (a voltage and a current)"},
+		{"add different units", "P = 3 V + 2 A", "1:9", "cannot add 3 V and 2 A: the units differ (a voltage and a current)"},
 		// names
 		{"unknown name", "y = 2*zz", "1:7", `unknown name "zz"`},
 		{"unknown name close to a defined one", "V_line = 1 V\nV_lime", "2:1", `unknown name "V_lime" (did you mean "V_line"?)`},
@@ -68,6 +69,13 @@ func TestErrors(t *testing.T) {
 		{"too-deep nesting", "x = " + strings.Repeat("(", 300) + "1" + strings.Repeat(")", 300), "", "expression nested too deeply (more than 200 levels)"},
 		{"too-deep unary minus", "x = " + strings.Repeat("-", 500) + "1", "", "expression nested too deeply"},
 		{"too-deep powers", "x = 2" + strings.Repeat("^2", 500), "", "expression nested too deeply"},
+		{"functions calling each other 2^40 times", fnChain(40), "42:5", "takes more than 1000000 steps to evaluate"},
+		{"product too large", "v = [" + strings.Repeat("1; ", 199) + "1]\nM = v * transpose(v)", "2:7", "the product would be a 200×200 matrix: at most 10000 entries are allowed"},
+		{"diagonal too large", "v = [" + strings.Repeat("1; ", 199) + "1]\nD = diag(v)", "2:5", "diag: the diagonal matrix would be 200×200"},
+		{"unit exponent too large", "x = 1 m^41", "1:7", `unit "m^41" has an exponent beyond ±40`},
+		{"unit exponents that add up", "x = 1 m^30·m^30", "1:7", "has an exponent beyond ±40"},
+		{"product exponent too large", "x = (1 m^30) * (1 m^30)", "1:5", "the unit of this value has an exponent beyond ±40"},
+		{"determinant exponent too large", "x = det(diag([" + strings.Repeat("1 m^5; ", 8) + "1 m^5]))", "1:5", "det: the determinant's unit would have an exponent of 45"},
 		{"1000-character number", "x = " + strings.Repeat("1", 1000), "1:5", "number too long (more than 64 characters)"},
 		{"number out of range", "x = 1e999", "1:5", "number 1e999 is out of range"},
 		// evaluation
@@ -75,13 +83,13 @@ func TestErrors(t *testing.T) {
 		{"zero to a negative power", "x = 0^-1", "1:5", "0 raised to a negative power is infinite"},
 		{"log of zero", "x = ln(0)", "1:5", "ln: the logarithm of zero is -∞"},
 		{"angle of zero", "x = arg(0)", "1:5", "arg: the angle of zero is undefined"},
-		{"infinite parallel", "x = 3 Ω ∥ -3 Ω", "1:5", "parallel combination is infinite"},
+		{"infinite parallel", "x = 3 Ω ∥ -3 Ω", "1:9", "parallel combination is infinite"},
 		{"overflow", "x = exp(1000)", "1:5", "exp: the result is not finite"},
 		{"comparing complex values with <", "check (1 + j) < 2", "1:7", "cannot compare the complex value 1 + j1 with <: compare abs(...), re(...) or im(...)"},
 		{"comparing a matrix", "check [1; 2] < 3", "1:7", "a check compares single values, not a vector of 2 entries"},
 		// vectors and matrices
-		{"product of mismatched shapes", "y = [1, 2; 3, 4] * [1, 2, 3]", "1:5", "cannot multiply a 2×2 matrix by a 1×3 matrix: the first needs as many columns (2) as the second has rows (1)"},
-		{"sum of mismatched shapes", "y = [1, 2] + [1; 2]", "1:5", "cannot add a 1×2 matrix and a vector of 2 entries: the shapes differ"},
+		{"product of mismatched shapes", "y = [1, 2; 3, 4] * [1, 2, 3]", "1:18", "cannot multiply a 2×2 matrix by a 1×3 matrix: the first needs as many columns (2) as the second has rows (1)"},
+		{"sum of mismatched shapes", "y = [1, 2] + [1; 2]", "1:12", "cannot add a 1×2 matrix and a vector of 2 entries: the shapes differ"},
 		{"matrix plus scalar", "y = [1, 2] + 1", "1:5", "cannot add a 1×2 matrix and a single value"},
 		{"divide by a matrix", "y = 2/[1; 2]", "1:7", "cannot divide by a vector of 2 entries: multiply by inv(...) instead"},
 		{"index out of range", "v = [1; 2]\nv(3)", "2:3", "index 3 out of range: v has 2 entries (counting from 1)"},

@@ -112,7 +112,7 @@ func matMul(n *Binary, a, b *Matrix) (Value, error) {
 		return nil, Errorf(n.OpPos, "cannot multiply %s by %s: the first needs as many columns (%d) as the second has rows (%d)", shapeWord(a), shapeWord(b), a.Cols, b.Rows)
 	}
 	if a.Rows*b.Cols > MaxMatrixEntries {
-		return nil, Errorf(n.P, "the product would be a %d×%d matrix: at most %d entries are allowed", a.Rows, b.Cols, MaxMatrixEntries)
+		return nil, Errorf(n.OpPos, "the product would be a %d×%d matrix: at most %d entries are allowed", a.Rows, b.Cols, MaxMatrixEntries)
 	}
 	out := NewMatrix(a.Rows, b.Cols)
 	for i := 0; i < a.Rows; i++ {

@@ -70,6 +70,37 @@ func (d Dim) Pow(n int) Dim {
 	return d
 }
 
+// MaxExponent bounds the exponent of each base unit in a value's
+// dimension. Within it, the product or quotient of two dimensions cannot
+// overflow the int8 exponents, so a larger result is reported, never
+// wrapped around.
+const MaxExponent = 40
+
+// InRange reports whether every exponent of d lies within ±MaxExponent.
+func (d Dim) InRange() bool {
+	for _, x := range d {
+		if x > MaxExponent || x < -MaxExponent {
+			return false
+		}
+	}
+	return true
+}
+
+// dimsInRange reports whether every dimension in v is InRange.
+func dimsInRange(v Value) bool {
+	switch x := v.(type) {
+	case *Scalar:
+		return x.Dim.InRange()
+	case *Matrix:
+		for i := range x.E {
+			if !x.E[i].Dim.InRange() {
+				return false
+			}
+		}
+	}
+	return true
+}
+
 // fitsPow reports whether every exponent times n stays within int8 range.
 func (d Dim) fitsPow(n int) bool {
 	for _, x := range d {
@@ -309,7 +340,13 @@ func ParseUnit(text string) (*Unit, error) {
 		}
 		nsym++
 		u.Scale *= math.Pow(scale, float64(sign*pow))
-		u.Dim = u.Dim.Mul(dim.Pow(sign * pow))
+		for k := range u.Dim {
+			x := int(u.Dim[k]) + int(dim[k])*sign*pow
+			if x > MaxExponent || x < -MaxExponent {
+				return nil, fmt.Errorf("unit %q has an exponent beyond ±%d", text, MaxExponent)
+			}
+			u.Dim[k] = int8(x)
+		}
 		if angle && nsym == 1 && pow == 1 {
 			u.Angle = true
 		} else {
