@@ -31,14 +31,16 @@ type evaluator struct {
 // every node is recorded in it (nodes inside user-function bodies are not).
 // The error is an *Error or an *UnavailableError.
 func (e *Env) Eval(n Node, trace Trace) (Value, error) {
-	ev := &evaluator{env: e, trace: trace}
+	steps := 0
+	ev := &evaluator{env: e, trace: trace, steps: &steps}
 	return ev.eval(n)
 }
 
 // EvalWith evaluates n with extra local names (the parameters of a user
 // function, a sweep variable) that hide nothing but are seen first.
 func (e *Env) EvalWith(n Node, locals map[string]Value, trace Trace) (Value, error) {
-	ev := &evaluator{env: e, trace: trace, locals: locals}
+	steps := 0
+	ev := &evaluator{env: e, trace: trace, locals: locals, steps: &steps}
 	return ev.eval(n)
 }
 

@@ -25,7 +25,8 @@ const EqualTolerance = 1e-9
 
 // EvalCheck evaluates a comparison chain.
 func (e *Env) EvalCheck(c *Compare, trace Trace) (*CheckResult, error) {
-	ev := &evaluator{env: e, trace: trace}
+	steps := 0
+	ev := &evaluator{env: e, trace: trace, steps: &steps}
 	res := &CheckResult{Pass: true}
 	for _, x := range c.X {
 		v, err := ev.eval(x)

@@ -34,6 +34,10 @@ func FuzzEngine(f *testing.F) {
 // checkEngine runs src through every entry point and checks positions.
 func checkEngine(t *testing.T, src string) {
 	lines := strings.Split(src, "\n")
+	runes := make([]int, len(lines))
+	for i, l := range lines {
+		runes[i] = utf8.RuneCountInString(l)
+	}
 	inside := func(what string, p Pos, end bool) {
 		if !p.IsValid() {
 			if !end {
@@ -44,7 +48,7 @@ func checkEngine(t *testing.T, src string) {
 		if p.Line < 1 || p.Line > len(lines) {
 			t.Fatalf("%s: line %d outside the %d lines of %q", what, p.Line, len(lines), src)
 		}
-		if n := utf8.RuneCountInString(lines[p.Line-1]); p.Col < 1 || p.Col > n+1 {
+		if n := runes[p.Line-1]; p.Col < 1 || p.Col > n+1 {
 			t.Fatalf("%s: column %d outside line %d (%d characters) of %q", what, p.Col, p.Line, n, src)
 		}
 	}

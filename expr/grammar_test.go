@@ -3,6 +3,7 @@ package expr
 import (
 	"strings"
 	"testing"
+	"unicode/utf8"
 )
 
 // The expected trees below are written by hand from the grammar of
@@ -404,5 +405,28 @@ func TestEquationMode(t *testing.T) {
 				t.Errorf("got %s want %s", got, tc.want)
 			}
 		})
+	}
+}
+
+// TestPosMemo: the positions the scanner and parser compute incrementally
+// (posMemo) are those of Source.PosAt, which counts the characters from the
+// start of the line, for offsets asked in any order.
+func TestPosMemo(t *testing.T) {
+	src := NewSourceLines([]string{"V = 230 V∠-120°", "", "Z = 3 Ω ∥ (1 + j2) Ω", "µ"}, []Pos{{4, 3}, {5, 1}, {6, 1}, {9, 1}})
+	var offs []int
+	for o := 0; o <= len(src.Text)+2; o++ {
+		offs = append(offs, o)
+	}
+	for o := len(src.Text); o >= -1; o -= 3 {
+		offs = append(offs, o, o+1, o-2)
+	}
+	var m posMemo
+	for _, o := range offs {
+		if o > 0 && o < len(src.Text) && !utf8.RuneStart(src.Text[o]) {
+			continue // token offsets stand on character boundaries
+		}
+		if got, want := m.at(src, o), src.PosAt(o); got != want {
+			t.Fatalf("offset %d: %v, PosAt %v", o, got, want)
+		}
 	}
 }

@@ -74,11 +74,12 @@ type parser struct {
 	depth int
 	bad   bool
 	opPos Pos
+	pm    posMemo
 }
 
 type bail struct{}
 
-func (p *parser) pos(off int) Pos { return p.src.PosAt(off) }
+func (p *parser) pos(off int) Pos { return p.pm.at(p.src, off) }
 
 func (p *parser) fail(off int, format string, args ...any) {
 	p.errs.Add(p.pos(off), fmt.Sprintf(format, args...))
@@ -92,8 +93,9 @@ func (p *parser) fail(off int, format string, args ...any) {
 func (p *parser) split(toks []Token) [][]Token {
 	var out [][]Token
 	i := 0
+	var open []Token // the brackets open at j, reused from statement to statement
 	for i < len(toks) {
-		var open []Token
+		open = open[:0]
 		start := i
 		j := i
 		for ; j < len(toks); j++ {
@@ -130,10 +132,18 @@ func (p *parser) split(toks []Token) [][]Token {
 			i = k + 1
 			continue
 		}
-		var st []Token
-		for _, t := range toks[start:j] {
-			if t.Kind != NEWLINE {
-				st = append(st, t)
+		// a statement on one line is a slice of toks; only one continued
+		// over several lines is copied without its line breaks
+		st := toks[start:j:j]
+		for _, t := range st {
+			if t.Kind == NEWLINE {
+				st = nil
+				for _, t := range toks[start:j] {
+					if t.Kind != NEWLINE {
+						st = append(st, t)
+					}
+				}
+				break
 			}
 		}
 		if len(st) > 0 {
@@ -156,15 +166,31 @@ func (p *parser) stmt(toks []Token, mode Mode) (s Stmt) {
 	}
 	// descriptions: every comment in the statement, joined
 	var comments []string
-	var body []Token
-	for _, t := range toks {
-		if t.Kind == COMMENT {
+	body := toks
+	for k, t := range toks {
+		if t.Kind != COMMENT {
+			continue
+		}
+		if k == len(toks)-1 {
+			// the usual case, one description at the end: no copy
+			body = toks[:k:k]
 			if t.Text != "" {
 				comments = append(comments, t.Text)
 			}
-			continue
+			break
 		}
-		body = append(body, t)
+		// comments inside a continued statement: copy the rest
+		body = nil
+		for _, t := range toks {
+			if t.Kind == COMMENT {
+				if t.Text != "" {
+					comments = append(comments, t.Text)
+				}
+				continue
+			}
+			body = append(body, t)
+		}
+		break
 	}
 	d := desc{strings.Join(comments, " ")}
 	for _, t := range body {

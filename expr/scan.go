@@ -69,6 +69,30 @@ func (s *Source) PosAt(off int) Pos {
 	return Pos{Line: base.Line, Col: base.Col + utf8.RuneCountInString(s.Text[s.starts[i]:off])}
 }
 
+// posMemo is s.PosAt with a memory of the last position computed. The
+// scanner and the parser ask for positions mostly in increasing order
+// along a line; those are counted from the last one instead of from the
+// start of the line, so that a long line costs linear time, not quadratic.
+// Offsets stand on character boundaries, as every token's do.
+type posMemo struct {
+	off, line int
+	pos       Pos
+}
+
+func (m *posMemo) at(s *Source, off int) Pos {
+	off = max(0, min(off, len(s.Text)))
+	if m.pos.IsValid() && off >= m.off && (m.line+1 >= len(s.starts) || off < s.starts[m.line+1]) {
+		m.pos.Col += utf8.RuneCountInString(s.Text[m.off:off])
+		m.off = off
+		return m.pos
+	}
+	pos := s.PosAt(off)
+	if i := sort.Search(len(s.starts), func(i int) bool { return s.starts[i] > off }) - 1; i >= 0 && i < len(s.Lines) {
+		m.off, m.line, m.pos = off, i, pos
+	}
+	return pos
+}
+
 // Kind is the kind of a token.
 type Kind int
 
@@ -140,7 +164,9 @@ const (
 // (an illegal character, a number out of range) are added to errs and
 // scanning goes on.
 func Scan(src *Source, errs *ErrorList) []Token {
-	sc := scanner{src: src, text: src.Text, errs: errs}
+	// about one token for every three bytes of a calc block: room for
+	// them all at once instead of growing (and copying) the slice
+	sc := scanner{src: src, text: src.Text, errs: errs, toks: make([]Token, 0, len(src.Text)/2+8)}
 	return sc.run()
 }
 
@@ -150,9 +176,10 @@ type scanner struct {
 	off  int
 	errs *ErrorList
 	toks []Token
+	pm   posMemo
 }
 
-func (s *scanner) errAt(off int, msg string) { s.errs.Add(s.src.PosAt(off), msg) }
+func (s *scanner) errAt(off int, msg string) { s.errs.Add(s.pm.at(s.src, off), msg) }
 
 func (s *scanner) peekRune(off int) (rune, int) {
 	if off >= len(s.text) {
