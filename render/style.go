@@ -69,6 +69,10 @@ table.data th, table.data td { border: var(--thin); padding: 1pt 4pt; text-align
 table.data th { font-weight: bold; text-align: center; }
 figure { margin: 3mm 0; break-inside: avoid; }
 figcaption { font-size: 8.5pt; font-style: italic; }
+figure svg { max-width: 100%; height: auto; }
+.sweep .sweephead { font-size: 8.5pt; color: #222; padding: 1pt 0; border-bottom: var(--thin); }
+.sweep .sweepnote { font-size: 8.5pt; }
+.sweep td.gap, .sweep td.why { font-style: italic; }
 @media print {
   html { background: none; }
   body { max-width: none; margin: 0; padding: 0; border: none; }
