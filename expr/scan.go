@@ -81,16 +81,25 @@ type posMemo struct {
 
 func (m *posMemo) at(s *Source, off int) Pos {
 	off = max(0, min(off, len(s.Text)))
-	if m.pos.IsValid() && off >= m.off && (m.line+1 >= len(s.starts) || off < s.starts[m.line+1]) {
-		m.pos.Col += utf8.RuneCountInString(s.Text[m.off:off])
+	if m.pos.IsValid() && off >= s.starts[m.line] && (m.line+1 >= len(s.starts) || off < s.starts[m.line+1]) {
+		// on the line of the last position: count from it, or from the
+		// start of the line when off lies before it
+		from, col := m.off, m.pos.Col
+		if off < m.off {
+			from, col = s.starts[m.line], s.Lines[m.line].Col
+		}
+		m.pos.Col = col + utf8.RuneCountInString(s.Text[from:off])
 		m.off = off
 		return m.pos
 	}
-	pos := s.PosAt(off)
-	if i := sort.Search(len(s.starts), func(i int) bool { return s.starts[i] > off }) - 1; i >= 0 && i < len(s.Lines) {
-		m.off, m.line, m.pos = off, i, pos
+	i := sort.Search(len(s.starts), func(i int) bool { return s.starts[i] > off }) - 1
+	if i < 0 || i >= len(s.Lines) {
+		return s.PosAt(off)
 	}
-	return pos
+	// as PosAt: the line's position in the file plus the characters before off
+	m.off, m.line = off, i
+	m.pos = Pos{Line: s.Lines[i].Line, Col: s.Lines[i].Col + utf8.RuneCountInString(s.Text[s.starts[i]:off])}
+	return m.pos
 }
 
 // Kind is the kind of a token.
