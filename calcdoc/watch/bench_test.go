@@ -1,0 +1,133 @@
+package watch
+
+import (
+	"fmt"
+	"math"
+	"os"
+	"path/filepath"
+	"sort"
+	"strings"
+	"testing"
+	"time"
+
+	"calcdoc/calcdoc"
+	"calcdoc/render"
+)
+
+// bigDoc is a document of exactly 1,000 statements in ten calc blocks with
+// prose between them: resistances, reactances, impedances, currents and a
+// check closing each block. Its first statement carries the note save-k.
+func bigDoc(k int) string {
+	var b strings.Builder
+	b.WriteString("---\ntitle: Latency test feeder\n---\n\n# A long sheet\n\n")
+	n := 0
+	for blk := 0; blk < 10; blk++ {
+		fmt.Fprintf(&b, "## Section %d\n\nThe branches of section %d.\n\n```calc\n", blk+1, blk+1)
+		for i := 0; i < 100; i++ {
+			switch j := (i - 1) % 4; {
+			case i == 0 && blk == 0:
+				fmt.Fprintf(&b, "seed = %d V   # save-%d\n", k, k)
+			case i == 0:
+				fmt.Fprintf(&b, "U_%d = 230 V   # source of section %d\n", n, blk+1)
+			case i == 99:
+				fmt.Fprintf(&b, "check |I_%d| <= 50 kA   # within the breaking capacity\n", n-3)
+			case j == 0:
+				fmt.Fprintf(&b, "R_%d = (0.1 + 0.001*%d) Ω\n", n, n)
+			case j == 1:
+				fmt.Fprintf(&b, "X_%d = j*2*pi*50 Hz * 1 mH * (1 + %d/1000)\n", n, n)
+			case j == 2:
+				fmt.Fprintf(&b, "Z_%d = R_%d + X_%d   # branch impedance\n", n, n-2, n-1)
+			default:
+				fmt.Fprintf(&b, "I_%d = 230 V / Z_%d\n", n, n-1)
+			}
+			n++
+		}
+		b.WriteString("```\n\n")
+	}
+	return b.String()
+}
+
+// TestBigDoc checks the benchmark's document: 1,000 statements (one
+// value or check each), no error.
+func TestBigDoc(t *testing.T) {
+	doc := calcdoc.Parse("big.md", []byte(bigDoc(1)))
+	if len(doc.Errors) > 0 {
+		t.Fatalf("the benchmark document has errors: %v", doc.Errors[0])
+	}
+	if n := len(doc.Values) + len(doc.Checks); n != 1000 {
+		t.Errorf("the benchmark document has %d values and checks, want 1000", n)
+	}
+}
+
+// nearestRank is the p-th percentile of sorted samples by the
+// nearest-rank method: the ceil(p/100·n)-th smallest (common practice).
+func nearestRank(sorted []time.Duration, p float64) time.Duration {
+	i := int(math.Ceil(p/100*float64(len(sorted)))) - 1
+	return sorted[max(0, min(i, len(sorted)-1))]
+}
+
+// BenchmarkSaveToPage measures save-to-page latency on a document of
+// 1,000 statements: from the start of a save (written in place) to the
+// moment a GET returns the page showing that save, fetched when the
+// page's event stream announces a change, as the live script does. The
+// debounce is included. Each iteration is one save, made once the one
+// before has settled; p50 and p95 (nearest rank) are reported in ms.
+//
+//	go test -run '^$' -bench SaveToPage -benchtime 50x ./calcdoc/watch/
+func BenchmarkSaveToPage(b *testing.B) {
+	dir := b.TempDir()
+	p := filepath.Join(dir, "big.md")
+	if err := os.WriteFile(p, []byte(bigDoc(0)), 0o644); err != nil {
+		b.Fatal(err)
+	}
+	h := start(b, Config{Paths: []string{dir}})
+	lat := make([]time.Duration, 0, b.N)
+	b.ResetTimer()
+	for k := 1; k <= b.N; k++ {
+		b.StopTimer()
+		_, body := h.get("/big.html")
+		v, _ := pageVersion(b, body)
+		ch, stop := h.stream("/big.html", v)
+		src := []byte(bigDoc(k))
+		want := fmt.Sprintf(`<div class="desc">save-%d</div>`, k)
+		b.StartTimer()
+		began := time.Now()
+		if err := os.WriteFile(p, src, 0o644); err != nil {
+			b.Fatal(err)
+		}
+		for shown := false; !shown; {
+			select {
+			case _, ok := <-ch:
+				if !ok {
+					b.Fatalf("save %d: the event stream ended", k)
+				}
+			case <-time.After(deadline):
+				b.Fatalf("save %d: not shown within %v", k, deadline)
+			}
+			st, body := h.get("/big.html")
+			shown = st == 200 && strings.Contains(body, want)
+		}
+		lat = append(lat, time.Since(began))
+		b.StopTimer()
+		stop()
+		time.Sleep(Quiet + MaxDelay) // let the save settle
+		b.StartTimer()
+	}
+	b.StopTimer()
+	sort.Slice(lat, func(i, j int) bool { return lat[i] < lat[j] })
+	b.ReportMetric(float64(nearestRank(lat, 50))/1e6, "p50-ms")
+	b.ReportMetric(float64(nearestRank(lat, 95))/1e6, "p95-ms")
+	b.ReportMetric(float64(lat[len(lat)-1])/1e6, "max-ms")
+}
+
+// BenchmarkEvaluate1000 is the part of the latency that is evaluation and
+// drawing: calcdoc.Parse and render.Sheet of the 1,000-statement document.
+func BenchmarkEvaluate1000(b *testing.B) {
+	src := []byte(bigDoc(1))
+	for i := 0; i < b.N; i++ {
+		doc := calcdoc.Parse("big.md", src)
+		if _, err := render.Sheet(doc, render.Options{Version: "bench", HeadExtra: liveHead("/big.html", "1")}); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
