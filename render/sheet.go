@@ -172,7 +172,7 @@ func pageCSS(fm calcdoc.FrontMatter, opt Options) string {
 		left += " rev " + fm.Revision
 	}
 	center := ""
-	if opt.Stamp != nil && opt.Stamp.SHA256 != "" {
+	if opt.Stamp != nil && len(opt.Stamp.SHA256) >= 12 {
 		center = "source sha256 " + opt.Stamp.SHA256[:12]
 	}
 	return fmt.Sprintf(`@page {

@@ -1,0 +1,311 @@
+package main
+
+import (
+	"bytes"
+	"context"
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"regexp"
+	"slices"
+	"time"
+
+	"calcdoc/calcdoc"
+	"calcdoc/render"
+	"calcdoc/render/pdf"
+
+	"go.yaml.in/yaml/v3"
+)
+
+func init() {
+	commands["package"] = (*cli).pack
+}
+
+// SpecName is the package file that a folder given as the only PATH may
+// hold.
+const specName = "package.yaml"
+
+// defaultPackage is where the package's HTML goes without -o.
+const defaultPackage = "package.html"
+
+// printPDF prints an HTML file to PDF and readPDF reads a PDF's text
+// back, page by page; the tests replace them.
+var (
+	printPDF = pdf.Print
+	readPDF  = pdf.PDFText
+)
+
+// packageSpec is a package file (YAML). Sheets are paths relative to the
+// file's folder.
+type packageSpec struct {
+	Title     string `yaml:"title"`
+	Project   string `yaml:"project"`
+	Client    string `yaml:"client"`
+	Number    string `yaml:"number"`
+	Revision  string `yaml:"revision"`
+	Date      string `yaml:"date"`
+	Prepared  string `yaml:"prepared"`
+	Checked   string `yaml:"checked"`
+	Approved  string `yaml:"approved"`
+	Paper     string `yaml:"paper"`
+	Revisions []struct {
+		Rev  string `yaml:"rev"`
+		Date string `yaml:"date"`
+		By   string `yaml:"by"`
+		Note string `yaml:"note"`
+	} `yaml:"revisions"`
+	Sheets []string `yaml:"sheets"`
+}
+
+var specDateRE = regexp.MustCompile(`^\d{4}-\d{2}-\d{2}$`)
+
+func validSpecDate(s string) bool {
+	if !specDateRE.MatchString(s) {
+		return false
+	}
+	_, err := time.Parse("2006-01-02", s)
+	return err == nil
+}
+
+// readSpec reads a package file. Every key must be known: a misspelt key
+// is an error, not a silent default.
+func readSpec(path string) (*packageSpec, error) {
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return nil, fmt.Errorf("%s: cannot read the package file: %v", path, err)
+	}
+	var spec packageSpec
+	dec := yaml.NewDecoder(bytes.NewReader(data))
+	dec.KnownFields(true)
+	if err := dec.Decode(&spec); err != nil && !errors.Is(err, io.EOF) {
+		return nil, fmt.Errorf("%s: %v (known keys: title, project, client, number, revision, date, prepared, checked, approved, paper, revisions, sheets)", path, err)
+	}
+	if spec.Date != "" && !validSpecDate(spec.Date) {
+		return nil, fmt.Errorf("%s: date %q is not a date written YYYY-MM-DD", path, spec.Date)
+	}
+	for _, r := range spec.Revisions {
+		if r.Date != "" && !validSpecDate(r.Date) {
+			return nil, fmt.Errorf("%s: revision %s: date %q is not a date written YYYY-MM-DD", path, r.Rev, r.Date)
+		}
+	}
+	if spec.Paper != "" && spec.Paper != "a4" && spec.Paper != "letter" {
+		return nil, fmt.Errorf("%s: paper %q must be a4 or letter", path, spec.Paper)
+	}
+	return &spec, nil
+}
+
+func (c *cli) pack(args []string) int {
+	fs := c.flagSet("package")
+	out := fs.String("o", "", "the package's HTML file (default "+defaultPackage+" in the current folder)")
+	pdfOut := fs.String("pdf", "", "also print the package to this PDF file with headless Chromium")
+	specPath := fs.String("spec", "", "package file (YAML): title block and the list of sheets")
+	title := fs.String("title", "", "package title")
+	project := fs.String("project", "", "project name")
+	client := fs.String("client", "", "client")
+	number := fs.String("number", "", "package number")
+	revision := fs.String("revision", "", "package revision")
+	date := fs.String("date", "", "date of the package's revision, YYYY-MM-DD")
+	paths, err := parseFlags(fs, args)
+	if err != nil {
+		return exitUsage
+	}
+	if *date != "" && !validSpecDate(*date) {
+		return c.usageErr("--date %q is not a date written YYYY-MM-DD", *date)
+	}
+
+	// the package file: --spec, or package.yaml in the one folder given
+	spec := &packageSpec{}
+	auto := false
+	if *specPath == "" && len(paths) == 1 {
+		if fi, err := os.Stat(paths[0]); err == nil && fi.IsDir() {
+			if fi, err := os.Stat(filepath.Join(paths[0], specName)); err == nil && fi.Mode().IsRegular() {
+				*specPath = filepath.Join(paths[0], specName)
+				auto = true
+			}
+		}
+	}
+	if *specPath != "" {
+		if spec, err = readSpec(*specPath); err != nil {
+			return c.usageErr("%v", err)
+		}
+	}
+	var sheetPaths []string
+	switch {
+	case len(spec.Sheets) > 0 && len(paths) > 0 && !auto:
+		return c.usageErr("%s lists the sheets: give no PATH as well", *specPath)
+	case len(spec.Sheets) > 0:
+		for _, s := range spec.Sheets {
+			if !filepath.IsAbs(s) {
+				s = filepath.Join(filepath.Dir(*specPath), s)
+			}
+			sheetPaths = append(sheetPaths, s)
+		}
+	case len(paths) == 0:
+		return c.usageErr("package needs at least one PATH, or a package file (--spec) that lists the sheets")
+	default:
+		sheetPaths = paths
+	}
+	inputs, err := calcdoc.Collect(sheetPaths)
+	if err != nil {
+		return c.usageErr("%v", err)
+	}
+	seen := map[string]string{}
+	for _, in := range inputs {
+		abs, _ := filepath.Abs(in.Path)
+		if first, dup := seen[abs]; dup {
+			return c.usageErr("%s is in the package twice (also as %s)", in.Path, first)
+		}
+		seen[abs] = in.Path
+	}
+
+	target := *out
+	if target == "" {
+		target = defaultPackage
+	}
+	for _, in := range inputs {
+		if calcdoc.SameFile(target, in.Path) || (*pdfOut != "" && calcdoc.SameFile(*pdfOut, in.Path)) {
+			return c.usageErr("refusing to write the package over its source %s", in.Path)
+		}
+	}
+	if *pdfOut != "" && calcdoc.SameFile(*pdfOut, target) {
+		return c.usageErr("--pdf %s and the HTML package are the same file", *pdfOut)
+	}
+
+	var docs []*calcdoc.Document
+	for _, in := range inputs {
+		doc, err := calcdoc.Load(in.Path)
+		if err != nil {
+			fmt.Fprintf(c.stderr, "calcdoc: %v\n", err)
+			return exitUsage
+		}
+		docs = append(docs, doc)
+	}
+
+	info := render.PackageInfo{
+		Title: pick(*title, spec.Title), Project: pick(*project, spec.Project), Client: pick(*client, spec.Client),
+		Number: pick(*number, spec.Number), Revision: pick(*revision, spec.Revision), Date: pick(*date, spec.Date),
+		Prepared: spec.Prepared, Checked: spec.Checked, Approved: spec.Approved, Paper: spec.Paper,
+	}
+	for _, r := range spec.Revisions {
+		info.Revisions = append(info.Revisions, calcdoc.Revision{Rev: r.Rev, Date: r.Date, By: r.By, Note: r.Note})
+	}
+	if info.Project == "" {
+		info.Project = common(docs, func(fm calcdoc.FrontMatter) string { return fm.Project })
+	}
+	if info.Client == "" {
+		info.Client = common(docs, func(fm calcdoc.FrontMatter) string { return fm.Client })
+	}
+	if info.Paper == "" {
+		info.Paper = docs[0].Front.Paper
+	}
+
+	st := exitOK
+	sheets := make([]render.PackageSheet, len(docs))
+	numbers := map[string]string{}
+	for i, doc := range docs {
+		c.printErrors(doc)
+		fmt.Fprintf(c.stdout, "sheet %d: %s: %s\n", i+1, doc.Path, summaryLine(doc))
+		if n := doc.Front.Number; n != "" {
+			if first, dup := numbers[n]; dup {
+				fmt.Fprintf(c.stderr, "%s: warning: document number %s is also the number of %s\n", doc.Path, n, first)
+			}
+			numbers[n] = doc.Path
+		}
+		sheets[i] = render.PackageSheet{Doc: doc, Options: sheetOptions(doc)}
+		st = status(doc, st)
+	}
+	page, err := render.Package(info, sheets, version)
+	if err != nil {
+		fmt.Fprintf(c.stderr, "calcdoc: cannot render the package: %v\n", err)
+		return exitError
+	}
+	if err := os.MkdirAll(filepath.Dir(target), 0o755); err != nil {
+		fmt.Fprintf(c.stderr, "calcdoc: %v\n", err)
+		return exitError
+	}
+	if err := calcdoc.WriteFileAtomic(target, page); err != nil {
+		fmt.Fprintf(c.stderr, "calcdoc: cannot write %s: %v\n", target, err)
+		return exitError
+	}
+	hashes := make([]string, len(sheets))
+	for i, s := range sheets {
+		hashes[i] = s.Options.Stamp.SHA256
+	}
+	fmt.Fprintf(c.stdout, "package -> %s: %d sheets, package sha256 %s\n", target, len(sheets), render.PackageHash(hashes))
+
+	if *pdfOut != "" {
+		err := c.printPackage(info, sheets, target, *pdfOut)
+		switch {
+		case errors.Is(err, pdf.ErrNoChromium):
+			fmt.Fprintf(c.stderr, "calcdoc: no PDF written: %v; the HTML package is in %s\n", err, target)
+			return max(st, exitUsage)
+		case err != nil:
+			fmt.Fprintf(c.stderr, "calcdoc: no PDF written: %v\n", err)
+			return exitError
+		}
+		fmt.Fprintf(c.stdout, "%s -> %s\n", target, *pdfOut)
+	}
+	return st
+}
+
+// printPackage prints the package's HTML file target to pdfPath. Where
+// pdftotext can read the PDF back, it finds the page on which each sheet
+// starts, writes the package again with those pages in its contents and
+// prints it once more (the contents keep room for the numbers, so no page
+// moves); otherwise the contents go without page numbers, and it says so.
+func (c *cli) printPackage(info render.PackageInfo, sheets []render.PackageSheet, target, pdfPath string) error {
+	ctx := context.Background()
+	if err := printPDF(ctx, target, pdfPath); err != nil {
+		return err
+	}
+	pages, err := readPDF(ctx, pdfPath)
+	if err != nil {
+		fmt.Fprintf(c.stderr, "calcdoc: note: the contents have no page numbers: %v\n", err)
+		return nil
+	}
+	starts, ok := render.SheetStartPages(pages, len(sheets))
+	if !ok {
+		fmt.Fprintf(c.stderr, "calcdoc: note: the contents have no page numbers: the sheets' first pages were not found in the printed text\n")
+		return nil
+	}
+	info.StartPages = starts
+	page, err := render.Package(info, sheets, version)
+	if err != nil {
+		return err
+	}
+	if err := calcdoc.WriteFileAtomic(target, page); err != nil {
+		return fmt.Errorf("cannot write %s: %v", target, err)
+	}
+	if err := printPDF(ctx, target, pdfPath); err != nil {
+		return err
+	}
+	if pages, err := readPDF(ctx, pdfPath); err == nil {
+		if again, ok := render.SheetStartPages(pages, len(sheets)); !ok || !slices.Equal(again, starts) {
+			fmt.Fprintf(c.stderr, "calcdoc: warning: the sheets moved when the contents got their page numbers: check the contents of %s\n", pdfPath)
+		}
+	}
+	return nil
+}
+
+// pick returns the first of the values that is not "".
+func pick(vals ...string) string {
+	for _, v := range vals {
+		if v != "" {
+			return v
+		}
+	}
+	return ""
+}
+
+// common returns the value every document has, or "" when they differ.
+func common(docs []*calcdoc.Document, get func(calcdoc.FrontMatter) string) string {
+	v := get(docs[0].Front)
+	for _, d := range docs[1:] {
+		if get(d.Front) != v {
+			return ""
+		}
+	}
+	return v
+}
