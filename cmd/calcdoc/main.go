@@ -45,7 +45,8 @@ usage:
 
 A PATH that is a folder means every .md file below it that holds a calc or
 solve block. Exit status: 0 all evaluated and every check holds, 1 a check
-fails, 3 a document has an error, 2 a usage error.
+fails, 3 a document has an error, 2 a usage error. verify: 0 every sheet
+matches its source, 1 one does not, 2 a usage error.
 `
 
 type cli struct {
