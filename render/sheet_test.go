@@ -214,7 +214,7 @@ func TestErrorsInPlace(t *testing.T) {
 	for _, want := range []string{
 		`<span class="at">line 2, col 7:</span> unknown unit &#34;ohms&#34;`,
 		"NOT EVALUATED</span> uses <var>a</var>",
-		`<span class="at">line 4, col 7:</span> cannot add 3 V and 2 A`,
+		`<span class="at">line 4, col 9:</span> cannot add 3 V and 2 A`,
 		"NOT FOR ISSUE: errors in the calculation",
 		"2 errors: the sheet is incomplete.",
 	} {
