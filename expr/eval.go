@@ -7,9 +7,42 @@ import (
 	"strings"
 )
 
-// Trace records the value of every node evaluated, so that a sheet can
-// show the formula with the values substituted.
-type Trace map[Node]Value
+// Trace records the value that each name, and each entry picked from a
+// matrix, had in an evaluation, so that a sheet can show the formula with
+// the values substituted. The zero Trace is empty and ready to use.
+type Trace struct {
+	nodes []Node
+	vals  []Value
+}
+
+// Value returns the value recorded for n.
+func (t *Trace) Value(n Node) (Value, bool) {
+	if t == nil {
+		return nil, false
+	}
+	for i, m := range t.nodes {
+		if m == n {
+			return t.vals[i], true
+		}
+	}
+	return nil, false
+}
+
+// Len is the number of values recorded.
+func (t *Trace) Len() int {
+	if t == nil {
+		return 0
+	}
+	return len(t.nodes)
+}
+
+func (t *Trace) record(n Node, v Value) {
+	switch n.(type) {
+	case *Ident, *Call:
+		t.nodes = append(t.nodes, n)
+		t.vals = append(t.vals, v)
+	}
+}
 
 // MaxCallDepth bounds nested user-function calls.
 const MaxCallDepth = 64
@@ -21,16 +54,17 @@ const MaxEvalSteps = 1000000
 
 type evaluator struct {
 	env    *Env
-	trace  Trace
+	trace  *Trace
 	locals map[string]Value
 	depth  int
 	steps  *int // nodes evaluated so far, shared with user-function calls
 }
 
-// Eval evaluates an expression in env. When trace is not nil, the value of
-// every node is recorded in it (nodes inside user-function bodies are not).
+// Eval evaluates an expression in env. When trace is not nil, the values of
+// the names in the expression are recorded in it (those inside
+// user-function bodies are not).
 // The error is an *Error or an *UnavailableError.
-func (e *Env) Eval(n Node, trace Trace) (Value, error) {
+func (e *Env) Eval(n Node, trace *Trace) (Value, error) {
 	steps := 0
 	ev := &evaluator{env: e, trace: trace, steps: &steps}
 	return ev.eval(n)
@@ -38,7 +72,7 @@ func (e *Env) Eval(n Node, trace Trace) (Value, error) {
 
 // EvalWith evaluates n with extra local names (the parameters of a user
 // function, a sweep variable) that hide nothing but are seen first.
-func (e *Env) EvalWith(n Node, locals map[string]Value, trace Trace) (Value, error) {
+func (e *Env) EvalWith(n Node, locals map[string]Value, trace *Trace) (Value, error) {
 	steps := 0
 	ev := &evaluator{env: e, trace: trace, locals: locals, steps: &steps}
 	return ev.eval(n)
@@ -57,7 +91,7 @@ func (ev *evaluator) eval(n Node) (Value, error) {
 			return nil, Errorf(n.Pos(), "the unit of this value has an exponent beyond ±%d: not a physical quantity", MaxExponent)
 		}
 		if ev.trace != nil {
-			ev.trace[n] = v
+			ev.trace.record(n, v)
 		}
 	}
 	return v, err

@@ -24,7 +24,7 @@ type CheckResult struct {
 const EqualTolerance = 1e-9
 
 // EvalCheck evaluates a comparison chain.
-func (e *Env) EvalCheck(c *Compare, trace Trace) (*CheckResult, error) {
+func (e *Env) EvalCheck(c *Compare, trace *Trace) (*CheckResult, error) {
 	steps := 0
 	ev := &evaluator{env: e, trace: trace, steps: &steps}
 	res := &CheckResult{Pass: true}
@@ -92,7 +92,7 @@ type Result struct {
 	Stmt  Stmt
 	Value Value        // the value of an assignment or a bare expression
 	Check *CheckResult // for a check
-	Trace Trace        // the value of every node of the statement's expression
+	Trace *Trace       // the values of the names in the statement's expression
 	Err   error        // an *Error or an *UnavailableError, or nil
 }
 
@@ -100,7 +100,7 @@ type Result struct {
 // whose definition fails is defined as unavailable, so later lines that
 // use it say so once instead of repeating the error.
 func (e *Env) Exec(s Stmt) *Result {
-	r := &Result{Stmt: s, Trace: Trace{}}
+	r := &Result{Stmt: s, Trace: &Trace{}}
 	switch s := s.(type) {
 	case *Note:
 	case *BadStmt:

@@ -143,7 +143,7 @@ func checkEngine(t *testing.T, src string) {
 	}
 	if len(ierrs) == 0 {
 		checkNode(x)
-		v, err := env.Eval(x, Trace{})
+		v, err := env.Eval(x, &Trace{})
 		checkErr(err)
 		if err == nil {
 			if derr := CheckDisplay(v, d); derr == nil {

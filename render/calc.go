@@ -13,7 +13,7 @@ func init() {
 
 // exprML returns a typesetter for a formula (subst false) or its
 // substitution (subst true) in the document's names.
-func (w *Writer) exprML(subst bool, trace expr.Trace) *ExprML {
+func (w *Writer) exprML(subst bool, trace *expr.Trace) *ExprML {
 	env := w.Doc.Env
 	return &ExprML{
 		Subst: subst, Trace: trace, Digits: w.Digits(),

@@ -164,7 +164,7 @@ func Math(content string) string {
 // every name replaced by its value (the substitution).
 type ExprML struct {
 	Subst  bool
-	Trace  expr.Trace
+	Trace  *expr.Trace
 	Digits int
 	// DisplayOf returns how a name's value is shown (its definition's
 	// display bracket), or nil.
@@ -181,75 +181,109 @@ var opML = map[expr.Kind]string{
 // Node typesets n. paren asks a substituted value to wrap itself when it
 // is complex or negative (it stands inside a product, a power, ...).
 func (m *ExprML) Node(n expr.Node, paren bool) string {
+	var b strings.Builder
+	b.Grow(256)
+	m.write(&b, n, paren)
+	return b.String()
+}
+
+func (m *ExprML) write(b *strings.Builder, n expr.Node, paren bool) {
 	switch n := n.(type) {
 	case *expr.Number:
 		if n.Imag {
-			return "<mi>j</mi><mn>" + esc(strings.TrimPrefix(n.Text, "j")) + "</mn>"
+			b.WriteString("<mi>j</mi><mn>")
+			b.WriteString(esc(strings.TrimPrefix(n.Text, "j")))
+			b.WriteString("</mn>")
+			return
 		}
-		return numLiteral(n.Text)
+		b.WriteString(numLiteral(n.Text))
 	case *expr.Ident:
 		if m.Subst {
-			if v, ok := m.Trace[n]; ok && !isConstant(n.Name) {
+			if v, ok := m.Trace.Value(n); ok && !isConstant(n.Name) {
 				var d *expr.Display
 				if m.DisplayOf != nil {
 					d = m.DisplayOf(n.Name)
 				}
-				return ValueML(v, d, m.Digits, paren)
+				b.WriteString(ValueML(v, d, m.Digits, paren))
+				return
 			}
 		}
 		if n.Name == "pi" {
-			return "<mi>π</mi>"
+			b.WriteString("<mi>π</mi>")
+			return
 		}
-		return NameML(n.Name)
+		b.WriteString(NameML(n.Name))
 	case *expr.WithUnit:
-		return "<mrow>" + m.Node(n.X, true) + unitML(n.Unit.Text) + "</mrow>"
+		b.WriteString("<mrow>")
+		m.write(b, n.X, true)
+		b.WriteString(unitML(n.Unit.Text))
+		b.WriteString("</mrow>")
 	case *expr.Unary:
-		op := "−"
 		if n.Op == expr.ADD {
-			op = "+"
+			b.WriteString("<mrow><mo>+</mo>")
+		} else {
+			b.WriteString("<mrow><mo>−</mo>")
 		}
-		return "<mrow><mo>" + op + "</mo>" + m.Node(n.X, true) + "</mrow>"
+		m.write(b, n.X, true)
+		b.WriteString("</mrow>")
 	case *expr.Paren:
-		return "<mrow><mo>(</mo>" + m.Node(n.X, false) + "<mo>)</mo></mrow>"
+		b.WriteString("<mrow><mo>(</mo>")
+		m.write(b, n.X, false)
+		b.WriteString("<mo>)</mo></mrow>")
 	case *expr.Abs:
-		return "<mrow><mo>|</mo>" + m.Node(n.X, false) + "<mo>|</mo></mrow>"
+		b.WriteString("<mrow><mo>|</mo>")
+		m.write(b, n.X, false)
+		b.WriteString("<mo>|</mo></mrow>")
 	case *expr.Binary:
 		switch n.Op {
 		case expr.DIV:
-			return "<mfrac>" + m.Node(unparen(n.X), false) + m.Node(unparen(n.Y), false) + "</mfrac>"
+			b.WriteString("<mfrac>")
+			m.write(b, unparen(n.X), false)
+			m.write(b, unparen(n.Y), false)
+			b.WriteString("</mfrac>")
+			return
 		case expr.POW:
-			return "<msup>" + m.Node(n.X, true) + m.Node(unparen(n.Y), false) + "</msup>"
-		case expr.ADD, expr.SUB:
-			return "<mrow>" + m.Node(n.X, false) + "<mo>" + opML[n.Op] + "</mo>" + m.Node(n.Y, true) + "</mrow>"
+			b.WriteString("<msup>")
+			m.write(b, n.X, true)
+			m.write(b, unparen(n.Y), false)
+			b.WriteString("</msup>")
+			return
 		}
-		return "<mrow>" + m.Node(n.X, true) + "<mo>" + opML[n.Op] + "</mo>" + m.Node(n.Y, true) + "</mrow>"
+		b.WriteString("<mrow>")
+		m.write(b, n.X, n.Op != expr.ADD && n.Op != expr.SUB)
+		b.WriteString("<mo>")
+		b.WriteString(opML[n.Op])
+		b.WriteString("</mo>")
+		m.write(b, n.Y, true)
+		b.WriteString("</mrow>")
 	case *expr.Call:
-		return m.call(n, paren)
+		m.call(b, n, paren)
 	case *expr.MatrixLit:
-		var b strings.Builder
 		b.WriteString("<mrow><mo>[</mo><mtable>")
 		for _, row := range n.Rows {
 			b.WriteString("<mtr>")
 			for _, e := range row {
-				b.WriteString("<mtd>" + m.Node(e, false) + "</mtd>")
+				b.WriteString("<mtd>")
+				m.write(b, e, false)
+				b.WriteString("</mtd>")
 			}
 			b.WriteString("</mtr>")
 		}
 		b.WriteString("</mtable><mo>]</mo></mrow>")
-		return b.String()
 	case *expr.Compare:
-		var b strings.Builder
 		b.WriteString("<mrow>")
 		for i, x := range n.X {
 			if i > 0 {
-				b.WriteString("<mo>" + opML[n.Ops[i-1]] + "</mo>")
+				b.WriteString("<mo>")
+				b.WriteString(opML[n.Ops[i-1]])
+				b.WriteString("</mo>")
 			}
-			b.WriteString(m.Node(x, false))
+			m.write(b, x, false)
 		}
 		b.WriteString("</mrow>")
-		return b.String()
+	default:
+		b.WriteString("<merror><mtext>?</mtext></merror>")
 	}
-	return "<merror><mtext>?</mtext></merror>"
 }
 
 func isConstant(name string) bool { return name == "pi" || name == "π" || name == "j" }
@@ -270,46 +304,52 @@ func numLiteral(text string) string {
 	return "<mn>" + esc(text) + "</mn>"
 }
 
-func (m *ExprML) call(n *expr.Call, paren bool) string {
-	args := make([]string, len(n.Args))
-	for i, a := range n.Args {
-		args[i] = m.Node(a, false)
-	}
+func (m *ExprML) call(b *strings.Builder, n *expr.Call, paren bool) {
 	switch n.Fun.Name {
 	case "sqrt":
-		if len(args) == 1 {
-			return "<msqrt>" + args[0] + "</msqrt>"
+		if len(n.Args) == 1 {
+			b.WriteString("<msqrt>")
+			m.write(b, n.Args[0], false)
+			b.WriteString("</msqrt>")
+			return
 		}
 	case "conj":
-		if len(args) == 1 {
-			return "<msup>" + m.Node(n.Args[0], true) + "<mo>*</mo></msup>"
+		if len(n.Args) == 1 {
+			b.WriteString("<msup>")
+			m.write(b, n.Args[0], true)
+			b.WriteString("<mo>*</mo></msup>")
+			return
 		}
 	case "abs":
-		if len(args) == 1 {
-			return "<mrow><mo>|</mo>" + args[0] + "<mo>|</mo></mrow>"
+		if len(n.Args) == 1 {
+			b.WriteString("<mrow><mo>|</mo>")
+			m.write(b, n.Args[0], false)
+			b.WriteString("<mo>|</mo></mrow>")
+			return
 		}
 	}
-	var b strings.Builder
-	b.WriteString("<mrow>")
 	if m.Subst && !expr.IsBuiltin(n.Fun.Name) && (m.IsFunc == nil || !m.IsFunc(n.Fun.Name)) {
 		// an entry of a matrix value M(i, j) shows the picked value
-		if v, ok := m.Trace[n]; ok {
-			return ValueML(v, nil, m.Digits, paren)
+		if v, ok := m.Trace.Value(n); ok {
+			b.WriteString(ValueML(v, nil, m.Digits, paren))
+			return
 		}
 	}
+	b.WriteString("<mrow>")
 	name := n.Fun.Name
 	if strings.Contains(name, "_") || len([]rune(name)) == 1 {
 		b.WriteString(NameML(name))
 	} else {
-		b.WriteString("<mi>" + esc(name) + "</mi>")
+		b.WriteString("<mi>")
+		b.WriteString(esc(name))
+		b.WriteString("</mi>")
 	}
 	b.WriteString("<mo>(</mo>")
-	for i, a := range args {
+	for i, a := range n.Args {
 		if i > 0 {
 			b.WriteString("<mo>,</mo>")
 		}
-		b.WriteString(a)
+		m.write(b, a, false)
 	}
 	b.WriteString("<mo>)</mo></mrow>")
-	return b.String()
 }
