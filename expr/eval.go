@@ -11,8 +11,12 @@ import (
 // matrix, had in an evaluation, so that a sheet can show the formula with
 // the values substituted. The zero Trace is empty and ready to use.
 type Trace struct {
-	nodes []Node
-	vals  []Value
+	entries []traceEntry
+}
+
+type traceEntry struct {
+	n Node
+	v Value
 }
 
 // Value returns the value recorded for n.
@@ -20,9 +24,9 @@ func (t *Trace) Value(n Node) (Value, bool) {
 	if t == nil {
 		return nil, false
 	}
-	for i, m := range t.nodes {
-		if m == n {
-			return t.vals[i], true
+	for _, e := range t.entries {
+		if e.n == n {
+			return e.v, true
 		}
 	}
 	return nil, false
@@ -33,14 +37,16 @@ func (t *Trace) Len() int {
 	if t == nil {
 		return 0
 	}
-	return len(t.nodes)
+	return len(t.entries)
 }
 
 func (t *Trace) record(n Node, v Value) {
 	switch n.(type) {
 	case *Ident, *Call:
-		t.nodes = append(t.nodes, n)
-		t.vals = append(t.vals, v)
+		if t.entries == nil {
+			t.entries = make([]traceEntry, 0, 8)
+		}
+		t.entries = append(t.entries, traceEntry{n, v})
 	}
 }
 

@@ -5,6 +5,7 @@ import (
 	"math"
 	"sort"
 	"strings"
+	"sync"
 )
 
 // Dim is a physical dimension: the exponents of the seven SI base
@@ -281,6 +282,21 @@ type Unit struct {
 // after a "/" is in the denominator, so "J/kg·K" is J/(kg·K) and
 // "Ω·mm²/m" is Ω·mm²·m⁻¹.
 func ParseUnit(text string) (*Unit, error) {
+	if u, ok := unitCache.Load(text); ok {
+		return u.(*Unit), nil
+	}
+	u, err := parseUnit(text)
+	if err == nil {
+		unitCache.Store(text, u)
+	}
+	return u, err
+}
+
+// unitCache holds the units parsed so far: a document writes the same few
+// units many times. A *Unit is never changed once parsed.
+var unitCache sync.Map
+
+func parseUnit(text string) (*Unit, error) {
 	u := &Unit{Text: text, Scale: 1}
 	if text == "" {
 		return nil, fmt.Errorf("empty unit")
