@@ -32,6 +32,18 @@ func (t *Trace) Value(n Node) (Value, bool) {
 	return nil, false
 }
 
+// Values returns the values recorded, in the order of evaluation.
+func (t *Trace) Values() []Value {
+	if t == nil {
+		return nil
+	}
+	out := make([]Value, len(t.entries))
+	for i, e := range t.entries {
+		out[i] = e.v
+	}
+	return out
+}
+
 // Len is the number of values recorded.
 func (t *Trace) Len() int {
 	if t == nil {

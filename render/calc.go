@@ -79,8 +79,12 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 		w.Printf("<div class=\"row note\" id=\"L%d\"><div class=\"ln\">%d</div><div class=\"txt\">%s</div></div>\n", line, line, esc(n.Text))
 		return
 	}
-	w.Printf("<div class=\"row\" id=\"L%d\"><div class=\"ln\">%d</div><div class=\"math\">", line, line)
 	res := st.Res
+	class := "row"
+	if wideRow(res) {
+		class = "row wide" // matrices: the description goes below the working
+	}
+	w.Printf("<div class=\"%s\" id=\"L%d\"><div class=\"ln\">%d</div><div class=\"math\">", class, line, line)
 	ok := len(st.Errs) == 0 && st.Unavailable == nil
 	f := w.exprML(false, nil)
 	s := w.exprML(true, res.Trace)
@@ -177,8 +181,28 @@ func joinNames(ids []*expr.Ident) string {
 	return strings.Join(s, ",")
 }
 
-// percent writes a utilisation as "87.0 %".
+// percent writes a utilisation as "87.0 %" ("below 0.1 %" for less).
 func percent(u float64) string {
+	if u < 0.001 {
+		return "below 0.1 %"
+	}
 	sh := expr.FormatScalar(expr.Real(u*100), nil, 3)
 	return sh.A + " %"
+}
+
+// wideRow reports whether a statement's working holds a matrix, which
+// needs the full width of the page.
+func wideRow(res *expr.Result) bool {
+	if res == nil {
+		return false
+	}
+	if _, ok := res.Value.(*expr.Matrix); ok {
+		return true
+	}
+	for _, v := range res.Trace.Values() {
+		if m, ok := v.(*expr.Matrix); ok && len(m.E) > 1 {
+			return true
+		}
+	}
+	return false
 }

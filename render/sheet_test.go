@@ -90,7 +90,7 @@ func TestDeterministic(t *testing.T) {
 }
 
 var (
-	rowRE    = regexp.MustCompile(`(?s)<div class="row" id="L(\d+)"><div class="ln">(\d+)</div><div class="math">(.*?)</div><div class="desc">`)
+	rowRE    = regexp.MustCompile(`(?s)<div class="row(?: wide)?" id="L(\d+)"><div class="ln">(\d+)</div><div class="math">(.*?)</div><div class="desc">`)
 	resultRE = regexp.MustCompile(`<div class="r" data-value="([^"]*)" data-line="(\d+)">`)
 )
 

@@ -36,6 +36,9 @@ ol.errlist, ul.warnlist { margin: 2pt 0 2pt 1.4em; padding: 0; }
 .block > .bhead { font-size: 7.5pt; text-transform: uppercase; letter-spacing: 0.05em; color: #444; padding: 1pt 0; border-bottom: var(--thin); }
 .row { display: grid; grid-template-columns: 8mm minmax(0, 1fr) 52mm; column-gap: 3mm; padding: 2pt 0; border-bottom: var(--thin); break-inside: avoid; page-break-inside: avoid; }
 .row:last-child { border-bottom: none; }
+.row.wide { grid-template-columns: 8mm minmax(0, 1fr); }
+.row.wide .math { overflow-x: auto; font-size: 0.92em; }
+.row.wide .desc { grid-column: 2; }
 .ln { font: 7.5pt "DejaVu Sans Mono", monospace; color: #555; text-align: right; padding-top: 2pt; border-right: var(--thin); padding-right: 2mm; }
 .math > div { margin: 1pt 0; }
 .math .s, .math .r { padding-left: 6mm; }
@@ -78,5 +81,6 @@ figure svg { max-width: 100%; height: auto; }
   body { max-width: none; margin: 0; padding: 0; border: none; }
   a { color: inherit; text-decoration: none; }
   .err, .na { border-style: solid; }
+  .row.wide .math { overflow: visible; font-size: 0.8em; }
 }
 `
