@@ -1,6 +1,7 @@
 package calcdoc
 
 import (
+	"sort"
 	"strings"
 	"unicode/utf8"
 
@@ -37,9 +38,14 @@ func init() {
 // Text returns the source between two positions of the block.
 func (b *Block) Text(from, to expr.Pos) string {
 	var parts []string
-	for i, p := range b.LinePos {
-		if p.Line < from.Line || p.Line > to.Line {
-			continue
+	// LinePos is in document order: start at the first line of the span
+	// and stop after its last, so that each statement costs its own lines
+	// only (a block of n statements costs n, not n²).
+	first := sort.Search(len(b.LinePos), func(i int) bool { return b.LinePos[i].Line >= from.Line })
+	for i := first; i < len(b.LinePos); i++ {
+		p := b.LinePos[i]
+		if p.Line > to.Line {
+			break
 		}
 		line := b.Lines[i]
 		startCol, endCol := 0, utf8.RuneCountInString(line)
@@ -67,13 +73,28 @@ func runeSlice(s string, a, b int) string {
 func EvalStatements(b *Block, stmts []expr.Stmt, errs expr.ErrorList) []*Stmt {
 	var out []*Stmt
 	attached := make([]bool, len(errs))
+	// the errors' indexes by line, so that each statement looks only at
+	// the errors on its own lines (n statements and m errors cost
+	// n·log m + m, not n·m)
+	byLine := make([]int, len(errs))
+	for i := range byLine {
+		byLine[i] = i
+	}
+	sort.SliceStable(byLine, func(i, j int) bool { return errs[byLine[i]].Pos.Line < errs[byLine[j]].Pos.Line })
+	var mine []int
 	for _, s := range stmts {
 		st := &Stmt{Stmt: s, Text: b.Text(s.Pos(), s.End())}
-		for i, e := range errs {
-			if !attached[i] && e.Pos.Line >= s.Pos().Line && e.Pos.Line <= s.End().Line {
-				st.Errs = append(st.Errs, e)
-				attached[i] = true
+		mine = mine[:0]
+		k := sort.Search(len(byLine), func(k int) bool { return errs[byLine[k]].Pos.Line >= s.Pos().Line })
+		for ; k < len(byLine) && errs[byLine[k]].Pos.Line <= s.End().Line; k++ {
+			if !attached[byLine[k]] {
+				mine = append(mine, byLine[k])
 			}
+		}
+		sort.Ints(mine) // in the order of errs, as they were reported
+		for _, i := range mine {
+			st.Errs = append(st.Errs, errs[i])
+			attached[i] = true
 		}
 		st.Res = b.Env().Exec(s)
 		if err := st.Res.Err; err != nil {

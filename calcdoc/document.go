@@ -275,8 +275,30 @@ func (d *Document) codeSpan(n *ast.CodeSpan) {
 	// position of the text after "=" (a code span's content may start after a space)
 	off := start + bytes.IndexByte(d.Text[start:], '=') + 1
 	in := &Inline{Pos: d.PosAt(off), Text: strings.TrimSpace(s[1:]), Node: n}
-	lead := len(s[1:]) - len(strings.TrimLeft(s[1:], " "))
-	src := expr.NewSource(strings.TrimSpace(s[1:]), expr.Pos{Line: in.Pos.Line, Col: in.Pos.Col + lead})
+	// The span's text, one line per segment, each at its own position
+	// (a code span may run over several lines of the paragraph).
+	var lines []string
+	var at []expr.Pos
+	for c := n.FirstChild(); c != nil; c = c.NextSibling() {
+		t, ok := c.(*ast.Text)
+		if !ok {
+			continue
+		}
+		from := t.Segment.Start
+		if len(lines) == 0 {
+			from = off
+		}
+		if from > t.Segment.Stop {
+			continue
+		}
+		line := strings.TrimRight(string(d.Text[from:t.Segment.Stop]), " \t\r\n")
+		if len(lines) == 0 {
+			lead := len(line) - len(strings.TrimLeft(line, " "))
+			line, from = line[lead:], from+lead
+		}
+		lines, at = append(lines, line), append(at, d.PosAt(from))
+	}
+	src := expr.NewSourceLines(lines, at)
 	var errs expr.ErrorList
 	x, disp := expr.ParseExpr(src, &errs)
 	if len(errs) > 0 {

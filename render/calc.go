@@ -52,23 +52,18 @@ func renderCalc(w *Writer, b *calcdoc.Block) {
 		w.Stmt(st)
 	}
 	// errors that belong to no statement
+	inStmts := map[*expr.Error]bool{}
+	for _, st := range stmts {
+		for _, x := range st.Errs {
+			inStmts[x] = true
+		}
+	}
 	for _, e := range b.Errors {
-		if !inStmts(stmts, e) {
+		if !inStmts[e] {
 			w.ErrorRow(e)
 		}
 	}
 	w.WriteString("</div>\n")
-}
-
-func inStmts(stmts []*calcdoc.Stmt, e *expr.Error) bool {
-	for _, st := range stmts {
-		for _, x := range st.Errs {
-			if x == e {
-				return true
-			}
-		}
-	}
-	return false
 }
 
 // Stmt writes one statement row: the gutter with its source line, the
