@@ -1,6 +1,7 @@
 package render
 
 import (
+	"strconv"
 	"strings"
 
 	"calcdoc/calcdoc"
@@ -24,7 +25,24 @@ func (w *Writer) exprML(subst bool, trace *expr.Trace) *ExprML {
 			return nil
 		},
 		IsFunc: func(name string) bool { return env.LookupFunc(name) != nil },
+		cache:  w.values,
 	}
+}
+
+// mathDiv writes <div class="CLASS" ATTRS><math>…</math></div> around what
+// body writes, straight into the page.
+func (w *Writer) mathDiv(class, attrs string, body func()) {
+	w.WriteString("<div class=\"")
+	w.WriteString(class)
+	w.WriteString("\"")
+	w.WriteString(attrs)
+	w.WriteString("><math display=\"inline\"><mrow>")
+	body()
+	w.WriteString("</mrow></math></div>")
+}
+
+func resultAttrs(name string, line int) string {
+	return " data-value=\"" + esc(name) + "\" data-line=\"" + strconv.Itoa(line) + "\""
 }
 
 // hasNames reports whether an expression uses any name other than a
@@ -79,7 +97,8 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 	if wideRow(res) {
 		class = "row wide" // matrices: the description goes below the working
 	}
-	w.Printf("<div class=\"%s\" id=\"L%d\"><div class=\"ln\">%d</div><div class=\"math\">", class, line, line)
+	ls := strconv.Itoa(line)
+	w.WriteString("<div class=\"" + class + "\" id=\"L" + ls + "\"><div class=\"ln\">" + ls + "</div><div class=\"math\">")
 	ok := len(st.Errs) == 0 && st.Unavailable == nil
 	f := w.exprML(false, nil)
 	s := w.exprML(true, res.Trace)
@@ -90,10 +109,17 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 			lhs = append(lhs, NameML(id.Name))
 		}
 		l := strings.Join(lhs, "<mo>,</mo>")
-		w.Printf("<div class=\"f\">%s</div>", Math(l+"<mo>=</mo>"+f.Node(x.X, false)))
+		w.mathDiv("f", "", func() {
+			w.WriteString(l)
+			w.WriteString("<mo>=</mo>")
+			f.WriteNode(&w.Buffer, x.X, false)
+		})
 		if ok && res.Value != nil {
 			if hasNames(x.X) {
-				w.Printf("<div class=\"s\">%s</div>", Math("<mo>=</mo>"+s.Node(x.X, false)))
+				w.mathDiv("s", "", func() {
+					w.WriteString("<mo>=</mo>")
+					s.WriteNode(&w.Buffer, x.X, false)
+				})
 			}
 			if len(x.Names) > 1 {
 				w.Printf("<div class=\"r\" data-value=\"%s\" data-line=\"%d\">%s</div>", esc(joinNames(x.Names)), line, Math("<mo>=</mo>"+ValueML(res.Value, x.Display, w.Digits(), false)))
@@ -108,7 +134,10 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 				if bd := w.Doc.Env.Lookup(x.Names[0].Name); bd != nil && bd.Value == res.Value {
 					disp = bd.Display
 				}
-				w.Printf("<div class=\"r\" data-value=\"%s\" data-line=\"%d\">%s</div>", esc(x.Names[0].Name), line, Math("<mo>=</mo>"+ValueML(res.Value, disp, w.Digits(), false)))
+				w.mathDiv("r", resultAttrs(x.Names[0].Name, line), func() {
+					w.WriteString("<mo>=</mo>")
+					w.WriteString(s.valueML(res.Value, disp, false))
+				})
 			}
 		}
 	case *expr.FuncDef:
@@ -130,7 +159,7 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 				if i > 0 {
 					parts = append(parts, "<mo>"+opML[x.Cmp.Ops[i-1]]+"</mo>")
 				}
-				parts = append(parts, ValueML(v, nil, w.Digits(), false))
+				parts = append(parts, s.valueML(v, nil, false))
 			}
 			verdict := "<span class=\"verdict pass\">satisfied</span>"
 			if !c.Pass {
@@ -149,10 +178,13 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 			w.Printf("<div class=\"s\" data-check=\"%d\">%s%s%s%s</div>", line, Math(strings.Join(parts, "")), verdict, util, tol)
 		}
 	case *expr.ExprStmt:
-		w.Printf("<div class=\"f\">%s</div>", Math(f.Node(x.X, false)))
+		w.mathDiv("f", "", func() { f.WriteNode(&w.Buffer, x.X, false) })
 		if ok && res.Value != nil {
 			if hasNames(x.X) {
-				w.Printf("<div class=\"s\">%s</div>", Math("<mo>=</mo>"+s.Node(x.X, false)))
+				w.mathDiv("s", "", func() {
+					w.WriteString("<mo>=</mo>")
+					s.WriteNode(&w.Buffer, x.X, false)
+				})
 			}
 			w.Printf("<div class=\"r\" data-value=\"\" data-line=\"%d\">%s</div>", line, Math("<mo>=</mo>"+ValueML(res.Value, x.Display, w.Digits(), false)))
 		}
@@ -165,7 +197,9 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 	if st.Unavailable != nil {
 		w.UnavailableRow(st.Unavailable)
 	}
-	w.Printf("</div><div class=\"desc\">%s</div></div>\n", esc(st.Stmt.Desc()))
+	w.WriteString("</div><div class=\"desc\">")
+	w.WriteString(esc(st.Stmt.Desc()))
+	w.WriteString("</div></div>\n")
 }
 
 func joinNames(ids []*expr.Ident) string {

@@ -171,6 +171,39 @@ type ExprML struct {
 	DisplayOf func(name string) *expr.Display
 	// IsFunc reports whether a name is a user function (not a matrix value).
 	IsFunc func(name string) bool
+	// cache holds values already typeset on this sheet (a name's value is
+	// shown on every line that uses it).
+	cache map[valueKey]string
+}
+
+type valueKey struct {
+	v      expr.Value
+	d      *expr.Display
+	digits int
+	paren  bool
+}
+
+// stringWriter is what typesetting writes into: a strings.Builder or the
+// page's bytes.Buffer.
+type stringWriter interface {
+	WriteString(s string) (int, error)
+}
+
+// WriteNode typesets n straight into b.
+func (m *ExprML) WriteNode(b stringWriter, n expr.Node, paren bool) { m.write(b, n, paren) }
+
+// valueML is ValueML through the sheet's cache.
+func (m *ExprML) valueML(v expr.Value, d *expr.Display, paren bool) string {
+	if m.cache == nil {
+		return ValueML(v, d, m.Digits, paren)
+	}
+	k := valueKey{v, d, m.Digits, paren}
+	if s, ok := m.cache[k]; ok {
+		return s
+	}
+	s := ValueML(v, d, m.Digits, paren)
+	m.cache[k] = s
+	return s
 }
 
 var opML = map[expr.Kind]string{
@@ -187,7 +220,7 @@ func (m *ExprML) Node(n expr.Node, paren bool) string {
 	return b.String()
 }
 
-func (m *ExprML) write(b *strings.Builder, n expr.Node, paren bool) {
+func (m *ExprML) write(b stringWriter, n expr.Node, paren bool) {
 	switch n := n.(type) {
 	case *expr.Number:
 		if n.Imag {
@@ -204,7 +237,7 @@ func (m *ExprML) write(b *strings.Builder, n expr.Node, paren bool) {
 				if m.DisplayOf != nil {
 					d = m.DisplayOf(n.Name)
 				}
-				b.WriteString(ValueML(v, d, m.Digits, paren))
+				b.WriteString(m.valueML(v, d, paren))
 				return
 			}
 		}
@@ -304,7 +337,7 @@ func numLiteral(text string) string {
 	return "<mn>" + esc(text) + "</mn>"
 }
 
-func (m *ExprML) call(b *strings.Builder, n *expr.Call, paren bool) {
+func (m *ExprML) call(b stringWriter, n *expr.Call, paren bool) {
 	switch n.Fun.Name {
 	case "sqrt":
 		if len(n.Args) == 1 {
@@ -331,7 +364,7 @@ func (m *ExprML) call(b *strings.Builder, n *expr.Call, paren bool) {
 	if m.Subst && !expr.IsBuiltin(n.Fun.Name) && (m.IsFunc == nil || !m.IsFunc(n.Fun.Name)) {
 		// an entry of a matrix value M(i, j) shows the picked value
 		if v, ok := m.Trace.Value(n); ok {
-			b.WriteString(ValueML(v, nil, m.Digits, paren))
+			b.WriteString(m.valueML(v, nil, paren))
 			return
 		}
 	}

@@ -61,6 +61,7 @@ type Writer struct {
 	// Appendix collects sections drawn at the end of the sheet (large
 	// matrices of a solve block).
 	Appendix bytes.Buffer
+	values   map[valueKey]string
 }
 
 // Digits is the number of significant figures of the document.
@@ -83,7 +84,7 @@ func (w *Writer) UnavailableRow(u *expr.UnavailableError) {
 
 // Sheet writes the HTML sheet of a document.
 func Sheet(doc *calcdoc.Document, opt Options) ([]byte, error) {
-	w := &Writer{Doc: doc}
+	w := &Writer{Doc: doc, values: map[valueKey]string{}}
 	// a sheet is about fifteen times its source: grow once, not by doubling
 	w.Grow(64<<10 + 20*len(doc.Source))
 	fm := doc.Front

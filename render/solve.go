@@ -311,8 +311,6 @@ func partPrefix(p calcdoc.Part) string {
 	return ""
 }
 
-type stringWriter interface{ WriteString(string) (int, error) }
-
 // systemTable writes A and b as a table: a row per equation (or part), a
 // column per unknown (or part), then b. Entries carry their units; an
 // exact zero is written 0. mathML selects MathML entries (in place) or
