@@ -3,6 +3,9 @@ package render
 import (
 	"html"
 	"strings"
+	"sync"
+	"sync/atomic"
+	"unicode/utf8"
 
 	"calcdoc/expr"
 )
@@ -29,6 +32,26 @@ func esc(s string) string { return html.EscapeString(s) }
 // NameML typesets a name: the first "_" starts a subscript, spelled Greek
 // names become letters.
 func NameML(name string) string {
+	if v, ok := nameCache.Load(name); ok {
+		return v.(string)
+	}
+	out := nameML(name)
+	if cacheSize.Add(1) < maxCached {
+		nameCache.Store(name, out)
+	}
+	return out
+}
+
+// Typeset names and units are kept: a sheet writes the same few many
+// times. The caches are bounded, for a long-running preview.
+var (
+	nameCache, unitCache sync.Map
+	cacheSize            atomic.Int64
+)
+
+const maxCached = 50000
+
+func nameML(name string) string {
 	base, sub, hasSub := strings.Cut(name, "_")
 	b := "<mi>" + esc(greekOf(base)) + "</mi>"
 	if !hasSub || sub == "" {
@@ -89,6 +112,17 @@ func unitText(u string) string {
 }
 
 func unitML(u string) string {
+	if v, ok := unitCache.Load(u); ok {
+		return v.(string)
+	}
+	out := unitML1(u)
+	if cacheSize.Add(1) < maxCached {
+		unitCache.Store(u, out)
+	}
+	return out
+}
+
+func unitML1(u string) string {
 	if u == "" {
 		return ""
 	}
@@ -370,7 +404,7 @@ func (m *ExprML) call(b stringWriter, n *expr.Call, paren bool) {
 	}
 	b.WriteString("<mrow>")
 	name := n.Fun.Name
-	if strings.Contains(name, "_") || len([]rune(name)) == 1 {
+	if strings.Contains(name, "_") || utf8.RuneCountInString(name) == 1 {
 		b.WriteString(NameML(name))
 	} else {
 		b.WriteString("<mi>")
