@@ -60,11 +60,35 @@ func (b *Block) Text(from, to expr.Pos) string {
 	return strings.Join(parts, "\n")
 }
 
+// runeSlice is s[a:b] counted in characters, not bytes.
 func runeSlice(s string, a, b int) string {
-	r := []rune(s)
-	a = max(0, min(a, len(r)))
-	b = max(a, min(b, len(r)))
-	return string(r[a:b])
+	if a < 0 {
+		a = 0
+	}
+	if b < a {
+		b = a
+	}
+	i, n := 0, 0
+	start, end := len(s), len(s)
+	for i <= len(s) {
+		if n == a {
+			start = i
+		}
+		if n == b {
+			end = i
+			break
+		}
+		if i == len(s) {
+			break
+		}
+		_, w := utf8.DecodeRuneInString(s[i:])
+		i += w
+		n++
+	}
+	if start > end {
+		start = end
+	}
+	return s[start:end]
 }
 
 // EvalStatements runs parsed statements of a block in its environment and
@@ -72,30 +96,9 @@ func runeSlice(s string, a, b int) string {
 // the statements they fall in.
 func EvalStatements(b *Block, stmts []expr.Stmt, errs expr.ErrorList) []*Stmt {
 	var out []*Stmt
-	attached := make([]bool, len(errs))
-	// the errors' indexes by line, so that each statement looks only at
-	// the errors on its own lines (n statements and m errors cost
-	// n·log m + m, not n·m)
-	byLine := make([]int, len(errs))
-	for i := range byLine {
-		byLine[i] = i
-	}
-	sort.SliceStable(byLine, func(i, j int) bool { return errs[byLine[i]].Pos.Line < errs[byLine[j]].Pos.Line })
-	var mine []int
-	for _, s := range stmts {
-		st := &Stmt{Stmt: s, Text: b.Text(s.Pos(), s.End())}
-		mine = mine[:0]
-		k := sort.Search(len(byLine), func(k int) bool { return errs[byLine[k]].Pos.Line >= s.Pos().Line })
-		for ; k < len(byLine) && errs[byLine[k]].Pos.Line <= s.End().Line; k++ {
-			if !attached[byLine[k]] {
-				mine = append(mine, byLine[k])
-			}
-		}
-		sort.Ints(mine) // in the order of errs, as they were reported
-		for _, i := range mine {
-			st.Errs = append(st.Errs, errs[i])
-			attached[i] = true
-		}
+	per, rest := errorsOf(stmts, errs)
+	for k, s := range stmts {
+		st := &Stmt{Stmt: s, Text: b.Text(s.Pos(), s.End()), Errs: per[k]}
 		st.Res = b.Env().Exec(s)
 		if err := st.Res.Err; err != nil {
 			switch e := err.(type) {
@@ -127,12 +130,43 @@ func EvalStatements(b *Block, stmts []expr.Stmt, errs expr.ErrorList) []*Stmt {
 		b.Errors = append(b.Errors, st.Errs...)
 		out = append(out, st)
 	}
-	for i, e := range errs {
-		if !attached[i] {
-			b.Errors = append(b.Errors, e)
+	b.Errors = append(b.Errors, rest...)
+	return out
+}
+
+// errorsOf hands each error of errs to the first statement whose lines
+// hold it: per[k] are the errors of stmts[k], in the order of errs, and
+// rest those on no statement's lines. The errors are found by line, so n
+// statements and m errors cost O((n + m)·log m), not n·m.
+func errorsOf(stmts []expr.Stmt, errs expr.ErrorList) (per [][]*expr.Error, rest []*expr.Error) {
+	byLine := make([]int, len(errs))
+	for i := range byLine {
+		byLine[i] = i
+	}
+	sort.SliceStable(byLine, func(i, j int) bool { return errs[byLine[i]].Pos.Line < errs[byLine[j]].Pos.Line })
+	attached := make([]bool, len(errs))
+	per = make([][]*expr.Error, len(stmts))
+	var mine []int
+	for k, s := range stmts {
+		mine = mine[:0]
+		j := sort.Search(len(byLine), func(j int) bool { return errs[byLine[j]].Pos.Line >= s.Pos().Line })
+		for ; j < len(byLine) && errs[byLine[j]].Pos.Line <= s.End().Line; j++ {
+			if !attached[byLine[j]] {
+				mine = append(mine, byLine[j])
+			}
+		}
+		sort.Ints(mine)
+		for _, i := range mine {
+			per[k] = append(per[k], errs[i])
+			attached[i] = true
 		}
 	}
-	return out
+	for i, e := range errs {
+		if !attached[i] {
+			rest = append(rest, e)
+		}
+	}
+	return per, rest
 }
 
 func evalCalc(b *Block) {
