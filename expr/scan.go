@@ -173,9 +173,9 @@ const (
 // (an illegal character, a number out of range) are added to errs and
 // scanning goes on.
 func Scan(src *Source, errs *ErrorList) []Token {
-	// about one token for every three bytes of a calc block: room for
+	// about one token for every four bytes of a calc block: room for
 	// them all at once instead of growing (and copying) the slice
-	sc := scanner{src: src, text: src.Text, errs: errs, toks: make([]Token, 0, len(src.Text)/2+8)}
+	sc := scanner{src: src, text: src.Text, errs: errs, toks: make([]Token, 0, len(src.Text)/4+8)}
 	return sc.run()
 }
 
