@@ -15,18 +15,26 @@ func init() {
 // exprML returns a typesetter for a formula (subst false) or its
 // substitution (subst true) in the document's names.
 func (w *Writer) exprML(subst bool, trace *expr.Trace) *ExprML {
-	env := w.Doc.Env
-	return &ExprML{
-		Subst: subst, Trace: trace, Digits: w.Digits(),
-		DisplayOf: func(name string) *expr.Display {
+	if w.typesetters[0] == nil {
+		env := w.Doc.Env
+		displayOf := func(name string) *expr.Display {
 			if b := env.Lookup(name); b != nil {
 				return b.Display
 			}
 			return nil
-		},
-		IsFunc: func(name string) bool { return env.LookupFunc(name) != nil },
-		cache:  w.values,
+		}
+		isFunc := func(name string) bool { return env.LookupFunc(name) != nil }
+		for i := range w.typesetters {
+			w.typesetters[i] = &ExprML{Subst: i == 1, Digits: w.Digits(), DisplayOf: displayOf, IsFunc: isFunc, cache: w.values}
+		}
 	}
+	// one typesetter of each kind per sheet, pointed at this trace
+	m := w.typesetters[0]
+	if subst {
+		m = w.typesetters[1]
+	}
+	m.Trace = trace
+	return m
 }
 
 // mathDiv writes <div class="CLASS" ATTRS><math>…</math></div> around what

@@ -62,6 +62,8 @@ type Writer struct {
 	// matrices of a solve block).
 	Appendix bytes.Buffer
 	values   map[valueKey]string
+	// typesetters are the formula and substitution typesetters of calc rows
+	typesetters [2]*ExprML
 }
 
 // Digits is the number of significant figures of the document.

@@ -1,6 +1,7 @@
 package render
 
 import (
+	"bytes"
 	"encoding/base64"
 	"unicode/utf8"
 
@@ -91,11 +92,43 @@ const SourceID = "calcdoc-source"
 // <pre>, never a script) and escaped, so that verify can recover it byte
 // for byte. A source that is not valid UTF-8 is carried as base64.
 func embedSource(w *Writer, doc *calcdoc.Document) {
-	enc, body := "text", esc(string(doc.Source))
-	if !utf8.Valid(doc.Source) {
-		enc, body = "base64", base64.StdEncoding.EncodeToString(doc.Source)
+	text := utf8.Valid(doc.Source)
+	enc := "text"
+	if !text {
+		enc = "base64"
 	}
 	w.Printf("<pre hidden id=\"%s\" data-path=\"%s\" data-encoding=\"%s\" data-sha256=\"%s\">", SourceID, esc(doc.Path), enc, stamp.Hash(doc.Source))
-	w.WriteString(body)
+	if text {
+		escapeInto(&w.Buffer, doc.Source)
+	} else {
+		w.WriteString(base64.StdEncoding.EncodeToString(doc.Source))
+	}
 	w.WriteString("</pre>\n")
+}
+
+// escapeInto writes b escaped exactly as html.EscapeString would (& < > '
+// " become &amp; &lt; &gt; &#39; &#34;), without a copy of the whole text.
+func escapeInto(w *bytes.Buffer, b []byte) {
+	last := 0
+	for i, c := range b {
+		var r string
+		switch c {
+		case '&':
+			r = "&amp;"
+		case '<':
+			r = "&lt;"
+		case '>':
+			r = "&gt;"
+		case '\'':
+			r = "&#39;"
+		case '"':
+			r = "&#34;"
+		default:
+			continue
+		}
+		w.Write(b[last:i])
+		w.WriteString(r)
+		last = i + 1
+	}
+	w.Write(b[last:])
 }
