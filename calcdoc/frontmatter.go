@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"regexp"
 	"time"
+	"unicode/utf8"
 
 	"calcdoc/expr"
 
@@ -67,6 +68,46 @@ func splitFrontMatter(src []byte) (yamlText []byte, lines int, ok bool) {
 	return nil, n, false
 }
 
+// yamlPos converts a position of the YAML parser in the front matter's
+// text (line and column from 1; a YAML line ends at \r\n, \r, \n, NEL, LS
+// or PS, and a column counts characters) into the position in the .md
+// file, whose lines end at \n only; the text starts on line 2. A column
+// past the end of its line is taken as the end of the line.
+func yamlPos(text []byte, line, col int) expr.Pos {
+	off := 0
+	for l := 1; l < line && off < len(text); {
+		if n := yamlBreak(text, off); n > 0 {
+			off += n
+			l++
+		} else {
+			_, w := utf8.DecodeRune(text[off:])
+			off += w
+		}
+	}
+	for c := 1; c < col && off < len(text) && yamlBreak(text, off) == 0; c++ {
+		_, w := utf8.DecodeRune(text[off:])
+		off += w
+	}
+	start := bytes.LastIndexByte(text[:off], '\n') + 1
+	return expr.Pos{Line: 2 + bytes.Count(text[:off], []byte{'\n'}), Col: utf8.RuneCount(text[start:off]) + 1}
+}
+
+// yamlBreak returns the length in bytes of the YAML line break at text[i],
+// or 0.
+func yamlBreak(text []byte, i int) int {
+	switch b := text[i:]; {
+	case bytes.HasPrefix(b, []byte("\r\n")):
+		return 2
+	case b[0] == '\r' || b[0] == '\n':
+		return 1
+	case bytes.HasPrefix(b, []byte("\u0085")):
+		return 2
+	case bytes.HasPrefix(b, []byte("\u2028")) || bytes.HasPrefix(b, []byte("\u2029")):
+		return 3
+	}
+	return 0
+}
+
 // parseFrontMatter reads the YAML of the front matter. Line numbers in its
 // errors are lines of the .md file (the YAML starts on line 2).
 func parseFrontMatter(text []byte, fm *FrontMatter, errs, warns *expr.ErrorList) {
@@ -81,10 +122,10 @@ func parseFrontMatter(text []byte, fm *FrontMatter, errs, warns *expr.ErrorList)
 	}
 	m := root.Content[0]
 	if m.Kind != yaml.MappingNode {
-		errs.Add(expr.Pos{Line: m.Line + 1, Col: m.Column}, "front matter must be a list of key: value lines")
+		errs.Add(yamlPos(text, m.Line, m.Column), "front matter must be a list of key: value lines")
 		return
 	}
-	pos := func(n *yaml.Node) expr.Pos { return expr.Pos{Line: n.Line + 1, Col: n.Column} }
+	pos := func(n *yaml.Node) expr.Pos { return yamlPos(text, n.Line, n.Column) }
 	str := func(k, v *yaml.Node) string {
 		if v.Kind != yaml.ScalarNode {
 			errs.Add(pos(v), fmt.Sprintf("front matter key %q needs a single value", k.Value))

@@ -74,6 +74,16 @@ const (
 	// exp(x) = 0 at a large negative x), which a residual test alone would
 	// accept.
 	SolveAcceptTol = 1e-9
+
+	// MaxSolveUnknowns is the largest number of real unknowns of one solve
+	// block, a complex unknown counting two: 1000, such as 500 complex
+	// unknowns. The solver works on the full (dense) matrix of the set:
+	// the direct solution factors the n×n matrix (about 2n³/3 operations,
+	// 6.7·10⁸ at n = 1000), a Newton iteration does so at every step, and
+	// a singular set is diagnosed from a singular value decomposition,
+	// several times dearer; memory grows as n². A larger set is refused
+	// before any of this is done, with an error at the list of unknowns.
+	MaxSolveUnknowns = 1000
 )
 
 // Unknown is one unknown of a solve block, as its info string lists it.
@@ -377,14 +387,14 @@ func ParseSolveHeader(arg string, pos expr.Pos) ([]*Unknown, expr.ErrorList) {
 	seen := map[string]*Unknown{}
 	for _, p := range parts {
 		u, err := parseUnknown(rs, p.a, p.b, at)
-		if err != nil {
-			errs = append(errs, err...)
+		for _, e := range err {
+			errs.Add(e.Pos, e.Msg)
 		}
 		if u == nil {
 			continue
 		}
 		if prev := seen[u.Name]; prev != nil {
-			errs = append(errs, expr.Errorf(u.Pos, "%s is listed twice among the unknowns (first at column %d)", u.Name, prev.Pos.Col))
+			errs.Add(u.Pos, fmt.Sprintf("%s is listed twice among the unknowns (first at column %d)", u.Name, prev.Pos.Col))
 			continue
 		}
 		seen[u.Name] = u
@@ -595,20 +605,17 @@ func (r *solveRun) prepare() bool {
 	// the equations, read whatever the header says, so they are shown
 	var perrs expr.ErrorList
 	stmts := expr.ParseBlock(b.Source(), expr.EquationMode, &perrs)
-	attached := make([]bool, len(perrs))
+	per, rest := errorsOf(stmts, perrs)
 	labels := map[string]*SolveEquation{}
-	for _, s := range stmts {
+	for k, s := range stmts {
 		l := &SolveLine{Stmt: s}
 		if _, bad := s.(*expr.BadStmt); bad {
 			l.Text = b.Text(s.Pos(), s.End())
 		}
-		for i, e := range perrs {
-			if !attached[i] && e.Pos.Line >= s.Pos().Line && e.Pos.Line <= s.End().Line {
-				l.Errs = append(l.Errs, e)
-				b.Errors = append(b.Errors, e)
-				attached[i] = true
-				ok = false
-			}
+		for _, e := range per[k] {
+			l.Errs = append(l.Errs, e)
+			b.Errors = append(b.Errors, e)
+			ok = false
 		}
 		switch s := s.(type) {
 		case *expr.Equation:
@@ -631,11 +638,9 @@ func (r *solveRun) prepare() bool {
 		}
 		set.Lines = append(set.Lines, l)
 	}
-	for i, e := range perrs {
-		if !attached[i] {
-			r.headerErr(e)
-			ok = false
-		}
+	for _, e := range rest {
+		r.headerErr(e)
+		ok = false
 	}
 	if len(set.Equations) == 0 && ok {
 		r.setErr(r.setPos(), "the solve block has no equations: write one equation a line, lhs = rhs (optionally label: lhs = rhs)")
@@ -775,6 +780,17 @@ func (r *solveRun) prepare() bool {
 			r.pairs = append(r.pairs, r.n, r.n+1)
 			r.n += 2
 		}
+	}
+
+	if r.n > MaxSolveUnknowns {
+		cu := (r.n - len(unk)) // each complex unknown adds one to the count of unknowns
+		kinds := fmt.Sprintf("%d complex", cu)
+		if ru := len(unk) - cu; ru > 0 {
+			kinds += fmt.Sprintf(" and %d real", ru)
+		}
+		r.setErr(r.setPos(), "the set has %d real unknowns (%s), but a solve block takes at most %d (such as %d complex unknowns): the solver works on the full matrix of the set, and its time grows as the cube of the count. Split the network into blocks of at most %d complex unknowns, e.g. reduce each part to an equivalent (Thévenin or Norton) at the nodes where it joins the rest and solve the joined equivalents in a further block",
+			r.n, kinds, MaxSolveUnknowns, MaxSolveUnknowns/2, MaxSolveUnknowns/2)
+		return false
 	}
 
 	// dimensions, at the generic point: no unknown zero, no two alike

@@ -450,18 +450,12 @@ func sweepEnd(b *Block, sw *Sweep, what, text string, off int) (sweepEndValue, b
 // parse errors, rejects statements a sweep does not take, checks the
 // names the block defines and finds each line's dependencies.
 func prepareSweepLines(b *Block, sw *Sweep, stmts []expr.Stmt, errs expr.ErrorList, headerOK bool) {
-	attached := make([]bool, len(errs))
+	per, rest := errorsOf(stmts, errs)
 	local := map[string]int{} // name -> line index
-	for _, s := range stmts {
-		l := &SweepLine{Stmt: s, Text: b.Text(s.Pos(), s.End())}
+	for k, s := range stmts {
+		l := &SweepLine{Stmt: s, Text: b.Text(s.Pos(), s.End()), Errs: per[k]}
 		idx := len(sw.Lines)
 		sw.Lines = append(sw.Lines, l)
-		for i, e := range errs {
-			if !attached[i] && e.Pos.Line >= s.Pos().Line && e.Pos.Line <= s.End().Line {
-				l.Errs = append(l.Errs, e)
-				attached[i] = true
-			}
-		}
 		switch st := s.(type) {
 		case *expr.Note:
 		case *expr.Assign:
@@ -525,11 +519,7 @@ func prepareSweepLines(b *Block, sw *Sweep, stmts []expr.Stmt, errs expr.ErrorLi
 			})
 		}
 	}
-	for i, e := range errs {
-		if !attached[i] {
-			b.Errors = append(b.Errors, e)
-		}
-	}
+	b.Errors = append(b.Errors, rest...)
 }
 
 // runSweep evaluates every line at every point. The sweep variable and the

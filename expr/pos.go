@@ -50,8 +50,24 @@ func Errorf(pos Pos, format string, args ...any) *Error {
 // ErrorList is a list of errors, sorted by position with Sort.
 type ErrorList []*Error
 
-// Add appends an error.
-func (l *ErrorList) Add(pos Pos, msg string) { *l = append(*l, &Error{Pos: pos, Msg: msg}) }
+// MaxErrors is the largest number of errors a list takes through Add, so
+// that one reading (of a block, an expression or the front matter) of a
+// long line of characters outside the language costs no more than its
+// length and is reported on a sheet of a readable size.
+const MaxErrors = 100
+
+// Add appends an error to a list of fewer than MaxErrors errors (however
+// they were put there). The error that would be the list's MaxErrors+1st
+// is replaced by one, at its position, saying that the rest are not
+// reported; later ones are dropped.
+func (l *ErrorList) Add(pos Pos, msg string) {
+	switch n := len(*l); {
+	case n < MaxErrors:
+		*l = append(*l, &Error{Pos: pos, Msg: msg})
+	case n == MaxErrors:
+		*l = append(*l, &Error{Pos: pos, Msg: fmt.Sprintf("more than %d errors here: the rest are not reported (correct these first)", MaxErrors)})
+	}
+}
 
 // Sort orders the list by position; errors at the same position keep their order.
 func (l ErrorList) Sort() {
