@@ -311,7 +311,9 @@ func (n *nodes) fenced(out util.BufWriter, src []byte, node ast.Node, entering b
 	fc := node.(*ast.FencedCodeBlock)
 	lang := ""
 	if fc.Info != nil {
-		lang = strings.Fields(string(fc.Info.Segment.Value(src)) + " ")[0]
+		if f := strings.Fields(string(fc.Info.Segment.Value(src))); len(f) > 0 {
+			lang = f[0] // an info string of white space only (a form feed, say) has none
+		}
 	}
 	w.WriteString("<pre class=\"code\"")
 	if lang != "" {
