@@ -51,6 +51,11 @@ const (
 	MaxDelay = 100 * time.Millisecond
 )
 
+// Retry is how often the folder of a PATH that went away (deleted, or
+// moved elsewhere) is looked for again. Once it is back it is watched
+// again and its documents are read, as at the start.
+const Retry = 250 * time.Millisecond
+
 // MaxSize is the largest document read; a larger file is reported as one
 // that cannot be read.
 const MaxSize = 32 << 20
@@ -99,6 +104,7 @@ type root struct {
 	given string // as given
 	dir   string // the folder watched: absolute, symbolic links resolved
 	file  string // a file PATH: its file's name in dir; "" for a folder
+	lost  bool   // dir went away; looked for every Retry
 }
 
 // Watcher watches the PATHs of a Config and holds the served pages.
@@ -112,6 +118,7 @@ type Watcher struct {
 
 	// Owned by the goroutine that runs New and then Run.
 	watched  map[string]bool            // folders being watched
+	cannot   map[string]string          // folders that could not be watched: the error said
 	pending  map[string]bool            // files to read again at the next rebuild
 	newDirs  map[string]bool            // folders to start watching at the next rebuild
 	shadow   map[string]map[string]bool // address → files kept from it by another file
@@ -166,6 +173,7 @@ func New(cfg Config) (*Watcher, error) {
 		log:     cfg.Log,
 		boot:    strconv.FormatInt(time.Now().UnixNano(), 36),
 		watched: map[string]bool{},
+		cannot:  map[string]string{},
 		pending: map[string]bool{},
 		newDirs: map[string]bool{},
 		shadow:  map[string]map[string]bool{},
@@ -227,6 +235,9 @@ func New(cfg Config) (*Watcher, error) {
 			w.addTree(r.dir)
 		}
 	}
+	for _, r := range w.roots {
+		r.lost = !w.watched[r.dir] // gone meanwhile, or cannot be watched: tried again every Retry
+	}
 	w.flush()
 	return w, nil
 }
@@ -249,12 +260,19 @@ func (w *Watcher) Run(ctx context.Context) error {
 	defer w.Close()
 	timer := time.NewTimer(time.Hour)
 	timer.Stop()
+	retry := time.NewTicker(Retry)
+	defer retry.Stop()
 	var first time.Time
 	if len(w.pending) > 0 {
 		timer.Reset(Quiet)
 	}
 	for {
 		select {
+		case <-retry.C:
+			if w.recover() && first.IsZero() {
+				first = time.Now()
+				timer.Reset(Quiet)
+			}
 		case <-ctx.Done():
 			return nil
 		case <-w.done:
@@ -308,22 +326,27 @@ func (w *Watcher) event(ev fsnotify.Event) bool {
 				queued = true
 			}
 		}
+		for _, r := range w.roots {
+			if !r.lost && !w.watched[r.dir] && (r.dir == name || within(r.dir, name)) {
+				r.lost = true
+				w.logf("%s: its folder is gone; watching for it to come back", r.given)
+			}
+		}
 		for _, f := range w.filesUnder(name) {
 			w.pending[f] = true
 			queued = true
 		}
 	}
 	if ev.Has(fsnotify.Create) {
-		if fi, err := os.Lstat(name); err == nil && fi.IsDir() {
-			if w.wantsDir(name) {
-				// Watched at the rebuild, once the kernel's events for a
-				// folder moved here have all been handled.
-				w.newDirs[name] = true
-				return true
-			}
-			return queued
+		if fi, err := os.Lstat(name); err == nil && fi.IsDir() && w.wantsDir(name) {
+			// Watched at the rebuild, once the kernel's events for a
+			// folder moved here have all been handled.
+			w.newDirs[name] = true
+			queued = true
 		}
 	}
+	// A name of a document is read again whatever it now is: a folder or
+	// a named pipe in place of a document is reported as such.
 	if filepath.Ext(name) == ".md" {
 		if _, _, ok := w.claim(name); ok {
 			w.pending[name] = true
@@ -430,9 +453,13 @@ func (w *Watcher) addWatch(dir string) {
 		return
 	}
 	if err := w.fsw.Add(dir); err != nil {
-		w.logf("cannot watch %s: %v; changes in it will not be seen", dir, err)
+		if msg := err.Error(); w.cannot[dir] != msg { // said once, not at every Retry
+			w.cannot[dir] = msg
+			w.logf("cannot watch %s: %v; changes in it will not be seen", dir, err)
+		}
 		return
 	}
+	delete(w.cannot, dir)
 	w.watched[dir] = true
 }
 
@@ -455,6 +482,48 @@ func (w *Watcher) addTree(dir string) {
 		}
 		return nil
 	})
+}
+
+// recover watches again the folder of each PATH that went away and is
+// back (a folder again, not a symbolic link), and queues its documents. It
+// reports whether it queued anything.
+func (w *Watcher) recover() bool {
+	queued := false
+	for _, r := range w.roots {
+		if !r.lost || w.watched[r.dir] {
+			continue
+		}
+		fi, err := os.Lstat(r.dir)
+		if err != nil || !fi.IsDir() {
+			continue
+		}
+		if real, err := filepath.EvalSymlinks(r.dir); err != nil || real != r.dir {
+			continue
+		}
+		if r.file != "" {
+			w.addWatch(r.dir)
+			w.pending[filepath.Join(r.dir, r.file)] = true
+		} else {
+			w.addTree(r.dir)
+		}
+		if !w.watched[r.dir] {
+			continue // cannot be watched (said by addWatch): tried again at the next Retry
+		}
+		r.lost = false
+		w.logf("%s: its folder is back; watching it again", r.given)
+		queued = true
+	}
+	// other PATHs in the same folder come back with it
+	for _, r := range w.roots {
+		if r.lost && w.watched[r.dir] {
+			r.lost = false
+			if r.file != "" {
+				w.pending[filepath.Join(r.dir, r.file)] = true
+			}
+			queued = true
+		}
+	}
+	return queued
 }
 
 // rescan queues every file under every PATH, and every document known.
@@ -519,13 +588,15 @@ const (
 	readOK readKind = iota
 	readAbsent
 	readFailed
-	readRaced // replaced while being opened: read again at the next rebuild
+	readRaced     // replaced while being opened: read again at the next rebuild
+	readIrregular // not a regular file (a folder, a named pipe, a symbolic link): never opened
 )
 
-// read reads a document's file. It refuses (as absent) a file that is not
-// a regular file, such as a symbolic link, or whose folder is no longer
-// the folder watched (a folder on the way replaced by a symbolic link),
-// so that nothing outside the watched folders is ever read.
+// read reads a document's file. It never opens a file that is not a
+// regular file, such as a symbolic link or a named pipe (readIrregular,
+// with what it is), and refuses (as absent) a file whose folder is no
+// longer the folder watched (a folder on the way replaced by a symbolic
+// link), so that nothing outside the watched folders is ever read.
 func (w *Watcher) read(r *root, file string) ([]byte, readKind, string) {
 	dir := filepath.Dir(file)
 	if real, err := filepath.EvalSymlinks(dir); err != nil || real != dir {
@@ -539,9 +610,9 @@ func (w *Watcher) read(r *root, file string) ([]byte, readKind, string) {
 		return nil, readFailed, err.Error()
 	}
 	if !fi.Mode().IsRegular() {
-		return nil, readAbsent, "not a regular file"
+		return nil, readIrregular, "it is " + fileKind(fi.Mode()) + ", not a regular file"
 	}
-	f, err := os.Open(file)
+	f, err := openDoc(file)
 	if errors.Is(err, fs.ErrNotExist) {
 		return nil, readAbsent, "deleted"
 	}
@@ -585,6 +656,15 @@ func (w *Watcher) rebuild(file string) bool {
 	if kind == readRaced {
 		w.pending[file] = true
 		return false
+	}
+	if kind == readIrregular {
+		// A document replaced by a folder, a named pipe or a link, or a
+		// file PATH that is one, cannot be read; anything else that is
+		// not a regular file is no document.
+		kind = readAbsent
+		if r.file != "" || (cur != nil && cur.file == file) {
+			kind = readFailed
+		}
 	}
 	if cur != nil && cur.file != file {
 		// Another file, from an earlier PATH, already has this address.
@@ -663,6 +743,23 @@ func (w *Watcher) rebuild(file string) bool {
 	return true
 }
 
+// fileKind names what a file that is not a regular file is.
+func fileKind(m fs.FileMode) string {
+	switch {
+	case m&fs.ModeDir != 0:
+		return "a folder"
+	case m&fs.ModeSymlink != 0:
+		return "a symbolic link (watch follows none)"
+	case m&fs.ModeNamedPipe != 0:
+		return "a named pipe"
+	case m&fs.ModeSocket != 0:
+		return "a socket"
+	case m&fs.ModeDevice != 0:
+		return "a device"
+	}
+	return "a special file"
+}
+
 // unshadow forgets that file was kept from an address.
 func (w *Watcher) unshadow(key, file string) {
 	if s := w.shadow[key]; s != nil && s[file] {
@@ -708,12 +805,67 @@ func (w *Watcher) writeOut(doc *calcdoc.Document, file, rel string) string {
 		err = os.MkdirAll(filepath.Dir(target), 0o755)
 	}
 	if err == nil {
-		err = calcdoc.WriteFileAtomic(target, html)
+		err = writeAtomic(target, html)
 	}
 	if err != nil {
-		return "; cannot write " + target + ": " + err.Error()
+		return "; cannot write " + target + " (any earlier one is left as it was): " + err.Error()
 	}
 	return " -> " + target
+}
+
+// tempFile is the temporary file a sheet is written to before it is
+// renamed into place.
+type tempFile interface {
+	io.Writer
+	Name() string
+	Sync() error
+	Close() error
+}
+
+// createTemp makes the temporary file of a write; it is os.CreateTemp, and
+// the tests replace it to write to a disk that fills up.
+var createTemp = func(dir, pattern string) (tempFile, error) { return os.CreateTemp(dir, pattern) }
+
+// writeAtomic is calcdoc.WriteFileAtomic with the temporary file made by
+// createTemp: it writes data to a temporary file in the target's folder,
+// flushes it to the disk and renames it over the target, so that a reader
+// sees the old file or the new one, never a part. When anything fails (a
+// full disk makes Write, Sync or Close fail with ENOSPC) the temporary
+// file is removed and the target is left as it was.
+func writeAtomic(path string, data []byte) error {
+	tmp, err := createTemp(filepath.Dir(path), "."+filepath.Base(path)+".tmp-*")
+	if err != nil {
+		return err
+	}
+	name := tmp.Name()
+	fail := func(e error) error {
+		tmp.Close()
+		os.Remove(name)
+		return e
+	}
+	if _, err := tmp.Write(data); err != nil {
+		return fail(err)
+	}
+	if err := tmp.Sync(); err != nil {
+		return fail(err)
+	}
+	if err := tmp.Close(); err != nil {
+		os.Remove(name)
+		return err
+	}
+	mode := os.FileMode(0o644)
+	if st, err := os.Stat(path); err == nil {
+		mode = st.Mode().Perm()
+	}
+	if err := os.Chmod(name, mode); err != nil {
+		os.Remove(name)
+		return err
+	}
+	if err := os.Rename(name, path); err != nil {
+		os.Remove(name)
+		return err
+	}
+	return nil
 }
 
 func (w *Watcher) nextVersion() string {

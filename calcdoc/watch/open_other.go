@@ -1,0 +1,8 @@
+//go:build !unix
+
+package watch
+
+import "os"
+
+// openDoc opens a document's file for reading.
+func openDoc(name string) (*os.File, error) { return os.Open(name) }
