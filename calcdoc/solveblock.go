@@ -783,13 +783,16 @@ func (r *solveRun) prepare() bool {
 	}
 
 	if r.n > MaxSolveUnknowns {
-		cu := (r.n - len(unk)) // each complex unknown adds one to the count of unknowns
-		kinds := fmt.Sprintf("%d complex", cu)
+		cu := r.n - len(unk) // each complex unknown counts one more
+		var kinds []string
+		if cu > 0 {
+			kinds = append(kinds, fmt.Sprintf("%d complex", cu))
+		}
 		if ru := len(unk) - cu; ru > 0 {
-			kinds += fmt.Sprintf(" and %d real", ru)
+			kinds = append(kinds, fmt.Sprintf("%d real", ru))
 		}
 		r.setErr(r.setPos(), "the set has %d real unknowns (%s), but a solve block takes at most %d (such as %d complex unknowns): the solver works on the full matrix of the set, and its time grows as the cube of the count. Split the network into blocks of at most %d complex unknowns, e.g. reduce each part to an equivalent (Thévenin or Norton) at the nodes where it joins the rest and solve the joined equivalents in a further block",
-			r.n, kinds, MaxSolveUnknowns, MaxSolveUnknowns/2, MaxSolveUnknowns/2)
+			r.n, strings.Join(kinds, " and "), MaxSolveUnknowns, MaxSolveUnknowns/2, MaxSolveUnknowns/2)
 		return false
 	}
 
