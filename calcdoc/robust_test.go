@@ -112,7 +112,7 @@ func TestManyErrors(t *testing.T) {
 		{"an inline value of 1 MiB of '$'", "Text `=" + strings.Repeat("$", n) + "` end.\n",
 			expr.Pos{Line: 1, Col: 8}, expr.Pos{Line: 1, Col: 108}, 101},
 		// "```solve q, " is 12 characters; each further "q, " is 3
-		{"a solve header listing q 349,525 times", "```solve q, " + strings.Repeat("q, ", n/3) + "\nq = 1\n```\n",
+		{"a solve header listing q 349,526 times", "```solve q, " + strings.Repeat("q, ", n/3) + "\nq = 1\n```\n",
 			expr.Pos{Line: 1, Col: 13}, expr.Pos{Line: 1, Col: 13 + 3*100}, 101},
 		{"100,000 statements that each fail", "```calc\n" + strings.Repeat("y = q\n", 100000) + "```\n",
 			expr.Pos{Line: 2, Col: 5}, expr.Pos{}, 100000},
