@@ -162,12 +162,13 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 		w.Printf("<div class=\"f\"><span class=\"kindtag\">check</span> %s</div>", Math(f.Node(x.Cmp, false)))
 		if ok && res.Check != nil {
 			c := res.Check
+			disp := checkDisplay(w, x.Cmp)
 			var parts []string
 			for i, v := range c.Values {
 				if i > 0 {
 					parts = append(parts, "<mo>"+opML[x.Cmp.Ops[i-1]]+"</mo>")
 				}
-				parts = append(parts, s.valueML(v, nil, false))
+				parts = append(parts, s.valueML(v, disp, false))
 			}
 			verdict := "<span class=\"verdict pass\">satisfied</span>"
 			if !c.Pass {
@@ -242,4 +243,23 @@ func wideRow(res *expr.Result) bool {
 		}
 	}
 	return false
+}
+
+// checkDisplay is the unit both sides of a check are shown in: that of the
+// first side written as a literal with a unit ("3 %", "6 kA"), else that of
+// the first bare name with a display of its own; nil for the defaults.
+func checkDisplay(w *Writer, c *expr.Compare) *expr.Display {
+	for _, x := range c.X {
+		if u := expr.LiteralUnit(x); u != nil {
+			return &expr.Display{Text: u.Text, Unit: u}
+		}
+	}
+	for _, x := range c.X {
+		if id, ok := x.(*expr.Ident); ok {
+			if b := w.Doc.Env.Lookup(id.Name); b != nil && b.Display != nil && b.Display.Unit != nil {
+				return &expr.Display{Text: b.Display.Unit.Text, Unit: b.Display.Unit}
+			}
+		}
+	}
+	return nil
 }
