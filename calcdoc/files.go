@@ -2,6 +2,7 @@ package calcdoc
 
 import (
 	"fmt"
+	"io"
 	"io/fs"
 	"os"
 	"path/filepath"
@@ -74,12 +75,29 @@ func Collect(paths []string) ([]Input, error) {
 	return out, nil
 }
 
-// WriteFileAtomic writes data to a temporary file in the target's folder
-// and renames it into place, so that a reader sees the old file or the
-// new one, never a part. On any error the old file is left as it was.
+// WriteFileAtomic writes data to a temporary file in the target's folder,
+// flushes it to the disk and renames it into place, so that a reader sees
+// the old file or the new one, never a part. On any error (a full disk
+// makes Write, Sync or Close fail with ENOSPC) the temporary file is
+// removed and the old file is left as it was.
 func WriteFileAtomic(path string, data []byte) error {
-	dir := filepath.Dir(path)
-	tmp, err := os.CreateTemp(dir, "."+filepath.Base(path)+".tmp-*")
+	return WriteFileAtomicWith(path, data, func(dir, pattern string) (TempFile, error) {
+		return os.CreateTemp(dir, pattern)
+	})
+}
+
+// TempFile is the temporary file of an atomic write.
+type TempFile interface {
+	io.Writer
+	Name() string
+	Sync() error
+	Close() error
+}
+
+// WriteFileAtomicWith is WriteFileAtomic with the temporary file made by
+// create (os.CreateTemp; tests pass one whose disk fills up).
+func WriteFileAtomicWith(path string, data []byte, create func(dir, pattern string) (TempFile, error)) error {
+	tmp, err := create(filepath.Dir(path), "."+filepath.Base(path)+".tmp-*")
 	if err != nil {
 		return err
 	}
@@ -103,7 +121,10 @@ func WriteFileAtomic(path string, data []byte) error {
 	if st, err := os.Stat(path); err == nil {
 		mode = st.Mode().Perm()
 	}
-	os.Chmod(name, mode)
+	if err := os.Chmod(name, mode); err != nil {
+		os.Remove(name)
+		return err
+	}
 	if err := os.Rename(name, path); err != nil {
 		os.Remove(name)
 		return err

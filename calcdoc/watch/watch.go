@@ -815,57 +815,16 @@ func (w *Watcher) writeOut(doc *calcdoc.Document, file, rel string) string {
 
 // tempFile is the temporary file a sheet is written to before it is
 // renamed into place.
-type tempFile interface {
-	io.Writer
-	Name() string
-	Sync() error
-	Close() error
-}
+type tempFile = calcdoc.TempFile
 
 // createTemp makes the temporary file of a write; it is os.CreateTemp, and
 // the tests replace it to write to a disk that fills up.
 var createTemp = func(dir, pattern string) (tempFile, error) { return os.CreateTemp(dir, pattern) }
 
 // writeAtomic is calcdoc.WriteFileAtomic with the temporary file made by
-// createTemp: it writes data to a temporary file in the target's folder,
-// flushes it to the disk and renames it over the target, so that a reader
-// sees the old file or the new one, never a part. When anything fails (a
-// full disk makes Write, Sync or Close fail with ENOSPC) the temporary
-// file is removed and the target is left as it was.
+// createTemp.
 func writeAtomic(path string, data []byte) error {
-	tmp, err := createTemp(filepath.Dir(path), "."+filepath.Base(path)+".tmp-*")
-	if err != nil {
-		return err
-	}
-	name := tmp.Name()
-	fail := func(e error) error {
-		tmp.Close()
-		os.Remove(name)
-		return e
-	}
-	if _, err := tmp.Write(data); err != nil {
-		return fail(err)
-	}
-	if err := tmp.Sync(); err != nil {
-		return fail(err)
-	}
-	if err := tmp.Close(); err != nil {
-		os.Remove(name)
-		return err
-	}
-	mode := os.FileMode(0o644)
-	if st, err := os.Stat(path); err == nil {
-		mode = st.Mode().Perm()
-	}
-	if err := os.Chmod(name, mode); err != nil {
-		os.Remove(name)
-		return err
-	}
-	if err := os.Rename(name, path); err != nil {
-		os.Remove(name)
-		return err
-	}
-	return nil
+	return calcdoc.WriteFileAtomicWith(path, data, createTemp)
 }
 
 func (w *Watcher) nextVersion() string {
