@@ -362,26 +362,15 @@ func ParseSolveHeader(arg string, pos expr.Pos) ([]*Unknown, expr.ErrorList) {
 		errs.Add(pos, "a solve block lists its unknowns after the word solve, separated by commas, e.g. solve I_a[A], I_b[A]")
 		return nil, errs
 	}
-	// split at commas outside parentheses and brackets
+	// split at commas outside parentheses and brackets; parseUnknown
+	// counts in characters
 	type span struct{ a, b int }
 	var parts []span
-	depth, start := 0, 0
-	for i, r := range rs {
-		switch r {
-		case '(', '[':
-			depth++
-		case ')', ']':
-			if depth > 0 {
-				depth--
-			}
-		case ',':
-			if depth == 0 {
-				parts = append(parts, span{start, i})
-				start = i + 1
-			}
-		}
+	texts, offs := splitTopLevel(arg)
+	for i, t := range texts {
+		a := utf8.RuneCountInString(arg[:offs[i]])
+		parts = append(parts, span{a, a + utf8.RuneCountInString(t)})
 	}
-	parts = append(parts, span{start, len(rs)})
 
 	var out []*Unknown
 	seen := map[string]*Unknown{}
