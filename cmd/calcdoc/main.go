@@ -154,19 +154,29 @@ func sheetOptions(doc *calcdoc.Document) render.Options {
 	return render.Options{Version: version, Stamp: &st, EmbedSource: true}
 }
 
+// inputs parses the flags of a command that takes PATHs and collects its
+// documents; st is exitOK, or the usage status to return.
+func (c *cli) inputs(fs *flag.FlagSet, args []string) (inputs []calcdoc.Input, st int) {
+	paths, err := parseFlags(fs, args)
+	if err != nil {
+		return nil, exitUsage
+	}
+	if len(paths) == 0 {
+		return nil, c.usageErr("%s needs at least one PATH", fs.Name())
+	}
+	inputs, err = calcdoc.Collect(paths)
+	if err != nil {
+		return nil, c.usageErr("%v", err)
+	}
+	return inputs, exitOK
+}
+
 func (c *cli) build(args []string) int {
 	fs := c.flagSet("build")
 	out := fs.String("o", "", "output folder, or the output file for one document")
-	paths, err := parseFlags(fs, args)
-	if err != nil {
-		return exitUsage
-	}
-	if len(paths) == 0 {
-		return c.usageErr("build needs at least one PATH")
-	}
-	inputs, err := calcdoc.Collect(paths)
-	if err != nil {
-		return c.usageErr("%v", err)
+	inputs, st0 := c.inputs(fs, args)
+	if st0 != exitOK {
+		return st0
 	}
 	single := *out != "" && strings.HasSuffix(strings.ToLower(*out), ".html")
 	if single && len(inputs) != 1 {
@@ -235,17 +245,9 @@ func summaryLine(doc *calcdoc.Document) string {
 }
 
 func (c *cli) check(args []string) int {
-	fs := c.flagSet("check")
-	paths, err := parseFlags(fs, args)
-	if err != nil {
-		return exitUsage
-	}
-	if len(paths) == 0 {
-		return c.usageErr("check needs at least one PATH")
-	}
-	inputs, err := calcdoc.Collect(paths)
-	if err != nil {
-		return c.usageErr("%v", err)
+	inputs, st0 := c.inputs(c.flagSet("check"), args)
+	if st0 != exitOK {
+		return st0
 	}
 	st := exitOK
 	for _, in := range inputs {
