@@ -367,8 +367,10 @@ func ParseSolveHeader(arg string, pos expr.Pos) ([]*Unknown, expr.ErrorList) {
 	type span struct{ a, b int }
 	var parts []span
 	texts, offs := splitTopLevel(arg)
+	a, prev := 0, 0 // characters before offs[i], counted on from the last part
 	for i, t := range texts {
-		a := utf8.RuneCountInString(arg[:offs[i]])
+		a += utf8.RuneCountInString(arg[prev:offs[i]])
+		prev = offs[i]
 		parts = append(parts, span{a, a + utf8.RuneCountInString(t)})
 	}
 
