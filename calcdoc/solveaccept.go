@@ -137,8 +137,24 @@ func (r *solveRun) solveSet() bool {
 
 	// acceptance: every equation through the expression engine, in full
 	// complex arithmetic
-	if !r.accept(x, d) {
-		return false
+	if !r.accept(x, d, false) {
+		// a root on the edge of a real domain (sqrt(z) + z = 0 at z = 0)
+		// is often approached from just outside it: try the point with
+		// such tiny real unknowns set to zero before giving up
+		xs, ok := r.snapZero(x)
+		if ok {
+			var ds []float64
+			if _, ds, err = r.backward(xs); err == nil {
+				ok = r.accept(xs, ds, false)
+			} else {
+				ok = false
+			}
+		}
+		if !ok {
+			r.accept(x, d, true)
+			return false
+		}
+		x = xs
 	}
 
 	for k, u := range r.unk {
@@ -160,20 +176,24 @@ func (r *solveRun) solveSet() bool {
 
 // accept evaluates both sides of every equation at x through the
 // expression engine (recording them on the equation) and tests the
-// complex difference lhs − rhs: with D_i the denominator of the
-// componentwise backward error of real residual i (see SolveAcceptTol),
+// complex difference lhs − rhs. A part v of it (real or imaginary) is
+// small when v ≤ 1e-9·D_i, D_i the denominator of the componentwise
+// backward error of its real residual i (see SolveAcceptTol), or
+// v ≤ 1e-9·T, T the sum of the moduli of the top-level terms of both
+// sides at x (the backward error with respect to the terms as written:
+// x solves exactly the equation whose terms are changed by at most 1e-9
+// of their size; this is what accepts a multiple root written expanded,
+// d² − 2d + 1 = 0, where the linear model is degenerate). Then
 //
-//   - a complex equation holds when |Re(lhs − rhs)| ≤ 1e-9·D_re and
-//     |Im(lhs − rhs)| ≤ 1e-9·D_im;
-//   - an equation counted as real holds when |Re(lhs − rhs)| ≤ 1e-9·D and
-//     its imaginary part is rounding: |Im(lhs − rhs)| ≤ 1e-9·D or
-//     ≤ RealTol·max(|lhs|, |rhs|);
+//   - a complex equation holds when both parts are small;
+//   - an equation counted as real holds when its real part is small and
+//     its imaginary part is small or at most RealTol·max(|lhs|, |rhs|);
 //
 // and both sides must be finite. Each equation's Backward is the largest of
-// its ratios. When an equation fails, the set error names the equation
-// that fails worst and its difference in the equation's unit, and accept
-// returns false.
-func (r *solveRun) accept(x, d []float64) bool {
+// its ratios. When an equation fails, accept returns false, and with
+// report the set error names the equation that fails worst and its
+// difference in the equation's unit.
+func (r *solveRun) accept(x, d []float64, report bool) bool {
 	if err := r.verify(x, nil); err != nil {
 		return r.coreFailed(&solve.EvalError{X: x, Equation: -1, Err: err})
 	}
@@ -190,10 +210,12 @@ func (r *solveRun) accept(x, d []float64) bool {
 			}
 			return math.Inf(1)
 		}
-		w := ratio(real(diff), d[row])
+		t := r.termSize(i)
+		both := func(v, den float64) float64 { return math.Min(ratio(v, den), ratio(v, t)) }
+		w := both(real(diff), d[row])
 		im := false
 		if eq.RealValued {
-			wi := ratio(imag(diff), d[row])
+			wi := both(imag(diff), d[row])
 			if math.Abs(imag(diff)) <= RealTol*math.Max(cmplx.Abs(eq.LHS.Z), cmplx.Abs(eq.RHS.Z)) {
 				wi = 0
 			}
@@ -202,7 +224,7 @@ func (r *solveRun) accept(x, d []float64) bool {
 				im = wi > SolveAcceptTol
 			}
 		} else {
-			w = math.Max(w, ratio(imag(diff), d[row+1]))
+			w = math.Max(w, both(imag(diff), d[row+1]))
 		}
 		finite := eq.LHS.IsFinite() && eq.RHS.IsFinite()
 		if !finite {
@@ -215,6 +237,9 @@ func (r *solveRun) accept(x, d []float64) bool {
 	}
 	if worst < 0 {
 		return true
+	}
+	if !report {
+		return false
 	}
 	eq := r.eqs[worst]
 	var msg strings.Builder
@@ -415,4 +440,35 @@ func (r *solveRun) contradiction(se *solve.SingularError) {
 	msg.WriteString("; combined so that the unknowns cancel (scaled to " + eq.Name + "), their sides still differ by " + amount + part)
 	msg.WriteString("; correct the value or the equation that is wrong; the unknowns get no value")
 	r.setErr(pos, "%s", msg.String())
+}
+
+// termSize returns T for equation i at the current trial values: the sum
+// of the moduli of the top-level terms of both sides (0 when a term cannot
+// be evaluated, which leaves the Jacobian measure alone to decide).
+func (r *solveRun) termSize(i int) float64 {
+	eq := r.eqs[i].Eq
+	t := 0.0
+	for _, n := range terms(eq.RHS, terms(eq.LHS, nil)) {
+		v, err := r.env.EvalWith(n, r.loc, nil)
+		s, isS := v.(*expr.Scalar)
+		if err != nil || !isS || !s.IsFinite() {
+			return 0
+		}
+		t += cmplx.Abs(s.Z)
+	}
+	return t
+}
+
+// snapZero returns x with every real unknown of modulus at most
+// 2⁻²⁶·s_k (its scale) set to exactly zero, and whether there was one.
+func (r *solveRun) snapZero(x []float64) ([]float64, bool) {
+	xs := append([]float64(nil), x...)
+	any := false
+	for k, u := range r.unk {
+		c := r.col[k]
+		if u.Real && x[c] != 0 && math.Abs(x[c]) <= 0x1p-26*r.xscale[c] {
+			xs[c], any = 0, true
+		}
+	}
+	return xs, any
 }
