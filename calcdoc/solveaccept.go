@@ -22,9 +22,10 @@ import (
 // as real (sqrt or ln of a negative trial value) is not lost.
 
 const (
-	// MaxPolish is the largest number of further Newton runs by which an
-	// iterate that misses SolveAcceptTol is polished, each with the
-	// residuals scaled by the size of their terms at the previous iterate.
+	// MaxPolish is the largest number of further Newton runs (with central
+	// differences) by which an iterate that misses SolveAcceptTol is
+	// polished, each with the residuals scaled by the size of their terms
+	// at the previous iterate.
 	// Polishing stops early when a run does not at least halve the
 	// backward error. Newton converges only linearly to a multiple root
 	// (such as (d − 1)² = 0, whose Jacobian is singular at the root), and
@@ -106,7 +107,10 @@ func (r *solveRun) solveSet() bool {
 				q[i] = r.rscale[i]
 			}
 		}
-		nr, err := solve.Newton(r.problem(x, q), solve.Options{})
+		// central differences: near a multiple root the forward
+		// difference step is as large as the distance to the root, and
+		// the derivative it gives stalls the iteration
+		nr, err := solve.Newton(r.problem(x, q), solve.Options{Central: true})
 		if err != nil {
 			if round == 0 {
 				return r.coreFailed(err)
