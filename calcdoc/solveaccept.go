@@ -476,3 +476,19 @@ func (r *solveRun) snapZero(x []float64) ([]float64, bool) {
 	}
 	return xs, any
 }
+
+// sameSide returns the trial value x0_c + d of real unknown c for the
+// generic point and the probes of the classification, moved away from zero
+// instead (x0_c − d) when x0_c + d would reach or cross zero from a
+// non-zero start of a real unknown. A real unknown is probed on the side of
+// its starting value: sqrt(x) or ln(D/r) of a real unknown started at a
+// positive value is real wherever the set is meant to be solved, and a
+// probe at a negative value would count its equation as complex.
+func (r *solveRun) sameSide(c int, d float64) float64 {
+	x0 := r.x0[c]
+	x := x0 + d
+	if r.unk[r.owner[c]].Real && x0 != 0 && (x == 0 || math.Signbit(x) != math.Signbit(x0)) {
+		return x0 - d
+	}
+	return x
+}

@@ -178,6 +178,24 @@ func TestSolveTruth(t *testing.T) {
 		closeTo(t, "D", valueOf(t, d, "D"), complex(lineSpacingRoot, 0))
 	})
 
+	// A set of three real unknowns with the spacing among them: the
+	// classification probes D and r_x on the side of their starts, so the
+	// ln equation counts as one real equation, not two. D = r·e² as in
+	// lineSpacing and k = 3/sqrt(D/1 mm) = 3/sqrt(51.72) = 0.4171 (hand
+	// derivation).
+	for _, near := range []string{"20 mm", "60 mm", "200 mm"} {
+		t.Run("three unknowns, D near "+near, func(t *testing.T) {
+			d := solveDoc(t, "```solve D[mm] real near "+near+", r_x[mm] real near 5 mm, k real near 1\n(4*pi*1e-7 H/m)/(2*pi)*ln(D/r_x) = 0.4 µH/m\nr_x = 7 mm\nk*sqrt(D/(1 mm)) = 3\n```\n")
+			noErrors(t, d)
+			closeTo(t, "D", valueOf(t, d, "D"), complex(lineSpacingRoot, 0))
+			closeTo(t, "r_x", valueOf(t, d, "r_x"), 7e-3)
+			closeTo(t, "k", valueOf(t, d, "k"), complex(3/math.Sqrt(lineSpacingRoot*1e3), 0))
+			if s := solveSets(d)[0]; !s.Equations[0].RealValued {
+				t.Error("the ln equation is not counted as real")
+			}
+		})
+	}
+
 	// Double roots: (d − 1)² = 0 has the root d = 1, where the derivative
 	// 2(d − 1) vanishes (hand derivation); Newton converges only linearly.
 	// The accepted d satisfies the acceptance; its error is of the order of

@@ -28,7 +28,8 @@ import (
 //     imaginary parts). Its dimension is that of its [unit], else that of
 //     its starting value, else dimensionless.
 //  4. Both sides of every equation are evaluated at a generic point (every
-//     unknown x0 + s·(0.618 + j0.414), s its scale): their dimensions must
+//     unknown x0 + s·(0.618 + j0.414), s its scale; a real unknown stays on
+//     the side of zero of a non-zero start): their dimensions must
 //     agree. An equation whose residual lhs − rhs is real at the starting
 //     point, at the generic point and at SolveProbes pseudo-random points
 //     (imaginary part at most 1e-12 of the larger side) counts as one real
@@ -796,7 +797,7 @@ func (r *solveRun) prepare() bool {
 	generic := make([]float64, r.n)
 	for k, u := range unk {
 		c := r.col[k]
-		generic[c] = r.x0[c] + genericFactor(k, 0.6180339887498949)*r.xscale[c]
+		generic[c] = r.sameSide(c, genericFactor(k, 0.6180339887498949)*r.xscale[c])
 		if !u.Real {
 			generic[c+1] = r.x0[c+1] + genericFactor(k, 0.41421356237309503)*r.xscale[c+1]
 		}
@@ -861,7 +862,7 @@ func (r *solveRun) prepare() bool {
 			if rng.IntN(2) == 0 {
 				u = -u
 			}
-			probe[c] = r.x0[c] + u*r.xscale[c]
+			probe[c] = r.sameSide(c, u*r.xscale[c])
 		}
 		r.setX(probe)
 		for i := range r.eqs {
