@@ -28,7 +28,8 @@ import (
 //     imaginary parts). Its dimension is that of its [unit], else that of
 //     its starting value, else dimensionless.
 //  4. Both sides of every equation are evaluated at a generic point (every
-//     unknown x0 + s·(0.618 + j0.414), s its scale): their dimensions must
+//     unknown x0 + s·(0.618 + j0.414), s its scale; a real unknown stays on
+//     the side of zero of a non-zero start): their dimensions must
 //     agree. An equation whose residual lhs − rhs is real at the starting
 //     point, at the generic point and at SolveProbes pseudo-random points
 //     (imaginary part at most 1e-12 of the larger side) counts as one real
@@ -517,6 +518,11 @@ type solveRun struct {
 	pairs              []int
 	eqsOf              [][]int // the equations that involve each unknown
 
+	// lenient turns off the test of residual that an equation counted as
+	// real is real at the trial point (see TrialImagTol), for the
+	// acceptance, which makes its own test
+	lenient bool
+
 	// the residual cache (see residual)
 	memo   []eqMemo
 	lastX  []float64
@@ -791,7 +797,7 @@ func (r *solveRun) prepare() bool {
 	generic := make([]float64, r.n)
 	for k, u := range unk {
 		c := r.col[k]
-		generic[c] = r.x0[c] + genericFactor(k, 0.6180339887498949)*r.xscale[c]
+		generic[c] = r.sameSide(c, genericFactor(k, 0.6180339887498949)*r.xscale[c])
 		if !u.Real {
 			generic[c+1] = r.x0[c+1] + genericFactor(k, 0.41421356237309503)*r.xscale[c+1]
 		}
@@ -856,7 +862,7 @@ func (r *solveRun) prepare() bool {
 			if rng.IntN(2) == 0 {
 				u = -u
 			}
-			probe[c] = r.x0[c] + u*r.xscale[c]
+			probe[c] = r.sameSide(c, u*r.xscale[c])
 		}
 		r.setX(probe)
 		for i := range r.eqs {
@@ -1070,7 +1076,11 @@ func (r *solveRun) countMessage() string {
 			hints = append(hints, fmt.Sprintf("%d more complex equation%s would do", d/2, plural(d/2)))
 		}
 		if cu > 0 && d <= cu {
-			hints = append(hints, fmt.Sprintf("or mark %s real (write real after its name) if %s a real quantity", countWords(d, "a complex unknown", "complex unknowns"), isAre(d)))
+			what := "it is a real quantity"
+			if d > 1 {
+				what = "they are real quantities"
+			}
+			hints = append(hints, fmt.Sprintf("or mark %s real (write real after its name) if %s", countWords(d, "a complex unknown", "complex unknowns"), what))
 		}
 		if len(hints) > 0 {
 			msg += " (" + strings.Join(hints, ", ") + ")"
@@ -1154,6 +1164,7 @@ func (r *solveRun) sides(i int) (l, rr expr.Scalar, err error) {
 type eqMemo struct {
 	key  [2][]float64 // 0: latest, 1: base
 	res  [2]complex128
+	size [2]float64 // max(|lhs|, |rhs|)
 	have [2]bool
 }
 
@@ -1205,23 +1216,29 @@ func (r *solveRun) residual(x, out []float64) error {
 		}
 		r.keyBuf = key
 		var d complex128
+		var size float64
 		switch {
 		case m.have[0] && sameBits(m.key[0], key):
-			d = m.res[0]
+			d, size = m.res[0], m.size[0]
 		case m.have[1] && sameBits(m.key[1], key):
-			d = m.res[1]
+			d, size = m.res[1], m.size[1]
 		default:
 			l, rr, err := r.sides(i)
 			if err != nil {
 				return err
 			}
-			d = l.Z - rr.Z
+			d, size = l.Z-rr.Z, math.Max(cmplx.Abs(l.Z), cmplx.Abs(rr.Z))
 			copy(m.key[0], key)
-			m.res[0], m.have[0] = d, true
+			m.res[0], m.size[0], m.have[0] = d, size, true
 		}
 		if fresh {
 			copy(m.key[1], key)
-			m.res[1], m.have[1] = d, true
+			m.res[1], m.size[1], m.have[1] = d, size, true
+		}
+		if !r.lenient {
+			if err := r.trialReal(i, size, d); err != nil {
+				return err
+			}
 		}
 		row := r.row[i]
 		out[row] = real(d)
@@ -1269,217 +1286,6 @@ func (r *solveRun) problem(x0, rscale []float64) *solve.Problem {
 		N: r.n, M: r.m, Residual: r.residual,
 		X0: x0, XScale: r.xscale, RScale: rscale, Complex: r.pairs,
 	}
-}
-
-// solveSet classifies and solves the prepared set, checks the solution and
-// fills in the results. It returns false when there is no solution.
-func (r *solveRun) solveSet() bool {
-	set := r.set
-	p := r.problem(r.x0, r.rscale)
-	lin, linear, err := solve.Linearize(p)
-	if err != nil {
-		return r.coreFailed(err)
-	}
-	var x []float64
-	if linear {
-		set.Linear, set.lin, set.MaxDeviation = true, lin, lin.MaxDeviation
-		xs, cond, err := solve.SolveLinear(lin)
-		set.Cond = cond
-		if err != nil {
-			return r.coreFailed(err)
-		}
-		x = xs
-	} else {
-		nr, err := solve.Newton(p, solve.Options{})
-		if err != nil {
-			return r.coreFailed(err)
-		}
-		set.InitialResidualNorm = nr.InitialResidualNorm
-		r.takeNewton(nr)
-		x = nr.X
-	}
-
-	// acceptance: the componentwise backward error. A direct solution
-	// that misses it is refined by Newton iterations, an iterative one is
-	// iterated again, each with the residuals scaled by the size of their
-	// terms at the first solution (the scales of the start can be far from
-	// the sizes at the solution).
-	omega, d, err := r.backward(x)
-	if err != nil {
-		return r.coreFailed(&solve.EvalError{X: x, Equation: -1, Err: err})
-	}
-	if maxOf(omega) > SolveAcceptTol {
-		q := make([]float64, r.m)
-		for i := range q {
-			q[i] = d[i]
-			if !(q[i] > 0) || math.IsInf(q[i], 0) {
-				q[i] = r.rscale[i]
-			}
-		}
-		nr, err := solve.Newton(r.problem(x, q), solve.Options{})
-		if err != nil {
-			return r.coreFailed(err)
-		}
-		if linear {
-			set.Refined = true
-			set.InitialResidualNorm = nr.InitialResidualNorm
-		} else {
-			set.Polished = true
-		}
-		its, hist := set.Iterations, set.History
-		r.takeNewton(nr)
-		set.Iterations += its
-		set.History = append(hist, set.History...)
-		x = nr.X
-		if omega, _, err = r.backward(x); err != nil {
-			return r.coreFailed(&solve.EvalError{X: x, Equation: -1, Err: err})
-		}
-		if w := maxOf(omega); w > SolveAcceptTol {
-			i := argMax(omega)
-			eq := r.eqs[r.eqOfRow(i)]
-			r.setErr(r.setPos(), "no solution found: the iteration ends where the equations balance only in absolute terms, not relative to the size of their terms (componentwise backward error %.3g in %s, above the tolerance %.0e): the set may have no solution, its sides approaching each other only as an unknown runs away to zero or without bound; the unknowns get no value", w, eq.Name, SolveAcceptTol)
-			return false
-		}
-	}
-	set.Backward = maxOf(omega)
-
-	// the solution and the verification of every equation
-	for k, u := range r.unk {
-		c := r.col[k]
-		v := &expr.Scalar{Dim: u.Dim, Angle: u.Angle}
-		if u.Real {
-			v.Z = complex(x[c], 0)
-		} else {
-			v.Z = complex(x[c], x[c+1])
-		}
-		u.Value = v
-	}
-	if !linear {
-		if err := r.verify(x, nil); err != nil {
-			return r.coreFailed(&solve.EvalError{X: x, Equation: -1, Err: err})
-		}
-	}
-	for i, eq := range r.eqs {
-		eq.Backward = omega[r.row[i]]
-		if !eq.RealValued {
-			eq.Backward = math.Max(eq.Backward, omega[r.row[i]+1])
-		}
-	}
-	return true
-}
-
-func (r *solveRun) takeNewton(nr *solve.Result) {
-	set := r.set
-	set.Iterations, set.Criterion, set.ResidualNorm = nr.Iterations, nr.Criterion, nr.ResidualNorm
-	set.History = nr.History
-	if !set.Linear {
-		set.Cond = nr.Cond
-	}
-}
-
-func maxOf(v []float64) float64 {
-	m := 0.0
-	for _, x := range v {
-		m = math.Max(m, x)
-	}
-	return m
-}
-
-func argMax(v []float64) int {
-	k := 0
-	for i, x := range v {
-		if x > v[k] {
-			k = i
-		}
-	}
-	return k
-}
-
-// eqOfRow returns the equation of a real residual row.
-func (r *solveRun) eqOfRow(row int) int {
-	for i := len(r.row) - 1; i >= 0; i-- {
-		if r.row[i] <= row {
-			return i
-		}
-	}
-	return 0
-}
-
-// mag is m_k(x) for real unknown c: |x_c|, or the modulus of its complex
-// unknown.
-func (r *solveRun) mag(x []float64, c int) float64 {
-	k := r.owner[c]
-	if r.unk[k].Real {
-		return math.Abs(x[c])
-	}
-	return math.Hypot(x[r.col[k]], x[r.col[k]+1])
-}
-
-// backward returns the componentwise backward error ω_i of every real
-// residual at x and its denominator d_i (see SolveAcceptTol). The Jacobian
-// is the matrix of a linear set, else forward differences with the steps of
-// package solve, h_k = 2⁻²⁶·max(m_k, s_k).
-func (r *solveRun) backward(x []float64) (omega, d []float64, err error) {
-	res := make([]float64, r.m)
-	if r.set.lin != nil {
-		// the verification's evaluation gives the residual too
-		err = r.verify(x, res)
-	} else {
-		// through the residual function, which remembers the point as the
-		// base of the Jacobian below
-		err = r.residual(x, res)
-	}
-	if err != nil {
-		return nil, nil, err
-	}
-	mags := make([]float64, r.n)
-	for c := range mags {
-		mags[c] = r.mag(x, c)
-	}
-	var jac *mat.Dense
-	if r.set.lin != nil {
-		jac = r.set.lin.A
-	} else {
-		jac = mat.NewDense(r.m, r.n, nil)
-		xp := append([]float64(nil), x...)
-		rp := make([]float64, r.m)
-		for c := 0; c < r.n; c++ {
-			h := 0x1p-26 * math.Max(mags[c], r.xscale[c])
-			xp[c] = x[c] + h
-			h = xp[c] - x[c]
-			if err := r.residual(xp, rp); err != nil {
-				xp[c] = x[c] - h
-				if err := r.residual(xp, rp); err != nil {
-					return nil, nil, err
-				}
-				h = -h
-			}
-			xp[c] = x[c]
-			for i := 0; i < r.m; i++ {
-				jac.Set(i, c, (rp[i]-res[i])/h)
-			}
-		}
-	}
-	omega = make([]float64, r.m)
-	d = make([]float64, r.m)
-	for i := 0; i < r.m; i++ {
-		row := jac.RawRowView(i)
-		s, lin := 0.0, 0.0
-		for c, v := range row {
-			s += math.Abs(v) * mags[c]
-			lin += v * x[c]
-		}
-		d[i] = s + math.Abs(res[i]-lin)
-		switch {
-		case res[i] == 0:
-			omega[i] = 0
-		case d[i] > 0:
-			omega[i] = math.Abs(res[i]) / d[i]
-		default:
-			omega[i] = math.Inf(1)
-		}
-	}
-	return omega, d, nil
 }
 
 // coreFailed turns an error of the solver core into a positioned error in
@@ -1538,6 +1344,10 @@ func (r *solveRun) pointWords(x []float64) string {
 // singular words a SingularError: the equations that depend on each other
 // and the unknowns no equation determines.
 func (r *solveRun) singular(se *solve.SingularError) {
+	if se.Contradiction != nil {
+		r.contradiction(se)
+		return
+	}
 	var msg strings.Builder
 	if se.ZeroPivot || math.IsInf(se.Cond, 1) {
 		msg.WriteString("the equations do not determine the unknowns: the matrix of the set is singular")
@@ -1624,14 +1434,22 @@ func (r *solveRun) noConvergence(ne *solve.NoConvergenceError) {
 	msg := fmt.Sprintf("no solution found: %s; after %d iteration%s the scaled residual is %.3g (the tolerance is %.0e)", reason, ne.Iterations, plural(ne.Iterations), ne.ResidualNorm, solve.ResidualTol)
 	if len(ne.X) == r.n {
 		res := make([]float64, r.m)
-		if r.residual(ne.X, res) == nil {
+		r.lenient = true
+		err := r.residual(ne.X, res)
+		r.lenient = false
+		if err == nil {
 			worst, wi := -1.0, 0
 			for i, v := range res {
 				if s := math.Abs(v / r.rscale[i]); s > worst {
 					worst, wi = s, i
 				}
 			}
-			msg += fmt.Sprintf("; the equation furthest from balance is %s, at the last iterate %s (not a solution)", r.eqs[r.eqOfRow(wi)].Name, r.pointWords(ne.X))
+			eq := r.eqs[r.eqOfRow(wi)]
+			msg += fmt.Sprintf("; the equation furthest from balance is %s", eq.Name)
+			if l, rr, err := r.sides(r.eqOfRow(wi)); err == nil {
+				msg += ", with lhs − rhs = " + expr.Describe(&expr.Scalar{Z: l.Z - rr.Z, Dim: eq.Dim})
+			}
+			msg += fmt.Sprintf(" at the last iterate %s (not a solution)", r.pointWords(ne.X))
 		}
 	}
 	var realNames []string

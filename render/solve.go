@@ -205,7 +205,7 @@ func solvedParts(w *Writer, b *calcdoc.Block, set *calcdoc.SolveSet) {
 		}
 		w.WriteString(").")
 		if set.Polished {
-			w.WriteString(" The residuals were then rescaled to the size of their terms at the first solution and iterated again.")
+			w.WriteString(" The residuals were then rescaled to the size of their terms at the solution found and iterated again, with central differences, until the backward error was met.")
 		}
 	}
 	fmt.Fprintf(w, " Largest componentwise backward error at the solution: %s (accepted up to %s).</p>", sci(set.Backward), sci(calcdoc.SolveAcceptTol))
@@ -253,7 +253,7 @@ func solvedParts(w *Writer, b *calcdoc.Block, set *calcdoc.SolveSet) {
 
 	// the verification
 	partOpen(w)
-	w.WriteString("<p>Verification: both sides of every equation evaluated at the solution (at full precision; the values are shown rounded). ω is the difference relative to the size of the equation's terms (its componentwise backward error).</p>\n")
+	w.WriteString("<p>Verification: both sides of every equation evaluated at the solution, in complex arithmetic (at full precision; the values are shown rounded). ω is the difference relative to the size of the equation's terms (its componentwise backward error).</p>\n")
 	w.WriteString("<div class=\"grid\"><table class=\"data verify\" style=\"white-space: nowrap;\">\n<tr><th>equation</th><th>left side</th><th>right side</th><th>left − right</th><th>relative to its terms, ω</th></tr>\n")
 	for _, e := range set.Equations {
 		if e.LHS == nil {

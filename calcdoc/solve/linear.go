@@ -152,7 +152,27 @@ type SingularError struct {
 	SingularValues []float64 // σ₁ ≥ … ≥ σ_N of Â
 	Unknowns       []int     // unknowns not determined by the equations
 	Equations      []int     // equations that depend on each other
+
+	// Contradiction is set when the right-hand side b is not in the range
+	// of A: the equations contradict each other rather than merely
+	// repeating one another. Let g = U₀ U₀ᵀ b̂ be the part of b̂ in the
+	// left null space. When ‖g‖₂ > ContradictTol·max(‖b̂‖₂, 1), the
+	// combination with coefficients c_i = g_i/q_i of the rows of
+	// A x − b has no x left in it (Σ c_i A_ik = 0 up to the numerical rank)
+	// and equals the constant −Σ c_i b_i whatever x. Contradiction holds
+	// c scaled so that its largest |c_i q_i| is 1 at row Lead (c_Lead = 1
+	// exactly when q is uniform), and Mismatch = −Σ c_i b_i, in the unit
+	// of row Lead; nil when the set is consistent (or the SVD failed).
+	Contradiction []float64
+	Lead          int
+	Mismatch      float64
 }
+
+// ContradictTol is the relative size above which the part of the
+// equilibrated right-hand side outside the range of a singular matrix makes
+// the equations contradictory (see SingularError.Contradiction). For a
+// consistent dependent set that part is rounding, of order 1e-16 of b̂.
+const ContradictTol = 1e-9
 
 func (e *SingularError) Error() string {
 	var sb strings.Builder
@@ -168,6 +188,9 @@ func (e *SingularError) Error() string {
 		fmt.Fprintf(&sb, "; unknown %d is not determined", e.Unknowns[0])
 	default:
 		fmt.Fprintf(&sb, "; unknowns %s are not determined", joinInts(e.Unknowns))
+	}
+	if e.Contradiction != nil {
+		fmt.Fprintf(&sb, "; the equations contradict each other: a combination of them leaves no unknown, and its lhs − rhs is %.6g whatever the unknowns (in the unit of equation %d)", e.Mismatch, e.Lead)
 	}
 	switch len(e.Equations) {
 	case 0:
@@ -199,7 +222,7 @@ func joinInts(v []int) string {
 // *SingularError; cond is still returned. A non-square A gives a
 // *DimensionError, other bad input an error wrapping ErrBadProblem.
 func SolveLinear(lin *Linear) (x []float64, cond float64, err error) {
-	as, bs, s, err := equilibrate(lin)
+	as, bs, s, q, err := equilibrate(lin)
 	if err != nil {
 		return nil, 0, err
 	}
@@ -213,68 +236,68 @@ func SolveLinear(lin *Linear) (x []float64, cond float64, err error) {
 		cond = math.Inf(1)
 	}
 	if zeroPivot || math.IsNaN(cond) || cond > CondLimit {
-		return nil, cond, singular(as, cond, zeroPivot)
+		return nil, cond, singular(as, bs, q, lin.B, cond, zeroPivot)
 	}
 	var y mat.VecDense
 	if err := lu.SolveVecTo(&y, true, mat.NewVecDense(n, bs)); err != nil {
-		return nil, cond, singular(as, cond, true)
+		return nil, cond, singular(as, bs, q, lin.B, cond, true)
 	}
 	x = make([]float64, n)
 	for k := range x {
 		x[k] = s[k] * y.AtVec(k)
 		if !finite(x[k]) {
-			return nil, cond, singular(as, cond, false)
+			return nil, cond, singular(as, bs, q, lin.B, cond, false)
 		}
 	}
 	return x, cond, nil
 }
 
-// equilibrate validates lin and returns Â, b̂ and s.
-func equilibrate(lin *Linear) (*mat.Dense, []float64, []float64, error) {
+// equilibrate validates lin and returns Â, b̂, s and q.
+func equilibrate(lin *Linear) (as *mat.Dense, bs, s, q []float64, err error) {
 	if lin == nil || lin.A == nil {
-		return nil, nil, nil, badProblem("nil Linear or nil matrix")
+		return nil, nil, nil, nil, badProblem("nil Linear or nil matrix")
 	}
 	if lin.A.IsEmpty() {
-		return nil, nil, nil, badProblem("empty matrix")
+		return nil, nil, nil, nil, badProblem("empty matrix")
 	}
 	m, n := lin.A.Dims()
 	if (lin.N != 0 && lin.N != n) || (lin.M != 0 && lin.M != m) {
-		return nil, nil, nil, badProblem("Linear says %d×%d but A is %d×%d", lin.M, lin.N, m, n)
+		return nil, nil, nil, nil, badProblem("Linear says %d×%d but A is %d×%d", lin.M, lin.N, m, n)
 	}
 	if m != n {
-		return nil, nil, nil, &DimensionError{N: n, M: m}
+		return nil, nil, nil, nil, &DimensionError{N: n, M: m}
 	}
 	if len(lin.B) != m {
-		return nil, nil, nil, badProblem("b has %d entries for %d equations", len(lin.B), m)
+		return nil, nil, nil, nil, badProblem("b has %d entries for %d equations", len(lin.B), m)
 	}
-	s, err := scales(lin.XScale, n, "XScale")
+	s, err = scales(lin.XScale, n, "XScale")
 	if err != nil {
-		return nil, nil, nil, err
+		return nil, nil, nil, nil, err
 	}
-	q, err := scales(lin.RScale, m, "RScale")
+	q, err = scales(lin.RScale, m, "RScale")
 	if err != nil {
-		return nil, nil, nil, err
+		return nil, nil, nil, nil, err
 	}
-	as := mat.NewDense(m, n, nil)
-	bs := make([]float64, m)
+	as = mat.NewDense(m, n, nil)
+	bs = make([]float64, m)
 	for i := 0; i < m; i++ {
 		if !finite(lin.B[i]) {
-			return nil, nil, nil, badProblem("b[%d] = %v is not finite", i, lin.B[i])
+			return nil, nil, nil, nil, badProblem("b[%d] = %v is not finite", i, lin.B[i])
 		}
 		bs[i] = lin.B[i] / q[i]
 		for k := 0; k < n; k++ {
 			v := lin.A.At(i, k)
 			if !finite(v) {
-				return nil, nil, nil, badProblem("A[%d][%d] = %v is not finite", i, k, v)
+				return nil, nil, nil, nil, badProblem("A[%d][%d] = %v is not finite", i, k, v)
 			}
 			w := v * s[k] / q[i]
 			if !finite(w) {
-				return nil, nil, nil, badProblem("A[%d][%d]·s_%d/q_%d overflows", i, k, k, i)
+				return nil, nil, nil, nil, badProblem("A[%d][%d]·s_%d/q_%d overflows", i, k, k, i)
 			}
 			as.Set(i, k, w)
 		}
 	}
-	return as, bs, s, nil
+	return as, bs, s, q, nil
 }
 
 func scales(v []float64, n int, name string) ([]float64, error) {
@@ -297,8 +320,10 @@ func scales(v []float64, n int, name string) ([]float64, error) {
 	return out, nil
 }
 
-// singular builds the SingularError of the square equilibrated matrix as.
-func singular(as *mat.Dense, cond float64, zeroPivot bool) *SingularError {
+// singular builds the SingularError of the square equilibrated matrix as,
+// with the equilibrated right-hand side bs, the row scales q and the
+// unscaled right-hand side b.
+func singular(as *mat.Dense, bs, q, b []float64, cond float64, zeroPivot bool) *SingularError {
 	n, _ := as.Dims()
 	se := &SingularError{Cond: cond, ZeroPivot: zeroPivot}
 	if zeroPivot {
@@ -327,7 +352,42 @@ func singular(as *mat.Dense, cond float64, zeroPivot bool) *SingularError {
 	svd.VTo(&v)
 	se.Unknowns = nullIndices(&v, rank)
 	se.Equations = nullIndices(&u, rank)
+	contradiction(se, &u, rank, bs, q, b)
 	return se
+}
+
+// contradiction fills in SingularError.Contradiction from the left null
+// space (columns rank.. of u).
+func contradiction(se *SingularError, u *mat.Dense, rank int, bs, q, b []float64) {
+	m, cols := u.Dims()
+	g := make([]float64, m)
+	for j := rank; j < cols; j++ {
+		dot := 0.0
+		for i := 0; i < m; i++ {
+			dot += u.At(i, j) * bs[i]
+		}
+		for i := 0; i < m; i++ {
+			g[i] += dot * u.At(i, j)
+		}
+	}
+	if !(scaledNorm(g, nil) > ContradictTol*math.Max(scaledNorm(bs, nil), 1)) {
+		return
+	}
+	lead := 0
+	for i := range g {
+		if math.Abs(g[i]) > math.Abs(g[lead]) {
+			lead = i
+		}
+	}
+	c := make([]float64, m)
+	mis := 0.0
+	for i := range g {
+		// c_i = (g_i/g_lead)·(q_lead/q_i): the equilibrated combination in
+		// the unscaled rows, with c_lead = 1
+		c[i] = g[i] / g[lead] * q[lead] / q[i]
+		mis -= c[i] * b[i]
+	}
+	se.Contradiction, se.Lead, se.Mismatch = c, lead, mis
 }
 
 // nullIndices returns the rows k of the orthogonal matrix q whose part in
