@@ -279,6 +279,7 @@ func neg(x Value) Value {
 		return &Scalar{Z: canonZ(-x.Z), Dim: x.Dim, Angle: x.Angle}
 	case *Matrix:
 		out := NewMatrix(x.Rows, x.Cols)
+		out.Resid = x.Resid // negation is exact
 		for i, e := range x.E {
 			out.E[i] = Scalar{Z: canonZ(-e.Z), Dim: e.Dim}
 		}

@@ -131,6 +131,8 @@ func elementwise(f func(Scalar) Scalar) func([]Value) (Value, error) {
 			return &r, nil
 		case *Matrix:
 			out := NewMatrix(x.Rows, x.Cols)
+			// re, im, abs and conj of an entry add no residue to it
+			out.Resid = x.Resid
 			for i, e := range x.E {
 				out.E[i] = f(e)
 			}
