@@ -87,6 +87,10 @@ func (e *Env) EvalCheck(c *Compare, trace *Trace) (*CheckResult, error) {
 				res.Utilisation, res.HasUtil = y/x, true
 			}
 		}
+		// a share that overflows (1e300 against 1e-10) is not shown
+		if math.IsInf(res.Utilisation, 0) {
+			res.Utilisation, res.HasUtil = 0, false
+		}
 	}
 	return res, nil
 }

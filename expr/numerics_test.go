@@ -313,3 +313,16 @@ func TestDisplayMatrixRule(t *testing.T) {
 		t.Errorf("an entry with no residue bound was zeroed: %v", g.E[0].Z)
 	}
 }
+
+// A check whose utilisation (a/b) would overflow still has its verdict,
+// but no utilisation: 1e300/1e-10 = 1e310 > 1.798e308 (IEEE 754-2019 7.4).
+func TestCheckUtilisationNeverInfinite(t *testing.T) {
+	b := runBlock("check 1e300 < 1e-10")
+	r := b.results[0]
+	if r.Err != nil || r.Check == nil || r.Check.Pass {
+		t.Fatalf("check 1e300 < 1e-10: %v %+v, want a verdict of not satisfied", r.Err, r.Check)
+	}
+	if r.Check.HasUtil {
+		t.Errorf("utilisation %v shown", r.Check.Utilisation)
+	}
+}
