@@ -161,7 +161,11 @@ func (ev *evaluator) eval1(n Node) (Value, error) {
 			out := NewMatrix(m.Rows, m.Cols)
 			for i, e := range m.E {
 				out.E[i] = Scalar{Z: e.Z * complex(n.Unit.Scale, 0), Dim: e.Dim.Mul(n.Unit.Dim)}
+				if out.E[i].Z == 0 && e.Z != 0 {
+					return nil, underflow(opPos(n), "value in "+n.Unit.Text)
+				}
 			}
+			out.Resid = residScale(m, complex(n.Unit.Scale, 0), false)
 			return out, nil
 		}
 		if z := s.Z * complex(n.Unit.Scale, 0); z == 0 && s.Z != 0 {

@@ -77,9 +77,9 @@ func matrixOp(n *Binary, x, y Value) (Value, error) {
 		case xIsM && yIsM:
 			return matMul(n, xm, ym)
 		case xIsM:
-			return scale(xm, y.(*Scalar), false), nil
+			return scale(n, xm, y.(*Scalar), false)
 		default:
-			return scale(ym, x.(*Scalar), false), nil
+			return scale(n, ym, x.(*Scalar), false)
 		}
 	case DIV:
 		if yIsM {
@@ -89,12 +89,14 @@ func matrixOp(n *Binary, x, y Value) (Value, error) {
 		if s.Z == 0 {
 			return nil, Errorf(n.Y.Pos(), "division by zero: the divisor is 0")
 		}
-		return scale(xm, s, true), nil
+		return scale(n, xm, s, true)
 	}
 	return nil, Errorf(n.P, "%s does not work on %s and %s", n.Op, shapeWord(x), shapeWord(y))
 }
 
-func scale(m *Matrix, s *Scalar, divide bool) *Matrix {
+// scale multiplies (or divides) every entry of m by s. An entry that is
+// not zero and becomes zero has underflowed: an error at the operator.
+func scale(n *Binary, m *Matrix, s *Scalar, divide bool) (*Matrix, error) {
 	out := NewMatrix(m.Rows, m.Cols)
 	out.Resid = residScale(m, s.Z, divide)
 	for i, e := range m.E {
@@ -103,8 +105,11 @@ func scale(m *Matrix, s *Scalar, divide bool) *Matrix {
 		} else {
 			out.E[i] = Scalar{Z: e.Z * s.Z, Dim: e.Dim.Mul(s.Dim)}
 		}
+		if out.E[i].Z == 0 && e.Z != 0 && s.Z != 0 {
+			return nil, underflow(n.OpPos, map[bool]string{false: "product", true: "quotient"}[divide])
+		}
 	}
-	return out
+	return out, nil
 }
 
 // matMul is the matrix product C = A·B, C_ij = Σ_k A_ik·B_kj. Every term of
@@ -121,10 +126,12 @@ func matMul(n *Binary, a, b *Matrix) (Value, error) {
 		for j := 0; j < b.Cols; j++ {
 			var sum complex128
 			var d Dim
-			have := false
+			have, lost := false, false
 			for k := 0; k < a.Cols; k++ {
 				x, y := a.At(i, k), b.At(k, j)
-				sum += x.Z * y.Z
+				t := x.Z * y.Z
+				lost = lost || t == 0 && x.Z != 0 && y.Z != 0
+				sum += t
 				if x.Z == 0 && x.Dim.IsZero() || y.Z == 0 && y.Dim.IsZero() {
 					continue
 				}
@@ -134,6 +141,11 @@ func matMul(n *Binary, a, b *Matrix) (Value, error) {
 				} else if td != d {
 					return nil, Errorf(n.OpPos, "in the product, %s of the result sums terms of different units: term %d is %s, an earlier one %s", entryName(out, i, j), k+1, dimWord(td), dimWord(d))
 				}
+			}
+			if sum == 0 && lost {
+				// a term underflowed and nothing else is left: the true
+				// entry is not 0 but too small to hold
+				return nil, underflow(n.OpPos, "product")
 			}
 			out.Set(i, j, Scalar{Z: sum, Dim: d})
 		}

@@ -42,6 +42,10 @@ func TestNonFiniteIsAnErrorAtItsOperator(t *testing.T) {
 		{"matrix scaling overflows", "[1e300, 1] * 1e10", 12, "this product overflows"},
 		{"matrix product overflows", "[1e200; 1] * [1e200, 1]", 12, "this product overflows"},
 		{"matrix sum overflows", "[1.7e308] + [1.7e308]", 11, "this sum overflows"},
+		// 1e-200·1e-200 = 1e-400 rounds to 0 (IEEE 754-2019 7.5) in an entry
+		{"matrix scaling underflows", "[1e-200, 1] * 1e-200", 13, "this product underflows"},
+		{"matrix quotient underflows", "[1e-200, 1] / 1e200", 13, "this quotient underflows"},
+		{"matrix product entry underflows", "[1e-200, 0] * [1e-200; 1]", 13, "this product underflows"},
 		// hand derivation: det diag(1e200, 1e200) = 1e400, det diag(1e-200, 1e-200) = 1e-400
 		{"det overflows", "det([1e200, 0; 0, 1e200])", 1, "det(...) overflows"},
 		{"det underflows", "det([1e-200, 0; 0, 1e-200])", 1, "the determinant underflows"},

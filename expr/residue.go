@@ -26,7 +26,19 @@ import "math/cmplx"
 // An entry that exact arithmetic would make 0 is computed as a number of
 // magnitude at most R; so a part (real or imaginary) of magnitude at most
 // R is indistinguishable from 0 and is shown as 0, and every other part,
-// however small beside its neighbours, is shown as computed.
+// however small beside its neighbours, is shown as computed. (A genuine
+// part below R lies below c·u times the sum of the magnitudes of the terms
+// that produced it, past their 15th significant digit: the arithmetic
+// cannot tell it from 0, and it is also invisible beside them.) The bounds
+// are for the complex magnitude of each entry, so they hold for each of
+// its parts.
+//
+// A scalar's residue is not tracked: an entry picked from a matrix, or a
+// scalar result, is shown as computed.
+//
+// seq and abc keep their own rule (clean in matrix.go): parts below 1e-13
+// of the largest input are set to 0 in the value itself, which a balanced
+// set needs for an exact zero-sequence component.
 
 func residAt(m *Matrix, i int) float64 {
 	if m.Resid == nil {
