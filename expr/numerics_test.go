@@ -35,6 +35,8 @@ func TestNonFiniteIsAnErrorAtItsOperator(t *testing.T) {
 		{"quotient underflows", "1e-300 / 1e100", 8, "this quotient underflows"},
 		{"power underflows", "(1e-200)^2", 9, "this power underflows"},
 		{"exp underflows", "exp(-1000)", 1, "underflows"},
+		// a literal below 2⁻¹⁰⁷⁴ ≈ 4.94e-324 reads as 0 (IEEE 754-2019 7.5)
+		{"literal underflows", "2 * 1e-330", 5, "number 1e-330 underflows"},
 		// exp(1000) ≈ 1.97e434 and cosh(1000) ≈ 9.85e433 overflow
 		{"exp overflows", "exp(1000)", 1, "not finite"},
 		{"cosh overflows", "cosh(1000)", 1, "not finite"},
