@@ -218,6 +218,18 @@ func TestLinalgUnitsNumPy(t *testing.T) {
 					}
 				}
 			}
+			// hand derivation: A·A⁻¹ = I, so every off-diagonal entry the
+			// arithmetic leaves is residue and is shown as 0, however the
+			// rows are scaled; the diagonal is 1
+			p := DisplayMatrix(evalMatrix(t, lit+" * inv("+lit+")"))
+			for i := 0; i < c.N; i++ {
+				for j := 0; j < c.N; j++ {
+					z := p.At(i, j).Z
+					if i != j && z != 0 || i == j && cmplx.Abs(z-1) > 1e-10 {
+						t.Errorf("A·A⁻¹ (%d,%d) shown from %v", i+1, j+1, z)
+					}
+				}
+			}
 		})
 	}
 }
