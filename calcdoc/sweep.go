@@ -610,8 +610,15 @@ func runSweep(b *Block, sw *Sweep) {
 				first[li] = i
 				l.Dim, l.Angle = s.Dim, s.Angle
 				if derr := expr.CheckDisplay(s, l.Display); derr != nil {
+					// a failed display unit defines nothing: the line has
+					// no value at any point, and the lines that use it
+					// are not evaluated (as in a calc block)
 					l.Errs = append(l.Errs, expr.Errorf(l.Display.Pos(), "%s", derr.Error()))
 					l.Display = nil
+					static[li], bad[li] = true, true
+					l.Z[i] = nan
+					l.Gaps++
+					continue
 				}
 			}
 			if !s.IsReal() {

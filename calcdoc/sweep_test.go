@@ -294,6 +294,8 @@ func TestSweepLineErrors(t *testing.T) {
 		{"unit mismatch", []string{"y = f + 1 V", "w = y * 2"}, 9, 7, "cannot add", 10},
 		{"used before its line", []string{"y = z", "z = f"}, 9, 5, `unknown name "z"`, 0},
 		{"display of another unit", []string{"y[V] = f"}, 9, 2, "the unit V is a voltage", 0},
+		// issue 12: a failed display unit defines nothing, so w is not evaluated
+		{"display of another unit, used below", []string{"y[V] = f", "w = y * 2"}, 9, 2, "the unit V is a voltage", 10},
 		{"not a single value", []string{"[f; f]"}, 9, 1, "a sweep line must give a single value", 0},
 		// 1e300·1e300 = 1e600 exceeds the largest binary64 number, about
 		// 1.8e308 (IEEE 754-2019 section 7.4, overflow): an error at the
