@@ -344,3 +344,40 @@ func TestCheckUtilisationNeverInfinite(t *testing.T) {
 		t.Errorf("utilisation %v shown", r.Check.Utilisation)
 	}
 }
+
+// nonFinite names the operation and tells overflow (±∞, IEEE 754-2019
+// section 7.4) from an invalid operation (NaN, section 7.2: 0·∞, ∞ − ∞,
+// 0/0), for a scalar and for any entry of a matrix.
+func TestNonFiniteKinds(t *testing.T) {
+	at := Pos{Line: 3, Col: 7}
+	bin := &Binary{Op: SUB, OpPos: at}
+	nan := complex(math.NaN(), 0)
+	inf := complex(0, math.Inf(-1))
+	cases := []struct {
+		name string
+		n    Node
+		v    Value
+		msg  string // "" for no error
+	}{
+		{"finite", bin, &Scalar{Z: 1e308}, ""},
+		{"subnormal is finite", bin, &Scalar{Z: 5e-324}, ""},
+		{"NaN", bin, &Scalar{Z: nan}, "this difference is undefined"},
+		{"infinite imaginary part", bin, &Scalar{Z: inf}, "this difference overflows"},
+		{"NaN entry", bin, &Matrix{Rows: 1, Cols: 2, E: []Scalar{{Z: 1}, {Z: nan}}}, "this difference is undefined"},
+		{"call", &Call{Fun: &Ident{Name: "sinh"}, span: span{P: at}}, &Scalar{Z: inf}, "sinh(...) overflows"},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			err := nonFinite(c.n, c.v)
+			if c.msg == "" {
+				if err != nil {
+					t.Errorf("%v", err)
+				}
+				return
+			}
+			if err == nil || errPos(err) != at || !strings.Contains(errMsg(err), c.msg) {
+				t.Errorf("%v, want at %v containing %q", err, at, c.msg)
+			}
+		})
+	}
+}
