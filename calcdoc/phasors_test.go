@@ -108,7 +108,9 @@ func TestPhasorsErrors(t *testing.T) {
 	}{
 		{"undefined name", "```phasors V_a, X_b", 17, `unknown name "X_b"`},
 		{"not a scalar", "```phasors M", 12, "a vector of 2 entries"},
-		{"not finite", "```phasors V_a * 1e308", 12, "not finite"},
+		// |V_a|·1e308 exceeds the largest binary64 number (IEEE 754-2019
+		// section 7.4, overflow): the error is at the * (column 16)
+		{"not finite", "```phasors V_a * 1e308", 16, "this product overflows"},
 		{"empty entry", "```phasors V_a,, I_a", 16, "empty entry"},
 		{"unit bracket", "```phasors I_a[kA]", 15, "no unit bracket"},
 		{"no list", "```phasors", 4, "lists the values to draw"},

@@ -69,10 +69,11 @@ type SweepLine struct {
 	// Z holds the value at each point in coherent SI units; NaN (both
 	// parts) where the line has no value: a gap.
 	Z []complex128
-	// Gaps counts the points without a finite value; GapErr is the first
-	// evaluation error at a point (nil when every gap is a value that is
-	// not finite or follows from a gap in a line above) and GapAt its
-	// point's index.
+	// Gaps counts the points without a value; GapErr is the first
+	// evaluation error at a point (an operation that overflows or is
+	// undefined there is such an error, at its operator; GapErr is nil
+	// only when every gap follows from a gap in a line above) and GapAt
+	// its point's index.
 	Gaps   int
 	GapErr error
 	GapAt  int
@@ -585,7 +586,13 @@ func runSweep(b *Block, sw *Sweep) {
 				var ok bool
 				if s, ok = v.(*expr.Scalar); !ok {
 					err = expr.Errorf(l.X.Pos(), "the value is %s: a sweep line must give a single value at each point", expr.Describe(v))
-				} else if first[li] >= 0 && s.Dim != l.Dim && s.IsFinite() {
+				} else if !s.IsFinite() {
+					// the evaluator refuses non-finite results at their
+					// operator; a value that still is not finite (a name
+					// bound elsewhere) is an error at this point, never a
+					// silent gap (LANGUAGE.md section 4)
+					err = expr.Errorf(l.X.Pos(), "the value is not finite at this point")
+				} else if first[li] >= 0 && s.Dim != l.Dim {
 					err = expr.Errorf(l.X.Pos(), "the value changes unit across the sweep (%s here, %s at the first point)", expr.DimWord(s.Dim), expr.DimWord(l.Dim))
 				}
 			}
@@ -599,18 +606,19 @@ func runSweep(b *Block, sw *Sweep) {
 				l.Gaps++
 				continue
 			}
-			if !s.IsFinite() {
-				bad[li] = true
-				l.Z[i] = nan
-				l.Gaps++
-				continue
-			}
 			if first[li] < 0 {
 				first[li] = i
 				l.Dim, l.Angle = s.Dim, s.Angle
 				if derr := expr.CheckDisplay(s, l.Display); derr != nil {
+					// a failed display unit defines nothing: the line has
+					// no value at any point, and the lines that use it
+					// are not evaluated (as in a calc block)
 					l.Errs = append(l.Errs, expr.Errorf(l.Display.Pos(), "%s", derr.Error()))
 					l.Display = nil
+					static[li], bad[li] = true, true
+					l.Z[i] = nan
+					l.Gaps++
+					continue
 				}
 			}
 			if !s.IsReal() {

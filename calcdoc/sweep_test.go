@@ -294,8 +294,13 @@ func TestSweepLineErrors(t *testing.T) {
 		{"unit mismatch", []string{"y = f + 1 V", "w = y * 2"}, 9, 7, "cannot add", 10},
 		{"used before its line", []string{"y = z", "z = f"}, 9, 5, `unknown name "z"`, 0},
 		{"display of another unit", []string{"y[V] = f"}, 9, 2, "the unit V is a voltage", 0},
+		// issue 12: a failed display unit defines nothing, so w is not evaluated
+		{"display of another unit, used below", []string{"y[V] = f", "w = y * 2"}, 9, 2, "the unit V is a voltage", 10},
 		{"not a single value", []string{"[f; f]"}, 9, 1, "a sweep line must give a single value", 0},
-		{"never finite", []string{"y = 1e300 * 1e300 * f"}, 9, 5, "not finite at any point", 0},
+		// 1e300·1e300 = 1e600 exceeds the largest binary64 number, about
+		// 1.8e308 (IEEE 754-2019 section 7.4, overflow): an error at the
+		// first *, at every point
+		{"never finite", []string{"y = 1e300 * 1e300 * f"}, 9, 11, "this product overflows", 0},
 		{"several names", []string{"a, b = [f; f]", "c = a"}, 9, 1, "assigns one name", 10},
 		{"parse error", []string{"y = (f", "w = y * 2"}, 9, 5, "unclosed parenthesis", 10},
 	}
@@ -342,7 +347,9 @@ func TestSweepGaps(t *testing.T) {
 	}{
 		{"error at a point", y, []float64{-1, -2, math.NaN(), 2, 1}, "division by zero"},
 		{"follows a gap above", w, []float64{-2, -4, math.NaN(), 4, 2}, ""},
-		{"not finite", big, []float64{1e300, 1e305, math.NaN(), math.NaN(), math.NaN()}, ""},
+		// not finite from x = 1 on: an error at the point, naming the
+		// operator, never a silent gap
+		{"not finite", big, []float64{1e300, 1e305, math.NaN(), math.NaN(), math.NaN()}, "this product overflows"},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {

@@ -51,6 +51,18 @@ func jsonNum(x float64) any {
 	return x
 }
 
+// finiteCheck reports whether every side of a check is finite: a verdict
+// is written only then, so that "pass" is never true or false beside a
+// side that JSON would write as null (LANGUAGE.md section 4).
+func finiteCheck(r *expr.CheckResult) bool {
+	for _, s := range r.Values {
+		if s == nil || !s.IsFinite() {
+			return false
+		}
+	}
+	return true
+}
+
 // SIUnit is the coherent SI unit of a dimension as the values JSON writes
 // it: "V", "Ω", "W", or base units such as "kg·m²·s⁻³"; "" when
 // dimensionless.
@@ -88,7 +100,7 @@ func (d *Document) ValuesJSON() *ValuesJSON {
 	}
 	for _, c := range d.Checks {
 		cj := CheckJSON{Line: c.Pos.Line, Text: c.Text}
-		if c.Result != nil {
+		if c.Result != nil && finiteCheck(c.Result) {
 			p := c.Result.Pass
 			cj.Pass = &p
 		}

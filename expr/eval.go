@@ -105,6 +105,9 @@ func (ev *evaluator) eval(n Node) (Value, error) {
 	}
 	v, err := ev.eval1(n)
 	if err == nil {
+		if err := nonFinite(n, v); err != nil {
+			return nil, err
+		}
 		if !dimsInRange(v) {
 			return nil, Errorf(n.Pos(), "the unit of this value has an exponent beyond ±%d: not a physical quantity", MaxExponent)
 		}
@@ -158,8 +161,15 @@ func (ev *evaluator) eval1(n Node) (Value, error) {
 			out := NewMatrix(m.Rows, m.Cols)
 			for i, e := range m.E {
 				out.E[i] = Scalar{Z: e.Z * complex(n.Unit.Scale, 0), Dim: e.Dim.Mul(n.Unit.Dim)}
+				if out.E[i].Z == 0 && e.Z != 0 {
+					return nil, underflow(opPos(n), "value in "+n.Unit.Text)
+				}
 			}
+			out.Resid = residScale(m, complex(n.Unit.Scale, 0), false)
 			return out, nil
+		}
+		if z := s.Z * complex(n.Unit.Scale, 0); z == 0 && s.Z != 0 {
+			return nil, underflow(opPos(n), "value in "+n.Unit.Text)
 		}
 		return &Scalar{Z: s.Z * complex(n.Unit.Scale, 0), Dim: s.Dim.Mul(n.Unit.Dim), Angle: n.Unit.Angle && s.Dim.IsZero()}, nil
 	case *Unary:
@@ -273,6 +283,7 @@ func neg(x Value) Value {
 		return &Scalar{Z: canonZ(-x.Z), Dim: x.Dim, Angle: x.Angle}
 	case *Matrix:
 		out := NewMatrix(x.Rows, x.Cols)
+		out.Resid = x.Resid // negation is exact
 		for i, e := range x.E {
 			out.E[i] = Scalar{Z: canonZ(-e.Z), Dim: e.Dim}
 		}
@@ -311,24 +322,27 @@ func binaryOp(n *Binary, x, y Value) (Value, error) {
 		}
 		return &Scalar{Z: z, Dim: d, Angle: d.IsZero() && (xs.Angle || ys.Angle)}, nil
 	case MUL:
+		if z := xs.Z * ys.Z; z == 0 && xs.Z != 0 && ys.Z != 0 {
+			return nil, underflow(n.OpPos, "product")
+		}
 		return &Scalar{Z: xs.Z * ys.Z, Dim: xs.Dim.Mul(ys.Dim), Angle: (xs.Angle && ys.Dim.IsZero() && !ys.Angle) || (ys.Angle && xs.Dim.IsZero() && !xs.Angle)}, nil
 	case DIV:
 		if ys.Z == 0 {
 			return nil, Errorf(n.Y.Pos(), "division by zero: the divisor is 0")
+		}
+		if z := xs.Z / ys.Z; z == 0 && xs.Z != 0 {
+			return nil, underflow(n.OpPos, "quotient")
 		}
 		return &Scalar{Z: xs.Z / ys.Z, Dim: xs.Dim.Div(ys.Dim), Angle: xs.Angle && ys.Dim.IsZero() && !ys.Angle}, nil
 	case PAR:
 		if xs.Dim != ys.Dim {
 			return nil, unitMismatch(n, opName(n.Op), xs, ys)
 		}
-		sum := xs.Z + ys.Z
-		if sum == 0 {
-			if xs.Z == 0 {
-				return &Scalar{Dim: xs.Dim}, nil
-			}
-			return nil, Errorf(n.OpPos, "parallel combination is infinite: the two sides sum to zero (a∥b = a·b/(a+b))")
+		z, err := parallel(n.OpPos, xs.Z, ys.Z)
+		if err != nil {
+			return nil, err
 		}
-		return &Scalar{Z: xs.Z * ys.Z / sum, Dim: xs.Dim}, nil
+		return &Scalar{Z: z, Dim: xs.Dim}, nil
 	case ANGLE:
 		if !ys.Dim.IsZero() {
 			return nil, Errorf(n.Y.Pos(), "the angle after ∠ must be an angle (e.g. 30° or 0.5 rad), not %s", Describe(ys))
@@ -409,11 +423,18 @@ func power(n *Binary, x, y *Scalar) (Value, error) {
 			}
 			d[i] = int8(r)
 		}
-		return &Scalar{Z: powZ(x.Z, y.Z), Dim: d}, nil
+		z := powZ(x.Z, y.Z)
+		if z == 0 && x.Z != 0 {
+			return nil, underflow(n.OpPos, "power")
+		}
+		return &Scalar{Z: z, Dim: d}, nil
 	}
 	z := powZ(x.Z, y.Z)
 	if x.Z == 0 && real(y.Z) < 0 {
 		return nil, Errorf(n.P, "0 raised to a negative power is infinite")
+	}
+	if z == 0 && x.Z != 0 {
+		return nil, underflow(n.OpPos, "power")
 	}
 	return &Scalar{Z: z}, nil
 }

@@ -37,6 +37,10 @@ func (e *Env) EvalCheck(c *Compare, trace *Trace) (*CheckResult, error) {
 		if !ok {
 			return nil, Errorf(x.Pos(), "a check compares single values, not %s", shapeWord(v))
 		}
+		if !s.IsFinite() {
+			// never a verdict on a value that is not finite (LANGUAGE.md section 4)
+			return nil, Errorf(x.Pos(), "this side of the check is not a finite value: no verdict")
+		}
 		res.Values = append(res.Values, s)
 	}
 	for i, op := range c.Ops {
@@ -82,6 +86,10 @@ func (e *Env) EvalCheck(c *Compare, trace *Trace) (*CheckResult, error) {
 			if y >= 0 && x > 0 {
 				res.Utilisation, res.HasUtil = y/x, true
 			}
+		}
+		// a share that overflows (1e300 against 1e-10) is not shown
+		if math.IsInf(res.Utilisation, 0) {
+			res.Utilisation, res.HasUtil = 0, false
 		}
 	}
 	return res, nil
@@ -137,7 +145,12 @@ func (e *Env) Exec(s Stmt) *Result {
 			return r
 		}
 		if err := CheckDisplay(v, s.Display); err != nil {
+			// a line whose display unit fails defines nothing: later uses
+			// of the name get "not defined because its line has an error"
 			r.Err = Errorf(s.Display.P, "%s: %s", s.Names[0].Name, err.Error())
+			r.Value = nil
+			e.defineUnavailableAt(s.Names, s.Names[0].P)
+			return r
 		}
 		disp := s.Display
 		if disp == nil {

@@ -339,24 +339,28 @@ func fmtAngle(deg float64, n int) string {
 	return s
 }
 
-// DisplayMatrix returns m with every entry whose magnitude is below 1e-12
-// of the largest entry of the same dimension set to zero: rounding residue
-// of a matrix product (such as the off-diagonal terms of a transformed
-// symmetric matrix) is shown as 0, not as 4.441e-16. The values themselves
-// are not changed.
+// DisplayMatrix returns m with every part (real or imaginary) of an
+// entry that is rounding residue set to zero: a part whose magnitude is
+// at most the entry's residue bound m.Resid[i] (residue.go), the most by
+// which the arithmetic that produced it can miss an exact 0. Entries with
+// no bound (as written) are shown as they are; a genuine entry, however
+// small beside the others (100 nS beside 1 MS), is never zeroed. The
+// values themselves are not changed.
 func DisplayMatrix(m *Matrix) *Matrix {
-	big := map[Dim]float64{}
-	for _, e := range m.E {
-		big[e.Dim] = math.Max(big[e.Dim], cmplx.Abs(e.Z))
-	}
 	out := &Matrix{Rows: m.Rows, Cols: m.Cols, E: append([]Scalar(nil), m.E...)}
+	if m.Resid == nil {
+		return out
+	}
 	for i, e := range out.E {
-		tol := 1e-12 * big[e.Dim]
+		tol := m.Resid[i]
+		if !(tol > 0) || math.IsInf(tol, 0) {
+			continue
+		}
 		re, im := real(e.Z), imag(e.Z)
-		if math.Abs(re) < tol {
+		if math.Abs(re) <= tol {
 			re = 0
 		}
-		if math.Abs(im) < tol {
+		if math.Abs(im) <= tol {
 			im = 0
 		}
 		out.E[i].Z = complex(re, im)

@@ -38,7 +38,7 @@ func init() {
 			}
 			return &Scalar{Z: cmplx.Sqrt(canonZ(s.Z)), Dim: d}, nil
 		})},
-		"exp":   {1, 1, plain(cmplx.Exp, false)},
+		"exp":   {1, 1, nonZero(plain(cmplx.Exp, false))},
 		"ln":    {1, 1, plainChecked(cmplx.Log, "the logarithm of zero is -∞")},
 		"log10": {1, 1, plainChecked(cmplx.Log10, "the logarithm of zero is -∞")},
 		"sin":   {1, 1, plain(cmplx.Sin, false)},
@@ -131,6 +131,8 @@ func elementwise(f func(Scalar) Scalar) func([]Value) (Value, error) {
 			return &r, nil
 		case *Matrix:
 			out := NewMatrix(x.Rows, x.Cols)
+			// re, im, abs and conj of an entry add no residue to it
+			out.Resid = x.Resid
 			for i, e := range x.E {
 				out.E[i] = f(e)
 			}
@@ -155,6 +157,18 @@ func plain(f func(complex128) complex128, angle bool) func([]Value) (Value, erro
 		r.Angle = angle && r.IsReal()
 		return r, nil
 	})
+}
+
+// nonZero wraps a function whose true value is never zero (exp): a zero
+// result is underflow (LANGUAGE.md section 4), not a value.
+func nonZero(f func([]Value) (Value, error)) func([]Value) (Value, error) {
+	return func(a []Value) (Value, error) {
+		v, err := f(a)
+		if s, ok := v.(*Scalar); err == nil && ok && s.Z == 0 {
+			return nil, fmt.Errorf("the result underflows: it is not zero, but below %.2g, the smallest number calcdoc can hold", math.SmallestNonzeroFloat64)
+		}
+		return v, err
+	}
 }
 
 func plainChecked(f func(complex128) complex128, zeroMsg string) func([]Value) (Value, error) {

@@ -20,6 +20,7 @@ func FuzzEngine(f *testing.F) {
 	for _, s := range []string{
 		"V_n = 230 V\nZ = (0.12 + j0.08) Ω\nI[kA] = V_n / Z\ncheck |I| <= 6 kA",
 		"a, b, c = seq(1 V, 1 V∠-120°, 1 V∠120°)",
+		"x = (1e200 Ω)^2 / (1 Ω)\ncheck x > 1 Ω\ny = 1e-170 Ω ∥ 3e-170 Ω\nM = inv([1 MΩ, 0; 0, 1 nS])",
 	} {
 		f.Add(s)
 	}
@@ -80,6 +81,10 @@ func checkEngine(t *testing.T, src string) {
 		if v == nil {
 			return
 		}
+		// nothing that is not finite is ever a value (LANGUAGE.md section 4)
+		if err := nonFinite(&Number{}, v); err != nil {
+			t.Fatalf("a value that is not finite: %v", v)
+		}
 		for d := 2; d <= 12; d += 5 {
 			_ = FormatValue(v, nil, d)
 		}
@@ -114,6 +119,11 @@ func checkEngine(t *testing.T, src string) {
 		show(r.Value)
 		if r.Value != nil {
 			_ = FormatValue(r.Value, disp, 4)
+		}
+		if r.Check != nil {
+			for _, x := range r.Check.Values {
+				show(x)
+			}
 		}
 		if r.Check != nil && len(r.Check.Values) != len(r.Check.Holds)+1 {
 			t.Fatalf("check with %d values and %d results", len(r.Check.Values), len(r.Check.Holds))

@@ -70,15 +70,16 @@ func matrixOp(n *Binary, x, y Value) (Value, error) {
 			}
 			out.E[i] = Scalar{Z: z, Dim: d}
 		}
+		out.Resid = residSum(xm, ym)
 		return out, nil
 	case MUL:
 		switch {
 		case xIsM && yIsM:
 			return matMul(n, xm, ym)
 		case xIsM:
-			return scale(xm, y.(*Scalar), false), nil
+			return scale(n, xm, y.(*Scalar), false)
 		default:
-			return scale(ym, x.(*Scalar), false), nil
+			return scale(n, ym, x.(*Scalar), false)
 		}
 	case DIV:
 		if yIsM {
@@ -88,21 +89,27 @@ func matrixOp(n *Binary, x, y Value) (Value, error) {
 		if s.Z == 0 {
 			return nil, Errorf(n.Y.Pos(), "division by zero: the divisor is 0")
 		}
-		return scale(xm, s, true), nil
+		return scale(n, xm, s, true)
 	}
 	return nil, Errorf(n.P, "%s does not work on %s and %s", n.Op, shapeWord(x), shapeWord(y))
 }
 
-func scale(m *Matrix, s *Scalar, divide bool) *Matrix {
+// scale multiplies (or divides) every entry of m by s. An entry that is
+// not zero and becomes zero has underflowed: an error at the operator.
+func scale(n *Binary, m *Matrix, s *Scalar, divide bool) (*Matrix, error) {
 	out := NewMatrix(m.Rows, m.Cols)
+	out.Resid = residScale(m, s.Z, divide)
 	for i, e := range m.E {
 		if divide {
 			out.E[i] = Scalar{Z: e.Z / s.Z, Dim: e.Dim.Div(s.Dim)}
 		} else {
 			out.E[i] = Scalar{Z: e.Z * s.Z, Dim: e.Dim.Mul(s.Dim)}
 		}
+		if out.E[i].Z == 0 && e.Z != 0 && s.Z != 0 {
+			return nil, underflow(n.OpPos, map[bool]string{false: "product", true: "quotient"}[divide])
+		}
 	}
-	return out
+	return out, nil
 }
 
 // matMul is the matrix product C = A·B, C_ij = Σ_k A_ik·B_kj. Every term of
@@ -119,10 +126,12 @@ func matMul(n *Binary, a, b *Matrix) (Value, error) {
 		for j := 0; j < b.Cols; j++ {
 			var sum complex128
 			var d Dim
-			have := false
+			have, lost := false, false
 			for k := 0; k < a.Cols; k++ {
 				x, y := a.At(i, k), b.At(k, j)
-				sum += x.Z * y.Z
+				t := x.Z * y.Z
+				lost = lost || t == 0 && x.Z != 0 && y.Z != 0
+				sum += t
 				if x.Z == 0 && x.Dim.IsZero() || y.Z == 0 && y.Dim.IsZero() {
 					continue
 				}
@@ -133,9 +142,15 @@ func matMul(n *Binary, a, b *Matrix) (Value, error) {
 					return nil, Errorf(n.OpPos, "in the product, %s of the result sums terms of different units: term %d is %s, an earlier one %s", entryName(out, i, j), k+1, dimWord(td), dimWord(d))
 				}
 			}
+			if sum == 0 && lost {
+				// a term underflowed and nothing else is left: the true
+				// entry is not 0 but too small to hold
+				return nil, underflow(n.OpPos, "product")
+			}
 			out.Set(i, j, Scalar{Z: sum, Dim: d})
 		}
 	}
+	out.Resid = residProduct(a, b)
 	return out, nil
 }
 
@@ -200,48 +215,6 @@ func consistentDims(m *Matrix) (r, c []Dim, ok bool) {
 	return r, c, true
 }
 
-// luDecompose factors a copy of the n×n complex matrix a with partial
-// pivoting. It returns the factors in place, the permutation sign and
-// whether a pivot was zero (relative to the largest entry, 1e-14).
-func luDecompose(a []complex128, n int) (perm []int, sign float64, singular bool) {
-	perm = make([]int, n)
-	for i := range perm {
-		perm[i] = i
-	}
-	sign = 1
-	var norm float64
-	for _, z := range a {
-		norm = math.Max(norm, cmplx.Abs(z))
-	}
-	for k := 0; k < n; k++ {
-		p := k
-		best := cmplx.Abs(a[k*n+k])
-		for i := k + 1; i < n; i++ {
-			if v := cmplx.Abs(a[i*n+k]); v > best {
-				p, best = i, v
-			}
-		}
-		if best <= 1e-14*norm || best == 0 {
-			return perm, sign, true
-		}
-		if p != k {
-			for j := 0; j < n; j++ {
-				a[k*n+j], a[p*n+j] = a[p*n+j], a[k*n+j]
-			}
-			perm[k], perm[p] = perm[p], perm[k]
-			sign = -sign
-		}
-		for i := k + 1; i < n; i++ {
-			f := a[i*n+k] / a[k*n+k]
-			a[i*n+k] = f
-			for j := k + 1; j < n; j++ {
-				a[i*n+j] -= f * a[k*n+j]
-			}
-		}
-	}
-	return perm, sign, false
-}
-
 func matInv(args []Value) (Value, error) {
 	m, err := oneMatrix(args, "a square matrix")
 	if err != nil {
@@ -259,35 +232,17 @@ func matInv(args []Value) (Value, error) {
 	for i, e := range m.E {
 		a[i] = e.Z
 	}
-	perm, _, singular := luDecompose(a, n)
-	if singular {
-		return nil, fmt.Errorf("the matrix is singular: it has no inverse")
+	f := factor(a, n)
+	if f.singular {
+		return nil, f.singularError()
 	}
+	x, res := f.inverse(a, m.Resid)
 	out := NewMatrix(n, n)
-	col := make([]complex128, n)
-	for j := 0; j < n; j++ {
-		// solve A x = e_j: with P A = L U, x = U⁻¹ L⁻¹ P e_j
-		for i := 0; i < n; i++ {
-			if perm[i] == j {
-				col[i] = 1
-			} else {
-				col[i] = 0
-			}
-		}
-		for i := 0; i < n; i++ {
-			for k := 0; k < i; k++ {
-				col[i] -= a[i*n+k] * col[k]
-			}
-		}
-		for i := n - 1; i >= 0; i-- {
-			for k := i + 1; k < n; k++ {
-				col[i] -= a[i*n+k] * col[k]
-			}
-			col[i] /= a[i*n+i]
-		}
-		for i := 0; i < n; i++ {
+	out.Resid = res
+	for i := 0; i < n; i++ {
+		for j := 0; j < n; j++ {
 			// (A⁻¹)_ij has the dimension 1/(r_j·c_i)
-			out.Set(i, j, Scalar{Z: col[i], Dim: Dim{}.Div(r[j].Mul(c[i]))})
+			out.Set(i, j, Scalar{Z: x[i*n+j], Dim: Dim{}.Div(r[j].Mul(c[i]))})
 		}
 	}
 	return out, nil
@@ -323,13 +278,11 @@ func matDet(args []Value) (Value, error) {
 		}
 		d[k] = int8(x)
 	}
-	_, sign, singular := luDecompose(a, n)
-	if singular {
-		return &Scalar{Z: 0, Dim: d}, nil
-	}
-	z := complex(sign, 0)
-	for i := 0; i < n; i++ {
-		z *= a[i*n+i]
+	// singular after equilibration: the determinant is 0 (its computed
+	// value would be rounding residue)
+	z, ok := factor(a, n).det()
+	if !ok {
+		return nil, fmt.Errorf("the determinant underflows: it is not zero, but below %.2g in coherent SI units, the smallest number calcdoc can hold", math.SmallestNonzeroFloat64)
 	}
 	return &Scalar{Z: z, Dim: d}, nil
 }
@@ -340,11 +293,14 @@ func matTranspose(args []Value) (Value, error) {
 		return nil, err
 	}
 	out := NewMatrix(m.Cols, m.Rows)
+	idx := make([]int, len(m.E))
 	for i := 0; i < m.Rows; i++ {
 		for j := 0; j < m.Cols; j++ {
 			out.Set(j, i, m.At(i, j))
+			idx[j*m.Rows+i] = i*m.Cols + j
 		}
 	}
+	out.Resid = copyResid(m, idx)
 	return out, nil
 }
 
@@ -361,24 +317,31 @@ func matDiag(args []Value) (Value, error) {
 			return nil, fmt.Errorf("the diagonal matrix would be %d×%d: at most %d entries are allowed", n, n, MaxMatrixEntries)
 		}
 		out := NewMatrix(n, n)
+		idx := make([]int, n*n)
 		for i := 0; i < n; i++ {
 			for j := 0; j < n; j++ {
+				idx[i*n+j] = -1
 				if i == j {
 					out.Set(i, j, m.E[i])
+					idx[i*n+j] = i
 				} else {
 					out.Set(i, j, Scalar{Dim: m.E[i].Dim})
 				}
 			}
 		}
+		out.Resid = copyResid(m, idx)
 		return out, nil
 	}
 	if m.Rows != m.Cols {
 		return nil, fmt.Errorf("needs a vector or a square matrix, not %s", shapeWord(m))
 	}
 	out := NewMatrix(m.Rows, 1)
+	idx := make([]int, m.Rows)
 	for i := 0; i < m.Rows; i++ {
 		out.E[i] = m.At(i, i)
+		idx[i] = i*m.Cols + i
 	}
+	out.Resid = copyResid(m, idx)
 	return out, nil
 }
 

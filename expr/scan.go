@@ -482,6 +482,11 @@ func (s *scanner) scanNumber(start int, imag bool, space bool) {
 		if err != nil {
 			s.errAt(start, "number "+text+" is out of range")
 			t.Kind = ILLEGAL
+		} else if mant, _, _ := strings.Cut(strings.ToLower(text), "e"); v == 0 && strings.ContainsAny(mant, "123456789") {
+			// a non-zero literal below 2⁻¹⁰⁷⁴ would read as 0 (IEEE 754
+			// underflow): nothing that is not its value is a value
+			s.errAt(start, "number "+text+" underflows: it is not zero, but below 4.9e-324, the smallest number calcdoc can hold")
+			t.Kind = ILLEGAL
 		}
 		t.Num = v
 	}

@@ -28,6 +28,13 @@ type Scalar struct {
 type Matrix struct {
 	Rows, Cols int
 	E          []Scalar
+	// Resid, when not nil, holds for each entry (row by row) a bound on
+	// the magnitude of the rounding residue in it: the arithmetic that
+	// produced the entry is exact to within Resid[i] in coherent SI units.
+	// nil means every entry is exact (as written, or copied). The sheet
+	// shows a part of an entry as 0 only when it is 0 or within this
+	// bound (DisplayMatrix); see residue.go for how the bounds are kept.
+	Resid []float64
 }
 
 func (*Scalar) isValue()                 {}
