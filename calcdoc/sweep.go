@@ -84,6 +84,11 @@ type SweepLine struct {
 	Unavailable *expr.UnavailableError
 	deps        []int    // indices of earlier lines whose names it uses
 	depNames    []string // the names, parallel to deps
+
+	// Sense holds the sense of a power factor at each point (nil when no
+	// point's value is one), so that the table and the values show
+	// powerfactor(S) with its "lagging" or "leading" (see At).
+	Sense []expr.PFSense
 }
 
 // OK reports whether the line has a value at some point.
@@ -625,6 +630,9 @@ func runSweep(b *Block, sw *Sweep) {
 				l.Complex = true
 			}
 			l.Z[i] = s.Z
+			if s.Sense != 0 {
+				l.setSense(i, s.Sense)
+			}
 			if l.Name != "" {
 				locals[l.Name] = s
 			}

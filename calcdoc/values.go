@@ -14,6 +14,8 @@ type ValuesJSON struct {
 	Values []ValueJSON `json:"values"`
 	Checks []CheckJSON `json:"checks"`
 	Errors []ErrorJSON `json:"errors"`
+	// Sweeps holds every sweep with every point (valuesweep.go).
+	Sweeps []SweepJSON `json:"sweeps"`
 }
 
 // ValueJSON is one named value: re and im in coherent SI units, unit the
@@ -26,6 +28,8 @@ type ValueJSON struct {
 	Im    any    `json:"im"`
 	Unit  any    `json:"unit"`
 	Shown string `json:"shown"`
+	// the sense of a power factor (valuesweep.go); absent on other values
+	*SenseJSON
 }
 
 // CheckJSON is one check; Pass is null when the check could not be evaluated.
@@ -96,6 +100,7 @@ func (d *Document) ValuesJSON() *ValuesJSON {
 			}
 			vj.Re, vj.Im, vj.Unit = re, im, un
 		}
+		vj.SenseJSON = valueSenseJSON(v.Value)
 		out.Values = append(out.Values, vj)
 	}
 	for _, c := range d.Checks {
@@ -109,6 +114,7 @@ func (d *Document) ValuesJSON() *ValuesJSON {
 	for _, e := range d.Errors {
 		out.Errors = append(out.Errors, ErrorJSON{Line: e.Pos.Line, Col: e.Pos.Col, Message: e.Msg})
 	}
+	out.Sweeps = d.SweepsJSON()
 	return out
 }
 

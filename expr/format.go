@@ -92,7 +92,7 @@ func CheckDisplay(v Value, d *Display) error {
 func FormatValue(v Value, d *Display, digits int) string {
 	switch x := v.(type) {
 	case *Scalar:
-		return FormatScalar(x, d, digits).String()
+		return FormatScalar(x, d, digits).String() + x.Sense.Suffix()
 	case *Matrix:
 		x = DisplayMatrix(x)
 		var b strings.Builder
@@ -106,7 +106,7 @@ func FormatValue(v Value, d *Display, digits int) string {
 					b.WriteString(", ")
 				}
 				e := x.At(i, j)
-				b.WriteString(FormatScalar(&e, d, digits).String())
+				b.WriteString(FormatScalar(&e, d, digits).String() + e.Sense.Suffix())
 			}
 		}
 		b.WriteByte(']')

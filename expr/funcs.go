@@ -85,6 +85,8 @@ func init() {
 		"diag":      {1, 1, matDiag},
 		"seq":       {1, 3, seqFn},
 		"abc":       {1, 3, abcFn},
+		// power
+		"powerfactor": {1, 1, powerFactorFn},
 	}
 }
 

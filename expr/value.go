@@ -16,10 +16,13 @@ type Value interface {
 // Scalar is one complex quantity: Z in coherent SI units and its
 // dimension. Angle marks a dimensionless value that is a plane angle in
 // radians (from an angle unit, arg, or an inverse trigonometric function),
-// so that the sheet shows it in degrees.
+// so that the sheet shows it in degrees. Sense is set on the value of
+// powerfactor(S): it says how the sheet shows it ("0.9140 lagging"), never
+// how it computes (powerfactor.go).
 type Scalar struct {
 	Z     complex128
 	Dim   Dim
+	Sense PFSense
 	Angle bool
 }
 

@@ -134,7 +134,7 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 				if m, isM := res.Value.(*expr.Matrix); isM {
 					for i, id := range x.Names {
 						e := m.E[i]
-						w.Printf("<div class=\"r\" data-value=\"%s\" data-line=\"%d\">%s</div>", esc(id.Name), line, Math(NameML(id.Name)+"<mo>=</mo>"+ValueML(&e, x.Display, w.Digits(), false)))
+						w.Printf("<div class=\"r\" data-value=\"%s\" data-line=\"%d\">%s</div>", esc(id.Name), line, Math(NameML(id.Name)+"<mo>=</mo>"+ValueML(&e, x.Display, w.Digits(), false)+senseML(&e)))
 					}
 				}
 			} else {
@@ -145,6 +145,7 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 				w.mathDiv("r", resultAttrs(x.Names[0].Name, line), func() {
 					w.WriteString("<mo>=</mo>")
 					w.WriteString(s.valueML(res.Value, disp, false))
+					w.WriteString(senseML(res.Value))
 				})
 			}
 		}
@@ -170,6 +171,7 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 				}
 				parts = append(parts, s.valueML(v, disp, false))
 			}
+			parts = withSense(parts, c.Values)
 			verdict := "<span class=\"verdict pass\">satisfied</span>"
 			if !c.Pass {
 				verdict = "<span class=\"verdict fail\">NOT SATISFIED</span>"
@@ -195,7 +197,7 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 					s.WriteNode(&w.Buffer, x.X, false)
 				})
 			}
-			w.Printf("<div class=\"r\" data-value=\"\" data-line=\"%d\">%s</div>", line, Math("<mo>=</mo>"+ValueML(res.Value, x.Display, w.Digits(), false)))
+			w.Printf("<div class=\"r\" data-value=\"\" data-line=\"%d\">%s</div>", line, Math("<mo>=</mo>"+ValueML(res.Value, x.Display, w.Digits(), false)+senseML(res.Value)))
 		}
 	case *expr.BadStmt:
 		w.Printf("<div class=\"f\"><code>%s</code></div>", esc(st.Text))

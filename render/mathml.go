@@ -179,7 +179,7 @@ func ValueML(v expr.Value, d *expr.Display, digits int, paren bool) string {
 			b.WriteString("<mtr>")
 			for j := 0; j < x.Cols; j++ {
 				e := x.At(i, j)
-				b.WriteString("<mtd>" + ShownML(expr.FormatScalar(&e, d, digits), false) + "</mtd>")
+				b.WriteString("<mtd>" + ShownML(expr.FormatScalar(&e, d, digits), false) + senseML(&e) + "</mtd>")
 			}
 			b.WriteString("</mtr>")
 		}

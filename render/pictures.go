@@ -214,8 +214,8 @@ func sweepTable(w *Writer, sw *calcdoc.Sweep, cols []*calcdoc.SweepLine) {
 				w.WriteString("<td class=\"gap\">no value</td>")
 				continue
 			}
-			s := &expr.Scalar{Z: z, Dim: l.Dim, Angle: l.Angle}
-			w.Printf("<td>%s</td>", Math(ShownML(expr.FormatScalar(s, l.Display, w.Digits()), false)))
+			s := l.At(i)
+			w.Printf("<td>%s</td>", Math(ShownML(expr.FormatScalar(s, l.Display, w.Digits()), false)+senseML(s)))
 		}
 		w.Printf("<td class=\"why\">%s</td></tr>\n", esc(strings.Join(uniq(why[i]), ", ")))
 	}

@@ -345,7 +345,7 @@ func (n *nodes) codeSpan(out util.BufWriter, src []byte, node ast.Node, entering
 			}
 			w.Printf("<span class=\"inl-err\" id=\"L%d\">[ERROR: %s]</span>", in.Pos.Line, esc(msg))
 		default:
-			w.Printf("<span class=\"inl\" title=\"%s\">%s</span>", esc(in.Text), Math(ValueML(in.Value, displayFor(w.Doc, in.Display, in.Text), w.Digits(), false)))
+			w.Printf("<span class=\"inl\" title=\"%s\">%s</span>", esc(in.Text), Math(ValueML(in.Value, displayFor(w.Doc, in.Display, in.Text), w.Digits(), false)+senseML(in.Value)))
 		}
 		return ast.WalkSkipChildren, nil
 	}

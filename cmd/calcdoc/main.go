@@ -35,6 +35,8 @@ usage:
   calcdoc build [-o OUT] PATH...       an HTML sheet for each document
   calcdoc check PATH...                evaluate only, print a summary
   calcdoc values PATH                  JSON of one document's values, checks and errors
+  calcdoc values --csv [--sweep LINE] PATH
+                                       the values, or one sweep's points, as CSV
   calcdoc watch [--addr HOST:PORT] [-o OUT] PATH...
                                        rebuild on every save and serve a live preview
   calcdoc package [-o FILE] [--pdf FILE] PATH...
@@ -276,6 +278,8 @@ func (c *cli) check(args []string) int {
 
 func (c *cli) values(args []string) int {
 	fs := c.flagSet("values")
+	csvOut := fs.Bool("csv", false, "print the values as CSV instead of JSON")
+	sweepLine := fs.Int("sweep", 0, "with --csv: print the points of the sweep that starts at this line")
 	paths, err := parseFlags(fs, args)
 	if err != nil {
 		return exitUsage
@@ -293,6 +297,9 @@ func (c *cli) values(args []string) int {
 	doc, err := calcdoc.Load(paths[0])
 	if err != nil {
 		return c.usageErr("%v", err)
+	}
+	if *csvOut || sweepSet(fs) {
+		return c.valuesCSV(fs, doc, *csvOut, *sweepLine)
 	}
 	c.stdout.Write(doc.MarshalValues())
 	return status(doc, exitOK)
