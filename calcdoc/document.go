@@ -272,6 +272,7 @@ func (d *Document) fenced(n *ast.FencedCodeBlock) {
 	d.Blocks = append(d.Blocks, b)
 	d.byNode[n] = b
 	kind.Eval(b)
+	b.checkDrawing()
 	for _, e := range b.Errors {
 		d.Errors = append(d.Errors, e)
 	}

@@ -385,3 +385,10 @@ func PhasorDiagram(arrows []Arrow, caption string) (string, error) {
 	w.raw("</svg>\n")
 	return w.String(), nil
 }
+
+// CheckPhasors returns the error PhasorDiagram would return for the
+// arrows, without drawing them.
+func CheckPhasors(arrows []Arrow) error {
+	_, err := phasorLayout(arrows)
+	return err
+}
