@@ -81,12 +81,13 @@ func renderPhasors(w *Writer, b *calcdoc.Block) {
 }
 
 // phasorArrows are the arrows of a phasor diagram: one per entry with a
-// value, in order.
+// value, in order, labelled as the sheet typesets the entry, each from its
+// tail (the tip of the entry it is drawn from, or the origin).
 func phasorArrows(res *calcdoc.Phasors) []svg.Arrow {
 	var arrows []svg.Arrow
 	for _, it := range res.Items {
 		if it.OK() {
-			arrows = append(arrows, svg.Arrow{Label: it.Text, Re: it.Re, Im: it.Im, Scale: it.Unit})
+			arrows = append(arrows, svg.Arrow{Label: it.Text, Runs: LabelRuns(it.Node), Re: it.Re, Im: it.Im, X0: it.X0, Y0: it.Y0, Scale: it.Unit})
 		}
 	}
 	return arrows
