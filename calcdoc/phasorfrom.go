@@ -21,7 +21,7 @@ func splitFrom(entry string) (x, name string, nameOff int, ok bool) {
 				depth--
 			}
 		case 'f':
-			if depth == 0 && strings.HasPrefix(entry[i:], "from") && i > 0 && isBlank(entry[i-1]) &&
+			if depth == 0 && strings.HasPrefix(entry[i:], "from") && (i == 0 || isBlank(entry[i-1])) &&
 				(i+4 == len(entry) || isBlank(entry[i+4])) {
 				at = i
 			}
@@ -52,7 +52,9 @@ func resolveFrom(b *Block, res *Phasors, it *PhasorItem) bool {
 		return fail("after from comes the name of an earlier entry of this diagram, at whose tip the arrow starts, e.g. phasors V_r, I_L*Z_c from V_r")
 	}
 	if it.Text == "" {
-		return fail("nothing before from: write the value to draw, e.g. I_L*Z_c from %s", it.FromName)
+		it.Err = expr.Errorf(it.Pos, "nothing before from: write the value to draw, e.g. I_L*Z_c from %s", it.FromName)
+		b.Errors = append(b.Errors, it.Err)
+		return false
 	}
 	var errs expr.ErrorList
 	n, _ := expr.ParseExpr(expr.NewSource(it.FromName, it.FromPos), &errs)

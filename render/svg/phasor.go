@@ -232,16 +232,8 @@ func PhasorDiagram(arrows []Arrow, caption string) (string, error) {
 	if err != nil {
 		return "", err
 	}
-	geo := arrowGeometry(L)
-	runs := make([][]Run, len(arrows))
-	reqs := make([]labelReq, len(arrows))
-	for i, a := range arrows {
-		runs[i] = runsOf(a)
-		lw, lh, lb := labelSize(runs[i], phFontSize)
-		reqs[i] = labelReq{w: lw, h: lh, base: lb, tail: L.tails[i], tip: L.ends[i]}
-	}
+	geo, runs, spots := layoutLabels(L, arrows)
 	legendTop := phCY + phRadius + phMargin
-	spots := placeLabels(reqs, geoSegs(geo), angleBoxes(), box{2, 2, phWidth - 2, legendTop - 2})
 	for _, sp := range spots {
 		if sp.spill {
 			legendTop = math.Max(legendTop, sp.box.y1+phLegendRow/2)
@@ -471,4 +463,19 @@ func writeSpot(w *writer, sp labelSpot, runs []Run) {
 	w.raw(`>`)
 	writeRuns(w, runs, phFontSize)
 	w.raw("</text>\n")
+}
+
+// layoutLabels computes the drawn geometry of the arrows, their labels as
+// runs, and where each label goes.
+func layoutLabels(L *phLayout, arrows []Arrow) ([]arrowGeo, [][]Run, []labelSpot) {
+	geo := arrowGeometry(L)
+	runs := make([][]Run, len(arrows))
+	reqs := make([]labelReq, len(arrows))
+	for i, a := range arrows {
+		runs[i] = runsOf(a)
+		lw, lh, lb := labelSize(runs[i], phFontSize)
+		reqs[i] = labelReq{w: lw, h: lh, base: lb, tail: L.tails[i], tip: L.ends[i]}
+	}
+	spots := placeLabels(reqs, geoSegs(geo), angleBoxes(), box{2, 2, phWidth - 2, phCY + phRadius + phMargin - 2})
+	return geo, runs, spots
 }

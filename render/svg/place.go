@@ -66,14 +66,15 @@ type labelSpot struct {
 	leader bool
 	lx, ly float64 // the leader's start, on the arrow
 	mx, my float64 // the leader's end, on the box
+	along  bool    // beside the arrow's shaft rather than around its tip
 	spill  bool    // placed below the grid: no free spot was found
 }
 
 // Clearances of label placement, in user units.
 const (
-	labelPad    = 1.0  // labels keep this far from each other
-	segPad      = 1.5  // and from every arrow
-	leaderFrom  = 10.0 // a label further than this from its point gets a leader line
+	labelPad    = 1.0 // labels keep this far from each other
+	segPad      = 1.5 // and from every arrow
+	leaderFrom  = 6.0 // a label further than this from its point gets a leader line
 	spillRowGap = 4.0
 )
 
@@ -90,11 +91,12 @@ const placeDirs = 24
 // the drawing is "hard" (a spot with one is never kept if any spot
 // without one exists); covering an angle label of the grid is worse than
 // any distance; then nearer is better, and a leader line that crosses
-// another label costs a little.
+// another label costs a little, and so does a spot beside the shaft.
 const (
 	hardCost  = 1e9
 	angleCost = 1e5
 	crossCost = 200
+	alongCost = 30 // beside the shaft reads less clearly than at the tip
 )
 
 // placeLabels places the labels one after the other, each at the cheapest
@@ -140,6 +142,9 @@ func placeLabels(reqs []labelReq, segs []seg, soft []box, bounds box) []labelSpo
 			}
 		}
 		cost += math.Hypot(sp.mx-sp.lx, sp.my-sp.ly)
+		if sp.along {
+			cost += alongCost
+		}
 		return cost, hard
 	}
 	best := func(i int) (labelSpot, bool) {
@@ -222,7 +227,10 @@ func candidates(r labelReq) []labelSpot {
 		if length > 0 && d <= 7 {
 			for _, t := range alongT {
 				px, py := r.tail[0]+t*(r.tip[0]-r.tail[0]), r.tail[1]+t*(r.tip[1]-r.tail[1])
-				out = append(out, at(px, py, uy, -ux, d), at(px, py, -uy, ux, d))
+				for _, sp := range []labelSpot{at(px, py, uy, -ux, d), at(px, py, -uy, ux, d)} {
+					sp.along = true
+					out = append(out, sp)
+				}
 			}
 		}
 	}
