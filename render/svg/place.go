@@ -87,6 +87,16 @@ var (
 
 const placeDirs = 24
 
+// crowded is the number of labels above which the labels are placed in
+// one pass, without revisiting (a diagram that crowded is slow to improve
+// and no longer legible anyway).
+const crowded = 40
+
+// maxSearched is the number of labels placed by search: the labels of any
+// further arrows are set below the grid (a diagram of that many arrows is
+// a table's job).
+const maxSearched = 100
+
 // Costs of a candidate spot: a clash with a label, an arrow or the edge of
 // the drawing is "hard" (a spot with one is never kept if any spot
 // without one exists); covering an angle label of the grid is worse than
@@ -102,7 +112,7 @@ const (
 // placeLabels places the labels one after the other, each at the cheapest
 // of its candidate spots given those placed so far, then revisits every
 // label (each against all the others) until no label moves or four
-// rounds have passed. Candidate spots are boxes around the arrow's tip at
+// rounds have passed (no revisiting above crowded labels). Candidate spots are boxes around the arrow's tip at
 // the distances placeDists in placeDirs directions, and beside the arrow
 // at the fractions alongT of its length. A label that still clashes with
 // another label, an arrow or the drawing's edge is set in rows below
@@ -112,10 +122,36 @@ const (
 func placeLabels(reqs []labelReq, segs []seg, soft []box, bounds box) []labelSpot {
 	spots := make([]labelSpot, len(reqs))
 	placed := make([]bool, len(reqs))
-	costOf := func(i int, sp labelSpot) (cost float64, hard bool) {
+	// the bounding box of each segment, to skip the exact test quickly
+	segBox := make([]box, len(segs))
+	for k, s := range segs {
+		segBox[k] = box{math.Min(s.x0, s.x1), math.Min(s.y0, s.y1), math.Max(s.x0, s.x1), math.Max(s.y0, s.y1)}
+	}
+	// costOf is the cost of spot sp for label i; it stops counting once
+	// the cost reaches limit (the spot cannot win then). hard reports a
+	// clash with the edge, a label or an arrow.
+	costOf := func(i int, sp labelSpot, limit float64) (cost float64, hard bool) {
 		b := sp.box
+		cost = math.Hypot(sp.mx-sp.lx, sp.my-sp.ly)
+		if sp.along {
+			cost += alongCost
+		}
 		if !b.within(bounds) {
 			cost += hardCost
+			hard = true
+		}
+		if cost >= limit {
+			return cost, hard
+		}
+		bs := b.inflate(segPad)
+		for k, s := range segs {
+			if bs.overlap(segBox[k].inflate(0.01)) > 0 && bs.hits(s) {
+				cost += hardCost
+				hard = true
+				if cost >= limit {
+					return cost, hard
+				}
+			}
 		}
 		bi := b.inflate(labelPad)
 		for j := range reqs {
@@ -124,26 +160,19 @@ func placeLabels(reqs []labelReq, segs []seg, soft []box, bounds box) []labelSpo
 			}
 			if a := bi.overlap(spots[j].box); a > 0 {
 				cost += hardCost * (1 + a)
+				hard = true
+				if cost >= limit {
+					return cost, hard
+				}
 			}
 			if sp.leader && spots[j].box.hits(seg{sp.lx, sp.ly, sp.mx, sp.my}) {
 				cost += crossCost
 			}
 		}
-		bs := b.inflate(segPad)
-		for _, s := range segs {
-			if bs.hits(s) {
-				cost += hardCost
-			}
-		}
-		hard = cost >= hardCost
 		for _, a := range soft {
 			if b.overlap(a) > 0 {
 				cost += angleCost
 			}
-		}
-		cost += math.Hypot(sp.mx-sp.lx, sp.my-sp.ly)
-		if sp.along {
-			cost += alongCost
 		}
 		return cost, hard
 	}
@@ -151,19 +180,36 @@ func placeLabels(reqs []labelReq, segs []seg, soft []box, bounds box) []labelSpo
 		var bestSp labelSpot
 		bestCost, bestHard := math.Inf(1), true
 		for _, sp := range candidates(reqs[i]) {
-			if c, h := costOf(i, sp); c < bestCost {
+			// while the best spot clashes, any spot that clashes is as bad
+			// (its label is set below the grid): stop at its first clash
+			limit := bestCost
+			if bestHard {
+				limit = math.Min(limit, hardCost)
+			}
+			if c, h := costOf(i, sp, limit); c < bestCost && (!h || bestHard) {
 				bestSp, bestCost, bestHard = sp, c, h
 			}
 		}
 		return bestSp, bestHard
 	}
 	for i := range reqs {
-		spots[i], _ = best(i)
-		placed[i] = true
+		if i < maxSearched {
+			spots[i], _ = best(i)
+		} else {
+			spots[i] = labelSpot{box: box{-1, -1, 0, 0}} // set below the grid
+		}
+		placed[i] = i < maxSearched
 	}
-	for round := 0; round < 4; round++ {
+	rounds := 4
+	if len(reqs) > crowded {
+		rounds = 0
+	}
+	for round := 0; round < rounds; round++ {
 		moved := false
 		for i := range reqs {
+			if i >= maxSearched {
+				break
+			}
 			sp, _ := best(i)
 			if sp.box != spots[i].box {
 				spots[i], moved = sp, true
@@ -176,7 +222,7 @@ func placeLabels(reqs []labelReq, segs []seg, soft []box, bounds box) []labelSpo
 	// Spill what still clashes, in order, into rows below bounds.
 	x, y, rowH := bounds.x0+4, bounds.y1+spillRowGap, 0.0
 	for i := range reqs {
-		if _, hard := costOf(i, spots[i]); !hard {
+		if _, hard := costOf(i, spots[i], math.Inf(1)); !hard {
 			continue
 		}
 		r := reqs[i]
