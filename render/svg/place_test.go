@@ -115,7 +115,8 @@ func TestLabelsNeverOverlap(t *testing.T) {
 		n := 2 + r.IntN(9)
 		spread := []float64{0.5, 3, 10, 40}[r.IntN(4)]
 		checkLabels(t, fmt.Sprintf("set %d (%d arrows within ±%g°)", k, n, spread), closeSet(r, n, spread))
-	} // too many to fit around their tips: the rest are set below the grid,
+	}
+	// too many to fit around their tips: the rest are set below the grid,
 	// still clear of every label and arrow
 	checkLabels(t, "crowded, 150 arrows", closeSet(r, 150, 180))
 }
