@@ -80,3 +80,20 @@ func TestPhasorDiagramThatCannotBeDrawnIsAnError(t *testing.T) {
 		t.Errorf("exit %d, output %q; want 3 and an error at big.md:4:12", st, out+errs)
 	}
 }
+
+// TestLineEndsThroughTheCommand: a file saved with a byte-order mark and
+// old Mac line ends (lone CR) is read with its front matter, and its error
+// is reported at the line and column an editor shows: line 7 is
+// "y = x + 2 A", the "+" its 7th character (hand count).
+func TestLineEndsThroughTheCommand(t *testing.T) {
+	dir := t.TempDir()
+	src := "\uFEFF" + strings.Join([]string{"---", "digits: 3", "---", "", "```calc", "x = 1 V", "y = x + 2 A", "```", ""}, "\r")
+	p := write(t, dir, "mac.md", src)
+	st, out, errs := runCLI("check", p)
+	if st != exitError || !strings.Contains(out+errs, "mac.md:7:7: cannot add") {
+		t.Errorf("exit %d, output %q; want 3 and mac.md:7:7: cannot add", st, out+errs)
+	}
+	if strings.Contains(out+errs, "front matter") {
+		t.Errorf("front matter not read: %q", out+errs)
+	}
+}
