@@ -22,11 +22,11 @@ const (
 )
 
 // Text metrics used to estimate a label's box: no font is loaded, so the
-// width is estimated from the number of characters at the generic
-// sans-serif font's average advance (about 0.6 em, with room to spare),
-// subscripts and superscripts at 0.75 of the size.
+// width is estimated from the characters at advances a little above those
+// of the common sans-serif faces (runeAdvance), subscripts and
+// superscripts at 0.75 of the size.
 const (
-	advance    = 0.62 // average advance of a character, in em
+	advance    = 0.62 // average advance of a character, in em (angle labels)
 	smallScale = 0.75 // size of a subscript or superscript, in em
 	subDrop    = 0.3  // how far a subscript is lowered, in em
 	supRise    = 0.4  // how far a superscript is raised, in em
@@ -84,12 +84,15 @@ func plainText(runs []Run) string {
 func labelSize(runs []Run, fs float64) (w, h, base float64) {
 	sub, sup := false, false
 	for _, r := range runs {
-		n := float64(utf8.RuneCountInString(r.Text))
+		n := 0.0
+		for _, c := range r.Text {
+			n += runeAdvance(c)
+		}
 		if r.Shift == ShiftBase {
-			w += n * advance * fs
+			w += n * fs
 			continue
 		}
-		w += n * advance * smallScale * fs
+		w += n * smallScale * fs
 		sub = sub || r.Shift == ShiftSub
 		sup = sup || r.Shift == ShiftSup
 	}
@@ -145,4 +148,20 @@ func writeRuns(w *writer, runs []Run, fs float64) {
 		}
 		cur = r.Shift
 	}
+}
+
+// runeAdvance is the advance of a character in em, rounded up from the
+// common sans-serif faces: narrow letters and punctuation, wide letters
+// (m, w, M, W), other capitals, and everything else (lower case, digits,
+// Greek, operators).
+func runeAdvance(c rune) float64 {
+	switch {
+	case strings.ContainsRune("iljftI.,:;|!'()[] ", c):
+		return 0.4
+	case strings.ContainsRune("mwMW", c):
+		return 1.0
+	case unicode.IsUpper(c):
+		return 0.78
+	}
+	return 0.66
 }

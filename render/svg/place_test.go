@@ -214,3 +214,30 @@ func TestTipToTailFits(t *testing.T) {
 		t.Errorf("tip of the chain at %g px, want %g", r, phFill*phRadius)
 	}
 }
+
+// TestLabelWidthCovers: the estimated label width is at least the width
+// the text takes in DejaVu Sans, the usual sans-serif face of a Linux
+// browser, whose advances (in em, from memory of its metrics, so rounded)
+// are V 0.684, I 0.295, Z 0.685, S 0.635, W 0.989, digits 0.636, a 0.613,
+// n 0.634, m 0.974, · 0.318, φ 0.712 (estimated).
+func TestLabelWidthCovers(t *testing.T) {
+	cases := []struct {
+		name string
+		runs []Run
+		em   float64 // width in DejaVu Sans, base-size em (small runs ×0.75)
+	}{
+		{"V_1", []Run{{Text: "V"}, {Text: "1", Shift: ShiftSub}}, 0.684 + 0.75*0.636},
+		{"I_L·Z_c", []Run{{Text: "I"}, {Text: "L", Shift: ShiftSub}, {Text: "·Z"}, {Text: "c", Shift: ShiftSub}}, 0.295 + 0.75*0.557 + 0.318 + 0.685 + 0.75*0.55},
+		{"W_mn", []Run{{Text: "W"}, {Text: "mn", Shift: ShiftSub}}, 0.989 + 0.75*(0.974+0.634)},
+		{"S_φa", []Run{{Text: "S"}, {Text: "φa", Shift: ShiftSub}}, 0.635 + 0.75*(0.712+0.613)},
+	}
+	for _, c := range cases {
+		w, h, base := labelSize(c.runs, phFontSize)
+		if w < c.em*phFontSize {
+			t.Errorf("%s: estimated width %g px, the text takes %g px", c.name, w, c.em*phFontSize)
+		}
+		if h < phFontSize || base <= 0 || base >= h {
+			t.Errorf("%s: height %g, baseline %g", c.name, h, base)
+		}
+	}
+}
