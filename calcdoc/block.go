@@ -25,7 +25,10 @@ type Block struct {
 	// the kind's own type for the others.
 	Result any
 	Errors []*expr.Error
-	doc    *Document
+	// DrawErrors are the errors of Errors that a picture of the block
+	// cannot be drawn (see RegisterDrawCheck).
+	DrawErrors []*expr.Error
+	doc        *Document
 }
 
 // Doc returns the document the block belongs to.

@@ -26,8 +26,10 @@ type Document struct {
 	Source []byte // the file's bytes, as read (never written)
 	Front  FrontMatter
 	// Markdown is the goldmark tree of the body; Text is the source it
-	// was parsed from (the file with the front matter blanked out and
-	// invalid UTF-8 replaced), so offsets match the file.
+	// was parsed from (the file with a leading byte-order mark dropped,
+	// lone CRs read as line ends, the front matter blanked out and invalid
+	// UTF-8 replaced), so lines and columns match the file as a reader
+	// sees it.
 	Markdown ast.Node
 	Text     []byte
 	Blocks   []*Block  // the evaluated blocks, in document order
@@ -124,10 +126,10 @@ func Markdown() goldmark.Markdown { return markdown }
 // is in the document's Errors, and evaluation goes on past each one.
 func Parse(path string, src []byte) *Document {
 	d := &Document{Path: path, Source: src, Env: expr.NewEnv(), byNode: map[ast.Node]*Block{}, inlineN: map[ast.Node]*Inline{}}
-	txt := src
+	txt := readerLines(src)
 	var bad []int
-	if !utf8.Valid(src) {
-		txt, bad = sanitizeUTF8(src)
+	if !utf8.Valid(txt) {
+		txt, bad = sanitizeUTF8(txt)
 	}
 	d.Text = txt
 	d.index()
@@ -159,6 +161,27 @@ func Parse(path string, src []byte) *Document {
 	d.Errors.Sort()
 	d.Warnings.Sort()
 	return d
+}
+
+// readerLines returns the file's text as a reader sees it, so that the
+// front matter is found and every position is a line and column a reader
+// counts: a UTF-8 byte-order mark at the start (invisible in an editor) is
+// dropped, and a lone CR (the old Mac line end) becomes LF. A CR LF stays
+// as it is (goldmark and the YAML reader both take it as one line end).
+// Only the BOM changes the length, so offsets after the first line are
+// the file's offsets less three.
+func readerLines(src []byte) []byte {
+	src = bytes.TrimPrefix(src, []byte("\uFEFF"))
+	if bytes.IndexByte(src, '\r') < 0 {
+		return src
+	}
+	out := append([]byte(nil), src...)
+	for i, c := range out {
+		if c == '\r' && (i+1 == len(out) || out[i+1] != '\n') {
+			out[i] = '\n'
+		}
+	}
+	return out
 }
 
 func sanitizeUTF8(src []byte) ([]byte, []int) {
@@ -249,6 +272,7 @@ func (d *Document) fenced(n *ast.FencedCodeBlock) {
 	d.Blocks = append(d.Blocks, b)
 	d.byNode[n] = b
 	kind.Eval(b)
+	b.checkDrawing()
 	for _, e := range b.Errors {
 		d.Errors = append(d.Errors, e)
 	}

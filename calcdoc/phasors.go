@@ -45,6 +45,16 @@ type PhasorItem struct {
 	Unit   string
 	Factor float64
 	Re, Im float64
+	// From is the earlier entry at whose tip this arrow starts (an entry
+	// "EXPR from NAME"), nil for an arrow from the origin; FromName and
+	// FromPos are NAME as written and where. X0, Y0 are the arrow's tail
+	// in Unit (zero from the origin): the tip of From's arrow.
+	From     *PhasorItem
+	FromName string
+	FromPos  expr.Pos
+	X0, Y0   float64
+	// tip is the arrow's tip in coherent SI units (tail plus value).
+	tip complex128
 	// Err is the entry's error; Unavailable is set instead when it uses a
 	// name whose definition failed (not a new error).
 	Err         *expr.Error
@@ -117,6 +127,14 @@ func evalPhasors(b *Block) {
 		text := strings.TrimSpace(part)
 		it := &PhasorItem{Text: text, Pos: b.argPos(offs[k] + lead)}
 		res.Items = append(res.Items, it)
+		if x, name, nameOff, ok := splitFrom(text); ok {
+			it.Text, it.FromName = x, name
+			it.FromPos = b.argPos(offs[k] + lead + nameOff)
+			text = x
+			if !resolveFrom(b, res, it) {
+				continue
+			}
+		}
 		if text == "" {
 			it.Err = expr.Errorf(it.Pos, "empty entry in the list of phasors: write a name or an expression between the commas")
 			b.Errors = append(b.Errors, it.Err)
@@ -157,7 +175,17 @@ func evalPhasors(b *Block) {
 			b.Errors = append(b.Errors, it.Err)
 			continue
 		}
+		if it.From != nil && s.Dim != it.From.Value.Dim {
+			it.Err = expr.Errorf(it.Pos, "%s is %s and %s is %s: an arrow starts at the tip of an arrow of its own dimension (draw %s from an entry of that dimension, or from the origin)",
+				text, expr.DimWord(s.Dim), it.FromName, expr.DimWord(it.From.Value.Dim), text)
+			b.Errors = append(b.Errors, it.Err)
+			continue
+		}
 		it.Value = s
+		it.tip = s.Z
+		if it.From != nil {
+			it.tip += it.From.tip
+		}
 		if id, isName := x.(*expr.Ident); isName {
 			if bd := b.Env().Lookup(id.Name); bd != nil {
 				it.Display = bd.Display
@@ -198,7 +226,7 @@ func assignPhasorScales(b *Block, res *Phasors) {
 			groups = append(groups, g)
 		}
 		g.items = append(g.items, it)
-		g.max = math.Max(g.max, cmplx.Abs(it.Value.Z))
+		g.max = math.Max(g.max, math.Max(cmplx.Abs(it.Value.Z), cmplx.Abs(it.tip)))
 		g.complex = g.complex || !it.Value.IsReal()
 	}
 	for _, g := range groups {
@@ -207,7 +235,13 @@ func assignPhasorScales(b *Block, res *Phasors) {
 			it.Unit, it.Factor = unit, factor
 			z := it.Value.Z / complex(factor, 0)
 			it.Re, it.Im = real(z), imag(z)
-			if m := cmplx.Abs(z); m > phasorMaxMag || (m != 0 && m < phasorMinMag) {
+			if it.From != nil {
+				it.X0, it.Y0 = it.From.X0+it.From.Re, it.From.Y0+it.From.Im
+			}
+			if t := cmplx.Abs(it.tip / complex(factor, 0)); it.From != nil && t > phasorMaxMag {
+				it.Err = expr.Errorf(it.Pos, "%s drawn from %s ends at magnitude %g %s, beyond what a diagram can draw (%g)", it.Text, it.FromName, t, unit, phasorMaxMag)
+				b.Errors = append(b.Errors, it.Err)
+			} else if m := cmplx.Abs(z); m > phasorMaxMag || (m != 0 && m < phasorMinMag) {
 				it.Err = expr.Errorf(it.Pos, "%s has magnitude %g %s, beyond what a diagram can draw (%g to %g)", it.Text, m, unit, phasorMinMag, phasorMaxMag)
 				b.Errors = append(b.Errors, it.Err)
 			}

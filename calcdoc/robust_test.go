@@ -11,7 +11,8 @@ import (
 
 // TestFrontMatterLineBreaks: YAML ends a line at \r\n, \r, \n, NEL (U+0085),
 // LS (U+2028) and PS (U+2029) (YAML 1.1 §5.4, which the YAML parser
-// follows), the .md file only at \n; an error in the front matter is
+// follows), the .md file at \n, \r\n and a lone \r (as an editor shows
+// it); an error in the front matter is
 // reported at its line and column in the file. The expected positions are
 // counted by hand in each input (columns in characters, from 1).
 func TestFrontMatterLineBreaks(t *testing.T) {
@@ -23,13 +24,15 @@ func TestFrontMatterLineBreaks(t *testing.T) {
 	}{
 		{"LF", "---\ntitle: a\ntitle: b\n---\n", expr.Pos{Line: 3, Col: 1}, `key "title" is given twice`},
 		{"CR LF", "---\r\ntitle: a\r\ntitle: b\r\n---\r\n", expr.Pos{Line: 3, Col: 1}, `key "title" is given twice`},
-		// "\rdigits: 99": the value starts after the CR and "digits: "
-		{"a lone CR", "---\n\rdigits: 99\n---\n", expr.Pos{Line: 2, Col: 10}, `"99" is not a whole number`},
+		// "\rdigits: 99": a lone CR ends line 2 (as a reader sees the file),
+		// so "digits: 99" is line 3 and the value starts after "digits: "
+		{"a lone CR", "---\n\rdigits: 99\n---\n", expr.Pos{Line: 3, Col: 9}, `"99" is not a whole number`},
 		// "digits: 2" is 9 characters, NEL the 10th
 		{"NEL", "---\ndigits: 2\u0085digits: 3\n---\n", expr.Pos{Line: 2, Col: 11}, `key "digits" is given twice`},
 		{"LS", "---\ndigits: 2\u2028digits: 3\n---\n", expr.Pos{Line: 2, Col: 11}, `key "digits" is given twice`},
-		// the fuzzer's input: "\r{0, 0}", the second key at the 6th character
-		{"a flow mapping after a CR", "---\n\r{0, 0}\n---", expr.Pos{Line: 2, Col: 6}, `key "0" is given twice`},
+		// the fuzzer's input: "\r{0, 0}"; the CR ends line 2, and on line 3
+		// the second key is the 5th character
+		{"a flow mapping after a CR", "---\n\r{0, 0}\n---", expr.Pos{Line: 3, Col: 5}, `key "0" is given twice`},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {

@@ -164,10 +164,15 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 		if ok && res.Check != nil {
 			c := res.Check
 			disp := checkDisplay(w, x.Cmp)
+			dg := checkRowDigits(c.Values, x.Cmp.Ops, disp, w.Digits())
 			var parts []string
 			for i, v := range c.Values {
 				if i > 0 {
 					parts = append(parts, "<mo>"+opML[x.Cmp.Ops[i-1]]+"</mo>")
+				}
+				if dg != w.Digits() {
+					parts = append(parts, ValueML(v, disp, dg, false))
+					continue
 				}
 				parts = append(parts, s.valueML(v, disp, false))
 			}

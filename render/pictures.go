@@ -31,12 +31,12 @@ func renderPhasors(w *Writer, b *calcdoc.Block) {
 	var arrows []svg.Arrow
 	var vals []string
 	if res != nil {
+		arrows = phasorArrows(res)
 		f := w.exprML(false, nil)
 		for _, it := range res.Items {
 			if !it.OK() {
 				continue
 			}
-			arrows = append(arrows, svg.Arrow{Label: it.Text, Re: it.Re, Im: it.Im, Scale: it.Unit})
 			var lhs string
 			if id, ok := it.Node.(*expr.Ident); ok {
 				lhs = NameML(id.Name)
@@ -49,7 +49,9 @@ func renderPhasors(w *Writer, b *calcdoc.Block) {
 	if len(arrows) > 0 {
 		pic, err := svg.PhasorDiagram(arrows, "")
 		if err != nil {
-			w.ErrorRow(expr.Errorf(b.InfoPos, "the diagram could not be drawn: %s", err.Error()))
+			if len(b.DrawErrors) == 0 { // else shown with the block's errors
+				w.ErrorRow(phasorDrawErr(b, err))
+			}
 		} else {
 			w.WriteString(pic)
 		}
@@ -78,6 +80,19 @@ func renderPhasors(w *Writer, b *calcdoc.Block) {
 	w.WriteString("</div>\n")
 }
 
+// phasorArrows are the arrows of a phasor diagram: one per entry with a
+// value, in order, labelled as the sheet typesets the entry, each from its
+// tail (the tip of the entry it is drawn from, or the origin).
+func phasorArrows(res *calcdoc.Phasors) []svg.Arrow {
+	var arrows []svg.Arrow
+	for _, it := range res.Items {
+		if it.OK() {
+			arrows = append(arrows, svg.Arrow{Label: it.Text, Runs: LabelRuns(it.Node), Re: it.Re, Im: it.Im, X0: it.X0, Y0: it.Y0, Scale: it.Unit})
+		}
+	}
+	return arrows
+}
+
 // renderSweep draws a sweep block: a head naming the range, one row per
 // line with its formula, a table of a readable subset of the points
 // (calcdoc.Sweep.TableRows), notes on gaps, and a plot per plotted line
@@ -91,6 +106,9 @@ func renderSweep(w *Writer, b *calcdoc.Block) {
 	}
 	w.Printf("<div class=\"sweephead\" id=\"L%d\">%s</div>\n", b.InfoPos.Line, sweepHead(w, sw))
 	inLine := map[*expr.Error]bool{}
+	for _, e := range b.DrawErrors { // shown in place of their figure
+		inLine[e] = true
+	}
 	for _, l := range sw.Lines {
 		for _, e := range l.Errs {
 			inLine[e] = true
@@ -304,9 +322,37 @@ func useLogY(y []float64) bool {
 	return hi >= lo && hi >= logDecades*lo
 }
 
+// sweepFig is one figure of a sweep line: the plot, the columns it is
+// thinned in, its caption and the position its errors are reported at.
+type sweepFig struct {
+	plot    svg.Plot
+	col     []int
+	caption string
+	pos     expr.Pos
+}
+
+// drawn is the plot as it is drawn: thinned to its columns.
+func (f sweepFig) drawn() svg.Plot { return thinPlot(f.plot, f.col) }
+
+// drawErr is the error of a figure that cannot be drawn.
+func (f sweepFig) drawErr(err error) *expr.Error {
+	msg := strings.TrimPrefix(err.Error(), "svg: plot: ")
+	if strings.Contains(msg, "drawable range") {
+		msg += " (a plot draws magnitudes from 1e-280 to 1e280 in its unit: give the line a unit bracket that brings its values within, or scale the quantity)"
+	}
+	return expr.Errorf(f.pos, "the plot could not be drawn: %s", msg)
+}
+
 // sweepPlots writes the figures of one line: its magnitude (complex) or
 // value (real), and for a complex line its angle in degrees.
 func sweepPlots(w *Writer, sw *calcdoc.Sweep, l *calcdoc.SweepLine) {
+	for _, f := range sweepFigs(sw, l) {
+		sweepFigure(w, f)
+	}
+}
+
+// sweepFigs are the figures of one line (sweepPlots).
+func sweepFigs(sw *calcdoc.Sweep, l *calcdoc.SweepLine) []sweepFig {
 	n := len(sw.X)
 	x := make([]float64, n)
 	xUnit := baseUnit(sw.Dim, false)
@@ -336,10 +382,10 @@ func sweepPlots(w *Writer, sw *calcdoc.Sweep, l *calcdoc.SweepLine) {
 	if logY {
 		scaleWord = ", logarithmic scale"
 	}
-	sweepFigure(w, svg.Plot{XLabel: xLabel, YLabel: axisLabel(q, unit), X: x, Series: []svg.Series{{Name: q, Y: y}}, LogX: sw.Log, LogY: logY}, col,
-		fmt.Sprintf("Line %d: %s of %s against %s%s.", line, what, name, sw.Var, scaleWord), l.X.Pos())
+	figs := []sweepFig{{svg.Plot{XLabel: xLabel, YLabel: axisLabel(q, unit), X: x, Series: []svg.Series{{Name: q, Y: y}}, LogX: sw.Log, LogY: logY}, col,
+		fmt.Sprintf("Line %d: %s of %s against %s%s.", line, what, name, sw.Var, scaleWord), l.X.Pos()}}
 	if !l.Complex {
-		return
+		return figs
 	}
 	ang := make([]float64, n)
 	for i, z := range l.Z {
@@ -349,8 +395,8 @@ func sweepPlots(w *Writer, sw *calcdoc.Sweep, l *calcdoc.SweepLine) {
 		}
 		ang[i] = cmplx.Phase(z) * 180 / math.Pi
 	}
-	sweepFigure(w, svg.Plot{XLabel: xLabel, YLabel: axisLabel("arg "+name, "°"), X: x, Series: []svg.Series{{Name: "arg " + name, Y: ang}}, LogX: sw.Log}, col,
-		fmt.Sprintf("Line %d: angle of %s against %s, in degrees.", line, name, sw.Var), l.X.Pos())
+	return append(figs, sweepFig{svg.Plot{XLabel: xLabel, YLabel: axisLabel("arg "+name, "°"), X: x, Series: []svg.Series{{Name: "arg " + name, Y: ang}}, LogX: sw.Log}, col,
+		fmt.Sprintf("Line %d: angle of %s against %s, in degrees.", line, name, sw.Var), l.X.Pos()})
 }
 
 // plotColumns is the number of columns across the x axis within which a
@@ -442,15 +488,18 @@ func thinPlot(p svg.Plot, col []int) svg.Plot {
 	return p
 }
 
-func sweepFigure(w *Writer, p svg.Plot, col []int, caption string, pos expr.Pos) {
-	pic, err := thinPlot(p, col).Render()
+// sweepFigure writes one figure, or in its place the error that it cannot
+// be drawn (found already by checkSweepDrawing, so counted as an error of
+// the document).
+func sweepFigure(w *Writer, f sweepFig) {
+	pic, err := f.drawn().Render()
 	if err != nil {
-		w.ErrorRow(expr.Errorf(pos, "the plot could not be drawn: %s", err.Error()))
+		w.ErrorRow(f.drawErr(err))
 		return
 	}
 	w.WriteString("<figure class=\"sweep\">\n")
 	w.WriteString(pic)
-	w.Printf("<figcaption>%s</figcaption>\n</figure>\n", esc(caption))
+	w.Printf("<figcaption>%s</figcaption>\n</figure>\n", esc(f.caption))
 }
 
 // uniq drops repeated strings, keeping the first of each.

@@ -431,3 +431,10 @@ func tickLine(w *writer, x1, y1, x2, y2 float64) {
 	w.attr("y2", y2)
 	w.raw("/>\n")
 }
+
+// Check returns the error Render would return for the plot, without
+// drawing it.
+func (p Plot) Check() error {
+	_, _, _, _, _, err := p.validate()
+	return err
+}

@@ -20,7 +20,6 @@ import (
 	"math"
 	"strconv"
 	"strings"
-	"unicode"
 	"unicode/utf8"
 )
 
@@ -172,48 +171,6 @@ func plainNumber(d, e int) string {
 
 // finite reports whether v is neither NaN nor ±Inf.
 func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
-
-// writeLabel appends a label as the content of a <text> element. The first
-// '_' starts a subscript: the run of letters, digits and '_' that follows it
-// is written in a <tspan> with a smaller font-size, lowered by dy; any text
-// after that run returns to the baseline. The '_' itself is not shown. A
-// label with no '_' (or nothing after it) is written as plain text.
-func writeLabel(w *writer, label string, fontSize float64) {
-	i := strings.IndexByte(label, '_')
-	if i < 0 || i == len(label)-1 {
-		w.text(label)
-		return
-	}
-	base, rest := label[:i], label[i+1:]
-	j := 0
-	for j < len(rest) {
-		r, size := utf8.DecodeRuneInString(rest[j:])
-		if r != '_' && !unicode.IsLetter(r) && !unicode.IsDigit(r) {
-			break
-		}
-		j += size
-	}
-	if j == 0 {
-		w.text(label)
-		return
-	}
-	sub, tail := rest[:j], rest[j:]
-	shift := fontSize * 0.3
-	w.text(base)
-	w.raw(`<tspan`)
-	w.attr("font-size", fontSize*0.75)
-	w.attr("dy", shift)
-	w.raw(`>`)
-	w.text(sub)
-	w.raw(`</tspan>`)
-	if tail != "" {
-		w.raw(`<tspan`)
-		w.attr("dy", -shift)
-		w.raw(`>`)
-		w.text(tail)
-		w.raw(`</tspan>`)
-	}
-}
 
 // wrapWords splits s into lines of at most width runes, breaking at spaces;
 // a single word longer than width gets a line of its own.

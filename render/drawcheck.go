@@ -1,0 +1,59 @@
+package render
+
+import (
+	"calcdoc/calcdoc"
+	"calcdoc/expr"
+	"calcdoc/render/svg"
+)
+
+// The pictures of phasors and sweep blocks are checked for drawability as
+// the blocks are evaluated (calcdoc.RegisterDrawCheck), with the very
+// inputs the sheet draws, so that a picture that cannot be drawn is an
+// error of the document: the summary counts it, the exit status is 3 and
+// the values JSON lists it. The sheet shows each such error once, where
+// its picture would be.
+func init() {
+	calcdoc.RegisterDrawCheck("phasors", checkPhasorsDrawing)
+	calcdoc.RegisterDrawCheck("sweep", checkSweepDrawing)
+}
+
+// checkPhasorsDrawing reports a phasor diagram that cannot be drawn.
+func checkPhasorsDrawing(b *calcdoc.Block) []*expr.Error {
+	res, _ := b.Result.(*calcdoc.Phasors)
+	if res == nil {
+		return nil
+	}
+	arrows := phasorArrows(res)
+	if len(arrows) == 0 {
+		return nil
+	}
+	if err := svg.CheckPhasors(arrows); err != nil {
+		return []*expr.Error{phasorDrawErr(b, err)}
+	}
+	return nil
+}
+
+// phasorDrawErr is the error of a phasor diagram that cannot be drawn.
+func phasorDrawErr(b *calcdoc.Block, err error) *expr.Error {
+	return expr.Errorf(b.InfoPos, "the diagram could not be drawn: %s", err.Error())
+}
+
+// checkSweepDrawing reports each plot of a sweep that cannot be drawn.
+func checkSweepDrawing(b *calcdoc.Block) []*expr.Error {
+	sw, _ := b.Result.(*calcdoc.Sweep)
+	if sw == nil || sw.X == nil {
+		return nil
+	}
+	var errs []*expr.Error
+	for _, l := range sw.Lines {
+		if !l.OK() {
+			continue
+		}
+		for _, f := range sweepFigs(sw, l) {
+			if err := f.drawn().Check(); err != nil {
+				errs = append(errs, f.drawErr(err))
+			}
+		}
+	}
+	return errs
+}
