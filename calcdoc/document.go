@@ -140,6 +140,7 @@ func Parse(path string, src []byte) *Document {
 			d.Errors.Add(expr.Pos{Line: 1, Col: 1}, "front matter starts with --- but is never closed: add a line --- after it")
 		} else {
 			parseFrontMatter(y, &d.Front, &d.Errors, &d.Warnings)
+			d.Env.Preferred = d.Front.Units
 			// blank the front matter out, keeping every offset
 			body = append([]byte(nil), txt...)
 			end := d.lines[min(n, len(d.lines)-1)]

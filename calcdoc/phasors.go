@@ -217,19 +217,11 @@ func assignPhasorScales(b *Block, res *Phasors) {
 
 // phasorUnit is the unit, and its size in coherent SI units, in which the
 // sheet shows a magnitude m of dimension d (complex selects VA over W for a
-// power). A unit that cannot be read back falls back to the coherent SI
-// unit with factor 1.
+// power): the engine's one choice of display unit (expr.DisplayUnit).
 func phasorUnit(d expr.Dim, m float64, complexValue bool) (string, float64) {
 	z := complex(m, 0)
 	if complexValue {
 		z = cmplx.Rect(m, math.Pi/4)
 	}
-	sh := expr.FormatScalar(&expr.Scalar{Z: z, Dim: d}, &expr.Display{Form: expr.FormPolar}, DefaultDigits)
-	if sh.Unit == "" {
-		return "", 1
-	}
-	if u, err := expr.ParseUnit(sh.Unit); err == nil && u.Dim == d && u.Scale > 0 && !math.IsInf(u.Scale, 0) {
-		return sh.Unit, u.Scale
-	}
-	return SIUnit(d), 1
+	return expr.DisplayUnit(&expr.Scalar{Z: z, Dim: d}, &expr.Display{Form: expr.FormPolar}, DefaultDigits)
 }

@@ -138,14 +138,12 @@ func (e *Env) Exec(s Stmt) *Result {
 		}
 		if err := CheckDisplay(v, s.Display); err != nil {
 			r.Err = Errorf(s.Display.P, "%s: %s", s.Names[0].Name, err.Error())
+		} else if kv, kerr := bracketKind(v, s.X, s.Display); kerr != nil {
+			r.Err = kerr
+		} else {
+			v, r.Value = kv, kv
 		}
-		disp := s.Display
-		if disp == nil {
-			// a value written as a literal is shown in the unit it is written in
-			if u := LiteralUnit(s.X); u != nil {
-				disp = &Display{Text: u.Text, Unit: u}
-			}
-		}
+		disp := e.ChooseDisplay(v, s.Display, s.X)
 		e.Define(&Binding{Name: s.Names[0].Name, Value: v, Pos: s.Names[0].P, Display: disp})
 	case *FuncDef:
 		if err := e.CanDefine(s.Name.Name, s.Name.P); err != nil {
@@ -180,6 +178,10 @@ func (e *Env) Exec(s Stmt) *Result {
 		if err == nil {
 			if derr := CheckDisplay(v, s.Display); derr != nil {
 				r.Err = Errorf(s.Display.P, "%s", derr.Error())
+			} else if kv, kerr := bracketKind(v, s.X, s.Display); kerr != nil {
+				r.Err = kerr
+			} else {
+				r.Value = kv
 			}
 		}
 	default:
@@ -297,8 +299,8 @@ func (r *Result) String() string {
 
 // LiteralUnit returns the unit of an expression that is a number written
 // with a unit ("1.15 Ω/km", "-40 kV", "230 V∠-120°", "(0.12 + j0.08) Ω"),
-// or nil. Angle units and per-unit/percent are not returned: those values
-// are shown by their own rules.
+// or nil. Angle units are not returned (angles are shown in degrees by
+// their own rule); % and pu are: "u_k = 6 %" is shown as 6.000 %.
 func LiteralUnit(n Node) *Unit {
 	switch n := n.(type) {
 	case *Unary:
@@ -310,7 +312,7 @@ func LiteralUnit(n Node) *Unit {
 			return LiteralUnit(n.X)
 		}
 	case *WithUnit:
-		if n.Unit.Angle || n.Unit.Dim.IsZero() || !isNumeric(n.X) {
+		if n.Unit.Angle || n.Unit.Dim.IsZero() && !n.Unit.Plain || !isNumeric(n.X) {
 			return nil
 		}
 		return n.Unit

@@ -68,7 +68,11 @@ func matrixOp(n *Binary, x, y Value) (Value, error) {
 			if n.Op == SUB {
 				z = a.Z - b.Z
 			}
-			out.E[i] = Scalar{Z: z, Dim: d}
+			k, err := sumKind(n, a, b)
+			if err != nil {
+				return nil, err
+			}
+			out.E[i] = Scalar{Z: z, Dim: d, Kind: k}
 		}
 		return out, nil
 	case MUL:
@@ -97,9 +101,9 @@ func scale(m *Matrix, s *Scalar, divide bool) *Matrix {
 	out := NewMatrix(m.Rows, m.Cols)
 	for i, e := range m.E {
 		if divide {
-			out.E[i] = Scalar{Z: e.Z / s.Z, Dim: e.Dim.Div(s.Dim)}
+			out.E[i] = Scalar{Z: e.Z / s.Z, Dim: e.Dim.Div(s.Dim), Kind: scaledKind(&e, s)}
 		} else {
-			out.E[i] = Scalar{Z: e.Z * s.Z, Dim: e.Dim.Mul(s.Dim)}
+			out.E[i] = Scalar{Z: e.Z * s.Z, Dim: e.Dim.Mul(s.Dim), Kind: scaledKind(&e, s)}
 		}
 	}
 	return out

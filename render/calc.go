@@ -146,6 +146,7 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 					w.WriteString("<mo>=</mo>")
 					w.WriteString(s.valueML(res.Value, disp, false))
 				})
+				w.kindNote(res.Value)
 			}
 		}
 	case *expr.FuncDef:
@@ -196,6 +197,7 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 				})
 			}
 			w.Printf("<div class=\"r\" data-value=\"\" data-line=\"%d\">%s</div>", line, Math("<mo>=</mo>"+ValueML(res.Value, x.Display, w.Digits(), false)))
+			w.kindNote(res.Value)
 		}
 	case *expr.BadStmt:
 		w.Printf("<div class=\"f\"><code>%s</code></div>", esc(st.Text))
@@ -262,4 +264,13 @@ func checkDisplay(w *Writer, c *expr.Compare) *expr.Display {
 		}
 	}
 	return nil
+}
+
+// kindNote writes the words "kind not stated" under the result of a real
+// power of no kind (IEEE 1459 kinds, LANGUAGE.md section 4): it is shown
+// in W until its line names W, var or VA.
+func (w *Writer) kindNote(v expr.Value) {
+	if sc, ok := v.(*expr.Scalar); ok && sc.KindNotStated() {
+		w.WriteString("<div class=\"s kn\"><em>kind not stated</em> (shown in W; name W, var or VA in the line)</div>")
+	}
 }
