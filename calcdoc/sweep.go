@@ -70,8 +70,8 @@ type SweepLine struct {
 	Angle   bool
 	Complex bool
 	// Kind is the power kind of a power line (IEEE 1459): apparent when
-	// Complex, else the kind at its first point with a value (a display
-	// bracket in W, var or VA sets it on a computed power).
+	// Complex, else the first kind known at a point (a display bracket in
+	// W, var or VA sets it on a computed power).
 	Kind expr.PowerKind
 	// Z holds the value at each point in coherent SI units; NaN (both
 	// parts) where the line has no value: a gap.
@@ -630,6 +630,8 @@ func runSweep(b *Block, sw *Sweep) {
 			if !s.IsReal() {
 				l.Complex = true
 				l.Kind = s.Kind
+			} else if l.Kind == expr.PowerNone {
+				l.Kind = s.Kind // a real power's kind may show only where it is complex upstream
 			}
 			l.Z[i] = s.Z
 			if l.Name != "" {
