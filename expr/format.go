@@ -202,7 +202,7 @@ func chooseUnit(s *Scalar, d *Display, digits int) unitChoice {
 			c.form = DefaultForm(s.Dim)
 		}
 	}
-	if d != nil && d.Unit != nil && (d.Unit.Dim == s.Dim || isPlainZero(s)) {
+	if d != nil && d.Unit != nil && (d.Unit.Dim == s.Dim || isPlainZero(s)) && fitsKind(s, d.Unit) {
 		c.unit, c.scale = d.Unit.Text, d.Unit.Scale
 		if c.unit == "deg" {
 			c.unit = "°"
@@ -238,6 +238,20 @@ func chooseUnit(s *Scalar, d *Display, digits int) unitChoice {
 		}
 	}
 	return c
+}
+
+// fitsKind reports whether a power may be shown in u: a power of a known
+// kind only in the unit of that kind, a complex power only in VA (IEEE
+// 1459). A display chosen for another value (the literal side of a check,
+// say) never shows an active power in kVA.
+func fitsKind(s *Scalar, u *Unit) bool {
+	if s.Dim != DimPower || u.Kind == PowerNone {
+		return true
+	}
+	if !s.IsReal() {
+		return u.Kind == PowerApparent
+	}
+	return s.Kind == PowerNone || s.Kind == u.Kind
 }
 
 // DisplayUnit is the unit s is shown in with display d at digits

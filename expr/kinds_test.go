@@ -214,3 +214,26 @@ func TestDisplayRules(t *testing.T) {
 		})
 	}
 }
+
+// A display unit of another kind never shows a power (IEEE 1459 units: W
+// for P, var for Q, VA for S): the unit of a check's literal side is not
+// forced on a side of another kind.
+func TestDisplayKeepsKind(t *testing.T) {
+	kva, _ := ParseUnit("kVA")
+	kvar, _ := ParseUnit("kvar")
+	tests := []struct {
+		s    *Scalar
+		d    *Display
+		want string
+	}{
+		{&Scalar{Z: 4000, Dim: DimPower, Kind: PowerActive}, &Display{Unit: kva}, "4.000 kW"},
+		{&Scalar{Z: 4000, Dim: DimPower, Kind: PowerReactive}, &Display{Unit: kvar}, "4.000 kvar"},
+		{&Scalar{Z: 4000, Dim: DimPower}, &Display{Unit: kvar}, "4.000 kvar"},
+		{&Scalar{Z: 4000 + 3000i, Dim: DimPower, Kind: PowerApparent}, &Display{Unit: kvar}, "4.000 + j3.000 kVA"},
+	}
+	for _, tc := range tests {
+		if got := FormatScalar(tc.s, tc.d, 4).String(); got != tc.want {
+			t.Errorf("%v in %s: %s, want %s", tc.s, tc.d.Unit.Text, got, tc.want)
+		}
+	}
+}

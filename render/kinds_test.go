@@ -88,3 +88,37 @@ func itoa(n int) string {
 	b, _ := json.Marshal(n)
 	return string(b)
 }
+
+// A real power of no kind is shown in W with the words "kind not stated"
+// on its row, until its line names W, var or VA (LANGUAGE.md section 4);
+// a power of a known kind (IEEE 1459) has no such words.
+func TestKindNotStatedRow(t *testing.T) {
+	src := []byte(strings.Join([]string{"```calc",
+		"V = 400 V",
+		"P_1 = sqrt(3) * V * 10 A",
+		"P_2[kW] = sqrt(3) * V * 10 A",
+		"Q_1 = 3 * 50 kvar",
+		"sqrt(3) * V * 20 A",
+		"```", ""}, "\n"))
+	doc := calcdoc.Parse("kinds.md", src)
+	html, err := Sheet(doc, fixedOptions(src))
+	if err != nil {
+		t.Fatal(err)
+	}
+	rows := regexp.MustCompile(`(?s)<div class="row[^"]*" id="L(\d+)">(.*?)<div class="desc">`).FindAllSubmatch(html, -1)
+	want := map[string]bool{"3": true, "4": false, "5": false, "6": true}
+	seen := 0
+	for _, r := range rows {
+		w, ok := want[string(r[1])]
+		if !ok {
+			continue
+		}
+		seen++
+		if got := strings.Contains(string(r[2]), "kind not stated"); got != w {
+			t.Errorf("line %s: kind not stated = %v, want %v", r[1], got, w)
+		}
+	}
+	if seen != len(want) {
+		t.Fatalf("found %d of %d rows", seen, len(want))
+	}
+}
