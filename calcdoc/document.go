@@ -310,6 +310,10 @@ func (d *Document) codeSpan(n *ast.CodeSpan) {
 		if err == nil {
 			if derr := expr.CheckDisplay(v, disp); derr != nil {
 				err = expr.Errorf(in.Pos, "%s", derr.Error())
+			} else if kv, kerr := expr.BracketKind(v, x, disp); kerr != nil {
+				err = kerr // a power relabelled to another kind (IEEE 1459)
+			} else {
+				v = kv
 			}
 		}
 		in.Value, in.Display, in.Err = v, disp, err
