@@ -94,6 +94,10 @@ type Result struct {
 	Check *CheckResult // for a check
 	Trace *Trace       // the values of the names in the statement's expression
 	Err   error        // an *Error or an *UnavailableError, or nil
+
+	// Display is the display the value is shown in (ChooseDisplay: the
+	// line's bracket, the literal's unit, the preferred unit), or nil.
+	Display *Display
 }
 
 // Exec evaluates one statement in e and defines what it names. A name
@@ -144,6 +148,7 @@ func (e *Env) Exec(s Stmt) *Result {
 			v, r.Value = kv, kv
 		}
 		disp := e.ChooseDisplay(v, s.Display, s.X)
+		r.Display = disp
 		e.Define(&Binding{Name: s.Names[0].Name, Value: v, Pos: s.Names[0].P, Display: disp})
 	case *FuncDef:
 		if err := e.CanDefine(s.Name.Name, s.Name.P); err != nil {
@@ -183,6 +188,7 @@ func (e *Env) Exec(s Stmt) *Result {
 			} else {
 				r.Value = kv
 			}
+			r.Display = e.ChooseDisplay(r.Value, s.Display, s.X)
 		}
 	default:
 		r.Err = Errorf(s.Pos(), "this statement is not allowed here")

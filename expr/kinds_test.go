@@ -6,8 +6,7 @@ import (
 )
 
 // shownAs runs src and returns the last statement's value as the sheet
-// shows it: in the display its definition chose (ChooseDisplay) for an
-// assignment, in its bracket for a bare expression.
+// shows it: in the display its line chose (ChooseDisplay).
 func shownAs(t *testing.T, src string, prefs []string, digits int) (*Scalar, string) {
 	t.Helper()
 	b := &block{env: NewEnv()}
@@ -26,15 +25,11 @@ func shownAs(t *testing.T, src string, prefs []string, digits int) (*Scalar, str
 		t.Fatalf("%q: %v", src, errs[0])
 	}
 	r := b.results[len(b.results)-1]
-	var d *Display
-	switch s := r.Stmt.(type) {
-	case *Assign:
-		d = b.env.Lookup(s.Names[0].Name).Display
-	case *ExprStmt:
-		d = s.Display
+	if a, ok := r.Stmt.(*Assign); ok && b.env.Lookup(a.Names[0].Name).Display != r.Display {
+		t.Fatalf("%q: the row and the name are shown in different displays", src)
 	}
 	sc, _ := r.Value.(*Scalar)
-	return sc, FormatValue(r.Value, d, digits)
+	return sc, FormatValue(r.Value, r.Display, digits)
 }
 
 // The power kinds of IEEE Std 1459-2010 (section 3.1, definitions):
@@ -144,6 +139,9 @@ func TestDisplayUnitOrder(t *testing.T) {
 		{"preferred apparent", "S = 2 * (3 + j4) VA", prefs, "0.006000 + j0.008000 kVA"},
 		{"no preferred active", "P = 2 * 20 kW", prefs, "40.00 kW"},
 		{"default with prefix", "Z = 2 * 0.5 Ω", nil, "1.000 Ω"},
+		{"bare expression, preferred", "2 * 6 A", prefs, "0.01200 kA"},
+		{"bare literal in %", "7 %", nil, "7.000 %"},
+		{"bare expression, line's unit", "(2 * 6 A)[A]", prefs, "12.00 A"},
 		{"default with prefix small", "Z = 2 * 0.5 mΩ", nil, "1.000 mΩ"},
 	}
 	for _, tc := range tests {

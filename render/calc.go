@@ -196,7 +196,7 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 					s.WriteNode(&w.Buffer, x.X, false)
 				})
 			}
-			w.Printf("<div class=\"r\" data-value=\"\" data-line=\"%d\">%s</div>", line, Math("<mo>=</mo>"+ValueML(res.Value, x.Display, w.Digits(), false)))
+			w.Printf("<div class=\"r\" data-value=\"\" data-line=\"%d\">%s</div>", line, Math("<mo>=</mo>"+ValueML(res.Value, res.Display, w.Digits(), false)))
 			w.kindNote(res.Value)
 		}
 	case *expr.BadStmt:
