@@ -109,3 +109,25 @@ func TestSweepPowerKinds(t *testing.T) {
 		}
 	}
 }
+
+// A solve unknown without a bracket is shown in the preferred unit too
+// (LANGUAGE.md section 4); one shown in kW is an active power (IEEE 1459).
+func TestPreferredUnitsSolve(t *testing.T) {
+	d := docOf("---", "units: [kA]", "---", "", "```solve x near 1 A, P_s[kW] near 1 kW",
+		"x * 2 Ω = 30 kV",
+		"P_s = 400 V * x / 1000",
+		"```")
+	if len(d.Errors) > 0 {
+		t.Fatal(d.Errors)
+	}
+	// hand derivation: x = 30 kV / 2 Ω = 15 kA; P_s = 400 V · 15 A = 6 kW
+	for _, tc := range []struct {
+		name, shown string
+		kind        any
+	}{{"x", "15.00 kA", nil}, {"P_s", "6.000 kW", "active"}} {
+		v, ok := valueShown(d, tc.name)
+		if !ok || v.Shown != tc.shown || v.Kind != tc.kind {
+			t.Errorf("%s: %q %v, want %q %v", tc.name, v.Shown, v.Kind, tc.shown, tc.kind)
+		}
+	}
+}
