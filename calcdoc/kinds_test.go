@@ -131,3 +131,28 @@ func TestPreferredUnitsSolve(t *testing.T) {
 		}
 	}
 }
+
+// A phasor diagram draws a group of powers in the unit of their kind (IEEE
+// 1459): reactive powers alone in var, with a complex power in VA.
+func TestPhasorPowerKinds(t *testing.T) {
+	for _, tc := range []struct{ list, unit string }{
+		{"Q_1, Q_2", "kvar"},
+		{"Q_1, S", "kVA"},
+		{"P_1", "kW"},
+	} {
+		d := docOf("```calc", "Q_1 = 30 kvar", "Q_2 = -10 kvar", "P_1 = 40 kW", "S = P_1 + j*Q_1", "```", "", "```phasors "+tc.list, "```")
+		if len(d.Errors) > 0 {
+			t.Fatal(d.Errors)
+		}
+		for _, b := range d.Blocks {
+			if b.Kind != "phasors" {
+				continue
+			}
+			for _, it := range b.Result.(*calcdoc.Phasors).Items {
+				if it.Unit != tc.unit {
+					t.Errorf("phasors %s: %s drawn in %s, want %s", tc.list, it.Text, it.Unit, tc.unit)
+				}
+			}
+		}
+	}
+}
