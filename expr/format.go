@@ -166,6 +166,9 @@ func FormatScalar(s *Scalar, d *Display, digits int) Shown {
 		}
 		return sh
 	}
+	if unit == "°" && s.Angle {
+		return Shown{Kind: ShownReal, A: fmtDegrees(real(z), digits), Unit: unit}
+	}
 	return Shown{Kind: ShownReal, A: fmtNum(real(z), digits), Unit: unit}
 }
 

@@ -202,6 +202,7 @@ func TestDisplayRules(t *testing.T) {
 		{"arg at -180", "arg(-1 - j*1e-9)", 4, "180.0°",
 			"hand derivation: atan2(-1e-9, -1) = -π + 1e-9 rad = -179.99999994°, shown -180.0 at 4 digits, so 180.0"},
 		{"arg at 180", "arg(-1)", 4, "180.0°", "principal value, math/cmplx.Phase(-1) = π"},
+		{"arg at -180 in [°]", "a[°] = arg(-1 - j*1e-9)", 4, "180.0°", "the same hand derivation, in the line's unit"},
 		{"arg below", "arg(-1 - j*0.1)", 4, "-174.3°", "hand derivation: atan(0.1) = 5.711°, -180 + 5.711"},
 	}
 	for _, tc := range tests {
