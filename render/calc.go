@@ -270,7 +270,7 @@ func checkDisplay(w *Writer, c *expr.Compare) *expr.Display {
 // power of no kind (IEEE 1459 kinds, LANGUAGE.md section 4): it is shown
 // in W until its line names W, var or VA.
 func (w *Writer) kindNote(v expr.Value) {
-	if sc, ok := v.(*expr.Scalar); ok && sc.KindNotStated() {
+	if sc, ok := v.(*expr.Scalar); ok && sc != nil && sc.KindNotStated() {
 		w.WriteString("<div class=\"s kn\"><em>kind not stated</em> (shown in W; name W, var or VA in the line)</div>")
 	}
 }

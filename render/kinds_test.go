@@ -122,3 +122,25 @@ func TestKindNotStatedRow(t *testing.T) {
 		t.Fatalf("found %d of %d rows", seen, len(want))
 	}
 }
+
+// A solve unknown that is a power of no kind carries the same words; one
+// whose bracket names kW does not (LANGUAGE.md section 4).
+func TestKindNotStatedSolve(t *testing.T) {
+	for _, tc := range []struct {
+		head string
+		want bool
+	}{{"```solve P near 1 kW", true}, {"```solve P[kW] near 1 kW", false}} {
+		src := []byte(tc.head + "\nP / (400 V) = 10 A\n```\n")
+		doc := calcdoc.Parse("kinds.md", src)
+		if len(doc.Errors) > 0 {
+			t.Fatal(doc.Errors)
+		}
+		html, err := Sheet(doc, fixedOptions(src))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if got := strings.Contains(string(html), "kind not stated"); got != tc.want {
+			t.Errorf("%s: kind not stated = %v, want %v", tc.head, got, tc.want)
+		}
+	}
+}

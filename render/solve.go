@@ -252,6 +252,7 @@ func solvedParts(w *Writer, b *calcdoc.Block, set *calcdoc.SolveSet) {
 			disp = b.Display // the chosen display: the bracket, else the preferred unit
 		}
 		w.Printf("<div class=\"r\" data-value=\"%s\" data-line=\"%d\">%s</div>", esc(u.Name), u.Pos.Line, Math(NameML(u.Name)+"<mo>=</mo>"+ValueML(u.Value, disp, w.Digits(), false)))
+		w.kindNote(u.Value)
 	}
 	w.WriteString("</div><div class=\"desc\">solution</div></div>\n")
 
