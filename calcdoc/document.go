@@ -142,6 +142,7 @@ func Parse(path string, src []byte) *Document {
 			d.Errors.Add(expr.Pos{Line: 1, Col: 1}, "front matter starts with --- but is never closed: add a line --- after it")
 		} else {
 			parseFrontMatter(y, &d.Front, &d.Errors, &d.Warnings)
+			d.Env.Preferred = d.Front.Units
 			// blank the front matter out, keeping every offset
 			body = append([]byte(nil), txt...)
 			end := d.lines[min(n, len(d.lines)-1)]
@@ -333,6 +334,10 @@ func (d *Document) codeSpan(n *ast.CodeSpan) {
 		if err == nil {
 			if derr := expr.CheckDisplay(v, disp); derr != nil {
 				err = expr.Errorf(in.Pos, "%s", derr.Error())
+			} else if kv, kerr := expr.BracketKind(v, x, disp); kerr != nil {
+				err = kerr // a power relabelled to another kind (IEEE 1459)
+			} else {
+				v = kv
 			}
 		}
 		in.Value, in.Display, in.Err = v, disp, err

@@ -24,10 +24,11 @@ type FrontMatter struct {
 	Prepared, Checked, Approved      string
 	Date, Client                     string
 	Revisions                        []Revision
-	Digits                           int    // significant figures shown, 2 to 12
-	Phasors                          string // "rms" or "peak"
-	Paper                            string // "a4" or "letter"
-	Present                          bool   // the document has front matter
+	Digits                           int             // significant figures shown, 2 to 12
+	Phasors                          string          // "rms" or "peak"
+	Paper                            string          // "a4" or "letter"
+	Units                            *expr.Preferred // preferred display units, or nil
+	Present                          bool            // the document has front matter
 }
 
 // DefaultDigits is the number of significant figures shown when the front
@@ -185,6 +186,8 @@ func parseFrontMatter(text []byte, fm *FrontMatter, errs, warns *expr.ErrorList)
 			} else {
 				fm.Paper = s
 			}
+		case "units":
+			parseUnits(v, fm, errs, pos)
 		case "revisions":
 			if v.Kind != yaml.SequenceNode {
 				errs.Add(pos(v), "front matter key \"revisions\" must be a list of {rev, date, by, note}")
@@ -218,7 +221,7 @@ func parseFrontMatter(text []byte, fm *FrontMatter, errs, warns *expr.ErrorList)
 				fm.Revisions = append(fm.Revisions, r)
 			}
 		default:
-			warns.Add(pos(k), fmt.Sprintf("unknown front matter key %q (known: title, project, number, revision, prepared, checked, approved, date, client, revisions, digits, phasors, paper)", k.Value))
+			warns.Add(pos(k), fmt.Sprintf("unknown front matter key %q (known: title, project, number, revision, prepared, checked, approved, date, client, revisions, digits, phasors, paper, units)", k.Value))
 		}
 	}
 }
@@ -229,4 +232,27 @@ func validDate(s string) bool {
 	}
 	_, err := time.Parse("2006-01-02", s)
 	return err == nil
+}
+
+// parseUnits reads the key units: a list of preferred display units, at
+// most one for each dimension and power kind.
+func parseUnits(v *yaml.Node, fm *FrontMatter, errs *expr.ErrorList, pos func(*yaml.Node) expr.Pos) {
+	if v.Kind != yaml.SequenceNode {
+		errs.Add(pos(v), "front matter key \"units\" must be a list of units, e.g. [mΩ, kA, kV, kVA, kvar]")
+		return
+	}
+	var list []string
+	for _, item := range v.Content {
+		if item.Kind != yaml.ScalarNode {
+			errs.Add(pos(item), "front matter key \"units\": each entry must be one unit, e.g. kA")
+			return
+		}
+		list = append(list, item.Value)
+	}
+	p, bad, err := expr.NewPreferred(list)
+	if err != nil {
+		errs.Add(pos(v.Content[bad]), "front matter key \"units\": "+err.Error())
+		return
+	}
+	fm.Units = p
 }

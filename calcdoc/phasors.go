@@ -202,6 +202,7 @@ func assignPhasorScales(b *Block, res *Phasors) {
 		dim     expr.Dim
 		max     float64
 		complex bool
+		kind    expr.PowerKind // of a group of powers (IEEE 1459)
 		items   []*PhasorItem
 	}
 	var groups []*group
@@ -228,9 +229,14 @@ func assignPhasorScales(b *Block, res *Phasors) {
 		g.items = append(g.items, it)
 		g.max = math.Max(g.max, math.Max(cmplx.Abs(it.Value.Z), cmplx.Abs(it.tip)))
 		g.complex = g.complex || !it.Value.IsReal()
+		if len(g.items) == 1 {
+			g.kind = it.Value.Kind
+		} else if g.kind != it.Value.Kind {
+			g.kind = expr.PowerApparent // powers of several kinds on one scale: VA
+		}
 	}
 	for _, g := range groups {
-		unit, factor := phasorUnit(g.dim, g.max, g.complex)
+		unit, factor := phasorUnit(g.dim, g.kind, g.max, g.complex)
 		for _, it := range g.items {
 			it.Unit, it.Factor = unit, factor
 			z := it.Value.Z / complex(factor, 0)
@@ -250,20 +256,13 @@ func assignPhasorScales(b *Block, res *Phasors) {
 }
 
 // phasorUnit is the unit, and its size in coherent SI units, in which the
-// sheet shows a magnitude m of dimension d (complex selects VA over W for a
-// power). A unit that cannot be read back falls back to the coherent SI
-// unit with factor 1.
-func phasorUnit(d expr.Dim, m float64, complexValue bool) (string, float64) {
+// sheet shows a magnitude m of dimension d and power kind k (complex
+// selects VA for a power): the engine's one choice of display unit
+// (expr.DisplayUnit).
+func phasorUnit(d expr.Dim, k expr.PowerKind, m float64, complexValue bool) (string, float64) {
 	z := complex(m, 0)
 	if complexValue {
 		z = cmplx.Rect(m, math.Pi/4)
 	}
-	sh := expr.FormatScalar(&expr.Scalar{Z: z, Dim: d}, &expr.Display{Form: expr.FormPolar}, DefaultDigits)
-	if sh.Unit == "" {
-		return "", 1
-	}
-	if u, err := expr.ParseUnit(sh.Unit); err == nil && u.Dim == d && u.Scale > 0 && !math.IsInf(u.Scale, 0) {
-		return sh.Unit, u.Scale
-	}
-	return SIUnit(d), 1
+	return expr.DisplayUnit(&expr.Scalar{Z: z, Dim: d, Kind: k}, &expr.Display{Form: expr.FormPolar}, DefaultDigits)
 }

@@ -550,8 +550,12 @@ func evalSolve(b *Block) {
 	}
 	set.Solved = true
 	for _, u := range set.Unknowns {
-		r.env.Define(&expr.Binding{Name: u.Name, Value: u.Value, Pos: u.Pos, Display: u.Display})
-		b.AddValue(&NamedValue{Name: u.Name, Pos: u.Pos, Value: u.Value, Display: u.Display})
+		if kv, err := expr.BracketKind(u.Value, nil, u.Display); err == nil {
+			u.Value = kv.(*expr.Scalar) // an unknown shown in W, var or VA has that power kind
+		}
+		disp := r.env.ChooseDisplay(u.Value, u.Display, nil) // the bracket, else the preferred unit
+		r.env.Define(&expr.Binding{Name: u.Name, Value: u.Value, Pos: u.Pos, Display: disp})
+		b.AddValue(&NamedValue{Name: u.Name, Pos: u.Pos, Value: u.Value, Display: disp})
 	}
 }
 

@@ -37,6 +37,9 @@ type Sweep struct {
 	// plane angle (from Start).
 	Dim   expr.Dim
 	Angle bool
+	// Kind is the power kind of a power sweep variable: that of Start and
+	// Stop when they agree, else none.
+	Kind expr.PowerKind
 	// X holds the points in coherent SI units (radians for an angle):
 	// X[i] = Start + (Stop − Start)·i/(N − 1), or with Log
 	// X[i] = Start·(Stop/Start)^(i/(N − 1)); X[0] and X[N−1] are exactly
@@ -66,6 +69,10 @@ type SweepLine struct {
 	Dim     expr.Dim
 	Angle   bool
 	Complex bool
+	// Kind is the power kind of a power line (IEEE 1459): apparent when
+	// Complex, else the first kind known at a point (a display bracket in
+	// W, var or VA sets it on a computed power).
+	Kind expr.PowerKind
 	// Z holds the value at each point in coherent SI units; NaN (both
 	// parts) where the line has no value: a gap.
 	Z []complex128
@@ -323,6 +330,9 @@ func parseSweepHeader(b *Block, sw *Sweep) bool {
 		return false
 	}
 	sw.Dim, sw.Angle = start.s.Dim, start.s.Angle || stop.s.Angle
+	if start.s.Kind == stop.s.Kind {
+		sw.Kind = start.s.Kind
+	}
 	sw.X = sweepGrid(a, z, sw.N, sw.Log)
 	for i := 1; i < len(sw.X); i++ {
 		if !(sw.X[i] > sw.X[i-1]) {
@@ -557,7 +567,7 @@ func runSweep(b *Block, sw *Sweep) {
 	}
 	nan := complex(math.NaN(), math.NaN())
 	for i, x := range sw.X {
-		locals[sw.Var] = &expr.Scalar{Z: complex(x, 0), Dim: sw.Dim, Angle: sw.Angle}
+		locals[sw.Var] = &expr.Scalar{Z: complex(x, 0), Dim: sw.Dim, Angle: sw.Angle, Kind: sw.Kind}
 		for _, l := range sw.Lines {
 			if l.Name != "" {
 				delete(locals, l.Name)
@@ -599,6 +609,10 @@ func runSweep(b *Block, sw *Sweep) {
 					err = expr.Errorf(l.X.Pos(), "the value is not finite at this point")
 				} else if first[li] >= 0 && s.Dim != l.Dim {
 					err = expr.Errorf(l.X.Pos(), "the value changes unit across the sweep (%s here, %s at the first point)", expr.DimWord(s.Dim), expr.DimWord(l.Dim))
+				} else if kv, kerr := expr.BracketKind(s, l.X, l.Display); kerr != nil {
+					err = kerr
+				} else {
+					s = kv.(*expr.Scalar)
 				}
 			}
 			if err != nil {
@@ -613,7 +627,7 @@ func runSweep(b *Block, sw *Sweep) {
 			}
 			if first[li] < 0 {
 				first[li] = i
-				l.Dim, l.Angle = s.Dim, s.Angle
+				l.Dim, l.Angle, l.Kind = s.Dim, s.Angle, s.Kind
 				if derr := expr.CheckDisplay(s, l.Display); derr != nil {
 					// a failed display unit defines nothing: the line has
 					// no value at any point, and the lines that use it
@@ -628,6 +642,9 @@ func runSweep(b *Block, sw *Sweep) {
 			}
 			if !s.IsReal() {
 				l.Complex = true
+				l.Kind = s.Kind
+			} else if l.Kind == expr.PowerNone {
+				l.Kind = s.Kind // a real power's kind may show only where it is complex upstream
 			}
 			l.Z[i] = s.Z
 			if s.Sense != 0 {

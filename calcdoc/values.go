@@ -19,14 +19,16 @@ type ValuesJSON struct {
 }
 
 // ValueJSON is one named value: re and im in coherent SI units, unit the
-// coherent SI unit of its dimension. For a vector or matrix, Re, Im and
-// Unit are arrays of rows.
+// coherent SI unit of its dimension (a power in the unit of its kind: W,
+// var or VA), kind the power kind ("active", "reactive", "apparent") or
+// null. For a vector or matrix, Re, Im, Unit and Kind are arrays of rows.
 type ValueJSON struct {
 	Name  string `json:"name"`
 	Line  int    `json:"line"`
 	Re    any    `json:"re"`
 	Im    any    `json:"im"`
 	Unit  any    `json:"unit"`
+	Kind  any    `json:"kind"`
 	Shown string `json:"shown"`
 	// the sense of a power factor (valuesweep.go); absent on other values
 	*SenseJSON
@@ -80,6 +82,18 @@ func SIUnit(d expr.Dim) string {
 	return d.SI()
 }
 
+// scalarUnit is the unit and kind the values JSON writes for s: a power
+// in W, var or VA by its kind (IEEE 1459), its kind by name or null.
+func scalarUnit(s *expr.Scalar) (string, any) {
+	if s.Dim == expr.DimPower {
+		if s.Kind == expr.PowerNone {
+			return "W", nil
+		}
+		return s.Kind.Unit(), s.Kind.String()
+	}
+	return SIUnit(s.Dim), nil
+}
+
 // Values builds the values JSON of a document.
 func (d *Document) ValuesJSON() *ValuesJSON {
 	out := &ValuesJSON{File: d.Path, Values: []ValueJSON{}, Checks: []CheckJSON{}, Errors: []ErrorJSON{}}
@@ -87,18 +101,21 @@ func (d *Document) ValuesJSON() *ValuesJSON {
 		vj := ValueJSON{Name: v.Name, Line: v.Pos.Line, Shown: expr.FormatValue(v.Value, v.Display, d.Digits())}
 		switch x := v.Value.(type) {
 		case *expr.Scalar:
-			vj.Re, vj.Im, vj.Unit = jsonNum(real(x.Z)), jsonNum(imag(x.Z)), SIUnit(x.Dim)
+			vj.Re, vj.Im = jsonNum(real(x.Z)), jsonNum(imag(x.Z))
+			vj.Unit, vj.Kind = scalarUnit(x)
 		case *expr.Matrix:
-			re, im, un := make([][]any, x.Rows), make([][]any, x.Rows), make([][]string, x.Rows)
+			re, im, un, kd := make([][]any, x.Rows), make([][]any, x.Rows), make([][]string, x.Rows), make([][]any, x.Rows)
 			for i := 0; i < x.Rows; i++ {
 				for j := 0; j < x.Cols; j++ {
 					e := x.At(i, j)
 					re[i] = append(re[i], jsonNum(real(e.Z)))
 					im[i] = append(im[i], jsonNum(imag(e.Z)))
-					un[i] = append(un[i], SIUnit(e.Dim))
+					u, k := scalarUnit(&e)
+					un[i] = append(un[i], u)
+					kd[i] = append(kd[i], k)
 				}
 			}
-			vj.Re, vj.Im, vj.Unit = re, im, un
+			vj.Re, vj.Im, vj.Unit, vj.Kind = re, im, un, kd
 		}
 		vj.SenseJSON = valueSenseJSON(v.Value)
 		out.Values = append(out.Values, vj)

@@ -42,7 +42,7 @@ func (d *Document) WriteValuesCSV(w io.Writer) error {
 		line := strconv.Itoa(v.Pos.Line)
 		switch x := v.Value.(type) {
 		case *expr.Scalar:
-			cw.Write([]string{v.Name, line, csvNum(real(x.Z)), csvNum(imag(x.Z)), SIUnit(x.Dim), expr.FormatValue(x, v.Display, d.Digits())})
+			cw.Write([]string{v.Name, line, csvNum(real(x.Z)), csvNum(imag(x.Z)), csvUnit(x), expr.FormatValue(x, v.Display, d.Digits())})
 		case *expr.Matrix:
 			shown := expr.DisplayMatrix(x)
 			for i := 0; i < x.Rows; i++ {
@@ -52,7 +52,7 @@ func (d *Document) WriteValuesCSV(w io.Writer) error {
 					if x.Cols == 1 {
 						name = fmt.Sprintf("%s(%d)", v.Name, i+1)
 					}
-					cw.Write([]string{name, line, csvNum(real(e.Z)), csvNum(imag(e.Z)), SIUnit(e.Dim), expr.FormatValue(&s, v.Display, d.Digits())})
+					cw.Write([]string{name, line, csvNum(real(e.Z)), csvNum(imag(e.Z)), csvUnit(&e), expr.FormatValue(&s, v.Display, d.Digits())})
 				}
 			}
 		}
@@ -186,4 +186,11 @@ func newCSV(w io.Writer) *csv.Writer {
 	cw := csv.NewWriter(w)
 	cw.UseCRLF = true
 	return cw
+}
+
+// csvUnit is the unit column of a value: the values JSON's unit (a power
+// by its kind: W, var or VA).
+func csvUnit(s *expr.Scalar) string {
+	u, _ := scalarUnit(s)
+	return u
 }

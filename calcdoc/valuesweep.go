@@ -106,13 +106,14 @@ func valueSenseJSON(v expr.Value) *SenseJSON {
 }
 
 // sweepUnit is the unit the values write a sweep quantity in: the coherent
-// SI unit of its dimension, and "rad" for a plane angle (the values are in
+// SI unit of its dimension (a power by its kind: W, var or VA), and "rad" for a plane angle (the values are in
 // radians).
-func sweepUnit(d expr.Dim, angle bool) string {
+func sweepUnit(d expr.Dim, angle bool, kind expr.PowerKind) string {
 	if angle && d.IsZero() {
 		return "rad"
 	}
-	return SIUnit(d)
+	u, _ := scalarUnit(&expr.Scalar{Dim: d, Kind: kind})
+	return u
 }
 
 // Label is the line's text as the sheet's table heads it: the name it
@@ -146,14 +147,14 @@ func (d *Document) SweepsJSON() []SweepJSON {
 		if b.Kind != "sweep" || !ok {
 			continue
 		}
-		sj := SweepJSON{Line: b.Pos.Line, Variable: sw.Var, Unit: sweepUnit(sw.Dim, sw.Angle), Columns: []ColumnJSON{}, Points: []PointJSON{}}
+		sj := SweepJSON{Line: b.Pos.Line, Variable: sw.Var, Unit: sweepUnit(sw.Dim, sw.Angle, sw.Kind), Columns: []ColumnJSON{}, Points: []PointJSON{}}
 		if sw.X == nil {
 			out = append(out, sj)
 			continue
 		}
 		cols := sw.Columns()
 		for _, l := range cols {
-			sj.Columns = append(sj.Columns, ColumnJSON{Text: l.Label(), Line: l.Stmt.Pos().Line, Unit: sweepUnit(l.Dim, l.Angle)})
+			sj.Columns = append(sj.Columns, ColumnJSON{Text: l.Label(), Line: l.Stmt.Pos().Line, Unit: sweepUnit(l.Dim, l.Angle, l.Kind)})
 		}
 		for i, x := range sw.X {
 			p := PointJSON{X: jsonNum(x), Values: make([]SweepValJSON, len(cols))}

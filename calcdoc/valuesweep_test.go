@@ -34,11 +34,11 @@ func TestValuesJSONSense(t *testing.T) {
 		t.Fatal(err)
 	}
 	want := map[string]string{
-		"S_b":  `{"name":"S_b","line":2,"re":400000,"im":300000,"unit":"W","shown":"400.0 + j300.0 kVA"}`,
-		"pf_b": `{"name":"pf_b","line":3,"re":0.8,"im":0,"unit":"","shown":"0.8000 lagging","sense":"lagging","export":false}`,
-		"pf_c": `{"name":"pf_c","line":4,"re":0.8,"im":0,"unit":"","shown":"0.8000 lagging, export","sense":"lagging","export":true}`,
-		"pf_r": `{"name":"pf_r","line":5,"re":1,"im":0,"unit":"","shown":"1.000 export","sense":null,"export":true}`,
-		"pf_v": `{"name":"pf_v","line":6,"re":[[0.8],[0.8]],"im":[[0],[0]],"unit":[[""],[""]],"shown":"[0.8000 lagging; 0.8000 leading]","sense":[["lagging"],["leading"]],"export":[[false],[false]]}`,
+		"S_b":  `{"name":"S_b","line":2,"re":400000,"im":300000,"unit":"VA","kind":"apparent","shown":"400.0 + j300.0 kVA"}`,
+		"pf_b": `{"name":"pf_b","line":3,"re":0.8,"im":0,"unit":"","kind":null,"shown":"0.8000 lagging","sense":"lagging","export":false}`,
+		"pf_c": `{"name":"pf_c","line":4,"re":0.8,"im":0,"unit":"","kind":null,"shown":"0.8000 lagging, export","sense":"lagging","export":true}`,
+		"pf_r": `{"name":"pf_r","line":5,"re":1,"im":0,"unit":"","kind":null,"shown":"1.000 export","sense":null,"export":true}`,
+		"pf_v": `{"name":"pf_v","line":6,"re":[[0.8],[0.8]],"im":[[0],[0]],"unit":[[""],[""]],"kind":[[null],[null]],"shown":"[0.8000 lagging; 0.8000 leading]","sense":[["lagging"],["leading"]],"export":[[false],[false]]}`,
 	}
 	for _, v := range js.Values {
 		name := v["name"].(string)

@@ -34,6 +34,8 @@ type Env struct {
 	vars  map[string]*Binding
 	funcs map[string]*Func
 	order []string
+	// Preferred is the document's preferred display units, or nil.
+	Preferred *Preferred
 }
 
 // NewEnv returns an empty environment.

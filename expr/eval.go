@@ -108,6 +108,7 @@ func (ev *evaluator) eval(n Node) (Value, error) {
 		if err := nonFinite(n, v); err != nil {
 			return nil, err
 		}
+		v = settleKinds(v)
 		if !dimsInRange(v) {
 			return nil, Errorf(n.Pos(), "the unit of this value has an exponent beyond ±%d: not a physical quantity", MaxExponent)
 		}
@@ -160,7 +161,7 @@ func (ev *evaluator) eval1(n Node) (Value, error) {
 			m := x.(*Matrix)
 			out := NewMatrix(m.Rows, m.Cols)
 			for i, e := range m.E {
-				out.E[i] = Scalar{Z: e.Z * complex(n.Unit.Scale, 0), Dim: e.Dim.Mul(n.Unit.Dim)}
+				out.E[i] = Scalar{Z: e.Z * complex(n.Unit.Scale, 0), Dim: e.Dim.Mul(n.Unit.Dim), Kind: n.Unit.Kind}
 				if out.E[i].Z == 0 && e.Z != 0 {
 					return nil, underflow(opPos(n), "value in "+n.Unit.Text)
 				}
@@ -171,7 +172,7 @@ func (ev *evaluator) eval1(n Node) (Value, error) {
 		if z := s.Z * complex(n.Unit.Scale, 0); z == 0 && s.Z != 0 {
 			return nil, underflow(opPos(n), "value in "+n.Unit.Text)
 		}
-		return &Scalar{Z: s.Z * complex(n.Unit.Scale, 0), Dim: s.Dim.Mul(n.Unit.Dim), Angle: n.Unit.Angle && s.Dim.IsZero()}, nil
+		return &Scalar{Z: s.Z * complex(n.Unit.Scale, 0), Dim: s.Dim.Mul(n.Unit.Dim), Angle: n.Unit.Angle && s.Dim.IsZero(), Kind: n.Unit.Kind}, nil
 	case *Unary:
 		x, err := ev.eval(n.X)
 		if err != nil {
@@ -190,7 +191,7 @@ func (ev *evaluator) eval1(n Node) (Value, error) {
 		if !ok {
 			return nil, Errorf(n.P, "|x| needs a single value, not %s (use det for a determinant)", Describe(x))
 		}
-		return &Scalar{Z: complex(cmplx.Abs(s.Z), 0), Dim: s.Dim}, nil
+		return &Scalar{Z: complex(cmplx.Abs(s.Z), 0), Dim: s.Dim, Kind: absKind(s)}, nil
 	case *Binary:
 		x, err := ev.eval(n.X)
 		if err != nil {
@@ -280,12 +281,12 @@ var constants = map[string]*Scalar{
 func neg(x Value) Value {
 	switch x := x.(type) {
 	case *Scalar:
-		return &Scalar{Z: canonZ(-x.Z), Dim: x.Dim, Angle: x.Angle}
+		return &Scalar{Z: canonZ(-x.Z), Dim: x.Dim, Angle: x.Angle, Kind: x.Kind}
 	case *Matrix:
 		out := NewMatrix(x.Rows, x.Cols)
 		out.Resid = x.Resid // negation is exact
 		for i, e := range x.E {
-			out.E[i] = Scalar{Z: canonZ(-e.Z), Dim: e.Dim}
+			out.E[i] = Scalar{Z: canonZ(-e.Z), Dim: e.Dim, Kind: e.Kind}
 		}
 		return out
 	}
@@ -320,12 +321,16 @@ func binaryOp(n *Binary, x, y Value) (Value, error) {
 		if n.Op == SUB {
 			z = xs.Z - ys.Z
 		}
-		return &Scalar{Z: z, Dim: d, Angle: d.IsZero() && (xs.Angle || ys.Angle)}, nil
+		k, err := sumKind(n, xs, ys)
+		if err != nil {
+			return nil, err
+		}
+		return &Scalar{Z: z, Dim: d, Angle: d.IsZero() && (xs.Angle || ys.Angle), Kind: k}, nil
 	case MUL:
 		if z := xs.Z * ys.Z; z == 0 && xs.Z != 0 && ys.Z != 0 {
 			return nil, underflow(n.OpPos, "product")
 		}
-		return &Scalar{Z: xs.Z * ys.Z, Dim: xs.Dim.Mul(ys.Dim), Angle: (xs.Angle && ys.Dim.IsZero() && !ys.Angle) || (ys.Angle && xs.Dim.IsZero() && !xs.Angle)}, nil
+		return &Scalar{Z: xs.Z * ys.Z, Dim: xs.Dim.Mul(ys.Dim), Angle: (xs.Angle && ys.Dim.IsZero() && !ys.Angle) || (ys.Angle && xs.Dim.IsZero() && !xs.Angle), Kind: scaledKind(xs, ys) | scaledKind(ys, xs)}, nil
 	case DIV:
 		if ys.Z == 0 {
 			return nil, Errorf(n.Y.Pos(), "division by zero: the divisor is 0")
@@ -333,7 +338,7 @@ func binaryOp(n *Binary, x, y Value) (Value, error) {
 		if z := xs.Z / ys.Z; z == 0 && xs.Z != 0 {
 			return nil, underflow(n.OpPos, "quotient")
 		}
-		return &Scalar{Z: xs.Z / ys.Z, Dim: xs.Dim.Div(ys.Dim), Angle: xs.Angle && ys.Dim.IsZero() && !ys.Angle}, nil
+		return &Scalar{Z: xs.Z / ys.Z, Dim: xs.Dim.Div(ys.Dim), Angle: xs.Angle && ys.Dim.IsZero() && !ys.Angle, Kind: scaledKind(xs, ys)}, nil
 	case PAR:
 		if xs.Dim != ys.Dim {
 			return nil, unitMismatch(n, opName(n.Op), xs, ys)

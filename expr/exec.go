@@ -102,6 +102,10 @@ type Result struct {
 	Check *CheckResult // for a check
 	Trace *Trace       // the values of the names in the statement's expression
 	Err   error        // an *Error or an *UnavailableError, or nil
+
+	// Display is the display the value is shown in (ChooseDisplay: the
+	// line's bracket, the literal's unit, the preferred unit), or nil.
+	Display *Display
 }
 
 // Exec evaluates one statement in e and defines what it names. A name
@@ -152,13 +156,17 @@ func (e *Env) Exec(s Stmt) *Result {
 			e.defineUnavailableAt(s.Names, s.Names[0].P)
 			return r
 		}
-		disp := s.Display
-		if disp == nil {
-			// a value written as a literal is shown in the unit it is written in
-			if u := LiteralUnit(s.X); u != nil {
-				disp = &Display{Text: u.Text, Unit: u}
-			}
+		kv, kerr := bracketKind(v, s.X, s.Display)
+		if kerr != nil {
+			// a bracket that relabels a power of another kind defines nothing either
+			r.Err = kerr
+			r.Value = nil
+			e.defineUnavailableAt(s.Names, s.Names[0].P)
+			return r
 		}
+		v, r.Value = kv, kv
+		disp := e.ChooseDisplay(v, s.Display, s.X)
+		r.Display = disp
 		e.Define(&Binding{Name: s.Names[0].Name, Value: v, Pos: s.Names[0].P, Display: disp})
 	case *FuncDef:
 		if err := e.CanDefine(s.Name.Name, s.Name.P); err != nil {
@@ -193,7 +201,12 @@ func (e *Env) Exec(s Stmt) *Result {
 		if err == nil {
 			if derr := CheckDisplay(v, s.Display); derr != nil {
 				r.Err = Errorf(s.Display.P, "%s", derr.Error())
+			} else if kv, kerr := bracketKind(v, s.X, s.Display); kerr != nil {
+				r.Err = kerr
+			} else {
+				r.Value = kv
 			}
+			r.Display = e.ChooseDisplay(r.Value, s.Display, s.X)
 		}
 	default:
 		r.Err = Errorf(s.Pos(), "this statement is not allowed here")
@@ -310,8 +323,8 @@ func (r *Result) String() string {
 
 // LiteralUnit returns the unit of an expression that is a number written
 // with a unit ("1.15 Ω/km", "-40 kV", "230 V∠-120°", "(0.12 + j0.08) Ω"),
-// or nil. Angle units and per-unit/percent are not returned: those values
-// are shown by their own rules.
+// or nil. Angle units are not returned (angles are shown in degrees by
+// their own rule); % and pu are: "u_k = 6 %" is shown as 6.000 %.
 func LiteralUnit(n Node) *Unit {
 	switch n := n.(type) {
 	case *Unary:
@@ -323,7 +336,7 @@ func LiteralUnit(n Node) *Unit {
 			return LiteralUnit(n.X)
 		}
 	case *WithUnit:
-		if n.Unit.Angle || n.Unit.Dim.IsZero() || !isNumeric(n.X) {
+		if n.Unit.Angle || n.Unit.Dim.IsZero() && !n.Unit.Plain || !isNumeric(n.X) {
 			return nil
 		}
 		return n.Unit

@@ -129,71 +129,23 @@ func DefaultForm(d Dim) Form {
 // whose imaginary part is negligible is shown as a real number unless d
 // asks for a form.
 func FormatScalar(s *Scalar, d *Display, digits int) Shown {
-	if digits < 2 {
-		digits = 2
-	}
-	if digits > 15 {
-		digits = 15
-	}
-	form := FormAuto
-	if d != nil {
-		form = d.Form
-	}
-	z := s.Z
-	if cmplx.IsNaN(z) {
+	digits = clampDigits(digits)
+	if cmplx.IsNaN(s.Z) {
 		return Shown{A: "NaN"}
 	}
-	// the unit
-	var unit string
-	var scale float64 = 1
-	auto := true
-	if d != nil && d.Unit != nil && (d.Unit.Dim == s.Dim || isPlainZero(s)) {
-		unit, scale, auto = d.Unit.Text, d.Unit.Scale, false
-		if unit == "deg" {
-			unit = "°"
-		}
+	c := chooseUnit(s, d, digits)
+	if c.degrees {
+		return Shown{Kind: ShownReal, A: fmtDegrees(real(s.Z)*180/math.Pi, digits), Unit: "°"}
 	}
-	real0 := isRealZ(z)
-	if form == FormAuto {
-		if real0 {
-			form = -1
-		} else {
-			form = DefaultForm(s.Dim)
-		}
-	}
-	if auto && s.Dim.IsZero() && s.Angle && form == -1 {
-		return Shown{Kind: ShownReal, A: fmtSig(real(z)*180/math.Pi, digits), Unit: "°"}
-	}
-	var base string
-	pow := 1
-	prefixable := false
-	if auto {
-		base, pow, prefixable = defaultSymbol(s.Dim, !real0)
-		unit = base
-		if s.Dim == DimMass {
-			scale = 1e-3 // shown in grams
-		}
-	}
-	z /= complex(scale, 0)
+	z := s.Z / complex(c.scale, 0)
+	form := c.form
 	mag := cmplx.Abs(z)
 	if form == -1 {
 		mag = math.Abs(real(z))
 	} else if form == FormRect {
 		mag = math.Max(math.Abs(real(z)), math.Abs(imag(z)))
 	}
-	if auto && prefixable && mag != 0 && !math.IsInf(mag, 0) {
-		rm := roundSig(mag, digits)
-		pf, f := choosePrefix(rm, pow)
-		// Only a prefix that brings the number into [1, 1000) (for a unit
-		// raised to pow, [1, 1000^pow)) is used: below pico and above tera
-		// the value is shown in the base unit in exponent form, never as
-		// "0.1000 pF" or "1.000e8 TV".
-		if r := rm / f; (pf != "" || f != 1) && r >= 1-1e-12 && r < math.Pow(1000, float64(pow)) {
-			unit = pf + base
-			z /= complex(f, 0)
-			mag /= f
-		}
-	}
+	unit := c.unit
 	switch form {
 	case FormPolar:
 		m := cmplx.Abs(z)
@@ -204,7 +156,8 @@ func FormatScalar(s *Scalar, d *Display, digits int) Shown {
 		return Shown{Kind: ShownPolar, A: fmtNum(m, digits), B: fmtAngle(deg, digits), Unit: unit}
 	case FormRect:
 		dec := decimalsFor(mag, digits)
-		if dec < 0 || mag != 0 && (mag >= 1e15 || mag < 1e-12) {
+		if rm := roundSig(mag, digits); rm != 0 && (rm >= 1e6 || rm >= math.Pow(10, float64(digits)) || rm < 1e-3) {
+			// exponent form, like a real number (fmtNum)
 			return Shown{Kind: ShownRect, A: fmtNum(real(z), digits), B: fmtNum(imag(z), digits), Unit: unit}
 		}
 		sh := Shown{Kind: ShownRect, A: fmtFixed(real(z), dec), B: fmtFixed(imag(z), dec), Unit: unit}
@@ -213,13 +166,112 @@ func FormatScalar(s *Scalar, d *Display, digits int) Shown {
 		}
 		return sh
 	}
+	if unit == "°" && s.Angle {
+		return Shown{Kind: ShownReal, A: fmtDegrees(real(z), digits), Unit: unit}
+	}
 	return Shown{Kind: ShownReal, A: fmtNum(real(z), digits), Unit: unit}
+}
+
+func clampDigits(digits int) int {
+	return min(max(digits, 2), 15)
+}
+
+// unitChoice is how a value is shown: the unit written after it, the size
+// of that unit (prefix included) in coherent SI units, and the form (-1:
+// a real number); degrees marks an angle shown in degrees by default.
+type unitChoice struct {
+	unit    string
+	scale   float64
+	form    Form
+	degrees bool
+}
+
+// chooseUnit is the one decision of the unit a value is shown in, given
+// the display its line or definition chose (ChooseDisplay: the line's
+// bracket, the literal's unit, the document's preferred unit): that unit
+// when it fits the value's dimension; else the default unit of the
+// dimension (a power by its kind, IEEE 1459: W, var, VA) with the SI
+// prefix that puts the number, rounded to digits, in [1, 1000).
+func chooseUnit(s *Scalar, d *Display, digits int) unitChoice {
+	c := unitChoice{scale: 1, form: FormAuto}
+	if d != nil {
+		c.form = d.Form
+	}
+	real0 := isRealZ(s.Z)
+	if c.form == FormAuto {
+		if real0 {
+			c.form = -1
+		} else {
+			c.form = DefaultForm(s.Dim)
+		}
+	}
+	if d != nil && d.Unit != nil && (d.Unit.Dim == s.Dim || isPlainZero(s)) && fitsKind(s, d.Unit) {
+		c.unit, c.scale = d.Unit.Text, d.Unit.Scale
+		if c.unit == "deg" {
+			c.unit = "°"
+		}
+		return c
+	}
+	if s.Dim.IsZero() && s.Angle && c.form == -1 {
+		c.unit, c.scale, c.degrees = "°", math.Pi/180, true
+		return c
+	}
+	base, pow, prefixable := defaultSymbol(s.Dim, s.Kind, !real0)
+	c.unit = base
+	if s.Dim == DimMass {
+		c.scale = 1e-3 // shown in grams
+	}
+	z := s.Z / complex(c.scale, 0)
+	mag := cmplx.Abs(z)
+	if c.form == -1 {
+		mag = math.Abs(real(z))
+	} else if c.form == FormRect {
+		mag = math.Max(math.Abs(real(z)), math.Abs(imag(z)))
+	}
+	if prefixable && mag != 0 && !math.IsInf(mag, 0) && !math.IsNaN(mag) {
+		rm := roundSig(mag, digits)
+		pf, f := choosePrefix(rm, pow)
+		// Only a prefix that brings the number into [1, 1000) (for a unit
+		// raised to pow, [1, 1000^pow)) is used: below pico and above tera
+		// the value is shown in the base unit in exponent form, never as
+		// "0.1000 pF" or "1.000e8 TV".
+		if r := rm / f; (pf != "" || f != 1) && r >= 1-1e-12 && r < math.Pow(1000, float64(pow)) {
+			c.unit = pf + base
+			c.scale *= f
+		}
+	}
+	return c
+}
+
+// fitsKind reports whether a power may be shown in u: a power of a known
+// kind only in the unit of that kind, a complex power only in VA (IEEE
+// 1459). A display chosen for another value (the literal side of a check,
+// say) never shows an active power in kVA.
+func fitsKind(s *Scalar, u *Unit) bool {
+	if s.Dim != DimPower || u.Kind == PowerNone {
+		return true
+	}
+	if !s.IsReal() {
+		return u.Kind == PowerApparent
+	}
+	return s.Kind == PowerNone || s.Kind == u.Kind
+}
+
+// DisplayUnit is the unit s is shown in with display d at digits
+// significant figures (the same decision as FormatScalar), and the size of
+// that unit in coherent SI units: phasor diagrams, plot axes and sweep
+// tables scale their numbers by it.
+func DisplayUnit(s *Scalar, d *Display, digits int) (unit string, scale float64) {
+	c := chooseUnit(s, d, clampDigits(digits))
+	return c.unit, c.scale
 }
 
 // defaultSymbol is the unit a dimension is shown in when its line names
 // none, the power its prefix is raised to (m² takes prefixes in steps of
-// 10⁶), and whether it takes an SI prefix.
-func defaultSymbol(d Dim, complexValue bool) (sym string, pow int, prefixable bool) {
+// 10⁶), and whether it takes an SI prefix. A power is shown in the unit of
+// its kind (IEEE 1459): W, var or VA; a complex power in VA; a power of
+// no kind in W.
+func defaultSymbol(d Dim, kind PowerKind, complexValue bool) (sym string, pow int, prefixable bool) {
 	switch d {
 	case Dim{}:
 		return "", 1, false
@@ -227,7 +279,7 @@ func defaultSymbol(d Dim, complexValue bool) (sym string, pow int, prefixable bo
 		if complexValue {
 			return "VA", 1, true
 		}
-		return "W", 1, true
+		return kind.Unit(), 1, true
 	case DimArea:
 		return "m²", 2, true
 	case DimVolume:
@@ -300,7 +352,9 @@ func fmtSig(x float64, n int) string {
 }
 
 // fmtNum writes x with n significant figures, in exponent form outside
-// [1e-3, 1e6).
+// [1e-3, 1e6) and wherever its whole part would need more than n digits
+// (74364 at 4 digits is 7.436e4, never a number with more figures than
+// the sheet shows).
 func fmtNum(x float64, n int) string {
 	if math.IsInf(x, 1) {
 		return "∞"
@@ -309,7 +363,7 @@ func fmtNum(x float64, n int) string {
 		return "-∞"
 	}
 	a := math.Abs(roundSig(x, n))
-	if a != 0 && (a >= 1e6 || a < 1e-3) {
+	if a != 0 && (a >= 1e6 || a >= math.Pow(10, float64(n)) || a < 1e-3) {
 		s := strconv.FormatFloat(x, 'e', n-1, 64)
 		// 1.234e-05 -> 1.234e-5
 		i := strings.IndexByte(s, 'e')
@@ -317,6 +371,16 @@ func fmtNum(x float64, n int) string {
 		return s[:i] + "e" + strconv.Itoa(e)
 	}
 	return fmtSig(x, n)
+}
+
+// fmtDegrees writes an angle value in degrees with n significant figures;
+// one that reads -180 is shown as 180 (angles are given in (-180°, 180°]).
+func fmtDegrees(deg float64, n int) string {
+	s := fmtNum(deg, n)
+	if s == "-180" || strings.HasPrefix(s, "-180.") && strings.Trim(s[5:], "0") == "" {
+		s = s[1:]
+	}
+	return s
 }
 
 // fmtAngle writes an angle in degrees in (-180, 180], with n significant

@@ -15,9 +15,9 @@ var builtins map[string]builtin
 
 func init() {
 	builtins = map[string]builtin{
-		"re":   {1, 1, elementwise(func(s Scalar) Scalar { return Scalar{Z: complex(real(s.Z), 0), Dim: s.Dim, Angle: s.Angle} })},
-		"im":   {1, 1, elementwise(func(s Scalar) Scalar { return Scalar{Z: complex(imag(s.Z), 0), Dim: s.Dim} })},
-		"abs":  {1, 1, elementwise(func(s Scalar) Scalar { return Scalar{Z: complex(cmplx.Abs(s.Z), 0), Dim: s.Dim, Angle: s.Angle} })},
+		"re":   {1, 1, elementwise(reScalar)},
+		"im":   {1, 1, elementwise(imScalar)},
+		"abs":  {1, 1, elementwise(absScalar)},
 		"conj": {1, 1, elementwise(func(s Scalar) Scalar { return Scalar{Z: canonZ(cmplx.Conj(s.Z)), Dim: s.Dim, Angle: s.Angle} })},
 		"arg": {1, 1, scalarFn(func(s *Scalar) (Value, error) {
 			if s.Z == 0 {
@@ -214,6 +214,7 @@ func minMax(isMax bool) func([]Value) (Value, error) {
 		}
 		r := *best
 		r.Z = complex(real(r.Z), 0)
+		r.Kind = PowerNone // not among the operations that keep a power's kind
 		return &r, nil
 	}
 }

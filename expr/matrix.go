@@ -68,7 +68,11 @@ func matrixOp(n *Binary, x, y Value) (Value, error) {
 			if n.Op == SUB {
 				z = a.Z - b.Z
 			}
-			out.E[i] = Scalar{Z: z, Dim: d}
+			k, err := sumKind(n, a, b)
+			if err != nil {
+				return nil, err
+			}
+			out.E[i] = Scalar{Z: z, Dim: d, Kind: k}
 		}
 		out.Resid = residSum(xm, ym)
 		return out, nil
@@ -101,9 +105,9 @@ func scale(n *Binary, m *Matrix, s *Scalar, divide bool) (*Matrix, error) {
 	out.Resid = residScale(m, s.Z, divide)
 	for i, e := range m.E {
 		if divide {
-			out.E[i] = Scalar{Z: e.Z / s.Z, Dim: e.Dim.Div(s.Dim)}
+			out.E[i] = Scalar{Z: e.Z / s.Z, Dim: e.Dim.Div(s.Dim), Kind: scaledKind(&e, s)}
 		} else {
-			out.E[i] = Scalar{Z: e.Z * s.Z, Dim: e.Dim.Mul(s.Dim)}
+			out.E[i] = Scalar{Z: e.Z * s.Z, Dim: e.Dim.Mul(s.Dim), Kind: scaledKind(&e, s)}
 		}
 		if out.E[i].Z == 0 && e.Z != 0 && s.Z != 0 {
 			return nil, underflow(n.OpPos, map[bool]string{false: "product", true: "quotient"}[divide])

@@ -269,12 +269,34 @@ func lookupSymbol(sym string) (scale float64, dim Dim, angle bool, ok bool) {
 	return p.scale * u.scale, u.dim, u.angle, true
 }
 
+// baseSymbol is sym without its SI prefix, read as lookupSymbol reads it.
+func baseSymbol(sym string) string {
+	if _, found := unitTable[sym]; found {
+		return sym
+	}
+	best := ""
+	for _, p := range prefixes {
+		if strings.HasPrefix(sym, p.sym) && len(sym) > len(p.sym) {
+			if u, found := unitTable[sym[len(p.sym):]]; found && u.prefixable && len(p.sym) > len(best) {
+				best = p.sym
+			}
+		}
+	}
+	return sym[len(best):]
+}
+
 // Unit is a parsed unit expression such as "kV", "Ω/km" or "Ω·mm²/m".
 type Unit struct {
 	Text  string  // as written
 	Scale float64 // value of 1 unit in coherent SI units
 	Dim   Dim
 	Angle bool // a plain angle unit (°, deg, rad)
+	// Kind is the power kind a single power symbol names: W (active), var
+	// (reactive), VA (apparent), with any prefix; PowerNone otherwise.
+	Kind PowerKind
+	// Plain marks a dimensionless unit that a value keeps when written in
+	// it: % and pu.
+	Plain bool
 }
 
 // ParseUnit reads a unit expression: symbols joined by "·", "*" or "/",
@@ -385,6 +407,12 @@ func parseUnit(text string) (*Unit, error) {
 	}
 	if nsym > 1 {
 		u.Angle = false
+	}
+	if nsym == 1 && u.Dim == DimPower {
+		u.Kind = powerKindOfUnit(baseSymbol(text))
+	}
+	if nsym == 1 && (text == "%" || text == "pu") {
+		u.Plain = true
 	}
 	return u, nil
 }

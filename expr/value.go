@@ -24,6 +24,105 @@ type Scalar struct {
 	Dim   Dim
 	Sense PFSense
 	Angle bool
+	Kind  PowerKind // of a power (dimension of W): active, reactive, apparent or none
+}
+
+// PowerKind is the kind of a power, as IEEE Std 1459-2010 names them:
+// active power P (W), reactive power Q (var) and apparent power S (VA).
+// A complex power S = P + jQ is apparent. A power whose kind no rule
+// fixes (a product such as sqrt(3)·V·I) has PowerNone.
+type PowerKind uint8
+
+// The power kinds.
+const (
+	PowerNone PowerKind = iota
+	PowerActive
+	PowerReactive
+	PowerApparent
+)
+
+// Unit is the unit a power of kind k is shown in: W, var or VA ("W" for
+// a power of no kind).
+func (k PowerKind) Unit() string {
+	switch k {
+	case PowerReactive:
+		return "var"
+	case PowerApparent:
+		return "VA"
+	}
+	return "W"
+}
+
+// String is the kind's word: "active", "reactive", "apparent" or "".
+func (k PowerKind) String() string {
+	switch k {
+	case PowerActive:
+		return "active"
+	case PowerReactive:
+		return "reactive"
+	case PowerApparent:
+		return "apparent"
+	}
+	return ""
+}
+
+// powerKindOfUnit is the kind a unit symbol (without prefix) names.
+func powerKindOfUnit(sym string) PowerKind {
+	switch sym {
+	case "W":
+		return PowerActive
+	case "var":
+		return PowerReactive
+	case "VA":
+		return PowerApparent
+	}
+	return PowerNone
+}
+
+// KindNotStated reports whether s is a real power of no kind: the sheet
+// shows it in W with the words "kind not stated".
+func (s *Scalar) KindNotStated() bool {
+	return s.Dim == DimPower && s.Kind == PowerNone && s.IsReal()
+}
+
+// settleKind returns s with its power kind made consistent: no kind when
+// s is not a power, apparent when it is a power that is not real (IEEE
+// 1459: S = P + jQ). s itself is never changed (it may be a bound value).
+func settleKind(s *Scalar) *Scalar {
+	k := s.Kind
+	if s.Dim != DimPower {
+		k = PowerNone
+	} else if !s.IsReal() {
+		k = PowerApparent
+	}
+	if k == s.Kind {
+		return s
+	}
+	c := *s
+	c.Kind = k
+	return &c
+}
+
+// settleKinds applies settleKind to a value, entry by entry for a matrix.
+func settleKinds(v Value) Value {
+	switch x := v.(type) {
+	case *Scalar:
+		return settleKind(x)
+	case *Matrix:
+		var out *Matrix
+		for i := range x.E {
+			if s := settleKind(&x.E[i]); s != &x.E[i] {
+				if out == nil {
+					out = &Matrix{Rows: x.Rows, Cols: x.Cols, E: append([]Scalar(nil), x.E...)}
+				}
+				out.E[i] = *s
+			}
+		}
+		if out != nil {
+			return out
+		}
+	}
+	return v
 }
 
 // Matrix is a rows × cols array of quantities, stored row by row. Each

@@ -147,6 +147,7 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 					w.WriteString(s.valueML(res.Value, disp, false))
 					w.WriteString(senseML(res.Value))
 				})
+				w.kindNote(res.Value)
 			}
 		}
 	case *expr.FuncDef:
@@ -202,7 +203,8 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 					s.WriteNode(&w.Buffer, x.X, false)
 				})
 			}
-			w.Printf("<div class=\"r\" data-value=\"\" data-line=\"%d\">%s</div>", line, Math("<mo>=</mo>"+ValueML(res.Value, x.Display, w.Digits(), false)+senseML(res.Value)))
+			w.Printf("<div class=\"r\" data-value=\"\" data-line=\"%d\">%s</div>", line, Math("<mo>=</mo>"+ValueML(res.Value, res.Display, w.Digits(), false)+senseML(res.Value)))
+			w.kindNote(res.Value)
 		}
 	case *expr.BadStmt:
 		w.Printf("<div class=\"f\"><code>%s</code></div>", esc(st.Text))
@@ -269,4 +271,13 @@ func checkDisplay(w *Writer, c *expr.Compare) *expr.Display {
 		}
 	}
 	return nil
+}
+
+// kindNote writes the words "kind not stated" under the result of a real
+// power of no kind (IEEE 1459 kinds, LANGUAGE.md section 4): it is shown
+// in W until its line names W, var or VA.
+func (w *Writer) kindNote(v expr.Value) {
+	if sc, ok := v.(*expr.Scalar); ok && sc != nil && sc.KindNotStated() {
+		w.WriteString("<div class=\"s kn\"><em>kind not stated</em> (shown in W; name W, var or VA in the line)</div>")
+	}
 }

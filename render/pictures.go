@@ -222,7 +222,7 @@ func sweepTable(w *Writer, sw *calcdoc.Sweep, cols []*calcdoc.SweepLine) {
 		w.Printf("<th>%s</th>", lineHeadML(w, l))
 	}
 	w.WriteString("<th>note</th></tr></thead>\n<tbody>\n")
-	varS := &expr.Scalar{Dim: sw.Dim, Angle: sw.Angle}
+	varS := &expr.Scalar{Dim: sw.Dim, Angle: sw.Angle, Kind: sw.Kind}
 	for _, i := range rows {
 		varS.Z = complex(sw.X[i], 0)
 		w.Printf("<tr><td>%d</td><td>%s</td>", i+1, Math(ShownML(expr.FormatScalar(varS, nil, w.Digits()), false)))
@@ -269,15 +269,16 @@ func sweepTable(w *Writer, sw *calcdoc.Sweep, cols []*calcdoc.SweepLine) {
 	}
 }
 
-// baseUnit is the unit the sheet shows a value of dimension d in, without
-// prefix: the value's coherent SI unit under its default symbol ("Ω",
-// "VA" for a complex power, "W" for a real one).
-func baseUnit(d expr.Dim, complexValue bool) string {
+// baseUnit is the unit the sheet shows a value of dimension d and power
+// kind k in, without prefix: the value's coherent SI unit under its
+// default symbol ("Ω"; a power W, var or VA by its kind, VA when complex).
+func baseUnit(d expr.Dim, k expr.PowerKind, complexValue bool) string {
 	z := complex(1, 0)
 	if complexValue {
 		z = complex(1, 1)
 	}
-	return expr.FormatScalar(&expr.Scalar{Z: z, Dim: d}, nil, 4).Unit
+	u, _ := expr.DisplayUnit(&expr.Scalar{Z: z, Dim: d, Kind: k}, nil, 4)
+	return u
 }
 
 // axisLabel writes "name [unit]", or just the name when unit is empty.
@@ -302,7 +303,7 @@ func plotUnit(l *calcdoc.SweepLine) (string, float64) {
 	if l.Angle && !l.Complex && l.Dim.IsZero() {
 		return "°", math.Pi / 180
 	}
-	return baseUnit(l.Dim, l.Complex), 1
+	return baseUnit(l.Dim, l.Kind, l.Complex), 1
 }
 
 // useLogY reports whether values are drawn on a logarithmic y axis: every
@@ -355,7 +356,7 @@ func sweepPlots(w *Writer, sw *calcdoc.Sweep, l *calcdoc.SweepLine) {
 func sweepFigs(sw *calcdoc.Sweep, l *calcdoc.SweepLine) []sweepFig {
 	n := len(sw.X)
 	x := make([]float64, n)
-	xUnit := baseUnit(sw.Dim, false)
+	xUnit := baseUnit(sw.Dim, sw.Kind, false)
 	xScale := 1.0
 	if sw.Angle && sw.Dim.IsZero() {
 		xUnit, xScale = "°", math.Pi/180

@@ -247,7 +247,12 @@ func solvedParts(w *Writer, b *calcdoc.Block, set *calcdoc.SolveSet) {
 	// the solution
 	w.Printf("<div class=\"row sol\"><div class=\"ln\">%d</div><div class=\"math\">", line)
 	for _, u := range set.Unknowns {
-		w.Printf("<div class=\"r\" data-value=\"%s\" data-line=\"%d\">%s</div>", esc(u.Name), u.Pos.Line, Math(NameML(u.Name)+"<mo>=</mo>"+ValueML(u.Value, u.Display, w.Digits(), false)))
+		disp := u.Display
+		if b := w.Doc.Env.Lookup(u.Name); b != nil && b.Value == expr.Value(u.Value) {
+			disp = b.Display // the chosen display: the bracket, else the preferred unit
+		}
+		w.Printf("<div class=\"r\" data-value=\"%s\" data-line=\"%d\">%s</div>", esc(u.Name), u.Pos.Line, Math(NameML(u.Name)+"<mo>=</mo>"+ValueML(u.Value, disp, w.Digits(), false)))
+		w.kindNote(u.Value)
 	}
 	w.WriteString("</div><div class=\"desc\">solution</div></div>\n")
 

@@ -197,7 +197,7 @@ func TestSweepCSV(t *testing.T) {
 	}
 	wantHeads := map[int]string{
 		27: "f [Hz],re(Z_in) [Ω],im(Z_in) [Ω],re(|Z_in|) [Ω],im(|Z_in|) [Ω],re(arg(Z_in)) [rad],im(arg(Z_in)) [rad],re(max(|Z_in|, 100 Ω)) [Ω],im(max(|Z_in|, 100 Ω)) [Ω]",
-		34: "n,re(Q_n) [W],im(Q_n) [W],re(pf_n),im(pf_n),sense(pf_n),re(pf_x),im(pf_x),sense(pf_x),re(k),im(k)",
+		34: "n,re(Q_n) [var],im(Q_n) [var],re(pf_n),im(pf_n),sense(pf_n),re(pf_x),im(pf_x),sense(pf_x),re(k),im(k)",
 		41: "theta [rad],re(V_t) [V],im(V_t) [V]",
 	}
 	wantN := map[int]int{27: 200, 34: 9, 41: 7}
