@@ -157,7 +157,7 @@ func (ev *evaluator) eval1(n Node) (Value, error) {
 			m := x.(*Matrix)
 			out := NewMatrix(m.Rows, m.Cols)
 			for i, e := range m.E {
-				out.E[i] = Scalar{Z: e.Z * complex(n.Unit.Scale, 0), Dim: e.Dim.Mul(n.Unit.Dim)}
+				out.E[i] = Scalar{Z: e.Z * complex(n.Unit.Scale, 0), Dim: e.Dim.Mul(n.Unit.Dim), Angle: n.Unit.Angle && e.Dim.IsZero()}
 			}
 			return out, nil
 		}
@@ -274,7 +274,7 @@ func neg(x Value) Value {
 	case *Matrix:
 		out := NewMatrix(x.Rows, x.Cols)
 		for i, e := range x.E {
-			out.E[i] = Scalar{Z: canonZ(-e.Z), Dim: e.Dim}
+			out.E[i] = Scalar{Z: canonZ(-e.Z), Dim: e.Dim, Angle: e.Angle}
 		}
 		return out
 	}
@@ -309,14 +309,16 @@ func binaryOp(n *Binary, x, y Value) (Value, error) {
 		if n.Op == SUB {
 			z = xs.Z - ys.Z
 		}
-		return &Scalar{Z: z, Dim: d, Angle: d.IsZero() && (xs.Angle || ys.Angle)}, nil
+		// a ± b is an angle when both are (LANGUAGE.md section 3)
+		return &Scalar{Z: z, Dim: d, Angle: xs.Angle && ys.Angle}, nil
 	case MUL:
-		return &Scalar{Z: xs.Z * ys.Z, Dim: xs.Dim.Mul(ys.Dim), Angle: (xs.Angle && ys.Dim.IsZero() && !ys.Angle) || (ys.Angle && xs.Dim.IsZero() && !xs.Angle)}, nil
+		// a·k and k·a with k a plain number that is not an angle
+		return &Scalar{Z: xs.Z * ys.Z, Dim: xs.Dim.Mul(ys.Dim), Angle: xs.Angle && isPlainFactor(ys) || ys.Angle && isPlainFactor(xs)}, nil
 	case DIV:
 		if ys.Z == 0 {
 			return nil, Errorf(n.Y.Pos(), "division by zero: the divisor is 0")
 		}
-		return &Scalar{Z: xs.Z / ys.Z, Dim: xs.Dim.Div(ys.Dim), Angle: xs.Angle && ys.Dim.IsZero() && !ys.Angle}, nil
+		return &Scalar{Z: xs.Z / ys.Z, Dim: xs.Dim.Div(ys.Dim), Angle: xs.Angle && isPlainFactor(ys)}, nil
 	case PAR:
 		if xs.Dim != ys.Dim {
 			return nil, unitMismatch(n, opName(n.Op), xs, ys)
@@ -330,8 +332,8 @@ func binaryOp(n *Binary, x, y Value) (Value, error) {
 		}
 		return &Scalar{Z: xs.Z * ys.Z / sum, Dim: xs.Dim}, nil
 	case ANGLE:
-		if !ys.Dim.IsZero() {
-			return nil, Errorf(n.Y.Pos(), "the angle after ∠ must be an angle (e.g. 30° or 0.5 rad), not %s", Describe(ys))
+		if err := checkAngle(n.Y, ys, "the angle after ∠"); err != nil {
+			return nil, err
 		}
 		if !ys.IsReal() {
 			return nil, Errorf(n.Y.Pos(), "the angle after ∠ must be real, not %s", Describe(ys))
@@ -504,6 +506,13 @@ func (ev *evaluator) call(n *Call) (Value, error) {
 			pl = plural(bf.min) // "at least 1 argument"
 		}
 		return nil, Errorf(n.P, "%s takes %s argument%s, not %d", name, want, pl, len(args))
+	}
+	if name == "polar" && len(args) == 2 {
+		if a, ok := scalarOf(args[1]); ok {
+			if err := checkAngle(n.Args[1], a, "the second argument of polar"); err != nil {
+				return nil, err
+			}
+		}
 	}
 	v, err := bf.fn(args)
 	if err != nil {
