@@ -3,9 +3,11 @@ module calcdoc
 go 1.26.8
 
 require (
-	github.com/fsnotify/fsnotify v1.10.1 // indirect
-	github.com/yuin/goldmark v1.8.7 // indirect
-	go.yaml.in/yaml/v3 v3.0.6 // indirect
-	golang.org/x/sys v0.13.0 // indirect
-	gonum.org/v1/gonum v0.17.0 // indirect
+	github.com/fsnotify/fsnotify v1.10.1
+	github.com/yuin/goldmark v1.8.7
+	go.yaml.in/yaml/v3 v3.0.6
+	golang.org/x/text v0.44.0
+	gonum.org/v1/gonum v0.17.0
 )
+
+require golang.org/x/sys v0.13.0 // indirect

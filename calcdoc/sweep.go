@@ -235,6 +235,10 @@ func parseSweepHeader(b *Block, sw *Sweep) bool {
 		b.Errorf(b.ArgPos, "%q is not a name for the sweep variable (a letter, then letters, digits and _): %s", name, sweepUsage)
 		return false
 	}
+	if msg := expr.NameProblem(name); msg != "" {
+		b.Errorf(b.ArgPos, "%s", msg)
+		return false
+	}
 	if err := b.Env().CanDefine(name, b.ArgPos); err != nil {
 		b.Errorf(b.ArgPos, "the sweep variable must be a new name: %s", err.Msg)
 		return false
@@ -463,8 +467,8 @@ func prepareSweepLines(b *Block, sw *Sweep, stmts []expr.Stmt, errs expr.ErrorLi
 			if len(st.Names) != 1 {
 				l.Errs = append(l.Errs, expr.Errorf(st.Names[0].Pos(), "a sweep line assigns one name, not %d (the block plots single values)", len(st.Names)))
 				for _, id := range st.Names {
-					if local[id.Name] == 0 {
-						local[id.Name] = idx + 1
+					if local[id.Key] == 0 {
+						local[id.Key] = idx + 1
 					}
 				}
 				continue
@@ -472,25 +476,25 @@ func prepareSweepLines(b *Block, sw *Sweep, stmts []expr.Stmt, errs expr.ErrorLi
 			id := st.Names[0]
 			l.Name = id.Name
 			switch {
-			case headerOK && id.Name == sw.Var:
+			case headerOK && id.Key == expr.NameKey(sw.Var):
 				l.Errs = append(l.Errs, expr.Errorf(id.Pos(), "%q is the sweep variable: choose another name", id.Name))
-			case local[id.Name] > 0:
-				l.Errs = append(l.Errs, expr.Errorf(id.Pos(), "%q is already defined in this block at line %d: each name is defined once", id.Name, sw.Lines[local[id.Name]-1].Stmt.Pos().Line))
+			case local[id.Key] > 0:
+				l.Errs = append(l.Errs, expr.Errorf(id.Pos(), "%q is already defined in this block at line %d: each name is defined once", id.Name, sw.Lines[local[id.Key]-1].Stmt.Pos().Line))
 			default:
 				if err := b.Env().CanDefine(id.Name, id.Pos()); err != nil {
 					l.Errs = append(l.Errs, err)
 				}
 			}
-			if local[id.Name] == 0 {
-				local[id.Name] = idx + 1
+			if local[id.Key] == 0 {
+				local[id.Key] = idx + 1
 			}
 			l.X = st.X
 		case *expr.ExprStmt:
 			l.Plotted, l.Display, l.X = true, st.Display, st.X
 		case *expr.BadStmt:
 			for _, id := range st.Names {
-				if local[id.Name] == 0 {
-					local[id.Name] = idx + 1
+				if local[id.Key] == 0 {
+					local[id.Key] = idx + 1
 				}
 			}
 		case *expr.FuncDef:
@@ -551,7 +555,7 @@ func runSweep(b *Block, sw *Sweep) {
 	}
 	nan := complex(math.NaN(), math.NaN())
 	for i, x := range sw.X {
-		locals[sw.Var] = &expr.Scalar{Z: complex(x, 0), Dim: sw.Dim, Angle: sw.Angle}
+		locals[expr.NameKey(sw.Var)] = &expr.Scalar{Z: complex(x, 0), Dim: sw.Dim, Angle: sw.Angle}
 		for _, l := range sw.Lines {
 			if l.Name != "" {
 				delete(locals, l.Name)
@@ -618,7 +622,7 @@ func runSweep(b *Block, sw *Sweep) {
 			}
 			l.Z[i] = s.Z
 			if l.Name != "" {
-				locals[l.Name] = s
+				locals[expr.NameKey(l.Name)] = s
 			}
 		}
 	}

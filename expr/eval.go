@@ -92,7 +92,7 @@ func (e *Env) Eval(n Node, trace *Trace) (Value, error) {
 // function, a sweep variable) that hide nothing but are seen first.
 func (e *Env) EvalWith(n Node, locals map[string]Value, trace *Trace) (Value, error) {
 	steps := 0
-	ev := &evaluator{env: e, trace: trace, locals: locals, steps: &steps}
+	ev := &evaluator{env: e, trace: trace, locals: keyedLocals(locals), steps: &steps}
 	return ev.eval(n)
 }
 
@@ -217,23 +217,39 @@ func (ev *evaluator) eval1(n Node) (Value, error) {
 	return nil, Errorf(n.Pos(), "cannot evaluate this expression")
 }
 
+// keyedLocals returns locals keyed by NameKey: locals itself when every
+// name in it is its own key, the usual case, else a copy.
+func keyedLocals(locals map[string]Value) map[string]Value {
+	for k := range locals {
+		if NameKey(k) != k {
+			out := make(map[string]Value, len(locals))
+			for k, v := range locals {
+				out[NameKey(k)] = v
+			}
+			return out
+		}
+	}
+	return locals
+}
+
 func (ev *evaluator) ident(n *Ident) (Value, error) {
-	if v, ok := ev.locals[n.Name]; ok {
+	key := n.key()
+	if v, ok := ev.locals[key]; ok {
 		return v, nil
 	}
-	if b := ev.env.vars[n.Name]; b != nil {
+	if b := ev.env.vars[key]; b != nil {
 		if b.Unavailable {
 			return nil, &UnavailableError{Pos: n.P, Name: n.Name, Def: b.cause()}
 		}
 		return b.Value, nil
 	}
-	if c, ok := constants[n.Name]; ok {
+	if c, ok := constants[key]; ok {
 		return c, nil
 	}
-	if _, ok := builtins[n.Name]; ok {
+	if _, ok := builtins[key]; ok {
 		return nil, Errorf(n.P, "%q is a function: call it with parentheses, e.g. %s(x)", n.Name, n.Name)
 	}
-	if f := ev.env.funcs[n.Name]; f != nil {
+	if f := ev.env.funcs[key]; f != nil {
 		return nil, Errorf(n.P, "%q is a function defined at line %d: call it with parentheses", n.Name, f.Pos.Line)
 	}
 	return nil, Errorf(n.P, "unknown name %q%s", n.Name, ev.suggestName(n.Name))
@@ -448,12 +464,12 @@ func powZ(x, y complex128) complex128 {
 }
 
 func (ev *evaluator) call(n *Call) (Value, error) {
-	name := n.Fun.Name
+	name, key := n.Fun.Name, n.Fun.key()
 	// an entry of a matrix value: M(i, j), v(i)
-	if v, ok := ev.locals[name]; ok {
+	if v, ok := ev.locals[key]; ok {
 		return ev.index(n, v)
 	}
-	if b := ev.env.vars[name]; b != nil {
+	if b := ev.env.vars[key]; b != nil {
 		if b.Unavailable {
 			return nil, &UnavailableError{Pos: n.Fun.P, Name: name, Def: b.cause()}
 		}
@@ -467,7 +483,7 @@ func (ev *evaluator) call(n *Call) (Value, error) {
 		}
 		args[i] = v
 	}
-	if f := ev.env.funcs[name]; f != nil {
+	if f := ev.env.funcs[key]; f != nil {
 		if len(args) != len(f.Params) {
 			return nil, Errorf(n.P, "%s takes %d argument%s (defined at line %d), not %d", name, len(f.Params), plural(len(f.Params)), f.Pos.Line, len(args))
 		}
@@ -475,7 +491,7 @@ func (ev *evaluator) call(n *Call) (Value, error) {
 			return nil, Errorf(n.P, "functions call each other too deeply (more than %d levels)", MaxCallDepth)
 		}
 		locals := make(map[string]Value, len(args))
-		for i, p := range f.Params {
+		for i, p := range f.keys {
 			locals[p] = args[i]
 		}
 		sub := &evaluator{env: ev.env, locals: locals, depth: ev.depth + 1, steps: ev.steps}
@@ -488,7 +504,7 @@ func (ev *evaluator) call(n *Call) (Value, error) {
 		}
 		return v, nil
 	}
-	bf, ok := builtins[name]
+	bf, ok := builtins[key]
 	if !ok {
 		return nil, Errorf(n.Fun.P, "unknown function %q%s", name, ev.suggestFunc(name))
 	}
@@ -507,7 +523,7 @@ func (ev *evaluator) call(n *Call) (Value, error) {
 		}
 		return nil, Errorf(n.P, "%s takes %s argument%s, not %d", name, want, pl, len(args))
 	}
-	if name == "polar" && len(args) == 2 {
+	if key == "polar" && len(args) == 2 {
 		if a, ok := scalarOf(args[1]); ok {
 			if err := checkAngle(n.Args[1], a, "the second argument of polar"); err != nil {
 				return nil, err

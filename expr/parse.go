@@ -313,7 +313,11 @@ func (p *parser) firstComparison() int {
 }
 
 func (p *parser) ident(t Token) *Ident {
-	return &Ident{span: span{p.pos(t.Off), p.pos(t.End)}, Name: t.Text}
+	key := t.Key
+	if key == "" {
+		key = NameKey(t.Text)
+	}
+	return &Ident{span: span{p.pos(t.Off), p.pos(t.End)}, Name: t.Text, Key: key}
 }
 
 func (p *parser) assignment(eq int, sp span, d desc) Stmt {

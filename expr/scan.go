@@ -156,6 +156,7 @@ type Token struct {
 	Kind        Kind
 	Text        string
 	Off, End    int     // byte offsets in Source.Text
+	Key         string  // IDENT: the name's key, NameKey(Text)
 	Num         float64 // NUMBER: the value (the imaginary part for an imaginary literal)
 	Imag        bool    // NUMBER: an imaginary literal such as j4
 	SpaceBefore bool
@@ -258,12 +259,8 @@ func (s *scanner) run() []Token {
 		case r == 'j' && (s.nextIsDigit(s.off+1) || s.byteAt(s.off+1) == '.' && s.nextIsDigit(s.off+2)):
 			s.off++
 			s.scanNumber(start, true, space)
-		case isLetter(r):
-			for isLetter(r) || isDigit(r) || r == '_' {
-				s.off += w
-				r, w = s.peekRune(s.off)
-			}
-			s.emit(Token{Kind: IDENT, Text: s.text[start:s.off], Off: start, End: s.off, SpaceBefore: space})
+		case startsName(r):
+			s.scanName(start, space)
 		default:
 			s.off += w
 			k := ILLEGAL
@@ -414,6 +411,40 @@ func (s *scanner) unitAllowed(space bool, start int) bool {
 		return !space && r == '°'
 	}
 	return false
+}
+
+// scanName reads a name and its key. A name holding a character that
+// names may not hold (checkName) is reported there and becomes an ILLEGAL
+// token, so that its statement is not evaluated.
+func (s *scanner) scanName(start int, space bool) {
+	ascii := true
+	for s.off < len(s.text) {
+		if c := s.text[s.off]; c < utf8.RuneSelf {
+			if !(isLetter(rune(c)) || isDigit(rune(c)) || c == '_') {
+				break
+			}
+			s.off++
+			continue
+		}
+		r, w := s.peekRune(s.off)
+		if !inName(r) {
+			break
+		}
+		ascii = false
+		s.off += w
+	}
+	text := s.text[start:s.off]
+	t := Token{Kind: IDENT, Text: text, Off: start, End: s.off, SpaceBefore: space}
+	if !ascii {
+		if off, msg := checkName(text); off >= 0 {
+			s.errAt(start+off, msg)
+			t.Kind = ILLEGAL
+			s.emit(t)
+			return
+		}
+	}
+	t.Key = NameKey(text)
+	s.emit(t)
 }
 
 func (s *scanner) scanUnit(start int, space bool) {
