@@ -1070,7 +1070,11 @@ func (r *solveRun) countMessage() string {
 			hints = append(hints, fmt.Sprintf("%d more complex equation%s would do", d/2, plural(d/2)))
 		}
 		if cu > 0 && d <= cu {
-			hints = append(hints, fmt.Sprintf("or mark %s real (write real after its name) if %s a real quantity", countWords(d, "a complex unknown", "complex unknowns"), isAre(d)))
+			mark := "or mark one complex unknown real (write real after its name) if it is a real quantity"
+			if d > 1 {
+				mark = fmt.Sprintf("or mark %d complex unknowns real (write real after their names) if they are real quantities", d)
+			}
+			hints = append(hints, mark)
 		}
 		if len(hints) > 0 {
 			msg += " (" + strings.Join(hints, ", ") + ")"
