@@ -63,3 +63,21 @@ func TestSolveUnknownOneSpelling(t *testing.T) {
 		t.Errorf("phi = %v, want 0.5", b.Value)
 	}
 }
+
+// TestSweepVariableLetters: the sweep variable, read from the block header
+// rather than by the scanner, follows the same letter rule (U+3164 HANGUL
+// FILLER and U+0399 GREEK CAPITAL LETTER IOTA, Unicode code charts).
+func TestSweepVariableLetters(t *testing.T) {
+	tests := []struct{ name, header, msg string }{
+		{"Hangul filler", "I\u3164 = 1 .. 2 2", `the name "I" holds an invisible character, U+3164 (HANGUL FILLER)`},
+		{"Greek capital Iota", "\u0399_k = 1 A .. 2 A 2", `holds the Greek letter "Ι" (U+0399), which looks like the Latin I: write I_k`},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			d := calcdoc.Parse("sweep_letters.md", []byte("```sweep "+tc.header+"\ny = 2\n```\n"))
+			if len(d.Errors) == 0 || !strings.Contains(d.Errors[0].Error(), tc.msg) {
+				t.Errorf("errors %v, want one containing %q", d.Errors, tc.msg)
+			}
+		})
+	}
+}

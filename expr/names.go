@@ -3,6 +3,8 @@ package expr
 import (
 	"fmt"
 	"strings"
+	"sync"
+	"sync/atomic"
 	"unicode"
 	"unicode/utf8"
 
@@ -44,23 +46,49 @@ func NameKey(name string) string {
 			break
 		}
 	}
-	if ascii {
-		if !hasGreekPart(name) {
-			return name
-		}
-	} else {
+	if ascii && !hasGreekPart(name) {
+		return name
+	}
+	if k, ok := keyCache.Load(name); ok {
+		return k.(string)
+	}
+	key := nameKey(name, ascii)
+	if keyCacheSize.Add(1) < maxCachedKeys {
+		keyCache.Store(name, key)
+	}
+	return key
+}
+
+// The keys of the names that are not their own key are kept: a document
+// writes the same few names many times, and an environment looks each up
+// by its written form from outside the scanner. The cache is bounded, for
+// a long-running preview.
+var (
+	keyCache     sync.Map
+	keyCacheSize atomic.Int64
+)
+
+const maxCachedKeys = 50000
+
+func nameKey(name string, ascii bool) string {
+	if !ascii {
 		name = norm.NFKC.String(name)
 		if !hasGreekPart(name) {
 			return name
 		}
 	}
-	parts := strings.Split(name, "_")
-	for i, p := range parts {
-		if g, ok := greekNames[p]; ok {
-			parts[i] = g
+	var b strings.Builder
+	b.Grow(len(name))
+	for i, p := range strings.Split(name, "_") {
+		if i > 0 {
+			b.WriteByte('_')
 		}
+		if g, ok := greekNames[p]; ok {
+			p = g
+		}
+		b.WriteString(p)
 	}
-	return strings.Join(parts, "_")
+	return b.String()
 }
 
 // hasGreekPart reports whether a "_"-separated part of name is a spelled

@@ -313,11 +313,8 @@ func (p *parser) firstComparison() int {
 }
 
 func (p *parser) ident(t Token) *Ident {
-	key := t.Key
-	if key == "" {
-		key = NameKey(t.Text)
-	}
-	return &Ident{span: span{p.pos(t.Off), p.pos(t.End)}, Name: t.Text, Key: key}
+	// the key is computed once here, for every later lookup of the node
+	return &Ident{span: span{p.pos(t.Off), p.pos(t.End)}, Name: t.Text, Key: NameKey(t.Text)}
 }
 
 func (p *parser) assignment(eq int, sp span, d desc) Stmt {
@@ -527,7 +524,7 @@ func (p *parser) operandWithoutOperator(t Token) {
 	if p.i > 0 {
 		prev := p.toks[p.i-1]
 		if prev.Kind == IDENT {
-			if _, ok := builtins[prev.Key]; ok && t.Kind != LPAREN {
+			if _, ok := builtins[NameKey(prev.Text)]; ok && t.Kind != LPAREN {
 				// "ln 0": a function is called with parentheses
 				p.fail(prev.Off, "%s is a function: put its argument in parentheses, %s(%s)", prev.Text, prev.Text, t.Text)
 			}

@@ -157,7 +157,6 @@ type Token struct {
 	Kind        Kind
 	Text        string
 	Off, End    int     // byte offsets in Source.Text
-	Key         string  // IDENT: the name's key, NameKey(Text)
 	Num         float64 // NUMBER: the value (the imaginary part for an imaginary literal)
 	Imag        bool    // NUMBER: an imaginary literal such as j4
 	SpaceBefore bool
@@ -428,7 +427,7 @@ func (s *scanner) unitAllowed(space bool, start int) bool {
 	return false
 }
 
-// scanName reads a name and its key. A name holding a character that
+// scanName reads a name. A name holding a character that
 // names may not hold (checkName) is reported there and becomes an ILLEGAL
 // token, so that its statement is not evaluated.
 func (s *scanner) scanName(start int, space bool) {
@@ -458,7 +457,6 @@ func (s *scanner) scanName(start int, space bool) {
 			return
 		}
 	}
-	t.Key = NameKey(text)
 	s.emit(t)
 }
 
