@@ -160,6 +160,9 @@ func TestMisleadingMessages(t *testing.T) {
 		{"function of a name without parentheses", "x = 2\ny = sqrt x", "2:5", "sqrt is a function: put its argument in parentheses, sqrt(x)"},
 		{"square-root sign", "x = √3", "1:5", "unexpected character '√' (write sqrt(x) for a square root)"},
 		{"superscript outside a unit", "y = 2²", "1:6", "(² is read only inside a unit, as in mm²: write ^2 for a power)"},
+		{"two units with a space", "P = 2 V A", "1:9", `"A" is read as a name here: a space ends a unit, and inside a unit symbols are joined by · or * with no space (write V·A)`},
+		{"ohm glued to a subscript", "R = 2 Ω_1", "1:7", `to multiply by the name Ω_1, write 2*Ω_1`},
+		{"subscript digit", "V₁ = 2", "1:2", "unexpected character '₁' (a subscript is written with _, as in V_1)"},
 		{"a value followed by a value", "x = 2\ny = x 3", "2:7", `unexpected number "3": an operator is missing before it (write * to multiply)`},
 	}
 	for _, tc := range tests {

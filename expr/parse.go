@@ -529,6 +529,12 @@ func (p *parser) operandWithoutOperator(t Token) {
 				p.fail(prev.Off, "%s is a function: put its argument in parentheses, %s(%s)", prev.Text, prev.Text, t.Text)
 			}
 		}
+		if t.Kind == IDENT && prev.Kind == UNIT {
+			if u, err := ParseUnit(t.Text); err == nil && !u.Angle {
+				// "2 V A": a space ends a unit
+				p.fail(t.Off, "%q is read as a name here: a space ends a unit, and inside a unit symbols are joined by · or * with no space (write %s·%s)", t.Text, prev.Text, t.Text)
+			}
+		}
 		if t.Kind == IDENT && prev.Kind == NUMBER && t.Off-prev.End > 1 && strings.TrimSpace(p.src.Text[prev.End:t.Off]) == "" {
 			if _, err := ParseUnit(t.Text); err == nil {
 				// "2  V": the second space ended the number

@@ -365,6 +365,10 @@ var charHints = map[rune]string{
 	'³': "³ is read only inside a unit, as in m³: write ^3 for a power",
 	'÷': "write / to divide",
 	'≈': "a check compares with ==, which holds within a relative tolerance of 1e-9",
+	'₀': "a subscript is written with _, as in V_0",
+	'₁': "a subscript is written with _, as in V_1",
+	'₂': "a subscript is written with _, as in V_2",
+	'₃': "a subscript is written with _, as in V_3",
 	'{': "group with parentheses ( )",
 	'}': "group with parentheses ( )",
 }
@@ -486,11 +490,16 @@ func (s *scanner) scanUnit(start int, space bool) {
 		}
 	}
 done:
-	if c := s.byteAt(s.off); c == '_' || isDigit(rune(c)) {
+	if c := s.byteAt(s.off); (c == '_' || isDigit(rune(c))) && s.off > start && lastIsLetter(s.text[start:s.off]) {
 		s.unitRunsOn(start, space)
 		return
 	}
 	s.emit(Token{Kind: UNIT, Text: s.text[start:s.off], Off: start, End: s.off, SpaceBefore: space})
+}
+
+func lastIsLetter(s string) bool {
+	r, _ := utf8.DecodeLastRuneInString(s)
+	return isLetter(r)
 }
 
 // unitRunsOn reports a unit followed directly by "_" or a digit: "2Z_s"
