@@ -147,6 +147,7 @@ func TestMisleadingMessages(t *testing.T) {
 	}{
 		{"space before a display bracket", "I_k [kA] = 3 A", "1:4", "a space stands between I_k and the display bracket [kA]: the bracket follows directly, write I_k[kA]"},
 		{"space before a display bracket with a form", "Z_s  [Ω rect] = 3 Ω", "1:4", "a space stands between Z_s and the display bracket [Ω rect]"},
+		{"bracket holding no unit after a space", "x = 2\ny = x [1]", "2:7", `unexpected "[": brackets after a value hold its display unit, written directly after it (x[kA]); an entry of a vector or matrix is picked with parentheses, v(1) or M(1, 2)`},
 		{"space before the bracket of a bare expression", "2 A [mA]", "1:4", "a space stands between A and the display bracket [mA]: the bracket follows directly, write A[mA]"},
 		{"number glued to a subscripted name", "x = 2Z_s", "1:6", `"Z_s" after a number is read as a unit, and a unit holds no "_" or digits: to multiply by the name Z_s, write 2*Z_s`},
 		{"number and space before a subscripted name", "x = 0.5 V_1", "1:9", `to multiply by the name V_1, write 0.5*V_1`},

@@ -22,6 +22,7 @@ func (p *parser) expectEnd() {
 			if t.SpaceBefore && p.i > 0 {
 				p.spaceBeforeDisplay(p.toks[p.i-1], t)
 			}
+			p.fail(t.Off, "unexpected \"[\": brackets after a value hold its display unit, written directly after it (x[kA]); an entry of a vector or matrix is picked with parentheses, v(1) or M(1, 2)")
 		case UNIT:
 			p.fail(t.Off, "unexpected unit %q here", t.Text)
 		case DISPLAY:
@@ -46,6 +47,9 @@ func (p *parser) spaceBeforeDisplay(before, open Token) {
 		return // not a display bracket: the caller's message stands
 	}
 	inner := strings.TrimSpace(p.src.Text[open.End:p.toks[closeAt].Off])
+	if _, err := ParseDisplay(inner); err != nil {
+		return // what the brackets hold is no unit or form: not a display bracket
+	}
 	what := p.src.Text[before.Off:before.End]
 	p.fail(before.End, "a space stands between %s and the display bracket [%s]: the bracket follows directly, write %s[%s]", what, inner, what, inner)
 }
