@@ -507,14 +507,14 @@ func prepareSweepLines(b *Block, sw *Sweep, stmts []expr.Stmt, errs expr.ErrorLi
 		if l.X != nil {
 			seen := map[int]bool{}
 			expr.Walk(l.X, func(n expr.Node) bool {
-				var name string
+				var name, key string
 				switch n := n.(type) {
 				case *expr.Ident:
-					name = n.Name
+					name, key = n.Name, n.Key
 				case *expr.Call:
-					name = n.Fun.Name
+					name, key = n.Fun.Name, n.Fun.Key
 				}
-				if k := local[name]; k > 0 && k-1 < idx && !seen[k-1] {
+				if k := local[key]; k > 0 && k-1 < idx && !seen[k-1] {
 					seen[k-1] = true
 					l.deps = append(l.deps, k-1)
 					l.depNames = append(l.depNames, name)
@@ -558,7 +558,7 @@ func runSweep(b *Block, sw *Sweep) {
 		locals[expr.NameKey(sw.Var)] = &expr.Scalar{Z: complex(x, 0), Dim: sw.Dim, Angle: sw.Angle}
 		for _, l := range sw.Lines {
 			if l.Name != "" {
-				delete(locals, l.Name)
+				delete(locals, expr.NameKey(l.Name))
 			}
 		}
 		for li, l := range sw.Lines {
