@@ -82,13 +82,12 @@ func TestSweepVariableLetters(t *testing.T) {
 	}
 }
 
-// TestSweepLineNamesRenewed: a line's value at one point never stands in
-// for the next point when the line's name is a spelled Greek name (the
-// values are cleared by key, and a line depends on the line that defines
-// the other spelling of a name it uses). Hand derivation: y = 2·x at x = 1 and 2 is
-// 2 and 4; where x = 2 the division by zero leaves a gap, and eta, used
-// by the line below as eta, has no value there, so z is a gap too (not
-// 2·2, and not an error of its own).
+// TestSweepLineNamesRenewed: a line that uses the other spelling of a
+// name defined by a line above depends on that line, and the values of
+// the lines are cleared by key from point to point. Hand derivation:
+// η = 2/(2 − x) at x = 1, 2, 3 is 2, a division by zero (a gap), −2; so
+// z = 2·eta is 4, a gap that follows from the gap of η (not an error of
+// its own, and not 2·2 from the point before), −4.
 func TestSweepLineNamesRenewed(t *testing.T) {
 	d := calcdoc.Parse("sweep_eta.md", []byte("```sweep x = 1 .. 3 3\nη = 2 / (2 - x)\nz = 2 * eta\n```\n"))
 	sw := swSweep(t, d)
@@ -96,7 +95,6 @@ func TestSweepLineNamesRenewed(t *testing.T) {
 	if real(z[0]) != 4 || !math.IsNaN(real(z[1])) || real(z[2]) != -4 {
 		t.Errorf("z = %v, want [4, gap, -4]", z)
 	}
-	// the gap of z follows from the gap of eta: not an error of its own
 	if l := sw.Lines[1]; l.GapErr != nil || len(l.Errs) != 0 {
 		t.Errorf("z: gap error %v, errors %v; want none (the eta it uses is η)", l.GapErr, l.Errs)
 	}
