@@ -296,7 +296,7 @@ func TestSolveContradiction(t *testing.T) {
 func TestSolveCountGrammar(t *testing.T) {
 	for _, c := range []struct{ src, want string }{
 		{"```solve V[V]\n|V| = 5 V\n```\n", "mark one complex unknown real (write real after its name) if it is a real quantity"},
-		{"```solve a, b\n|a| = 1\n|b| = 1\n```\n", "mark 2 complex unknowns real (write real after its name) if they are real quantities"},
+		{"```solve a, b\n|a| = 1\n|b| = 1\n```\n", "mark 2 complex unknowns real (write real after their names) if they are real quantities"},
 	} {
 		d := solveDoc(t, c.src)
 		if len(d.Errors) != 1 || !strings.Contains(d.Errors[0].Msg, c.want) {

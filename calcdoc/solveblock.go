@@ -306,7 +306,7 @@ func (r *solveRun) involves(n expr.Node) bool {
 	found := false
 	expr.Walk(n, func(n expr.Node) bool {
 		if id, ok := n.(*expr.Ident); ok {
-			if _, isU := r.loc[id.Name]; isU {
+			if _, isU := r.loc[id.Key]; isU {
 				found = true
 			}
 		}
@@ -385,11 +385,11 @@ func ParseSolveHeader(arg string, pos expr.Pos) ([]*Unknown, expr.ErrorList) {
 		if u == nil {
 			continue
 		}
-		if prev := seen[u.Name]; prev != nil {
+		if prev := seen[expr.NameKey(u.Name)]; prev != nil {
 			errs.Add(u.Pos, fmt.Sprintf("%s is listed twice among the unknowns (first at column %d)", u.Name, prev.Pos.Col))
 			continue
 		}
-		seen[u.Name] = u
+		seen[expr.NameKey(u.Name)] = u
 		out = append(out, u)
 	}
 	return out, errs
@@ -714,7 +714,7 @@ func (r *solveRun) prepare() bool {
 	// which unknowns each equation involves
 	index := map[string]int{}
 	for k, u := range unk {
-		index[u.Name] = k
+		index[expr.NameKey(u.Name)] = k
 	}
 	r.eqsOf = make([][]int, len(unk))
 	for i, eq := range set.Equations {
@@ -722,7 +722,7 @@ func (r *solveRun) prepare() bool {
 		for _, side := range []expr.Node{eq.Eq.LHS, eq.Eq.RHS} {
 			expr.Walk(side, func(n expr.Node) bool {
 				if id, isID := n.(*expr.Ident); isID {
-					if k, isU := index[id.Name]; isU && !seen[k] {
+					if k, isU := index[id.Key]; isU && !seen[k] {
 						seen[k] = true
 						eq.Unknowns = append(eq.Unknowns, k)
 						r.eqsOf[k] = append(r.eqsOf[k], i)
@@ -753,7 +753,7 @@ func (r *solveRun) prepare() bool {
 	r.col = make([]int, len(unk))
 	for k, u := range unk {
 		r.vals[k] = &expr.Scalar{Dim: u.Dim, Angle: u.Angle}
-		r.loc[u.Name] = r.vals[k]
+		r.loc[expr.NameKey(u.Name)] = r.vals[k] // keyed as the evaluator looks names up
 		r.col[k] = r.n
 		scale := 1.0
 		if u.HasUnit() {
@@ -1080,11 +1080,11 @@ func (r *solveRun) countMessage() string {
 			hints = append(hints, fmt.Sprintf("%d more complex equation%s would do", d/2, plural(d/2)))
 		}
 		if cu > 0 && d <= cu {
-			what := "it is a real quantity"
+			mark := "or mark one complex unknown real (write real after its name) if it is a real quantity"
 			if d > 1 {
-				what = "they are real quantities"
+				mark = fmt.Sprintf("or mark %d complex unknowns real (write real after their names) if they are real quantities", d)
 			}
-			hints = append(hints, fmt.Sprintf("or mark %s real (write real after its name) if %s", countWords(d, "a complex unknown", "complex unknowns"), what))
+			hints = append(hints, mark)
 		}
 		if len(hints) > 0 {
 			msg += " (" + strings.Join(hints, ", ") + ")"

@@ -248,6 +248,10 @@ func parseSweepHeader(b *Block, sw *Sweep) bool {
 		b.Errorf(b.ArgPos, "%q is not a name for the sweep variable (a letter, then letters, digits and _): %s", name, sweepUsage)
 		return false
 	}
+	if msg := expr.NameProblem(name); msg != "" {
+		b.Errorf(b.ArgPos, "%s", msg)
+		return false
+	}
 	if err := b.Env().CanDefine(name, b.ArgPos); err != nil {
 		b.Errorf(b.ArgPos, "the sweep variable must be a new name: %s", err.Msg)
 		return false
@@ -479,8 +483,8 @@ func prepareSweepLines(b *Block, sw *Sweep, stmts []expr.Stmt, errs expr.ErrorLi
 			if len(st.Names) != 1 {
 				l.Errs = append(l.Errs, expr.Errorf(st.Names[0].Pos(), "a sweep line assigns one name, not %d (the block plots single values)", len(st.Names)))
 				for _, id := range st.Names {
-					if local[id.Name] == 0 {
-						local[id.Name] = idx + 1
+					if local[id.Key] == 0 {
+						local[id.Key] = idx + 1
 					}
 				}
 				continue
@@ -488,25 +492,25 @@ func prepareSweepLines(b *Block, sw *Sweep, stmts []expr.Stmt, errs expr.ErrorLi
 			id := st.Names[0]
 			l.Name = id.Name
 			switch {
-			case headerOK && id.Name == sw.Var:
+			case headerOK && id.Key == expr.NameKey(sw.Var):
 				l.Errs = append(l.Errs, expr.Errorf(id.Pos(), "%q is the sweep variable: choose another name", id.Name))
-			case local[id.Name] > 0:
-				l.Errs = append(l.Errs, expr.Errorf(id.Pos(), "%q is already defined in this block at line %d: each name is defined once", id.Name, sw.Lines[local[id.Name]-1].Stmt.Pos().Line))
+			case local[id.Key] > 0:
+				l.Errs = append(l.Errs, expr.Errorf(id.Pos(), "%q is already defined in this block at line %d: each name is defined once", id.Name, sw.Lines[local[id.Key]-1].Stmt.Pos().Line))
 			default:
 				if err := b.Env().CanDefine(id.Name, id.Pos()); err != nil {
 					l.Errs = append(l.Errs, err)
 				}
 			}
-			if local[id.Name] == 0 {
-				local[id.Name] = idx + 1
+			if local[id.Key] == 0 {
+				local[id.Key] = idx + 1
 			}
 			l.X = st.X
 		case *expr.ExprStmt:
 			l.Plotted, l.Display, l.X = true, st.Display, st.X
 		case *expr.BadStmt:
 			for _, id := range st.Names {
-				if local[id.Name] == 0 {
-					local[id.Name] = idx + 1
+				if local[id.Key] == 0 {
+					local[id.Key] = idx + 1
 				}
 			}
 		case *expr.FuncDef:
@@ -519,14 +523,14 @@ func prepareSweepLines(b *Block, sw *Sweep, stmts []expr.Stmt, errs expr.ErrorLi
 		if l.X != nil {
 			seen := map[int]bool{}
 			expr.Walk(l.X, func(n expr.Node) bool {
-				var name string
+				var name, key string
 				switch n := n.(type) {
 				case *expr.Ident:
-					name = n.Name
+					name, key = n.Name, n.Key
 				case *expr.Call:
-					name = n.Fun.Name
+					name, key = n.Fun.Name, n.Fun.Key
 				}
-				if k := local[name]; k > 0 && k-1 < idx && !seen[k-1] {
+				if k := local[key]; k > 0 && k-1 < idx && !seen[k-1] {
 					seen[k-1] = true
 					l.deps = append(l.deps, k-1)
 					l.depNames = append(l.depNames, name)
@@ -567,10 +571,10 @@ func runSweep(b *Block, sw *Sweep) {
 	}
 	nan := complex(math.NaN(), math.NaN())
 	for i, x := range sw.X {
-		locals[sw.Var] = &expr.Scalar{Z: complex(x, 0), Dim: sw.Dim, Angle: sw.Angle, Kind: sw.Kind}
+		locals[expr.NameKey(sw.Var)] = &expr.Scalar{Z: complex(x, 0), Dim: sw.Dim, Angle: sw.Angle, Kind: sw.Kind}
 		for _, l := range sw.Lines {
 			if l.Name != "" {
-				delete(locals, l.Name)
+				delete(locals, expr.NameKey(l.Name))
 			}
 		}
 		for li, l := range sw.Lines {
@@ -651,7 +655,7 @@ func runSweep(b *Block, sw *Sweep) {
 				l.setSense(i, s.Sense)
 			}
 			if l.Name != "" {
-				locals[l.Name] = s
+				locals[expr.NameKey(l.Name)] = s
 			}
 		}
 	}

@@ -20,10 +20,12 @@ type Number struct {
 	Imag  bool
 }
 
-// Ident is a name.
+// Ident is a name: Name as written, Key the form under which it is
+// compared (NameKey).
 type Ident struct {
 	span
 	Name string
+	Key  string
 }
 
 // WithUnit is an operand followed by a unit: "230 V", "(0.12 + j0.08) Ω", "30°".

@@ -3,6 +3,8 @@ package expr
 import (
 	"fmt"
 	"sort"
+
+	"golang.org/x/text/unicode/norm"
 )
 
 // Binding is a defined name.
@@ -26,10 +28,13 @@ type Func struct {
 	Params []string
 	Body   Node
 	Pos    Pos
+	keys   []string // NameKey of each parameter, set by DefineFunc
 }
 
 // Env is the set of names a block sees: everything defined above it.
-// Names are defined once; Define refuses a second definition.
+// Names are defined once; Define refuses a second definition. Names are
+// kept and looked up by their key (NameKey), so that "phi" and "φ" are
+// one name; Binding.Name keeps the name as its definition wrote it.
 type Env struct {
 	vars  map[string]*Binding
 	funcs map[string]*Func
@@ -44,16 +49,17 @@ func NewEnv() *Env {
 }
 
 // Lookup returns the binding of a name, or nil.
-func (e *Env) Lookup(name string) *Binding { return e.vars[name] }
+func (e *Env) Lookup(name string) *Binding { return e.vars[NameKey(name)] }
 
 // LookupFunc returns a user function, or nil.
-func (e *Env) LookupFunc(name string) *Func { return e.funcs[name] }
+func (e *Env) LookupFunc(name string) *Func { return e.funcs[NameKey(name)] }
 
 // Names lists the defined value names in the order they were defined.
 func (e *Env) Names() []string { return append([]string(nil), e.order...) }
 
 // IsBuiltin reports whether name is a built-in function or constant.
 func IsBuiltin(name string) bool {
+	name = NameKey(name)
 	if _, ok := builtins[name]; ok {
 		return true
 	}
@@ -75,9 +81,10 @@ func BuiltinNames() []string {
 
 // CanDefine reports why name cannot be defined at pos, or nil.
 func (e *Env) CanDefine(name string, pos Pos) *Error {
-	if IsBuiltin(name) {
+	key := NameKey(name)
+	if IsBuiltin(key) {
 		what := "built-in function"
-		if _, ok := constants[name]; ok {
+		if _, ok := constants[key]; ok {
 			what = "built-in constant"
 		}
 		if reserved[name] {
@@ -85,13 +92,25 @@ func (e *Env) CanDefine(name string, pos Pos) *Error {
 		}
 		return Errorf(pos, "%q is a %s and cannot be redefined: choose another name", name, what)
 	}
-	if b := e.vars[name]; b != nil {
-		return Errorf(pos, "%q is already defined at line %d: each name is defined once (choose another name, e.g. %s_2)", name, b.Pos.Line, name)
+	if b := e.vars[key]; b != nil {
+		return Errorf(pos, "%q is already defined at line %d%s: each name is defined once (choose another name, e.g. %s_2)", name, b.Pos.Line, sameNameNote(name, b.Name), name)
 	}
-	if f := e.funcs[name]; f != nil {
-		return Errorf(pos, "%q is already defined as a function at line %d: each name is defined once", name, f.Pos.Line)
+	if f := e.funcs[key]; f != nil {
+		return Errorf(pos, "%q is already defined as a function at line %d%s: each name is defined once", name, f.Pos.Line, sameNameNote(name, f.Name))
 	}
 	return nil
+}
+
+// sameNameNote says why two spellings are one name, or nothing when they
+// are written alike.
+func sameNameNote(name, first string) string {
+	switch {
+	case name == first:
+		return ""
+	case norm.NFKC.String(name) == norm.NFKC.String(first):
+		return fmt.Sprintf(", written %q (the same name after Unicode NFKC normalisation)", first)
+	}
+	return fmt.Sprintf(", written %q (a spelled Greek name and its letter are one name)", first)
 }
 
 // Define adds a value. It returns an error when the name is taken.
@@ -99,7 +118,7 @@ func (e *Env) Define(b *Binding) *Error {
 	if err := e.CanDefine(b.Name, b.Pos); err != nil {
 		return err
 	}
-	e.vars[b.Name] = b
+	e.vars[NameKey(b.Name)] = b
 	e.order = append(e.order, b.Name)
 	return nil
 }
@@ -109,7 +128,11 @@ func (e *Env) DefineFunc(f *Func) *Error {
 	if err := e.CanDefine(f.Name, f.Pos); err != nil {
 		return err
 	}
-	e.funcs[f.Name] = f
+	f.keys = make([]string, len(f.Params))
+	for i, p := range f.Params {
+		f.keys[i] = NameKey(p)
+	}
+	e.funcs[NameKey(f.Name)] = f
 	return nil
 }
 

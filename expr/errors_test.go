@@ -50,7 +50,7 @@ func TestErrors(t *testing.T) {
 		{"wrong closer", "x = (1 + 2]", "1:11", `expected ")" to close the "(" at 1:5, found "]"`},
 		{"stray closing parenthesis", "x = 1)", "1:6", `unexpected ")": no parenthesis is open here`},
 		{"missing operator", "x = 2 (3)", "1:7", `unexpected ( "(": an operator is missing before it`},
-		{"two spaces end the unit", "x = 2  V", "1:8", `unexpected name "V": an operator is missing before it`},
+		{"two spaces end the unit", "x = 2  V", "1:8", `"V" is read as a name here: a unit follows its number directly or after one space (write 2 V), and * multiplies by a name`},
 		{"expression ends too soon", "x = 1 ∠", "1:8", "expression ends too soon: a value is missing"},
 		{"missing expression", "x =", "1:4", `missing expression after "="`},
 		{"missing name", "= 3", "1:1", `missing name before "="`},
@@ -136,6 +136,50 @@ func posInside(text string, p Pos) bool {
 		return false
 	}
 	return p.Col >= 1 && p.Col <= len([]rune(lines[p.Line-1]))+1
+}
+
+// TestMisleadingMessages: messages that used to name a symptom (an
+// unclosed bracket, a stray "_", a missing operator) name the cause and
+// the fix (issue 12). Positions are counted by hand on the source.
+func TestMisleadingMessages(t *testing.T) {
+	tests := []struct {
+		name, src, pos, msg string
+	}{
+		{"space before a display bracket", "I_k [kA] = 3 A", "1:4", "a space stands between I_k and the display bracket [kA]: the bracket follows directly, write I_k[kA]"},
+		{"space before a display bracket with a form", "Z_s  [Ω rect] = 3 Ω", "1:4", "a space stands between Z_s and the display bracket [Ω rect]"},
+		{"bracket holding no unit after a space", "x = 2\ny = x [1]", "2:7", `unexpected "[": brackets after a value hold its display unit, written directly after it (x[kA]); an entry of a vector or matrix is picked with parentheses, v(1) or M(1, 2)`},
+		{"space before the bracket of a bare expression", "2 A [mA]", "1:4", "a space stands between A and the display bracket [mA]: the bracket follows directly, write A[mA]"},
+		{"number glued to a subscripted name", "x = 2Z_s", "1:6", `"Z_s" after a number is read as a unit, and a unit holds no "_" or digits: to multiply by the name Z_s, write 2*Z_s`},
+		{"number and space before a subscripted name", "x = 0.5 V_1", "1:9", `to multiply by the name V_1, write 0.5*V_1`},
+		{"parenthesis glued to a subscripted name", "x = (1 + 2)Z_s", "1:12", `write (...)*Z_s`},
+		{"number glued to a name with a digit", "x = 2x1", "1:6", `to multiply by the name x1, write 2*x1`},
+		{"square millimetres written mm2", "A_c = 16 mm2", "1:10", `"mm2" is not a unit: write mm² or mm^2 for mm squared (or 16*mm2 to multiply by a name mm2)`},
+		{"cubic metres written m3", "v = 2 m3", "1:7", `write m³ or m^3 for m cubed`},
+		{"kvar in the wrong case", "Q = 50 kVAr", "1:8", `unknown unit "kVAr" (did you mean "kvar"`},
+		{"kVA in the wrong case", "S = 50 KVA", "1:8", `(did you mean "kVA"`},
+		{"function without parentheses", "y = ln 0", "1:5", "ln is a function: put its argument in parentheses, ln(0)"},
+		{"function of a name without parentheses", "x = 2\ny = sqrt x", "2:5", "sqrt is a function: put its argument in parentheses, sqrt(x)"},
+		{"square-root sign", "x = √3", "1:5", "unexpected character '√' (write sqrt(x) for a square root)"},
+		{"superscript outside a unit", "y = 2²", "1:6", "(² is read only inside a unit, as in mm²: write ^2 for a power)"},
+		{"two units with a space", "P = 2 V A", "1:9", `"A" is read as a name here: a space ends a unit, and inside a unit symbols are joined by · or * with no space (write V·A)`},
+		{"ohm glued to a subscript", "R = 2 Ω_1", "1:7", `to multiply by the name Ω_1, write 2*Ω_1`},
+		{"subscript digit", "V₁ = 2", "1:2", "unexpected character '₁' (a subscript is written with _, as in V_1)"},
+		{"a value followed by a value", "x = 2\ny = x 3", "2:7", `unexpected number "3": an operator is missing before it (write * to multiply)`},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			err := firstError(tc.src)
+			if err == nil {
+				t.Fatalf("%q: no error", tc.src)
+			}
+			if got := errPos(err).String(); got != tc.pos {
+				t.Errorf("%q: error at %s, want %s (%v)", tc.src, got, tc.pos, err)
+			}
+			if !strings.Contains(errMsg(err), tc.msg) {
+				t.Errorf("%q: message\n %q\nwant it to contain\n %q", tc.src, errMsg(err), tc.msg)
+			}
+		})
+	}
 }
 
 func TestNestingErrorPointsAtAParenthesis(t *testing.T) {

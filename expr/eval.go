@@ -92,7 +92,7 @@ func (e *Env) Eval(n Node, trace *Trace) (Value, error) {
 // function, a sweep variable) that hide nothing but are seen first.
 func (e *Env) EvalWith(n Node, locals map[string]Value, trace *Trace) (Value, error) {
 	steps := 0
-	ev := &evaluator{env: e, trace: trace, locals: locals, steps: &steps}
+	ev := &evaluator{env: e, trace: trace, locals: keyedLocals(locals), steps: &steps}
 	return ev.eval(n)
 }
 
@@ -161,7 +161,7 @@ func (ev *evaluator) eval1(n Node) (Value, error) {
 			m := x.(*Matrix)
 			out := NewMatrix(m.Rows, m.Cols)
 			for i, e := range m.E {
-				out.E[i] = Scalar{Z: e.Z * complex(n.Unit.Scale, 0), Dim: e.Dim.Mul(n.Unit.Dim), Kind: n.Unit.Kind}
+				out.E[i] = Scalar{Z: e.Z * complex(n.Unit.Scale, 0), Dim: e.Dim.Mul(n.Unit.Dim), Angle: n.Unit.Angle && e.Dim.IsZero(), Kind: n.Unit.Kind}
 				if out.E[i].Z == 0 && e.Z != 0 {
 					return nil, underflow(opPos(n), "value in "+n.Unit.Text)
 				}
@@ -228,23 +228,39 @@ func (ev *evaluator) eval1(n Node) (Value, error) {
 	return nil, Errorf(n.Pos(), "cannot evaluate this expression")
 }
 
+// keyedLocals returns locals keyed by NameKey: locals itself when every
+// name in it is its own key, the usual case, else a copy.
+func keyedLocals(locals map[string]Value) map[string]Value {
+	for k := range locals {
+		if NameKey(k) != k {
+			out := make(map[string]Value, len(locals))
+			for k, v := range locals {
+				out[NameKey(k)] = v
+			}
+			return out
+		}
+	}
+	return locals
+}
+
 func (ev *evaluator) ident(n *Ident) (Value, error) {
-	if v, ok := ev.locals[n.Name]; ok {
+	key := n.key()
+	if v, ok := ev.locals[key]; ok {
 		return v, nil
 	}
-	if b := ev.env.vars[n.Name]; b != nil {
+	if b := ev.env.vars[key]; b != nil {
 		if b.Unavailable {
 			return nil, &UnavailableError{Pos: n.P, Name: n.Name, Def: b.cause()}
 		}
 		return b.Value, nil
 	}
-	if c, ok := constants[n.Name]; ok {
+	if c, ok := constants[key]; ok {
 		return c, nil
 	}
-	if _, ok := builtins[n.Name]; ok {
+	if _, ok := builtins[key]; ok {
 		return nil, Errorf(n.P, "%q is a function: call it with parentheses, e.g. %s(x)", n.Name, n.Name)
 	}
-	if f := ev.env.funcs[n.Name]; f != nil {
+	if f := ev.env.funcs[key]; f != nil {
 		return nil, Errorf(n.P, "%q is a function defined at line %d: call it with parentheses", n.Name, f.Pos.Line)
 	}
 	return nil, Errorf(n.P, "unknown name %q%s", n.Name, ev.suggestName(n.Name))
@@ -286,7 +302,7 @@ func neg(x Value) Value {
 		out := NewMatrix(x.Rows, x.Cols)
 		out.Resid = x.Resid // negation is exact
 		for i, e := range x.E {
-			out.E[i] = Scalar{Z: canonZ(-e.Z), Dim: e.Dim, Kind: e.Kind}
+			out.E[i] = Scalar{Z: canonZ(-e.Z), Dim: e.Dim, Angle: e.Angle, Kind: e.Kind}
 		}
 		return out
 	}
@@ -325,12 +341,14 @@ func binaryOp(n *Binary, x, y Value) (Value, error) {
 		if err != nil {
 			return nil, err
 		}
-		return &Scalar{Z: z, Dim: d, Angle: d.IsZero() && (xs.Angle || ys.Angle), Kind: k}, nil
+		// a ± b is an angle when both are (LANGUAGE.md section 3)
+		return &Scalar{Z: z, Dim: d, Angle: xs.Angle && ys.Angle, Kind: k}, nil
 	case MUL:
 		if z := xs.Z * ys.Z; z == 0 && xs.Z != 0 && ys.Z != 0 {
 			return nil, underflow(n.OpPos, "product")
 		}
-		return &Scalar{Z: xs.Z * ys.Z, Dim: xs.Dim.Mul(ys.Dim), Angle: (xs.Angle && ys.Dim.IsZero() && !ys.Angle) || (ys.Angle && xs.Dim.IsZero() && !xs.Angle), Kind: scaledKind(xs, ys) | scaledKind(ys, xs)}, nil
+		// a·k and k·a with k a plain number that is not an angle
+		return &Scalar{Z: xs.Z * ys.Z, Dim: xs.Dim.Mul(ys.Dim), Angle: xs.Angle && isPlainFactor(ys) || ys.Angle && isPlainFactor(xs), Kind: scaledKind(xs, ys) | scaledKind(ys, xs)}, nil
 	case DIV:
 		if ys.Z == 0 {
 			return nil, Errorf(n.Y.Pos(), "division by zero: the divisor is 0")
@@ -338,7 +356,7 @@ func binaryOp(n *Binary, x, y Value) (Value, error) {
 		if z := xs.Z / ys.Z; z == 0 && xs.Z != 0 {
 			return nil, underflow(n.OpPos, "quotient")
 		}
-		return &Scalar{Z: xs.Z / ys.Z, Dim: xs.Dim.Div(ys.Dim), Angle: xs.Angle && ys.Dim.IsZero() && !ys.Angle, Kind: scaledKind(xs, ys)}, nil
+		return &Scalar{Z: xs.Z / ys.Z, Dim: xs.Dim.Div(ys.Dim), Angle: xs.Angle && isPlainFactor(ys), Kind: scaledKind(xs, ys)}, nil
 	case PAR:
 		if xs.Dim != ys.Dim {
 			return nil, unitMismatch(n, opName(n.Op), xs, ys)
@@ -349,8 +367,8 @@ func binaryOp(n *Binary, x, y Value) (Value, error) {
 		}
 		return &Scalar{Z: z, Dim: xs.Dim}, nil
 	case ANGLE:
-		if !ys.Dim.IsZero() {
-			return nil, Errorf(n.Y.Pos(), "the angle after ∠ must be an angle (e.g. 30° or 0.5 rad), not %s", Describe(ys))
+		if err := checkAngle(n.Y, ys, "the angle after ∠"); err != nil {
+			return nil, err
 		}
 		if !ys.IsReal() {
 			return nil, Errorf(n.Y.Pos(), "the angle after ∠ must be real, not %s", Describe(ys))
@@ -472,12 +490,12 @@ func powZ(x, y complex128) complex128 {
 }
 
 func (ev *evaluator) call(n *Call) (Value, error) {
-	name := n.Fun.Name
+	name, key := n.Fun.Name, n.Fun.key()
 	// an entry of a matrix value: M(i, j), v(i)
-	if v, ok := ev.locals[name]; ok {
+	if v, ok := ev.locals[key]; ok {
 		return ev.index(n, v)
 	}
-	if b := ev.env.vars[name]; b != nil {
+	if b := ev.env.vars[key]; b != nil {
 		if b.Unavailable {
 			return nil, &UnavailableError{Pos: n.Fun.P, Name: name, Def: b.cause()}
 		}
@@ -491,7 +509,7 @@ func (ev *evaluator) call(n *Call) (Value, error) {
 		}
 		args[i] = v
 	}
-	if f := ev.env.funcs[name]; f != nil {
+	if f := ev.env.funcs[key]; f != nil {
 		if len(args) != len(f.Params) {
 			return nil, Errorf(n.P, "%s takes %d argument%s (defined at line %d), not %d", name, len(f.Params), plural(len(f.Params)), f.Pos.Line, len(args))
 		}
@@ -499,7 +517,7 @@ func (ev *evaluator) call(n *Call) (Value, error) {
 			return nil, Errorf(n.P, "functions call each other too deeply (more than %d levels)", MaxCallDepth)
 		}
 		locals := make(map[string]Value, len(args))
-		for i, p := range f.Params {
+		for i, p := range f.keys {
 			locals[p] = args[i]
 		}
 		sub := &evaluator{env: ev.env, locals: locals, depth: ev.depth + 1, steps: ev.steps}
@@ -512,7 +530,7 @@ func (ev *evaluator) call(n *Call) (Value, error) {
 		}
 		return v, nil
 	}
-	bf, ok := builtins[name]
+	bf, ok := builtins[key]
 	if !ok {
 		return nil, Errorf(n.Fun.P, "unknown function %q%s", name, ev.suggestFunc(name))
 	}
@@ -530,6 +548,13 @@ func (ev *evaluator) call(n *Call) (Value, error) {
 			pl = plural(bf.min) // "at least 1 argument"
 		}
 		return nil, Errorf(n.P, "%s takes %s argument%s, not %d", name, want, pl, len(args))
+	}
+	if key == "polar" && len(args) == 2 {
+		if a, ok := scalarOf(args[1]); ok {
+			if err := checkAngle(n.Args[1], a, "the second argument of polar"); err != nil {
+				return nil, err
+			}
+		}
 	}
 	v, err := bf.fn(args)
 	if err != nil {

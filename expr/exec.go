@@ -118,10 +118,16 @@ func (e *Env) Exec(s Stmt) *Result {
 	case *BadStmt:
 		e.defineUnavailable(s.Names)
 	case *Assign:
-		for _, id := range s.Names {
+		for i, id := range s.Names {
 			if err := e.CanDefine(id.Name, id.P); err != nil {
 				r.Err = err
 				return r
+			}
+			for _, prev := range s.Names[:i] {
+				if prev.key() == id.key() {
+					r.Err = Errorf(id.P, "%q is listed twice before \"=\"%s: each name is defined once", id.Name, sameNameNote(id.Name, prev.Name))
+					return r
+				}
 			}
 		}
 		v, err := e.Eval(s.X, r.Trace)
@@ -176,7 +182,7 @@ func (e *Env) Exec(s Stmt) *Result {
 		params := map[string]bool{}
 		var names []string
 		for _, p := range s.Params {
-			if params[p.Name] {
+			if params[p.key()] {
 				r.Err = Errorf(p.P, "parameter %q is listed twice", p.Name)
 				return r
 			}
@@ -184,10 +190,10 @@ func (e *Env) Exec(s Stmt) *Result {
 				r.Err = Errorf(p.P, "parameter %q would hide a built-in: choose another name", p.Name)
 				return r
 			}
-			params[p.Name] = true
+			params[p.key()] = true
 			names = append(names, p.Name)
 		}
-		if err := e.checkBody(s.Body, s.Name.Name, params); err != nil {
+		if err := e.checkBody(s.Body, s.Name, params); err != nil {
 			r.Err = err
 			return r
 		}
@@ -233,7 +239,8 @@ func (e *Env) defineUnavailableAt(names []*Ident, cause Pos) {
 // checkBody makes sure every name in a function body is a parameter, a
 // name defined above, a constant, or a function defined above; a function
 // may not call itself.
-func (e *Env) checkBody(n Node, self string, params map[string]bool) error {
+func (e *Env) checkBody(n Node, selfID *Ident, params map[string]bool) error {
+	self, selfKey := selfID.Name, selfID.key()
 	var err error
 	Walk(n, func(n Node) bool {
 		if err != nil {
@@ -241,27 +248,28 @@ func (e *Env) checkBody(n Node, self string, params map[string]bool) error {
 		}
 		switch n := n.(type) {
 		case *Call:
-			name := n.Fun.Name
-			if name == self {
+			name, key := n.Fun.Name, n.Fun.key()
+			if key == selfKey {
 				err = Errorf(n.Fun.P, "%s cannot call itself", self)
 				return false
 			}
-			if params[name] || e.vars[name] != nil || e.funcs[name] != nil {
+			if params[key] || e.vars[key] != nil || e.funcs[key] != nil {
 				return true
 			}
-			if _, ok := builtins[name]; ok {
+			if _, ok := builtins[key]; ok {
 				return true
 			}
 			err = Errorf(n.Fun.P, "unknown function %q (a function can use only functions defined above it)", name)
 			return false
 		case *Ident:
-			if params[n.Name] || e.vars[n.Name] != nil {
+			key := n.key()
+			if params[key] || e.vars[key] != nil {
 				return true
 			}
-			if _, ok := constants[n.Name]; ok {
+			if _, ok := constants[key]; ok {
 				return true
 			}
-			if n.Name == self {
+			if key == selfKey {
 				err = Errorf(n.P, "%s cannot use itself", self)
 				return false
 			}

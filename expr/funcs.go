@@ -15,10 +15,12 @@ var builtins map[string]builtin
 
 func init() {
 	builtins = map[string]builtin{
+		// re, abs and conj do not pass the angle mark on: only the
+		// operations of the angle rule do (LANGUAGE.md section 3)
 		"re":   {1, 1, elementwise(reScalar)},
 		"im":   {1, 1, elementwise(imScalar)},
 		"abs":  {1, 1, elementwise(absScalar)},
-		"conj": {1, 1, elementwise(func(s Scalar) Scalar { return Scalar{Z: canonZ(cmplx.Conj(s.Z)), Dim: s.Dim, Angle: s.Angle} })},
+		"conj": {1, 1, elementwise(func(s Scalar) Scalar { return Scalar{Z: canonZ(cmplx.Conj(s.Z)), Dim: s.Dim} })},
 		"arg": {1, 1, scalarFn(func(s *Scalar) (Value, error) {
 			if s.Z == 0 {
 				return nil, fmt.Errorf("the angle of zero is undefined")
@@ -145,7 +147,8 @@ func elementwise(f func(Scalar) Scalar) func([]Value) (Value, error) {
 }
 
 // plain wraps a complex function of a dimensionless argument. angle marks
-// the inverse trigonometric functions, whose real results are angles.
+// the inverse trigonometric functions, whose results for a real argument
+// (within their domain, so that the result is real too) are angles.
 func plain(f func(complex128) complex128, angle bool) func([]Value) (Value, error) {
 	return scalarFn(func(s *Scalar) (Value, error) {
 		if !s.Dim.IsZero() {
@@ -156,7 +159,7 @@ func plain(f func(complex128) complex128, angle bool) func([]Value) (Value, erro
 			return nil, fmt.Errorf("the result is not finite for %s", Describe(s))
 		}
 		r := &Scalar{Z: z}
-		r.Angle = angle && r.IsReal()
+		r.Angle = angle && s.IsReal() && r.IsReal()
 		return r, nil
 	})
 }
@@ -215,6 +218,7 @@ func minMax(isMax bool) func([]Value) (Value, error) {
 		r := *best
 		r.Z = complex(real(r.Z), 0)
 		r.Kind = PowerNone // not among the operations that keep a power's kind
+		r.Angle = false // not an operation of the angle rule
 		return &r, nil
 	}
 }

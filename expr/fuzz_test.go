@@ -21,6 +21,11 @@ func FuzzEngine(f *testing.F) {
 		"V_n = 230 V\nZ = (0.12 + j0.08) Ω\nI[kA] = V_n / Z\ncheck |I| <= 6 kA",
 		"a, b, c = seq(1 V, 1 V∠-120°, 1 V∠120°)",
 		"x = (1e200 Ω)^2 / (1 Ω)\ncheck x > 1 Ω\ny = 1e-170 Ω ∥ 3e-170 Ω\nM = inv([1 MΩ, 0; 0, 1 nS])",
+		// the angle rule, names compared by key, the rewritten messages
+		"V = 230 V∠-120\nW = 230 V /_ (pi/6) rad\nP = polar(1, -120)\nf(a) = 1∠a\nf(2)\nf(2°)",
+		"phi = 1\nφ = 2\nV_phi = 1\nV_φ = 2\n\u00b5 = 1\n\u03bc = 2\nf(omega, ω) = 1\nx, χ, chi = [1; 2; 3]",
+		"\u0399_k = 3 A\nV_\u0430 = 1\nI\u3164 = 1\na\u200bb = 2\nZ\ufeff_s = 1\nx = 1 +\u200d 2\nR\u0301 = 1\n\U0001d465 = 1",
+		"I_k [kA] = 3 A\nx = 2Z_s\nA = 16 mm2\nQ = 50 kVAr\ny = ln 0\nz = 2  V\nw = (1)x_1\n2 A [mA]\n√3\n2²",
 	} {
 		f.Add(s)
 	}

@@ -154,13 +154,13 @@ func TestGrammar(t *testing.T) {
 
 // TestTwoSpacesEndTheUnit: LANGUAGE §3, "directly or after one space": a
 // symbol two spaces after a number is a name, and a name right after a
-// number is a missing operator.
+// number is a name, which the message says.
 func TestTwoSpacesEndTheUnit(t *testing.T) {
 	s, errs := parseOne(t, "2  V")
 	if _, bad := s.(*BadStmt); !bad {
 		t.Errorf("got %s, want a bad statement", stmtString(s))
 	}
-	if len(errs) != 1 || errs[0].Pos != (Pos{1, 4}) || !strings.Contains(errs[0].Msg, `unexpected name "V"`) {
+	if len(errs) != 1 || errs[0].Pos != (Pos{1, 4}) || !strings.Contains(errs[0].Msg, `"V" is read as a name here`) {
 		t.Errorf("errors %v, want one at 1:4 about the name V", errs)
 	}
 }

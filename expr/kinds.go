@@ -67,7 +67,7 @@ func sumKind(n *Binary, x, y *Scalar) (PowerKind, error) {
 // reScalar, imScalar and absScalar are re, im and abs of one entry, with
 // the power kind each gives.
 func reScalar(s Scalar) Scalar {
-	return Scalar{Z: complex(real(s.Z), 0), Dim: s.Dim, Angle: s.Angle, Kind: reKind(&s)}
+	return Scalar{Z: complex(real(s.Z), 0), Dim: s.Dim, Kind: reKind(&s)}
 }
 
 func imScalar(s Scalar) Scalar {
@@ -75,5 +75,5 @@ func imScalar(s Scalar) Scalar {
 }
 
 func absScalar(s Scalar) Scalar {
-	return Scalar{Z: complex(cmplx.Abs(s.Z), 0), Dim: s.Dim, Angle: s.Angle, Kind: absKind(&s)}
+	return Scalar{Z: complex(cmplx.Abs(s.Z), 0), Dim: s.Dim, Kind: absKind(&s)}
 }

@@ -313,7 +313,8 @@ func (p *parser) firstComparison() int {
 }
 
 func (p *parser) ident(t Token) *Ident {
-	return &Ident{span: span{p.pos(t.Off), p.pos(t.End)}, Name: t.Text}
+	// the key is computed once here, for every later lookup of the node
+	return &Ident{span: span{p.pos(t.Off), p.pos(t.End)}, Name: t.Text, Key: NameKey(t.Text)}
 }
 
 func (p *parser) assignment(eq int, sp span, d desc) Stmt {
@@ -343,6 +344,9 @@ func (p *parser) assignment(eq int, sp span, d desc) Stmt {
 		disp := p.display(lhs[1])
 		return &Assign{span: sp, desc: d, Names: []*Ident{p.ident(lhs[0])}, Display: disp, X: parseRHS()}
 	case lhs[1].Kind == LBRACK:
+		if lhs[1].SpaceBefore {
+			p.spaceBeforeDisplay(lhs[0], lhs[1])
+		}
 		p.fail(lhs[1].Off, "an unclosed display bracket: write name[unit] = ... with the \"]\" on the same line")
 	case lhs[1].Kind == LPAREN:
 		fd := &FuncDef{span: sp, desc: d, Name: p.ident(lhs[0])}
@@ -458,27 +462,6 @@ func (p *parser) tok() Token {
 		end = p.toks[len(p.toks)-1].End
 	}
 	return Token{Kind: EOF, Off: end, End: end}
-}
-
-func (p *parser) expectEnd() {
-	if p.i < len(p.toks) {
-		t := p.toks[p.i]
-		switch t.Kind {
-		case RPAREN:
-			p.fail(t.Off, "unexpected \")\": no parenthesis is open here")
-		case RBRACK:
-			p.fail(t.Off, "unexpected \"]\": no bracket is open here")
-		case ASSIGN:
-			p.fail(t.Off, "unexpected \"=\" (to compare, use check with ==)")
-		case IDENT, NUMBER, LPAREN:
-			p.fail(t.Off, "unexpected %s %q: an operator is missing before it (write * to multiply)", t.Kind, t.Text)
-		case UNIT:
-			p.fail(t.Off, "unexpected unit %q here", t.Text)
-		case DISPLAY:
-			p.fail(t.Off, "a display bracket [%s] may stand only after the name being defined or at the end of a bare expression", t.Text)
-		}
-		p.fail(t.Off, "unexpected %q", t.Text)
-	}
 }
 
 func (p *parser) enter(off int) {
@@ -712,14 +695,6 @@ func (p *parser) primary() Node {
 	}
 	p.fail(t.Off, "unexpected %q: a value is missing here", t.Text)
 	return nil
-}
-
-func (p *parser) closeErr(open Token, closer string) {
-	t := p.tok()
-	if t.Kind == EOF {
-		p.fail(open.Off, "unclosed %q: add %q", open.Text, closer)
-	}
-	p.fail(t.Off, "expected %q to close the %q at %s, found %q", closer, open.Text, p.pos(open.Off), t.Text)
 }
 
 func (p *parser) call(id *Ident) Node {

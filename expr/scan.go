@@ -1,6 +1,7 @@
 package expr
 
 import (
+	"fmt"
 	"sort"
 	"strconv"
 	"strings"
@@ -258,12 +259,8 @@ func (s *scanner) run() []Token {
 		case r == 'j' && (s.nextIsDigit(s.off+1) || s.byteAt(s.off+1) == '.' && s.nextIsDigit(s.off+2)):
 			s.off++
 			s.scanNumber(start, true, space)
-		case isLetter(r):
-			for isLetter(r) || isDigit(r) || r == '_' {
-				s.off += w
-				r, w = s.peekRune(s.off)
-			}
-			s.emit(Token{Kind: IDENT, Text: s.text[start:s.off], Off: start, End: s.off, SpaceBefore: space})
+		case startsName(r):
+			s.scanName(start, space)
 		default:
 			s.off += w
 			k := ILLEGAL
@@ -348,6 +345,8 @@ func (s *scanner) run() []Token {
 					msg = "invalid UTF-8 in the source"
 				} else if r == '!' {
 					msg = "unexpected \"!\" (write != for \"not equal\")"
+				} else if hint, ok := charHints[r]; ok {
+					msg += " (" + hint + ")"
 				}
 				s.errAt(start, msg)
 			}
@@ -356,6 +355,22 @@ func (s *scanner) run() []Token {
 		}
 	}
 	return s.toks
+}
+
+// charHints name the notation for characters met outside the places
+// where they are read.
+var charHints = map[rune]string{
+	'√': "write sqrt(x) for a square root",
+	'²': "² is read only inside a unit, as in mm²: write ^2 for a power",
+	'³': "³ is read only inside a unit, as in m³: write ^3 for a power",
+	'÷': "write / to divide",
+	'≈': "a check compares with ==, which holds within a relative tolerance of 1e-9",
+	'₀': "a subscript is written with _, as in V_0",
+	'₁': "a subscript is written with _, as in V_1",
+	'₂': "a subscript is written with _, as in V_2",
+	'₃': "a subscript is written with _, as in V_3",
+	'{': "group with parentheses ( )",
+	'}': "group with parentheses ( )",
 }
 
 // displayAllowed reports whether a "[" here opens a display bracket: it
@@ -416,6 +431,39 @@ func (s *scanner) unitAllowed(space bool, start int) bool {
 	return false
 }
 
+// scanName reads a name. A name holding a character that
+// names may not hold (checkName) is reported there and becomes an ILLEGAL
+// token, so that its statement is not evaluated.
+func (s *scanner) scanName(start int, space bool) {
+	ascii := true
+	for s.off < len(s.text) {
+		if c := s.text[s.off]; c < utf8.RuneSelf {
+			if !(isLetter(rune(c)) || isDigit(rune(c)) || c == '_') {
+				break
+			}
+			s.off++
+			continue
+		}
+		r, w := s.peekRune(s.off)
+		if !inName(r) {
+			break
+		}
+		ascii = false
+		s.off += w
+	}
+	text := s.text[start:s.off]
+	t := Token{Kind: IDENT, Text: text, Off: start, End: s.off, SpaceBefore: space}
+	if !ascii {
+		if off, msg := checkName(text); off >= 0 {
+			s.errAt(start+off, msg)
+			t.Kind = ILLEGAL
+			s.emit(t)
+			return
+		}
+	}
+	s.emit(t)
+}
+
 func (s *scanner) scanUnit(start int, space bool) {
 	for s.off < len(s.text) {
 		r, w := s.peekRune(s.off)
@@ -442,7 +490,51 @@ func (s *scanner) scanUnit(start int, space bool) {
 		}
 	}
 done:
+	if c := s.byteAt(s.off); (c == '_' || isDigit(rune(c))) && s.off > start && lastIsLetter(s.text[start:s.off]) {
+		s.unitRunsOn(start, space)
+		return
+	}
 	s.emit(Token{Kind: UNIT, Text: s.text[start:s.off], Off: start, End: s.off, SpaceBefore: space})
+}
+
+func lastIsLetter(s string) bool {
+	r, _ := utf8.DecodeLastRuneInString(s)
+	return isLetter(r)
+}
+
+// unitRunsOn reports a unit followed directly by "_" or a digit: "2Z_s"
+// (a number times a name, which needs *) or "16 mm2" (a power of the unit,
+// written ² or ^2). The whole word becomes one ILLEGAL token.
+func (s *scanner) unitRunsOn(start int, space bool) {
+	unitEnd := s.off
+	for s.off < len(s.text) {
+		r, w := s.peekRune(s.off)
+		if !inName(r) {
+			break
+		}
+		s.off += w
+	}
+	word := s.text[start:s.off]
+	digits := s.text[unitEnd:s.off]
+	before := ")"
+	if p := s.toks[len(s.toks)-1]; p.Kind == NUMBER {
+		before = p.Text
+	}
+	times := before + "*" + word
+	if before == ")" {
+		times = "(...)*" + word
+	}
+	unit := s.text[start:unitEnd]
+	if _, err := ParseUnit(unit); err == nil && (digits == "2" || digits == "3") {
+		sup, power := "²", "squared"
+		if digits == "3" {
+			sup, power = "³", "cubed"
+		}
+		s.errAt(start, fmt.Sprintf("%q is not a unit: write %s%s or %s^%s for %s %s (or %s to multiply by a name %s)", word, unit, sup, unit, digits, unit, power, times, word))
+	} else {
+		s.errAt(start, fmt.Sprintf("%q after a number is read as a unit, and a unit holds no \"_\" or digits: to multiply by the name %s, write %s", word, word, times))
+	}
+	s.emit(Token{Kind: ILLEGAL, Text: word, Off: start, End: s.off, SpaceBefore: space})
 }
 
 func (s *scanner) scanNumber(start int, imag bool, space bool) {

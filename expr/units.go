@@ -452,6 +452,17 @@ func suggestUnits(sym string) []string {
 			cs = append(cs, cand{s, d})
 		}
 	}
+	// a known symbol, with or without a prefix, in the wrong case: "kVAr" is kvar
+	for s, u := range unitTable {
+		if strings.EqualFold(sym, s) && sym != s {
+			cs = append(cs, cand{s, 0})
+		}
+		for _, p := range prefixes {
+			if u.prefixable && strings.EqualFold(sym, p.sym+s) && sym != p.sym+s {
+				cs = append(cs, cand{p.sym + s, 0})
+			}
+		}
+	}
 	// common misspellings
 	switch low {
 	case "ohms", "ohm", "omega":
