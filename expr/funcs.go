@@ -218,7 +218,7 @@ func minMax(isMax bool) func([]Value) (Value, error) {
 		r := *best
 		r.Z = complex(real(r.Z), 0)
 		r.Kind = PowerNone // not among the operations that keep a power's kind
-		r.Angle = false // not an operation of the angle rule
+		r.Angle = false    // not an operation of the angle rule
 		return &r, nil
 	}
 }
