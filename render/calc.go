@@ -49,6 +49,34 @@ func (w *Writer) mathDiv(class, attrs string, body func()) {
 	w.WriteString("</mrow></math></div>")
 }
 
+// mathRow writes a formula or substitution row: prefix (the "name =")
+// and x. A row whose x has top-level terms or factors is written as one
+// <math> per piece in a wrapping container (class "brk"), so that a row
+// too long for the column breaks before a top-level +, − or · and the
+// continuation is indented (style.go); browsers do not break MathML.
+func (w *Writer) mathRow(class, prefix string, m *ExprML, x expr.Node) {
+	pieces := m.Pieces(x)
+	if len(pieces) == 1 {
+		w.mathDiv(class, "", func() {
+			w.WriteString(prefix)
+			w.WriteString(pieces[0])
+		})
+		return
+	}
+	w.WriteString("<div class=\"")
+	w.WriteString(class)
+	w.WriteString(" brk\">")
+	for i, p := range pieces {
+		w.WriteString("<math display=\"inline\"><mrow>")
+		if i == 0 {
+			w.WriteString(prefix)
+		}
+		w.WriteString(p)
+		w.WriteString("</mrow></math>")
+	}
+	w.WriteString("</div>")
+}
+
 func resultAttrs(name string, line int) string {
 	return " data-value=\"" + esc(name) + "\" data-line=\"" + strconv.Itoa(line) + "\""
 }
@@ -117,17 +145,10 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 			lhs = append(lhs, NameML(id.Name))
 		}
 		l := strings.Join(lhs, "<mo>,</mo>")
-		w.mathDiv("f", "", func() {
-			w.WriteString(l)
-			w.WriteString("<mo>=</mo>")
-			f.WriteNode(&w.Buffer, x.X, false)
-		})
+		w.mathRow("f", l+"<mo>=</mo>", f, x.X)
 		if ok && res.Value != nil {
 			if hasNames(x.X) {
-				w.mathDiv("s", "", func() {
-					w.WriteString("<mo>=</mo>")
-					s.WriteNode(&w.Buffer, x.X, false)
-				})
+				w.mathRow("s", "<mo>=</mo>", s, x.X)
 			}
 			if len(x.Names) > 1 {
 				w.Printf("<div class=\"r\" data-value=\"%s\" data-line=\"%d\">%s</div>", esc(joinNames(x.Names)), line, Math("<mo>=</mo>"+ValueML(res.Value, x.Display, w.Digits(), false)))
@@ -187,13 +208,10 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 			w.Printf("<div class=\"s\" data-check=\"%d\">%s%s%s%s</div>", line, Math(strings.Join(parts, "")), verdict, util, tol)
 		}
 	case *expr.ExprStmt:
-		w.mathDiv("f", "", func() { f.WriteNode(&w.Buffer, x.X, false) })
+		w.mathRow("f", "", f, x.X)
 		if ok && res.Value != nil {
 			if hasNames(x.X) {
-				w.mathDiv("s", "", func() {
-					w.WriteString("<mo>=</mo>")
-					s.WriteNode(&w.Buffer, x.X, false)
-				})
+				w.mathRow("s", "<mo>=</mo>", s, x.X)
 			}
 			w.Printf("<div class=\"r\" data-value=\"\" data-line=\"%d\">%s</div>", line, Math("<mo>=</mo>"+ValueML(res.Value, x.Display, w.Digits(), false)))
 		}

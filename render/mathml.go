@@ -132,9 +132,19 @@ func unitML1(u string) string {
 	return "<mspace width=\"0.25em\"/><mi mathvariant=\"normal\">" + esc(unitText(u)) + "</mi>"
 }
 
-// ShownML typesets a shown value. paren wraps a rectangular value with a
-// unit, or a polar one, in parentheses (inside a larger formula).
+// ShownML typesets a shown value. paren wraps a value that is not a
+// single operand (a sum, a polar value, a negative number) in parentheses,
+// for a place inside a larger formula.
 func ShownML(s expr.Shown, paren bool) string {
+	out := shownML(s)
+	if f := shownForm(s); paren && (f.lv < lvPostfix || f.signed) {
+		out = "<mo>(</mo>" + out + "<mo>)</mo>"
+	}
+	return "<mrow>" + out + "</mrow>"
+}
+
+// shownML is the bare MathML of a shown value, without brackets around it.
+func shownML(s expr.Shown) string {
 	var num string
 	switch s.Kind {
 	case expr.ShownReal:
@@ -159,11 +169,48 @@ func ShownML(s expr.Shown, paren bool) string {
 			num = "<mo>(</mo>" + num + "<mo>)</mo>"
 		}
 	}
-	out := num + unitML(s.Unit)
-	if paren && (s.Kind == expr.ShownPolar || s.Kind == expr.ShownRect && (s.A != "" && s.Unit == "" || s.A == "") || s.Kind == expr.ShownReal && strings.HasPrefix(s.A, "-")) {
-		out = "<mo>(</mo>" + out + "<mo>)</mo>"
+	return num + unitML(s.Unit)
+}
+
+// shownForm is the typesetting level of a shown value (see form).
+func shownForm(s expr.Shown) form {
+	sci := func(t string) bool { return strings.ContainsAny(t, "eE") && !strings.Contains(t, "NaN") }
+	unitLv := func(bare int) int {
+		if s.Unit != "" {
+			return lvPostfix
+		}
+		return bare
 	}
-	return "<mrow>" + out + "</mrow>"
+	atom := func(t string) int {
+		if sci(t) {
+			return unitLv(lvSci)
+		}
+		return unitLv(lvAtom)
+	}
+	switch s.Kind {
+	case expr.ShownPolar:
+		if strings.HasPrefix(s.A, "-") {
+			return form{lv: lvUnary, signed: true, after: lvAngle}
+		}
+		return form{lv: lvAngle, after: lvAngle}
+	case expr.ShownRect:
+		if s.A == "" {
+			if strings.HasPrefix(s.B, "-") {
+				return form{lv: lvUnary, signed: true, after: atom(s.B)}
+			}
+			a := atom(s.B)
+			return form{lv: a, after: a}
+		}
+		if s.Unit != "" {
+			return form{lv: lvPostfix, after: lvPostfix}
+		}
+		return form{lv: lvAdd, signed: strings.HasPrefix(s.A, "-"), after: lvAdd}
+	}
+	if strings.HasPrefix(s.A, "-") {
+		return form{lv: lvUnary, signed: true, after: atom(s.A[1:])}
+	}
+	a := atom(s.A)
+	return form{lv: a, after: a}
 }
 
 // ValueML typesets any value: a scalar, or a matrix as a bracketed grid.
@@ -196,6 +243,11 @@ func Math(content string) string {
 
 // ExprML typesets expression trees, either as written (the formula) or with
 // every name replaced by its value (the substitution).
+//
+// Brackets are the typesetter's own: the parentheses written in the source
+// are dropped, and an operand is bracketed exactly where the precedence of
+// LANGUAGE.md section 3 needs it (and where two signs would meet, as in
+// a·(−b)). A fraction's line and a superscript group by themselves.
 type ExprML struct {
 	Subst  bool
 	Trace  *expr.Trace
@@ -207,14 +259,43 @@ type ExprML struct {
 	IsFunc func(name string) bool
 	// cache holds values already typeset on this sheet (a name's value is
 	// shown on every line that uses it).
-	cache map[valueKey]string
+	cache map[valueKey]shownValue
 }
 
 type valueKey struct {
 	v      expr.Value
 	d      *expr.Display
 	digits int
-	paren  bool
+}
+
+// shownValue is a value's MathML, without brackets, and its level.
+type shownValue struct {
+	ml string
+	f  form
+}
+
+// The typesetting levels, loosest first: the operators of LANGUAGE.md
+// section 3, then the forms that enclose themselves. An operand whose
+// typeset form is of a lower level than its place needs is bracketed.
+const (
+	lvCmp     = iota // a < b (check only)
+	lvAdd            // a + b, a − b
+	lvPar            // a ∥ b
+	lvMul            // a · b
+	lvUnary          // −a
+	lvAngle          // a∠b
+	lvPow            // a^b
+	lvPostfix        // a unit, °, the conjugate star, the transpose mark
+	lvSci            // a fraction, a number in powers of ten: grouped, but not a base for a mark
+	lvAtom           // a name, a plain number, a call, |x|, a matrix, a bracketed group
+)
+
+// form is the level of an operand's typeset form. signed: it starts with a
+// sign; after: the level of what follows that sign.
+type form struct {
+	lv     int
+	signed bool
+	after  int
 }
 
 // stringWriter is what typesetting writes into: a strings.Builder or the
@@ -223,21 +304,46 @@ type stringWriter interface {
 	WriteString(s string) (int, error)
 }
 
-// WriteNode typesets n straight into b.
-func (m *ExprML) WriteNode(b stringWriter, n expr.Node, paren bool) { m.write(b, n, paren) }
+// WriteNode typesets n straight into b. paren asks for brackets when n
+// does not stand as a single operand (inside a product, a power, ...).
+func (m *ExprML) WriteNode(b stringWriter, n expr.Node, paren bool) {
+	if paren {
+		m.operand(b, n, lvAngle, true)
+		return
+	}
+	m.write(b, n)
+}
 
-// valueML is ValueML through the sheet's cache.
-func (m *ExprML) valueML(v expr.Value, d *expr.Display, paren bool) string {
-	if m.cache == nil {
-		return ValueML(v, d, m.Digits, paren)
+// value typesets a value through the sheet's cache.
+func (m *ExprML) value(v expr.Value, d *expr.Display) shownValue {
+	k := valueKey{v, d, m.Digits}
+	if m.cache != nil {
+		if s, ok := m.cache[k]; ok {
+			return s
+		}
 	}
-	k := valueKey{v, d, m.Digits, paren}
-	if s, ok := m.cache[k]; ok {
-		return s
+	var s shownValue
+	switch x := v.(type) {
+	case *expr.Scalar:
+		sh := expr.FormatScalar(x, d, m.Digits)
+		s = shownValue{shownML(sh), shownForm(sh)}
+	default:
+		s = shownValue{ValueML(v, d, m.Digits, false), form{lv: lvAtom, after: lvAtom}}
 	}
-	s := ValueML(v, d, m.Digits, paren)
-	m.cache[k] = s
+	if m.cache != nil {
+		m.cache[k] = s
+	}
 	return s
+}
+
+// valueML is a value's MathML, bracketed when paren asks and it is not a
+// single operand.
+func (m *ExprML) valueML(v expr.Value, d *expr.Display, paren bool) string {
+	s := m.value(v, d)
+	if paren && (s.f.lv < lvPostfix || s.f.signed) {
+		return "<mrow><mo>(</mo>" + s.ml + "<mo>)</mo></mrow>"
+	}
+	return "<mrow>" + s.ml + "</mrow>"
 }
 
 var opML = map[expr.Kind]string{
@@ -245,36 +351,183 @@ var opML = map[expr.Kind]string{
 	expr.LT: "&lt;", expr.LE: "≤", expr.GT: "&gt;", expr.GE: "≥", expr.EQ: "=", expr.NE: "≠",
 }
 
-// Node typesets n. paren asks a substituted value to wrap itself when it
-// is complex or negative (it stands inside a product, a power, ...).
+// Node typesets n (see WriteNode).
 func (m *ExprML) Node(n expr.Node, paren bool) string {
 	var b strings.Builder
 	b.Grow(256)
-	m.write(&b, n, paren)
+	m.WriteNode(&b, n, paren)
 	return b.String()
 }
 
-func (m *ExprML) write(b stringWriter, n expr.Node, paren bool) {
+// substituted returns the value shown in place of n on a substitution row.
+func (m *ExprML) substituted(n expr.Node) (shownValue, bool) {
+	if !m.Subst {
+		return shownValue{}, false
+	}
+	switch n := n.(type) {
+	case *expr.Ident:
+		if v, ok := m.Trace.Value(n); ok && !isConstant(n.Name) {
+			var d *expr.Display
+			if m.DisplayOf != nil {
+				d = m.DisplayOf(n.Name)
+			}
+			return m.value(v, d), true
+		}
+	case *expr.Call:
+		if !expr.IsBuiltin(n.Fun.Name) && (m.IsFunc == nil || !m.IsFunc(n.Fun.Name)) {
+			// an entry of a matrix value M(i, j) shows the picked value
+			if v, ok := m.Trace.Value(n); ok {
+				return m.value(v, nil), true
+			}
+		}
+	}
+	return shownValue{}, false
+}
+
+// form returns the level of n's typeset form.
+func (m *ExprML) form(n expr.Node) form {
+	n = unparen(n)
+	if s, ok := m.substituted(n); ok {
+		return s.f
+	}
+	atom := form{lv: lvAtom, after: lvAtom}
+	switch n := n.(type) {
+	case *expr.Number:
+		if strings.ContainsAny(n.Text, "eE") {
+			return form{lv: lvSci, after: lvSci}
+		}
+		return atom
+	case *expr.WithUnit:
+		if a, ok := liftedAngle(n); ok {
+			f := m.form(a)
+			return form{lv: lvAngle, signed: f.signed, after: lvAngle}
+		}
+		return form{lv: lvPostfix, after: lvPostfix}
+	case *expr.Unary:
+		f := m.form(n.X)
+		after := f.lv
+		if f.lv < lvUnary || f.signed {
+			after = lvAtom // the operand is bracketed
+		}
+		return form{lv: lvUnary, signed: true, after: after}
+	case *expr.Binary:
+		lv := map[expr.Kind]int{expr.ADD: lvAdd, expr.SUB: lvAdd, expr.PAR: lvPar, expr.MUL: lvMul, expr.DIV: lvSci, expr.ANGLE: lvAngle, expr.POW: lvPow}[n.Op]
+		signed := false
+		if lv <= lvAngle {
+			// the left operand comes first; it is bracketed when signed
+			// only after a looser operator than its own (never here)
+			l := m.form(n.X)
+			signed = l.signed && l.lv >= m.leftNeed(n.Op)
+		}
+		return form{lv: lv, signed: signed, after: lv}
+	case *expr.Call:
+		if len(n.Args) == 1 && (n.Fun.Name == "conj" || n.Fun.Name == "transpose") {
+			return form{lv: lvPostfix, after: lvPostfix}
+		}
+		return atom
+	case *expr.Compare:
+		return form{lv: lvCmp}
+	}
+	return atom
+}
+
+// leftNeed is the level the left operand of op needs.
+func (m *ExprML) leftNeed(op expr.Kind) int {
+	switch op {
+	case expr.ADD, expr.SUB:
+		return lvAdd
+	case expr.PAR:
+		return lvPar
+	case expr.MUL:
+		return lvMul
+	case expr.ANGLE:
+		return lvAngle
+	}
+	return lvAtom
+}
+
+// rightNeed is the level the right operand of op needs; a sign there is
+// bracketed (a · (−b)) except right of ∠, where a signed power may stand.
+func rightNeed(op expr.Kind) int {
+	switch op {
+	case expr.ADD, expr.SUB:
+		return lvPar
+	case expr.PAR:
+		return lvMul
+	case expr.MUL:
+		return lvUnary
+	}
+	return lvPow
+}
+
+// operand writes n where a form of level need stands, bracketed when its
+// own form is looser, or when it starts with a sign and noSign is set.
+func (m *ExprML) operand(b stringWriter, n expr.Node, need int, noSign bool) {
+	f := m.form(n)
+	if f.lv < need || noSign && f.signed {
+		b.WriteString("<mrow><mo>(</mo>")
+		m.write(b, n)
+		b.WriteString("<mo>)</mo></mrow>")
+		return
+	}
+	m.write(b, n)
+}
+
+// signedOperand writes the right operand of ∠, which may carry one sign
+// before a power (230 V∠−120°).
+func (m *ExprML) signedOperand(b stringWriter, n expr.Node) {
+	f := m.form(n)
+	if f.signed && f.lv == lvUnary && f.after >= lvPow {
+		m.write(b, n)
+		return
+	}
+	m.operand(b, n, lvPow, true)
+}
+
+// liftedAngle reports whether a unit stands after a phasor "m∠a° A" as the
+// parser reads it: the angle's right operand, under its signs, ends with an
+// angle unit, so that the unit may be written after it without brackets.
+func liftedAngle(n *expr.WithUnit) (expr.Node, bool) {
+	if n.Unit.Angle {
+		return nil, false
+	}
+	a, ok := unparen(n.X).(*expr.Binary)
+	if !ok || a.Op != expr.ANGLE {
+		return nil, false
+	}
+	y := unparen(a.Y)
+	for {
+		u, ok := y.(*expr.Unary)
+		if !ok {
+			break
+		}
+		y = unparen(u.X)
+	}
+	if w, ok := y.(*expr.WithUnit); ok && w.Unit.Angle {
+		return a, true
+	}
+	return nil, false
+}
+
+// write typesets n without brackets around it.
+func (m *ExprML) write(b stringWriter, n expr.Node) {
+	n = unparen(n)
+	if s, ok := m.substituted(n); ok {
+		b.WriteString("<mrow>")
+		b.WriteString(s.ml)
+		b.WriteString("</mrow>")
+		return
+	}
 	switch n := n.(type) {
 	case *expr.Number:
 		if n.Imag {
-			b.WriteString("<mi>j</mi><mn>")
-			b.WriteString(esc(strings.TrimPrefix(n.Text, "j")))
-			b.WriteString("</mn>")
+			b.WriteString("<mrow><mi>j</mi>")
+			b.WriteString(numLiteral(strings.TrimPrefix(n.Text, "j")))
+			b.WriteString("</mrow>")
 			return
 		}
 		b.WriteString(numLiteral(n.Text))
 	case *expr.Ident:
-		if m.Subst {
-			if v, ok := m.Trace.Value(n); ok && !isConstant(n.Name) {
-				var d *expr.Display
-				if m.DisplayOf != nil {
-					d = m.DisplayOf(n.Name)
-				}
-				b.WriteString(m.valueML(v, d, paren))
-				return
-			}
-		}
 		if n.Name == "pi" {
 			b.WriteString("<mi>π</mi>")
 			return
@@ -282,7 +535,11 @@ func (m *ExprML) write(b stringWriter, n expr.Node, paren bool) {
 		b.WriteString(NameML(n.Name))
 	case *expr.WithUnit:
 		b.WriteString("<mrow>")
-		m.write(b, n.X, true)
+		if a, ok := liftedAngle(n); ok {
+			m.write(b, a)
+		} else {
+			m.operand(b, n.X, lvSci, true)
+		}
 		b.WriteString(unitML(n.Unit.Text))
 		b.WriteString("</mrow>")
 	case *expr.Unary:
@@ -291,47 +548,49 @@ func (m *ExprML) write(b stringWriter, n expr.Node, paren bool) {
 		} else {
 			b.WriteString("<mrow><mo>−</mo>")
 		}
-		m.write(b, n.X, true)
+		m.operand(b, n.X, lvUnary, true)
 		b.WriteString("</mrow>")
-	case *expr.Paren:
-		b.WriteString("<mrow><mo>(</mo>")
-		m.write(b, n.X, false)
-		b.WriteString("<mo>)</mo></mrow>")
 	case *expr.Abs:
 		b.WriteString("<mrow><mo>|</mo>")
-		m.write(b, n.X, false)
+		m.write(b, n.X)
 		b.WriteString("<mo>|</mo></mrow>")
 	case *expr.Binary:
 		switch n.Op {
 		case expr.DIV:
-			b.WriteString("<mfrac>")
-			m.write(b, unparen(n.X), false)
-			m.write(b, unparen(n.Y), false)
-			b.WriteString("</mfrac>")
+			b.WriteString("<mfrac><mrow>")
+			m.write(b, n.X)
+			b.WriteString("</mrow><mrow>")
+			m.write(b, n.Y)
+			b.WriteString("</mrow></mfrac>")
 			return
 		case expr.POW:
 			b.WriteString("<msup>")
-			m.write(b, n.X, true)
-			m.write(b, unparen(n.Y), false)
-			b.WriteString("</msup>")
+			m.operand(b, n.X, lvAtom, true)
+			b.WriteString("<mrow>")
+			m.write(b, n.Y)
+			b.WriteString("</mrow></msup>")
 			return
 		}
 		b.WriteString("<mrow>")
-		m.write(b, n.X, n.Op != expr.ADD && n.Op != expr.SUB)
+		m.operand(b, n.X, m.leftNeed(n.Op), false)
 		b.WriteString("<mo>")
 		b.WriteString(opML[n.Op])
 		b.WriteString("</mo>")
-		m.write(b, n.Y, true)
+		if n.Op == expr.ANGLE {
+			m.signedOperand(b, n.Y)
+		} else {
+			m.operand(b, n.Y, rightNeed(n.Op), true)
+		}
 		b.WriteString("</mrow>")
 	case *expr.Call:
-		m.call(b, n, paren)
+		m.call(b, n)
 	case *expr.MatrixLit:
 		b.WriteString("<mrow><mo>[</mo><mtable>")
 		for _, row := range n.Rows {
 			b.WriteString("<mtr>")
 			for _, e := range row {
 				b.WriteString("<mtd>")
-				m.write(b, e, false)
+				m.write(b, e)
 				b.WriteString("</mtd>")
 			}
 			b.WriteString("</mtr>")
@@ -345,7 +604,7 @@ func (m *ExprML) write(b stringWriter, n expr.Node, paren bool) {
 				b.WriteString(opML[n.Ops[i-1]])
 				b.WriteString("</mo>")
 			}
-			m.write(b, x, false)
+			m.write(b, x)
 		}
 		b.WriteString("</mrow>")
 	default:
@@ -353,13 +612,64 @@ func (m *ExprML) write(b stringWriter, n expr.Node, paren bool) {
 	}
 }
 
+// Pieces typesets n as the pieces a long row may break between: its
+// top-level terms, each after its + or −, and the factors of a term, each
+// after its ·. Joined, the pieces are n's MathML.
+func (m *ExprML) Pieces(n expr.Node) []string {
+	var out []string
+	var cur strings.Builder
+	cut := func() {
+		out = append(out, cur.String())
+		cur.Reset()
+	}
+	// factors of a term that stands unbracketed at level need
+	var factors func(n expr.Node, need int, noSign bool)
+	factors = func(n expr.Node, need int, noSign bool) {
+		f := m.form(n)
+		bin, isBin := unparen(n).(*expr.Binary)
+		if f.lv < need || noSign && f.signed || !isBin || bin.Op != expr.MUL {
+			m.operand(&cur, n, need, noSign)
+			return
+		}
+		if _, subst := m.substituted(unparen(n)); subst {
+			m.operand(&cur, n, need, noSign)
+			return
+		}
+		factors(bin.X, lvMul, false)
+		cut()
+		cur.WriteString("<mo form=\"infix\">·</mo>")
+		m.operand(&cur, bin.Y, lvUnary, true)
+	}
+	var terms func(n expr.Node)
+	terms = func(n expr.Node) {
+		bin, isBin := unparen(n).(*expr.Binary)
+		_, subst := m.substituted(unparen(n))
+		if !isBin || subst || bin.Op != expr.ADD && bin.Op != expr.SUB {
+			factors(n, lvAdd, false)
+			return
+		}
+		terms(bin.X)
+		cut()
+		cur.WriteString("<mo form=\"infix\">")
+		cur.WriteString(opML[bin.Op])
+		cur.WriteString("</mo>")
+		factors(bin.Y, lvPar, true)
+	}
+	terms(n)
+	cut()
+	return out
+}
+
 func isConstant(name string) bool { return name == "pi" || name == "π" || name == "j" }
 
 func unparen(n expr.Node) expr.Node {
-	if p, ok := n.(*expr.Paren); ok {
-		return p.X
+	for {
+		p, ok := n.(*expr.Paren)
+		if !ok {
+			return n
+		}
+		n = p.X
 	}
-	return n
 }
 
 func numLiteral(text string) string {
@@ -371,34 +681,28 @@ func numLiteral(text string) string {
 	return "<mn>" + esc(text) + "</mn>"
 }
 
-func (m *ExprML) call(b stringWriter, n *expr.Call, paren bool) {
-	switch n.Fun.Name {
-	case "sqrt":
-		if len(n.Args) == 1 {
+func (m *ExprML) call(b stringWriter, n *expr.Call) {
+	if len(n.Args) == 1 {
+		switch n.Fun.Name {
+		case "sqrt":
 			b.WriteString("<msqrt>")
-			m.write(b, n.Args[0], false)
+			m.write(b, n.Args[0])
 			b.WriteString("</msqrt>")
 			return
-		}
-	case "conj":
-		if len(n.Args) == 1 {
+		case "conj", "transpose":
+			// a postfix mark: the conjugate star, the transpose T
 			b.WriteString("<msup>")
-			m.write(b, n.Args[0], true)
-			b.WriteString("<mo>*</mo></msup>")
+			m.operand(b, n.Args[0], lvAtom, true)
+			if n.Fun.Name == "conj" {
+				b.WriteString("<mo>*</mo></msup>")
+			} else {
+				b.WriteString("<mi mathvariant=\"normal\">T</mi></msup>")
+			}
 			return
-		}
-	case "abs":
-		if len(n.Args) == 1 {
+		case "abs":
 			b.WriteString("<mrow><mo>|</mo>")
-			m.write(b, n.Args[0], false)
+			m.write(b, n.Args[0])
 			b.WriteString("<mo>|</mo></mrow>")
-			return
-		}
-	}
-	if m.Subst && !expr.IsBuiltin(n.Fun.Name) && (m.IsFunc == nil || !m.IsFunc(n.Fun.Name)) {
-		// an entry of a matrix value M(i, j) shows the picked value
-		if v, ok := m.Trace.Value(n); ok {
-			b.WriteString(m.valueML(v, nil, paren))
 			return
 		}
 	}
@@ -416,7 +720,7 @@ func (m *ExprML) call(b stringWriter, n *expr.Call, paren bool) {
 		if i > 0 {
 			b.WriteString("<mo>,</mo>")
 		}
-		m.write(b, a, false)
+		m.write(b, a)
 	}
 	b.WriteString("<mo>)</mo></mrow>")
 }
