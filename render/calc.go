@@ -174,7 +174,7 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 		for _, p := range x.Params {
 			ps = append(ps, NameML(p.Name))
 		}
-		head := "<mi>" + esc(x.Name.Name) + "</mi>"
+		head := "<mi>" + esc(greekOf(x.Name.Name)) + "</mi>"
 		if len([]rune(x.Name.Name)) == 1 || strings.Contains(x.Name.Name, "_") {
 			head = NameML(x.Name.Name)
 		}

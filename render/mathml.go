@@ -53,8 +53,12 @@ const maxCached = 50000
 
 func nameML(name string) string {
 	base, sub, hasSub := strings.Cut(name, "_")
+	if hasSub && sub == "" {
+		// a name ending in "_" is another name than the one without it
+		return "<mi>" + esc(greekOf(base)) + "_</mi>"
+	}
 	b := "<mi>" + esc(greekOf(base)) + "</mi>"
-	if !hasSub || sub == "" {
+	if !hasSub {
 		return b
 	}
 	parts := strings.Split(sub, "_")
@@ -68,7 +72,10 @@ func nameML(name string) string {
 func NameHTML(name string) string {
 	base, sub, hasSub := strings.Cut(name, "_")
 	b := esc(greekOf(base))
-	if !hasSub || sub == "" {
+	if hasSub && sub == "" {
+		return "<var>" + b + "_</var>"
+	}
+	if !hasSub {
 		return "<var>" + b + "</var>"
 	}
 	parts := strings.Split(sub, "_")
@@ -476,6 +483,11 @@ func (m *ExprML) operand(b stringWriter, n expr.Node, need int, noSign bool) {
 // signedOperand writes the right operand of ∠, which may carry one sign
 // before a power (230 V∠−120°).
 func (m *ExprML) signedOperand(b stringWriter, n expr.Node) {
+	if unitAfterAngleUnit(n) {
+		// a∠(3° A): without brackets the unit would be the phasor's
+		m.operand(b, n, lvAtom, true)
+		return
+	}
 	f := m.form(n)
 	if f.signed && f.lv == lvUnary && f.after >= lvPow {
 		m.write(b, n)
@@ -509,6 +521,26 @@ func liftedAngle(n *expr.WithUnit) (expr.Node, bool) {
 	return nil, false
 }
 
+// unitAfterAngleUnit reports whether n, under its signs, is a unit after
+// an angle unit (3° A), which right of ∠ the parser would read as the
+// phasor's unit.
+func unitAfterAngleUnit(n expr.Node) bool {
+	n = unparen(n)
+	for {
+		u, ok := n.(*expr.Unary)
+		if !ok {
+			break
+		}
+		n = unparen(u.X)
+	}
+	w, ok := n.(*expr.WithUnit)
+	if !ok || w.Unit.Angle {
+		return false
+	}
+	in, ok := unparen(w.X).(*expr.WithUnit)
+	return ok && in.Unit.Angle
+}
+
 // write typesets n without brackets around it.
 func (m *ExprML) write(b stringWriter, n expr.Node) {
 	n = unparen(n)
@@ -538,7 +570,7 @@ func (m *ExprML) write(b stringWriter, n expr.Node) {
 		if a, ok := liftedAngle(n); ok {
 			m.write(b, a)
 		} else {
-			m.operand(b, n.X, lvSci, true)
+			m.operand(b, n.X, lvPow, true)
 		}
 		b.WriteString(unitML(n.Unit.Text))
 		b.WriteString("</mrow>")
@@ -712,7 +744,7 @@ func (m *ExprML) call(b stringWriter, n *expr.Call) {
 		b.WriteString(NameML(name))
 	} else {
 		b.WriteString("<mi>")
-		b.WriteString(esc(name))
+		b.WriteString(esc(greekOf(name)))
 		b.WriteString("</mi>")
 	}
 	b.WriteString("<mo>(</mo>")
