@@ -51,28 +51,33 @@ func (w *Writer) mathDiv(class, attrs string, body func()) {
 
 // mathRow writes a formula or substitution row: prefix (the "name =")
 // and x. A row whose x has top-level terms or factors is written as one
-// <math> per piece in a wrapping container (class "brk"), so that a row
-// too long for the column breaks before a top-level +, − or · and the
-// continuation is indented (style.go); browsers do not break MathML.
+// <math> per piece, factors grouped by term, in wrapping containers (class
+// "brk"): a row too long for the column breaks before a top-level + or −,
+// a term too long for a line before its ·, and the continuation is
+// indented (style.go). Browsers do not break MathML by themselves.
 func (w *Writer) mathRow(class, prefix string, m *ExprML, x expr.Node) {
-	pieces := m.Pieces(x)
-	if len(pieces) == 1 {
+	terms := m.Pieces(x)
+	if len(terms) == 1 && len(terms[0]) == 1 {
 		w.mathDiv(class, "", func() {
 			w.WriteString(prefix)
-			w.WriteString(pieces[0])
+			w.WriteString(terms[0][0])
 		})
 		return
 	}
 	w.WriteString("<div class=\"")
 	w.WriteString(class)
 	w.WriteString(" brk\">")
-	for i, p := range pieces {
-		w.WriteString("<math display=\"inline\"><mrow>")
-		if i == 0 {
-			w.WriteString(prefix)
+	for i, t := range terms {
+		w.WriteString("<span>")
+		for j, p := range t {
+			w.WriteString("<math display=\"inline\"><mrow>")
+			if i == 0 && j == 0 {
+				w.WriteString(prefix)
+			}
+			w.WriteString(p)
+			w.WriteString("</mrow></math>")
 		}
-		w.WriteString(p)
-		w.WriteString("</mrow></math>")
+		w.WriteString("</span>")
 	}
 	w.WriteString("</div>")
 }

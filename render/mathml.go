@@ -645,13 +645,14 @@ func (m *ExprML) write(b stringWriter, n expr.Node) {
 }
 
 // Pieces typesets n as the pieces a long row may break between: its
-// top-level terms, each after its + or −, and the factors of a term, each
-// after its ·. Joined, the pieces are n's MathML.
-func (m *ExprML) Pieces(n expr.Node) []string {
-	var out []string
+// top-level terms, each after its + or −, and within each term its
+// factors, each after its ·. Joined in order, the pieces are n's MathML.
+func (m *ExprML) Pieces(n expr.Node) [][]string {
+	var out [][]string
+	var term []string
 	var cur strings.Builder
 	cut := func() {
-		out = append(out, cur.String())
+		term = append(term, cur.String())
 		cur.Reset()
 	}
 	// factors of a term that stands unbracketed at level need
@@ -659,11 +660,8 @@ func (m *ExprML) Pieces(n expr.Node) []string {
 	factors = func(n expr.Node, need int, noSign bool) {
 		f := m.form(n)
 		bin, isBin := unparen(n).(*expr.Binary)
-		if f.lv < need || noSign && f.signed || !isBin || bin.Op != expr.MUL {
-			m.operand(&cur, n, need, noSign)
-			return
-		}
-		if _, subst := m.substituted(unparen(n)); subst {
+		_, subst := m.substituted(unparen(n))
+		if f.lv < need || noSign && f.signed || !isBin || subst || bin.Op != expr.MUL {
 			m.operand(&cur, n, need, noSign)
 			return
 		}
@@ -682,6 +680,8 @@ func (m *ExprML) Pieces(n expr.Node) []string {
 		}
 		terms(bin.X)
 		cut()
+		out = append(out, term)
+		term = nil
 		cur.WriteString("<mo form=\"infix\">")
 		cur.WriteString(opML[bin.Op])
 		cur.WriteString("</mo>")
@@ -689,7 +689,7 @@ func (m *ExprML) Pieces(n expr.Node) []string {
 	}
 	terms(n)
 	cut()
-	return out
+	return append(out, term)
 }
 
 func isConstant(name string) bool { return name == "pi" || name == "π" || name == "j" }
