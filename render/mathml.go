@@ -297,8 +297,9 @@ const (
 	lvAtom           // a name, a plain number, a call, |x|, a matrix, a bracketed group
 )
 
-// form is the level of an operand's typeset form. signed: it starts with a
-// sign; after: the level of what follows that sign.
+// form is the level of an operand's typeset form. signed: it is a sign or
+// a negative value (see leadSign for the rest); after: the level of what
+// follows that sign.
 type form struct {
 	lv     int
 	signed bool
@@ -405,28 +406,19 @@ func (m *ExprML) form(n expr.Node) form {
 		}
 		return atom
 	case *expr.WithUnit:
-		if a, ok := liftedAngle(n); ok {
-			f := m.form(a)
-			return form{lv: lvAngle, signed: f.signed, after: lvAngle}
+		if _, ok := liftedAngle(n); ok {
+			return form{lv: lvAngle, after: lvAngle}
 		}
 		return form{lv: lvPostfix, after: lvPostfix}
 	case *expr.Unary:
-		f := m.form(n.X)
-		after := f.lv
-		if f.lv < lvUnary || f.signed {
+		after := m.form(n.X).lv
+		if after < lvUnary || m.leadSign(n.X) {
 			after = lvAtom // the operand is bracketed
 		}
 		return form{lv: lvUnary, signed: true, after: after}
 	case *expr.Binary:
-		lv := map[expr.Kind]int{expr.ADD: lvAdd, expr.SUB: lvAdd, expr.PAR: lvPar, expr.MUL: lvMul, expr.DIV: lvSci, expr.ANGLE: lvAngle, expr.POW: lvPow}[n.Op]
-		signed := false
-		if lv <= lvAngle {
-			// the left operand comes first; it is bracketed when signed
-			// only after a looser operator than its own (never here)
-			l := m.form(n.X)
-			signed = l.signed && l.lv >= m.leftNeed(n.Op)
-		}
-		return form{lv: lv, signed: signed, after: lv}
+		lv := binLevel(n.Op)
+		return form{lv: lv, after: lv}
 	case *expr.Call:
 		if len(n.Args) == 1 && (n.Fun.Name == "conj" || n.Fun.Name == "transpose") {
 			return form{lv: lvPostfix, after: lvPostfix}
@@ -436,6 +428,52 @@ func (m *ExprML) form(n expr.Node) form {
 		return form{lv: lvCmp}
 	}
 	return atom
+}
+
+func binLevel(op expr.Kind) int {
+	switch op {
+	case expr.ADD, expr.SUB:
+		return lvAdd
+	case expr.PAR:
+		return lvPar
+	case expr.MUL:
+		return lvMul
+	case expr.ANGLE:
+		return lvAngle
+	case expr.POW:
+		return lvPow
+	}
+	return lvSci // DIV: a fraction
+}
+
+// leadSign reports whether n's typeset form starts with a sign: a sign,
+// a negative value, or an operation whose unbracketed left operand does.
+// (Form leaves this out for operations, so that typesetting a long chain
+// stays linear: only a place that refuses a sign asks.)
+func (m *ExprML) leadSign(n expr.Node) bool {
+	for {
+		n = unparen(n)
+		if s, ok := m.substituted(n); ok {
+			return s.f.signed
+		}
+		switch x := n.(type) {
+		case *expr.Unary:
+			return true
+		case *expr.WithUnit:
+			a, ok := liftedAngle(x)
+			if !ok {
+				return false
+			}
+			n = a
+		case *expr.Binary:
+			if binLevel(x.Op) > lvAngle || m.form(x.X).lv < m.leftNeed(x.Op) {
+				return false // a power's base, a fraction, a bracketed left operand
+			}
+			n = x.X
+		default:
+			return false
+		}
+	}
 }
 
 // leftNeed is the level the left operand of op needs.
@@ -471,7 +509,7 @@ func rightNeed(op expr.Kind) int {
 // own form is looser, or when it starts with a sign and noSign is set.
 func (m *ExprML) operand(b stringWriter, n expr.Node, need int, noSign bool) {
 	f := m.form(n)
-	if f.lv < need || noSign && f.signed {
+	if f.lv < need || noSign && m.leadSign(n) {
 		b.WriteString("<mrow><mo>(</mo>")
 		m.write(b, n)
 		b.WriteString("<mo>)</mo></mrow>")
@@ -661,7 +699,7 @@ func (m *ExprML) Pieces(n expr.Node) [][]string {
 		f := m.form(n)
 		bin, isBin := unparen(n).(*expr.Binary)
 		_, subst := m.substituted(unparen(n))
-		if f.lv < need || noSign && f.signed || !isBin || subst || bin.Op != expr.MUL {
+		if f.lv < need || noSign && m.leadSign(n) || !isBin || subst || bin.Op != expr.MUL {
 			m.operand(&cur, n, need, noSign)
 			return
 		}

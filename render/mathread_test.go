@@ -104,6 +104,9 @@ type mlTok struct {
 	mark string
 	x    expr.Node
 	rows [][]expr.Node
+	// parts holds the tokens of what a fraction, root, exponent or table
+	// holds, read on their own
+	parts [][]mlTok
 }
 
 // flatten turns an element and its children into the tokens a reader sees.
@@ -134,21 +137,21 @@ func flatten(n *mlNode) ([]mlTok, error) {
 		if len(n.kids) != 2 {
 			return nil, fmt.Errorf("mfrac with %d parts", len(n.kids))
 		}
-		num, err := readExpr(n.kids[0])
+		num, nt, err := readExprToks(n.kids[0])
 		if err != nil {
 			return nil, err
 		}
-		den, err := readExpr(n.kids[1])
+		den, dt, err := readExprToks(n.kids[1])
 		if err != nil {
 			return nil, err
 		}
-		return []mlTok{{kind: tFrac, x: &expr.Binary{Op: expr.DIV, X: num, Y: den}}}, nil
+		return []mlTok{{kind: tFrac, x: &expr.Binary{Op: expr.DIV, X: num, Y: den}, parts: [][]mlTok{nt, dt}}}, nil
 	case "msqrt":
-		x, err := readExpr(&mlNode{name: "mrow", kids: n.kids})
+		x, xt, err := readExprToks(&mlNode{name: "mrow", kids: n.kids})
 		if err != nil {
 			return nil, err
 		}
-		return []mlTok{{kind: tSqrt, x: &expr.Call{Fun: &expr.Ident{Name: "sqrt"}, Args: []expr.Node{x}}}}, nil
+		return []mlTok{{kind: tSqrt, x: &expr.Call{Fun: &expr.Ident{Name: "sqrt"}, Args: []expr.Node{x}}, parts: [][]mlTok{xt}}}, nil
 	case "msup":
 		if len(n.kids) != 2 {
 			return nil, fmt.Errorf("msup with %d parts", len(n.kids))
@@ -164,25 +167,27 @@ func flatten(n *mlNode) ([]mlTok, error) {
 		case s.name == "mi" && s.text == "T" && s.attrs["mathvariant"] == "normal":
 			return append(base, mlTok{kind: tSup, mark: "T"}), nil
 		}
-		e, err := readExpr(s)
+		e, et, err := readExprToks(s)
 		if err != nil {
 			return nil, err
 		}
-		return append(base, mlTok{kind: tSup, x: e}), nil
+		return append(base, mlTok{kind: tSup, x: e, parts: [][]mlTok{et}}), nil
 	case "mtable":
 		var rows [][]expr.Node
+		var parts [][]mlTok
 		for _, tr := range n.kids {
 			var row []expr.Node
 			for _, td := range tr.kids {
-				x, err := readExpr(td)
+				x, xt, err := readExprToks(td)
 				if err != nil {
 					return nil, err
 				}
 				row = append(row, x)
+				parts = append(parts, xt)
 			}
 			rows = append(rows, row)
 		}
-		return []mlTok{{kind: tMatrix, rows: rows}}, nil
+		return []mlTok{{kind: tMatrix, rows: rows, parts: parts}}, nil
 	}
 	return nil, fmt.Errorf("unexpected <%s>", n.name)
 }
@@ -232,11 +237,18 @@ func numTok(text, exp string) ([]mlTok, error) {
 	return append(out, mlTok{kind: tNum, val: v, sci: exp != "", text: s}), nil
 }
 
-func readExpr(n *mlNode) (expr.Node, error) {
+// readExprToks reads an element as one expression, and returns its
+// tokens too.
+func readExprToks(n *mlNode) (expr.Node, []mlTok, error) {
 	toks, err := flatten(n)
 	if err != nil {
-		return nil, err
+		return nil, nil, err
 	}
+	x, err := parseToks(toks)
+	return x, toks, err
+}
+
+func parseToks(toks []mlTok) (expr.Node, error) {
 	p := &mlParser{toks: toks}
 	return p.run(func() expr.Node { return p.add() })
 }

@@ -118,16 +118,39 @@ func checkFormulaRow(t testing.TB, s *calcdoc.Stmt, row string) {
 }
 
 // checkMinimalBrackets removes each pair of brackets of the formula row in
-// turn (outside calls): the row must then read differently, or not at
-// all, unless the bracket holds a signed operand.
+// turn (outside calls), in the row and in every fraction, root, exponent
+// and table cell: what is read must then change, or not be readable,
+// unless the bracket holds a signed operand.
 func checkMinimalBrackets(t testing.TB, s *calcdoc.Stmt, fml string) {
 	t.Helper()
 	toks, err := readRow(fml)
 	if err != nil {
 		return
 	}
-	want := stmtCanon(s.Stmt)
+	read := func(ts []mlTok) (string, error) { return readToks(s.Stmt, ts) }
+	for _, where := range redundantBrackets(toks, read) {
+		t.Errorf("%q: a bracket that precedence does not need (%s)\n  MathML: %s", s.Text, where, fml)
+	}
+}
+
+// redundantBrackets lists the bracket pairs of toks (and of the parts
+// within them) that can be removed without changing what read gives.
+func redundantBrackets(toks []mlTok, read func([]mlTok) (string, error)) []string {
+	var out []string
+	want, err := read(toks)
+	if err != nil {
+		return []string{"unreadable: " + err.Error()}
+	}
 	for i, tk := range toks {
+		for _, part := range tk.parts {
+			out = append(out, redundantBrackets(part, func(ts []mlTok) (string, error) {
+				x, err := parseToks(ts)
+				if err != nil {
+					return "", err
+				}
+				return canon(x), nil
+			})...)
+		}
 		if tk.kind != tOp || tk.text != "(" || i > 0 && toks[i-1].kind == tName {
 			continue
 		}
@@ -144,8 +167,7 @@ func checkMinimalBrackets(t testing.TB, s *calcdoc.Stmt, fml string) {
 			}
 		}
 		if j == len(toks) {
-			t.Errorf("%q: unbalanced brackets", s.Text)
-			return
+			return append(out, "unbalanced brackets")
 		}
 		if i+1 < j && toks[i+1].kind == tOp && (toks[i+1].text == "−" || toks[i+1].text == "+") {
 			continue // a·(−b): no two signs in a row
@@ -154,10 +176,11 @@ func checkMinimalBrackets(t testing.TB, s *calcdoc.Stmt, fml string) {
 		less = append(less, toks[:i]...)
 		less = append(less, toks[i+1:j]...)
 		less = append(less, toks[j+1:]...)
-		if got, err := readToks(s.Stmt, less); err == nil && got == want {
-			t.Errorf("%q: a bracket that precedence does not need (tokens %d..%d)\n  MathML: %s", s.Text, i, j, fml)
+		if got, err := read(less); err == nil && got == want {
+			out = append(out, fmt.Sprintf("tokens %d..%d of %d", i, j, len(toks)))
 		}
 	}
+	return out
 }
 
 // readToks is readStmtRow on tokens already read.
