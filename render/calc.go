@@ -56,12 +56,17 @@ func (w *Writer) mathDiv(class, attrs string, body func()) {
 // a term too long for a line before its ·, and the continuation is
 // indented (style.go). Browsers do not break MathML by themselves.
 func (w *Writer) mathRow(class, prefix string, m *ExprML, x expr.Node) {
+	w.mathRowTail(class, prefix, m, x, "")
+}
+
+// mathRowTail is mathRow with HTML written after the formula (a tag).
+func (w *Writer) mathRowTail(class, prefix string, m *ExprML, x expr.Node, tail string) {
 	terms := m.Pieces(x)
 	if len(terms) == 1 && len(terms[0]) == 1 {
-		w.mathDiv(class, "", func() {
-			w.WriteString(prefix)
-			w.WriteString(terms[0][0])
-		})
+		w.WriteString("<div class=\"" + class + "\"><math display=\"inline\"><mrow>")
+		w.WriteString(prefix)
+		w.WriteString(terms[0][0])
+		w.WriteString("</mrow></math>" + tail + "</div>")
 		return
 	}
 	w.WriteString("<div class=\"")
@@ -79,6 +84,7 @@ func (w *Writer) mathRow(class, prefix string, m *ExprML, x expr.Node) {
 		}
 		w.WriteString("</span>")
 	}
+	w.WriteString(tail)
 	w.WriteString("</div>")
 }
 
@@ -183,7 +189,7 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 		if len([]rune(x.Name.Name)) == 1 || strings.Contains(x.Name.Name, "_") {
 			head = NameML(x.Name.Name)
 		}
-		w.Printf("<div class=\"f\">%s<span class=\"kindtag\">function</span></div>", Math(head+"<mo>(</mo>"+strings.Join(ps, "<mo>,</mo>")+"<mo>)</mo><mo>=</mo>"+f.Node(x.Body, false)))
+		w.mathRowTail("f", head+"<mo>(</mo>"+strings.Join(ps, "<mo>,</mo>")+"<mo>)</mo><mo>=</mo>", f, x.Body, "<span class=\"kindtag\">function</span>")
 	case *expr.Check:
 		w.Printf("<div class=\"f\"><span class=\"kindtag\">check</span> %s</div>", Math(f.Node(x.Cmp, false)))
 		if ok && res.Check != nil {
