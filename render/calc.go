@@ -62,9 +62,33 @@ func (w *Writer) mathRow(class, prefix string, m *ExprML, x expr.Node) {
 // mathRowTail is mathRow with HTML written after the formula (a tag).
 func (w *Writer) mathRowTail(class, prefix string, m *ExprML, x expr.Node, tail string) {
 	terms := m.Pieces(x)
+	if len(terms) > 0 && len(terms[0]) > 0 {
+		terms[0][0] = prefix + terms[0][0]
+	}
+	w.pieceRow(class, "", terms, tail)
+}
+
+// checkRow writes a check's formula: the chain's sides, each in its
+// pieces, a side after its comparison.
+func (w *Writer) checkRow(m *ExprML, c *expr.Compare) {
+	var terms [][]string
+	for i, x := range c.X {
+		ts := m.Pieces(x)
+		if i > 0 && len(ts) > 0 && len(ts[0]) > 0 {
+			ts[0][0] = "<mo>" + opML[c.Ops[i-1]] + "</mo>" + ts[0][0]
+		}
+		terms = append(terms, ts...)
+	}
+	w.pieceRow("f", "<span class=\"kindtag\">check</span> ", terms, "")
+}
+
+// pieceRow writes terms (each a list of pieces of MathML) as one <math>,
+// or, when there are several pieces, as one <math> per piece, later terms
+// each in a box, in the wrapping container: a row breaks before a + or −,
+// and inside a term before a · only when the term is longer than a line.
+func (w *Writer) pieceRow(class, head string, terms [][]string, tail string) {
 	if len(terms) == 1 && len(terms[0]) == 1 {
-		w.WriteString("<div class=\"" + class + "\"><math display=\"inline\"><mrow>")
-		w.WriteString(prefix)
+		w.WriteString("<div class=\"" + class + "\">" + head + "<math display=\"inline\"><mrow>")
 		w.WriteString(terms[0][0])
 		w.WriteString("</mrow></math>" + tail + "</div>")
 		return
@@ -72,17 +96,22 @@ func (w *Writer) mathRowTail(class, prefix string, m *ExprML, x expr.Node, tail 
 	w.WriteString("<div class=\"")
 	w.WriteString(class)
 	w.WriteString(" brk\">")
+	w.WriteString(head)
 	for i, t := range terms {
-		w.WriteString("<span>")
-		for j, p := range t {
+		// the first term's factors stand in the row itself; each later
+		// term is a box of its own, so that a line breaks between terms
+		// before it breaks inside one
+		if i > 0 {
+			w.WriteString("<span class=\"t\">")
+		}
+		for _, p := range t {
 			w.WriteString("<math display=\"inline\"><mrow>")
-			if i == 0 && j == 0 {
-				w.WriteString(prefix)
-			}
 			w.WriteString(p)
 			w.WriteString("</mrow></math>")
 		}
-		w.WriteString("</span>")
+		if i > 0 {
+			w.WriteString("</span>")
+		}
 	}
 	w.WriteString(tail)
 	w.WriteString("</div>")
@@ -191,7 +220,7 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 		}
 		w.mathRowTail("f", head+"<mo>(</mo>"+strings.Join(ps, "<mo>,</mo>")+"<mo>)</mo><mo>=</mo>", f, x.Body, "<span class=\"kindtag\">function</span>")
 	case *expr.Check:
-		w.Printf("<div class=\"f\"><span class=\"kindtag\">check</span> %s</div>", Math(f.Node(x.Cmp, false)))
+		w.checkRow(f, x.Cmp)
 		if ok && res.Check != nil {
 			c := res.Check
 			disp := checkDisplay(w, x.Cmp)
