@@ -61,60 +61,66 @@ func (w *Writer) mathRow(class, prefix string, m *ExprML, x expr.Node) {
 
 // mathRowTail is mathRow with HTML written after the formula (a tag).
 func (w *Writer) mathRowTail(class, prefix string, m *ExprML, x expr.Node, tail string) {
-	terms := m.Pieces(x)
-	if len(terms) > 0 && len(terms[0]) > 0 {
-		terms[0][0] = prefix + terms[0][0]
+	if !m.Splits(x) {
+		w.WriteString("<div class=\"" + class + "\"><math display=\"inline\"><mrow>")
+		w.WriteString(prefix)
+		m.WriteNode(&w.Buffer, x, false)
+		w.WriteString("</mrow></math>" + tail + "</div>")
+		return
 	}
-	w.pieceRow(class, "", terms, tail)
+	cut, end := w.startPieces(class, "")
+	w.WriteString(prefix)
+	m.WritePieces(&w.Buffer, x, cut)
+	end(tail)
 }
 
 // checkRow writes a check's formula: the chain's sides, each in its
 // pieces, a side after its comparison.
 func (w *Writer) checkRow(m *ExprML, c *expr.Compare) {
-	var terms [][]string
+	cut, end := w.startPieces("f", "<span class=\"kindtag\">check</span> ")
 	for i, x := range c.X {
-		ts := m.Pieces(x)
-		if i > 0 && len(ts) > 0 && len(ts[0]) > 0 {
-			ts[0][0] = "<mo>" + opML[c.Ops[i-1]] + "</mo>" + ts[0][0]
+		if i > 0 {
+			cut(true)
+			w.WriteString("<mo>" + opML[c.Ops[i-1]] + "</mo>")
 		}
-		terms = append(terms, ts...)
+		m.WritePieces(&w.Buffer, x, cut)
 	}
-	w.pieceRow("f", "<span class=\"kindtag\">check</span> ", terms, "")
+	end("")
 }
 
-// pieceRow writes terms (each a list of pieces of MathML) as one <math>,
-// or, when there are several pieces, as one <math> per piece, later terms
-// each in a box, in the wrapping container: a row breaks before a + or −,
-// and inside a term before a · only when the term is longer than a line.
-func (w *Writer) pieceRow(class, head string, terms [][]string, tail string) {
-	if len(terms) == 1 && len(terms[0]) == 1 {
-		w.WriteString("<div class=\"" + class + "\">" + head + "<math display=\"inline\"><mrow>")
-		w.WriteString(terms[0][0])
-		w.WriteString("</mrow></math>" + tail + "</div>")
-		return
-	}
+// startPieces opens a row written in pieces: one <math> per piece in the
+// wrapping container (class "brk"), the first term's factors in the row
+// itself and each later term in a box of its own, so that a line breaks
+// before a + or − and, inside a term, before a · only when the term is
+// longer than a line (style.go). It returns the cut between pieces and the
+// end of the row (with HTML after the formula).
+func (w *Writer) startPieces(class, head string) (cut func(newTerm bool), end func(tail string)) {
 	w.WriteString("<div class=\"")
 	w.WriteString(class)
 	w.WriteString(" brk\">")
 	w.WriteString(head)
-	for i, t := range terms {
-		// the first term's factors stand in the row itself; each later
-		// term is a box of its own, so that a line breaks between terms
-		// before it breaks inside one
-		if i > 0 {
+	w.WriteString("<math display=\"inline\"><mrow>")
+	inTerm := false
+	cut = func(newTerm bool) {
+		w.WriteString("</mrow></math>")
+		if newTerm {
+			if inTerm {
+				w.WriteString("</span>")
+			}
 			w.WriteString("<span class=\"t\">")
+			inTerm = true
 		}
-		for _, p := range t {
-			w.WriteString("<math display=\"inline\"><mrow>")
-			w.WriteString(p)
-			w.WriteString("</mrow></math>")
-		}
-		if i > 0 {
+		w.WriteString("<math display=\"inline\"><mrow>")
+	}
+	end = func(tail string) {
+		w.WriteString("</mrow></math>")
+		if inTerm {
 			w.WriteString("</span>")
 		}
+		w.WriteString(tail)
+		w.WriteString("</div>")
 	}
-	w.WriteString(tail)
-	w.WriteString("</div>")
+	return cut, end
 }
 
 func resultAttrs(name string, line int) string {

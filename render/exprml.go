@@ -441,31 +441,36 @@ func (m *ExprML) write(b stringWriter, n expr.Node) {
 	}
 }
 
-// Pieces typesets n as the pieces a long row may break between: its
-// top-level terms, each after its + or −, and within each term its
-// factors, each after its ·. Joined in order, the pieces are n's MathML.
-func (m *ExprML) Pieces(n expr.Node) [][]string {
-	var out [][]string
-	var term []string
-	var cur strings.Builder
-	cut := func() {
-		term = append(term, cur.String())
-		cur.Reset()
+// Splits reports whether n is typeset in more than one piece by
+// WritePieces: its top is a sum, a difference or a product.
+func (m *ExprML) Splits(n expr.Node) bool {
+	n = unparen(n)
+	if _, subst := m.substituted(n); subst {
+		return false
 	}
+	bin, ok := n.(*expr.Binary)
+	return ok && (bin.Op == expr.ADD || bin.Op == expr.SUB || bin.Op == expr.MUL)
+}
+
+// WritePieces typesets n into b as the pieces a long row may break
+// between: its top-level terms, each after its + or −, and within each
+// term its factors, each after its ·. Between two pieces it calls cut,
+// with newTerm set before a + or −. Joined, the pieces are n's MathML.
+func (m *ExprML) WritePieces(b stringWriter, n expr.Node, cut func(newTerm bool)) {
 	// factors of a term that stands unbracketed at level need
 	var factors func(n expr.Node, need int, noSign bool)
 	factors = func(n expr.Node, need int, noSign bool) {
 		f := m.form(n)
 		bin, isBin := unparen(n).(*expr.Binary)
 		_, subst := m.substituted(unparen(n))
-		if f.lv < need || noSign && m.leadSign(n) || !isBin || subst || bin.Op != expr.MUL {
-			m.operand(&cur, n, need, noSign)
+		if f.lv < need || !isBin || subst || bin.Op != expr.MUL || noSign && m.leadSign(n) {
+			m.operand(b, n, need, noSign)
 			return
 		}
 		factors(bin.X, lvMul, false)
-		cut()
-		cur.WriteString("<mo form=\"infix\">·</mo>")
-		m.operand(&cur, bin.Y, lvUnary, true)
+		cut(false)
+		b.WriteString("<mo form=\"infix\">·</mo>")
+		m.operand(b, bin.Y, lvUnary, true)
 	}
 	var terms func(n expr.Node)
 	terms = func(n expr.Node) {
@@ -476,17 +481,13 @@ func (m *ExprML) Pieces(n expr.Node) [][]string {
 			return
 		}
 		terms(bin.X)
-		cut()
-		out = append(out, term)
-		term = nil
-		cur.WriteString("<mo form=\"infix\">")
-		cur.WriteString(opML[bin.Op])
-		cur.WriteString("</mo>")
+		cut(true)
+		b.WriteString("<mo form=\"infix\">")
+		b.WriteString(opML[bin.Op])
+		b.WriteString("</mo>")
 		factors(bin.Y, lvPar, true)
 	}
 	terms(n)
-	cut()
-	return append(out, term)
 }
 
 func isConstant(name string) bool { return name == "pi" || name == "π" || name == "j" }
