@@ -49,6 +49,80 @@ func (w *Writer) mathDiv(class, attrs string, body func()) {
 	w.WriteString("</mrow></math></div>")
 }
 
+// mathRow writes a formula or substitution row: prefix (the "name =")
+// and x. A row whose x has top-level terms or factors is written as one
+// <math> per piece, factors grouped by term, in wrapping containers (class
+// "brk"): a row too long for the column breaks before a top-level + or −,
+// a term too long for a line before its ·, and the continuation is
+// indented (style.go). Browsers do not break MathML by themselves.
+func (w *Writer) mathRow(class, prefix string, m *ExprML, x expr.Node) {
+	w.mathRowTail(class, prefix, m, x, "")
+}
+
+// mathRowTail is mathRow with HTML written after the formula (a tag).
+func (w *Writer) mathRowTail(class, prefix string, m *ExprML, x expr.Node, tail string) {
+	if !m.Splits(x) {
+		w.WriteString("<div class=\"" + class + "\"><math display=\"inline\"><mrow>")
+		w.WriteString(prefix)
+		m.WriteNode(&w.Buffer, x, false)
+		w.WriteString("</mrow></math>" + tail + "</div>")
+		return
+	}
+	cut, end := w.startPieces(class, "")
+	w.WriteString(prefix)
+	m.WritePieces(&w.Buffer, x, cut)
+	end(tail)
+}
+
+// checkRow writes a check's formula: the chain's sides, each in its
+// pieces, a side after its comparison.
+func (w *Writer) checkRow(m *ExprML, c *expr.Compare) {
+	cut, end := w.startPieces("f", "<span class=\"kindtag\">check</span> ")
+	for i, x := range c.X {
+		if i > 0 {
+			cut(true)
+			w.WriteString("<mo>" + opML[c.Ops[i-1]] + "</mo>")
+		}
+		m.WritePieces(&w.Buffer, x, cut)
+	}
+	end("")
+}
+
+// startPieces opens a row written in pieces: one <math> per piece in the
+// wrapping container (class "brk"), the first term's factors in the row
+// itself and each later term in a box of its own, so that a line breaks
+// before a + or − and, inside a term, before a · only when the term is
+// longer than a line (style.go). It returns the cut between pieces and the
+// end of the row (with HTML after the formula).
+func (w *Writer) startPieces(class, head string) (cut func(newTerm bool), end func(tail string)) {
+	w.WriteString("<div class=\"")
+	w.WriteString(class)
+	w.WriteString(" brk\">")
+	w.WriteString(head)
+	w.WriteString("<math display=\"inline\"><mrow>")
+	inTerm := false
+	cut = func(newTerm bool) {
+		w.WriteString("</mrow></math>")
+		if newTerm {
+			if inTerm {
+				w.WriteString("</span>")
+			}
+			w.WriteString("<span class=\"t\">")
+			inTerm = true
+		}
+		w.WriteString("<math display=\"inline\"><mrow>")
+	}
+	end = func(tail string) {
+		w.WriteString("</mrow></math>")
+		if inTerm {
+			w.WriteString("</span>")
+		}
+		w.WriteString(tail)
+		w.WriteString("</div>")
+	}
+	return cut, end
+}
+
 func resultAttrs(name string, line int) string {
 	return " data-value=\"" + esc(name) + "\" data-line=\"" + strconv.Itoa(line) + "\""
 }
@@ -117,17 +191,10 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 			lhs = append(lhs, NameML(id.Name))
 		}
 		l := strings.Join(lhs, "<mo>,</mo>")
-		w.mathDiv("f", "", func() {
-			w.WriteString(l)
-			w.WriteString("<mo>=</mo>")
-			f.WriteNode(&w.Buffer, x.X, false)
-		})
+		w.mathRow("f", l+"<mo>=</mo>", f, x.X)
 		if ok && res.Value != nil {
 			if hasNames(x.X) {
-				w.mathDiv("s", "", func() {
-					w.WriteString("<mo>=</mo>")
-					s.WriteNode(&w.Buffer, x.X, false)
-				})
+				w.mathRow("s", "<mo>=</mo>", s, x.X)
 			}
 			if len(x.Names) > 1 {
 				w.Printf("<div class=\"r\" data-value=\"%s\" data-line=\"%d\">%s</div>", esc(joinNames(x.Names)), line, Math("<mo>=</mo>"+ValueML(res.Value, x.Display, w.Digits(), false)))
@@ -155,13 +222,13 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 		for _, p := range x.Params {
 			ps = append(ps, NameML(p.Name))
 		}
-		head := "<mi>" + esc(x.Name.Name) + "</mi>"
+		head := "<mi>" + esc(greekOf(x.Name.Name)) + "</mi>"
 		if len([]rune(x.Name.Name)) == 1 || strings.Contains(x.Name.Name, "_") {
 			head = NameML(x.Name.Name)
 		}
-		w.Printf("<div class=\"f\">%s<span class=\"kindtag\">function</span></div>", Math(head+"<mo>(</mo>"+strings.Join(ps, "<mo>,</mo>")+"<mo>)</mo><mo>=</mo>"+f.Node(x.Body, false)))
+		w.mathRowTail("f", head+"<mo>(</mo>"+strings.Join(ps, "<mo>,</mo>")+"<mo>)</mo><mo>=</mo>", f, x.Body, "<span class=\"kindtag\">function</span>")
 	case *expr.Check:
-		w.Printf("<div class=\"f\"><span class=\"kindtag\">check</span> %s</div>", Math(f.Node(x.Cmp, false)))
+		w.checkRow(f, x.Cmp)
 		if ok && res.Check != nil {
 			c := res.Check
 			disp := checkDisplay(w, x.Cmp)
@@ -195,13 +262,10 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 			w.Printf("<div class=\"s\" data-check=\"%d\">%s%s%s%s</div>", line, Math(strings.Join(parts, "")), verdict, util, tol)
 		}
 	case *expr.ExprStmt:
-		w.mathDiv("f", "", func() { f.WriteNode(&w.Buffer, x.X, false) })
+		w.mathRow("f", "", f, x.X)
 		if ok && res.Value != nil {
 			if hasNames(x.X) {
-				w.mathDiv("s", "", func() {
-					w.WriteString("<mo>=</mo>")
-					s.WriteNode(&w.Buffer, x.X, false)
-				})
+				w.mathRow("s", "<mo>=</mo>", s, x.X)
 			}
 			w.Printf("<div class=\"r\" data-value=\"\" data-line=\"%d\">%s</div>", line, Math("<mo>=</mo>"+ValueML(res.Value, res.Display, w.Digits(), false)+senseML(res.Value)))
 			w.kindNote(res.Value)

@@ -5,7 +5,6 @@ import (
 	"strings"
 	"sync"
 	"sync/atomic"
-	"unicode/utf8"
 
 	"calcdoc/expr"
 )
@@ -53,8 +52,12 @@ const maxCached = 50000
 
 func nameML(name string) string {
 	base, sub, hasSub := strings.Cut(name, "_")
+	if hasSub && sub == "" {
+		// a name ending in "_" is another name than the one without it
+		return "<mi>" + esc(greekOf(base)) + "_</mi>"
+	}
 	b := "<mi>" + esc(greekOf(base)) + "</mi>"
-	if !hasSub || sub == "" {
+	if !hasSub {
 		return b
 	}
 	parts := strings.Split(sub, "_")
@@ -68,7 +71,10 @@ func nameML(name string) string {
 func NameHTML(name string) string {
 	base, sub, hasSub := strings.Cut(name, "_")
 	b := esc(greekOf(base))
-	if !hasSub || sub == "" {
+	if hasSub && sub == "" {
+		return "<var>" + b + "_</var>"
+	}
+	if !hasSub {
 		return "<var>" + b + "</var>"
 	}
 	parts := strings.Split(sub, "_")
@@ -132,9 +138,19 @@ func unitML1(u string) string {
 	return "<mspace width=\"0.25em\"/><mi mathvariant=\"normal\">" + esc(unitText(u)) + "</mi>"
 }
 
-// ShownML typesets a shown value. paren wraps a rectangular value with a
-// unit, or a polar one, in parentheses (inside a larger formula).
+// ShownML typesets a shown value. paren wraps a value that is not a
+// single operand (a sum, a polar value, a negative number) in parentheses,
+// for a place inside a larger formula.
 func ShownML(s expr.Shown, paren bool) string {
+	out := shownML(s)
+	if f := shownForm(s); paren && (f.lv < lvPostfix || f.signed) {
+		out = "<mo>(</mo>" + out + "<mo>)</mo>"
+	}
+	return "<mrow>" + out + "</mrow>"
+}
+
+// shownML is the bare MathML of a shown value, without brackets around it.
+func shownML(s expr.Shown) string {
 	var num string
 	switch s.Kind {
 	case expr.ShownReal:
@@ -159,11 +175,48 @@ func ShownML(s expr.Shown, paren bool) string {
 			num = "<mo>(</mo>" + num + "<mo>)</mo>"
 		}
 	}
-	out := num + unitML(s.Unit)
-	if paren && (s.Kind == expr.ShownPolar || s.Kind == expr.ShownRect && (s.A != "" && s.Unit == "" || s.A == "") || s.Kind == expr.ShownReal && strings.HasPrefix(s.A, "-")) {
-		out = "<mo>(</mo>" + out + "<mo>)</mo>"
+	return num + unitML(s.Unit)
+}
+
+// shownForm is the typesetting level of a shown value (see form).
+func shownForm(s expr.Shown) form {
+	sci := func(t string) bool { return strings.ContainsAny(t, "eE") && !strings.Contains(t, "NaN") }
+	unitLv := func(bare int) int {
+		if s.Unit != "" {
+			return lvPostfix
+		}
+		return bare
 	}
-	return "<mrow>" + out + "</mrow>"
+	atom := func(t string) int {
+		if sci(t) {
+			return unitLv(lvSci)
+		}
+		return unitLv(lvAtom)
+	}
+	switch s.Kind {
+	case expr.ShownPolar:
+		if strings.HasPrefix(s.A, "-") {
+			return form{lv: lvUnary, signed: true, after: lvAngle}
+		}
+		return form{lv: lvAngle, after: lvAngle}
+	case expr.ShownRect:
+		if s.A == "" {
+			if strings.HasPrefix(s.B, "-") {
+				return form{lv: lvUnary, signed: true, after: atom(s.B)}
+			}
+			a := atom(s.B)
+			return form{lv: a, after: a}
+		}
+		if s.Unit != "" {
+			return form{lv: lvPostfix, after: lvPostfix}
+		}
+		return form{lv: lvAdd, signed: strings.HasPrefix(s.A, "-"), after: lvAdd}
+	}
+	if strings.HasPrefix(s.A, "-") {
+		return form{lv: lvUnary, signed: true, after: atom(s.A[1:])}
+	}
+	a := atom(s.A)
+	return form{lv: a, after: a}
 }
 
 // ValueML typesets any value: a scalar, or a matrix as a bracketed grid.
@@ -192,231 +245,4 @@ func ValueML(v expr.Value, d *expr.Display, digits int, paren bool) string {
 // Math wraps MathML content in a <math> element.
 func Math(content string) string {
 	return "<math display=\"inline\"><mrow>" + content + "</mrow></math>"
-}
-
-// ExprML typesets expression trees, either as written (the formula) or with
-// every name replaced by its value (the substitution).
-type ExprML struct {
-	Subst  bool
-	Trace  *expr.Trace
-	Digits int
-	// DisplayOf returns how a name's value is shown (its definition's
-	// display bracket), or nil.
-	DisplayOf func(name string) *expr.Display
-	// IsFunc reports whether a name is a user function (not a matrix value).
-	IsFunc func(name string) bool
-	// cache holds values already typeset on this sheet (a name's value is
-	// shown on every line that uses it).
-	cache map[valueKey]string
-}
-
-type valueKey struct {
-	v      expr.Value
-	d      *expr.Display
-	digits int
-	paren  bool
-}
-
-// stringWriter is what typesetting writes into: a strings.Builder or the
-// page's bytes.Buffer.
-type stringWriter interface {
-	WriteString(s string) (int, error)
-}
-
-// WriteNode typesets n straight into b.
-func (m *ExprML) WriteNode(b stringWriter, n expr.Node, paren bool) { m.write(b, n, paren) }
-
-// valueML is ValueML through the sheet's cache.
-func (m *ExprML) valueML(v expr.Value, d *expr.Display, paren bool) string {
-	if m.cache == nil {
-		return ValueML(v, d, m.Digits, paren)
-	}
-	k := valueKey{v, d, m.Digits, paren}
-	if s, ok := m.cache[k]; ok {
-		return s
-	}
-	s := ValueML(v, d, m.Digits, paren)
-	m.cache[k] = s
-	return s
-}
-
-var opML = map[expr.Kind]string{
-	expr.ADD: "+", expr.SUB: "−", expr.MUL: "·", expr.PAR: "∥", expr.ANGLE: "∠",
-	expr.LT: "&lt;", expr.LE: "≤", expr.GT: "&gt;", expr.GE: "≥", expr.EQ: "=", expr.NE: "≠",
-}
-
-// Node typesets n. paren asks a substituted value to wrap itself when it
-// is complex or negative (it stands inside a product, a power, ...).
-func (m *ExprML) Node(n expr.Node, paren bool) string {
-	var b strings.Builder
-	b.Grow(256)
-	m.write(&b, n, paren)
-	return b.String()
-}
-
-func (m *ExprML) write(b stringWriter, n expr.Node, paren bool) {
-	switch n := n.(type) {
-	case *expr.Number:
-		if n.Imag {
-			b.WriteString("<mi>j</mi><mn>")
-			b.WriteString(esc(strings.TrimPrefix(n.Text, "j")))
-			b.WriteString("</mn>")
-			return
-		}
-		b.WriteString(numLiteral(n.Text))
-	case *expr.Ident:
-		if m.Subst {
-			if v, ok := m.Trace.Value(n); ok && !isConstant(n.Name) {
-				var d *expr.Display
-				if m.DisplayOf != nil {
-					d = m.DisplayOf(n.Name)
-				}
-				b.WriteString(m.valueML(v, d, paren))
-				return
-			}
-		}
-		if n.Name == "pi" {
-			b.WriteString("<mi>π</mi>")
-			return
-		}
-		b.WriteString(NameML(n.Name))
-	case *expr.WithUnit:
-		b.WriteString("<mrow>")
-		m.write(b, n.X, true)
-		b.WriteString(unitML(n.Unit.Text))
-		b.WriteString("</mrow>")
-	case *expr.Unary:
-		if n.Op == expr.ADD {
-			b.WriteString("<mrow><mo>+</mo>")
-		} else {
-			b.WriteString("<mrow><mo>−</mo>")
-		}
-		m.write(b, n.X, true)
-		b.WriteString("</mrow>")
-	case *expr.Paren:
-		b.WriteString("<mrow><mo>(</mo>")
-		m.write(b, n.X, false)
-		b.WriteString("<mo>)</mo></mrow>")
-	case *expr.Abs:
-		b.WriteString("<mrow><mo>|</mo>")
-		m.write(b, n.X, false)
-		b.WriteString("<mo>|</mo></mrow>")
-	case *expr.Binary:
-		switch n.Op {
-		case expr.DIV:
-			b.WriteString("<mfrac>")
-			m.write(b, unparen(n.X), false)
-			m.write(b, unparen(n.Y), false)
-			b.WriteString("</mfrac>")
-			return
-		case expr.POW:
-			b.WriteString("<msup>")
-			m.write(b, n.X, true)
-			m.write(b, unparen(n.Y), false)
-			b.WriteString("</msup>")
-			return
-		}
-		b.WriteString("<mrow>")
-		m.write(b, n.X, n.Op != expr.ADD && n.Op != expr.SUB)
-		b.WriteString("<mo>")
-		b.WriteString(opML[n.Op])
-		b.WriteString("</mo>")
-		m.write(b, n.Y, true)
-		b.WriteString("</mrow>")
-	case *expr.Call:
-		m.call(b, n, paren)
-	case *expr.MatrixLit:
-		b.WriteString("<mrow><mo>[</mo><mtable>")
-		for _, row := range n.Rows {
-			b.WriteString("<mtr>")
-			for _, e := range row {
-				b.WriteString("<mtd>")
-				m.write(b, e, false)
-				b.WriteString("</mtd>")
-			}
-			b.WriteString("</mtr>")
-		}
-		b.WriteString("</mtable><mo>]</mo></mrow>")
-	case *expr.Compare:
-		b.WriteString("<mrow>")
-		for i, x := range n.X {
-			if i > 0 {
-				b.WriteString("<mo>")
-				b.WriteString(opML[n.Ops[i-1]])
-				b.WriteString("</mo>")
-			}
-			m.write(b, x, false)
-		}
-		b.WriteString("</mrow>")
-	default:
-		b.WriteString("<merror><mtext>?</mtext></merror>")
-	}
-}
-
-func isConstant(name string) bool { return name == "pi" || name == "π" || name == "j" }
-
-func unparen(n expr.Node) expr.Node {
-	if p, ok := n.(*expr.Paren); ok {
-		return p.X
-	}
-	return n
-}
-
-func numLiteral(text string) string {
-	if m, e, ok := strings.Cut(strings.ToLower(text), "e"); ok {
-		e = strings.TrimPrefix(e, "+")
-		e = strings.Replace(e, "-", "−", 1)
-		return "<mrow><mn>" + esc(m) + "</mn><mo>×</mo><msup><mn>10</mn><mn>" + esc(e) + "</mn></msup></mrow>"
-	}
-	return "<mn>" + esc(text) + "</mn>"
-}
-
-func (m *ExprML) call(b stringWriter, n *expr.Call, paren bool) {
-	switch n.Fun.Name {
-	case "sqrt":
-		if len(n.Args) == 1 {
-			b.WriteString("<msqrt>")
-			m.write(b, n.Args[0], false)
-			b.WriteString("</msqrt>")
-			return
-		}
-	case "conj":
-		if len(n.Args) == 1 {
-			b.WriteString("<msup>")
-			m.write(b, n.Args[0], true)
-			b.WriteString("<mo>*</mo></msup>")
-			return
-		}
-	case "abs":
-		if len(n.Args) == 1 {
-			b.WriteString("<mrow><mo>|</mo>")
-			m.write(b, n.Args[0], false)
-			b.WriteString("<mo>|</mo></mrow>")
-			return
-		}
-	}
-	if m.Subst && !expr.IsBuiltin(n.Fun.Name) && (m.IsFunc == nil || !m.IsFunc(n.Fun.Name)) {
-		// an entry of a matrix value M(i, j) shows the picked value
-		if v, ok := m.Trace.Value(n); ok {
-			b.WriteString(m.valueML(v, nil, paren))
-			return
-		}
-	}
-	b.WriteString("<mrow>")
-	name := n.Fun.Name
-	if strings.Contains(name, "_") || utf8.RuneCountInString(name) == 1 {
-		b.WriteString(NameML(name))
-	} else {
-		b.WriteString("<mi>")
-		b.WriteString(esc(name))
-		b.WriteString("</mi>")
-	}
-	b.WriteString("<mo>(</mo>")
-	for i, a := range n.Args {
-		if i > 0 {
-			b.WriteString("<mo>,</mo>")
-		}
-		m.write(b, a, false)
-	}
-	b.WriteString("<mo>)</mo></mrow>")
 }

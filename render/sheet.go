@@ -61,7 +61,7 @@ type Writer struct {
 	// Appendix collects sections drawn at the end of the sheet (large
 	// matrices of a solve block).
 	Appendix bytes.Buffer
-	values   map[valueKey]string
+	values   map[valueKey]shownValue
 	// typesetters are the formula and substitution typesetters of calc rows
 	typesetters [2]*ExprML
 }
@@ -86,7 +86,7 @@ func (w *Writer) UnavailableRow(u *expr.UnavailableError) {
 
 // Sheet writes the HTML sheet of a document.
 func Sheet(doc *calcdoc.Document, opt Options) ([]byte, error) {
-	w := &Writer{Doc: doc, values: map[valueKey]string{}}
+	w := &Writer{Doc: doc, values: map[valueKey]shownValue{}}
 	// a sheet is about fifteen times its source: grow once, not by doubling
 	w.Grow(64<<10 + 20*len(doc.Source))
 	fm := doc.Front

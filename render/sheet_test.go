@@ -129,7 +129,7 @@ func TestStructure(t *testing.T) {
 					t.Errorf("row id L%s shows line %s", r[1], r[2])
 				}
 				body := r[3]
-				if !strings.Contains(body, `<div class="f">`) {
+				if !strings.Contains(body, `<div class="f">`) && !strings.Contains(body, `<div class="f brk">`) {
 					t.Errorf("line %s: no formula", r[1])
 				}
 				isCheck := strings.Contains(body, "kindtag\">check")

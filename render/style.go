@@ -43,6 +43,10 @@ ol.errlist, ul.warnlist { margin: 2pt 0 2pt 1.4em; padding: 0; }
 .math > div { margin: 1pt 0; }
 .math .s, .math .r { padding-left: 6mm; }
 .math .r { font-weight: bold; }
+.math .brk { padding-left: 10mm; text-indent: -10mm; }
+.math .brk > .t { display: inline-block; max-width: 100%; text-indent: 0; }
+.math .brk > .kindtag { margin-right: 2mm; }
+.math .s.brk { padding-left: 16mm; }
 .desc { font-size: 8.5pt; color: #222; padding-top: 1pt; }
 .row.note { grid-template-columns: 8mm minmax(0, 1fr); }
 .row.note .txt { font-style: italic; }
