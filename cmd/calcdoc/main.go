@@ -13,8 +13,8 @@ import (
 	"strings"
 
 	"calcdoc/calcdoc"
-	"calcdoc/calcdoc/stamp"
 	"calcdoc/render"
+	"calcdoc/render/stamp"
 )
 
 // version is calcdoc's version; a release build may set it with
@@ -229,16 +229,7 @@ func (c *cli) build(args []string) int {
 
 // summaryLine says how a document evaluated.
 func summaryLine(doc *calcdoc.Document) string {
-	held, failed := 0, 0
-	for _, ch := range doc.Checks {
-		if ch.Result != nil {
-			if ch.Result.Pass {
-				held++
-			} else {
-				failed++
-			}
-		}
-	}
+	held, failed, _ := doc.CheckCounts()
 	s := fmt.Sprintf("%d values, %d checks (%d satisfied, %d not satisfied), %d errors", len(doc.Values), len(doc.Checks), held, failed, len(doc.Errors))
 	if len(doc.Warnings) > 0 {
 		s += fmt.Sprintf(", %d warnings", len(doc.Warnings))

@@ -13,7 +13,7 @@ import (
 	"time"
 
 	"calcdoc/calcdoc"
-	"calcdoc/render"
+	"calcdoc/render/pack"
 	"calcdoc/render/pdf"
 
 	"go.yaml.in/yaml/v3"
@@ -183,7 +183,7 @@ func (c *cli) pack(args []string) int {
 		docs = append(docs, doc)
 	}
 
-	info := render.PackageInfo{
+	info := pack.Info{
 		Title: pick(*title, spec.Title), Project: pick(*project, spec.Project), Client: pick(*client, spec.Client),
 		Number: pick(*number, spec.Number), Revision: pick(*revision, spec.Revision), Date: pick(*date, spec.Date),
 		Prepared: spec.Prepared, Checked: spec.Checked, Approved: spec.Approved, Paper: spec.Paper,
@@ -202,7 +202,7 @@ func (c *cli) pack(args []string) int {
 	}
 
 	st := exitOK
-	sheets := make([]render.PackageSheet, len(docs))
+	sheets := make([]pack.Sheet, len(docs))
 	numbers := map[string]string{}
 	for i, doc := range docs {
 		c.printErrors(doc)
@@ -213,10 +213,10 @@ func (c *cli) pack(args []string) int {
 			}
 			numbers[n] = doc.Path
 		}
-		sheets[i] = render.PackageSheet{Doc: doc, Options: sheetOptions(doc)}
+		sheets[i] = pack.Sheet{Doc: doc, Options: sheetOptions(doc)}
 		st = status(doc, st)
 	}
-	page, err := render.Package(info, sheets, version)
+	page, err := pack.Package(info, sheets, version)
 	if err != nil {
 		fmt.Fprintf(c.stderr, "calcdoc: cannot render the package: %v\n", err)
 		return exitError
@@ -233,7 +233,7 @@ func (c *cli) pack(args []string) int {
 	for i, s := range sheets {
 		hashes[i] = s.Options.Stamp.SHA256
 	}
-	fmt.Fprintf(c.stdout, "package -> %s: %d sheets, package sha256 %s\n", target, len(sheets), render.PackageHash(hashes))
+	fmt.Fprintf(c.stdout, "package -> %s: %d sheets, package sha256 %s\n", target, len(sheets), pack.Hash(hashes))
 
 	if *pdfOut != "" {
 		err := c.printPackage(info, sheets, target, *pdfOut)
@@ -255,7 +255,7 @@ func (c *cli) pack(args []string) int {
 // starts, writes the package again with those pages in its contents and
 // prints it once more (the contents keep room for the numbers, so no page
 // moves); otherwise the contents go without page numbers, and it says so.
-func (c *cli) printPackage(info render.PackageInfo, sheets []render.PackageSheet, target, pdfPath string) error {
+func (c *cli) printPackage(info pack.Info, sheets []pack.Sheet, target, pdfPath string) error {
 	ctx := context.Background()
 	if err := printPDF(ctx, target, pdfPath); err != nil {
 		return err
@@ -265,13 +265,13 @@ func (c *cli) printPackage(info render.PackageInfo, sheets []render.PackageSheet
 		fmt.Fprintf(c.stderr, "calcdoc: note: the contents have no page numbers: %v\n", err)
 		return nil
 	}
-	starts, ok := render.SheetStartPages(pages, len(sheets))
+	starts, ok := pack.SheetStartPages(pages, len(sheets))
 	if !ok {
 		fmt.Fprintf(c.stderr, "calcdoc: note: the contents have no page numbers: the sheets' first pages were not found in the printed text\n")
 		return nil
 	}
 	info.StartPages = starts
-	page, err := render.Package(info, sheets, version)
+	page, err := pack.Package(info, sheets, version)
 	if err != nil {
 		return err
 	}
@@ -282,7 +282,7 @@ func (c *cli) printPackage(info render.PackageInfo, sheets []render.PackageSheet
 		return err
 	}
 	if pages, err := readPDF(ctx, pdfPath); err == nil {
-		if again, ok := render.SheetStartPages(pages, len(sheets)); !ok || !slices.Equal(again, starts) {
+		if again, ok := pack.SheetStartPages(pages, len(sheets)); !ok || !slices.Equal(again, starts) {
 			fmt.Fprintf(c.stderr, "calcdoc: warning: the sheets moved when the contents got their page numbers: check the contents of %s\n", pdfPath)
 		}
 	}
