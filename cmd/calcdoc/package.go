@@ -13,6 +13,7 @@ import (
 	"time"
 
 	"calcdoc/calcdoc"
+	"calcdoc/cmd/internal/build"
 	"calcdoc/render/pack"
 	"calcdoc/render/pdf"
 
@@ -147,7 +148,7 @@ func (c *cli) pack(args []string) int {
 	default:
 		sheetPaths = paths
 	}
-	inputs, err := calcdoc.Collect(sheetPaths)
+	inputs, err := build.Collect(sheetPaths)
 	if err != nil {
 		return c.usageErr("%v", err)
 	}
@@ -165,11 +166,11 @@ func (c *cli) pack(args []string) int {
 		target = defaultPackage
 	}
 	for _, in := range inputs {
-		if calcdoc.SameFile(target, in.Path) || (*pdfOut != "" && calcdoc.SameFile(*pdfOut, in.Path)) {
+		if build.SameFile(target, in.Path) || (*pdfOut != "" && build.SameFile(*pdfOut, in.Path)) {
 			return c.usageErr("refusing to write the package over its source %s", in.Path)
 		}
 	}
-	if *pdfOut != "" && calcdoc.SameFile(*pdfOut, target) {
+	if *pdfOut != "" && build.SameFile(*pdfOut, target) {
 		return c.usageErr("--pdf %s and the HTML package are the same file", *pdfOut)
 	}
 
@@ -225,7 +226,7 @@ func (c *cli) pack(args []string) int {
 		fmt.Fprintf(c.stderr, "calcdoc: %v\n", err)
 		return exitError
 	}
-	if err := calcdoc.WriteFileAtomic(target, page); err != nil {
+	if err := build.WriteFileAtomic(target, page); err != nil {
 		fmt.Fprintf(c.stderr, "calcdoc: cannot write %s: %v\n", target, err)
 		return exitError
 	}
@@ -275,7 +276,7 @@ func (c *cli) printPackage(info pack.Info, sheets []pack.Sheet, target, pdfPath 
 	if err != nil {
 		return err
 	}
-	if err := calcdoc.WriteFileAtomic(target, page); err != nil {
+	if err := build.WriteFileAtomic(target, page); err != nil {
 		return fmt.Errorf("cannot write %s: %v", target, err)
 	}
 	if err := printPDF(ctx, target, pdfPath); err != nil {
