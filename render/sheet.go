@@ -255,14 +255,21 @@ func titleBlock(w *Writer, fm calcdoc.FrontMatter, title string) {
 	}
 	Field(w, "Phasors", ph)
 	w.WriteString("</tr>\n</table>\n")
-	if len(fm.Revisions) > 0 {
-		w.WriteString("<table class=\"revs\"><caption>Revision history</caption>\n<tr><th>Rev</th><th>Date</th><th>By</th><th>Description</th></tr>\n")
-		for _, r := range fm.Revisions {
-			w.Printf("<tr><td>%s</td><td>%s</td><td>%s</td><td>%s</td></tr>\n", esc(r.Rev), esc(r.Date), esc(r.By), esc(r.Note))
-		}
-		w.WriteString("</table>\n")
-	}
+	RevisionHistory(w, "Revision history", fm.Revisions)
 	w.WriteString("</header>\n")
+}
+
+// RevisionHistory writes a title block's revision history as a table with
+// caption; nothing when there is none.
+func RevisionHistory(w *Writer, caption string, revs []calcdoc.Revision) {
+	if len(revs) == 0 {
+		return
+	}
+	w.Printf("<table class=\"revs\"><caption>%s</caption>\n<tr><th>Rev</th><th>Date</th><th>By</th><th>Description</th></tr>\n", esc(caption))
+	for _, r := range revs {
+		w.Printf("<tr><td>%s</td><td>%s</td><td>%s</td><td>%s</td></tr>\n", esc(r.Rev), esc(r.Date), esc(r.By), esc(r.Note))
+	}
+	w.WriteString("</table>\n")
 }
 
 // summary states at the top whether the sheet evaluated, how many checks

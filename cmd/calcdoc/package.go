@@ -8,9 +8,7 @@ import (
 	"io"
 	"os"
 	"path/filepath"
-	"regexp"
 	"slices"
-	"time"
 
 	"calcdoc/calcdoc"
 	"calcdoc/cmd/internal/build"
@@ -38,36 +36,11 @@ var (
 	readPDF  = pdf.PDFText
 )
 
-// packageSpec is a package file (YAML). Sheets are paths relative to the
-// file's folder.
+// packageSpec is a package file (YAML): the package's title block and
+// its sheets, paths relative to the file's folder.
 type packageSpec struct {
-	Title     string `yaml:"title"`
-	Project   string `yaml:"project"`
-	Client    string `yaml:"client"`
-	Number    string `yaml:"number"`
-	Revision  string `yaml:"revision"`
-	Date      string `yaml:"date"`
-	Prepared  string `yaml:"prepared"`
-	Checked   string `yaml:"checked"`
-	Approved  string `yaml:"approved"`
-	Paper     string `yaml:"paper"`
-	Revisions []struct {
-		Rev  string `yaml:"rev"`
-		Date string `yaml:"date"`
-		By   string `yaml:"by"`
-		Note string `yaml:"note"`
-	} `yaml:"revisions"`
-	Sheets []string `yaml:"sheets"`
-}
-
-var specDateRE = regexp.MustCompile(`^\d{4}-\d{2}-\d{2}$`)
-
-func validSpecDate(s string) bool {
-	if !specDateRE.MatchString(s) {
-		return false
-	}
-	_, err := time.Parse("2006-01-02", s)
-	return err == nil
+	calcdoc.TitleBlock `yaml:",inline"`
+	Sheets             []string `yaml:"sheets"`
 }
 
 // readSpec reads a package file. Every key must be known: a misspelt key
@@ -83,11 +56,11 @@ func readSpec(path string) (*packageSpec, error) {
 	if err := dec.Decode(&spec); err != nil && !errors.Is(err, io.EOF) {
 		return nil, fmt.Errorf("%s: %v (known keys: title, project, client, number, revision, date, prepared, checked, approved, paper, revisions, sheets)", path, err)
 	}
-	if spec.Date != "" && !validSpecDate(spec.Date) {
+	if spec.Date != "" && !calcdoc.ValidDate(spec.Date) {
 		return nil, fmt.Errorf("%s: date %q is not a date written YYYY-MM-DD", path, spec.Date)
 	}
 	for _, r := range spec.Revisions {
-		if r.Date != "" && !validSpecDate(r.Date) {
+		if r.Date != "" && !calcdoc.ValidDate(r.Date) {
 			return nil, fmt.Errorf("%s: revision %s: date %q is not a date written YYYY-MM-DD", path, r.Rev, r.Date)
 		}
 	}
@@ -112,7 +85,7 @@ func (c *cli) pack(args []string) int {
 	if err != nil {
 		return exitUsage
 	}
-	if *date != "" && !validSpecDate(*date) {
+	if *date != "" && !calcdoc.ValidDate(*date) {
 		return c.usageErr("--date %q is not a date written YYYY-MM-DD", *date)
 	}
 
@@ -184,14 +157,9 @@ func (c *cli) pack(args []string) int {
 		docs = append(docs, doc)
 	}
 
-	info := pack.Info{
-		Title: pick(*title, spec.Title), Project: pick(*project, spec.Project), Client: pick(*client, spec.Client),
-		Number: pick(*number, spec.Number), Revision: pick(*revision, spec.Revision), Date: pick(*date, spec.Date),
-		Prepared: spec.Prepared, Checked: spec.Checked, Approved: spec.Approved, Paper: spec.Paper,
-	}
-	for _, r := range spec.Revisions {
-		info.Revisions = append(info.Revisions, calcdoc.Revision{Rev: r.Rev, Date: r.Date, By: r.By, Note: r.Note})
-	}
+	info := pack.Info{TitleBlock: spec.TitleBlock}
+	info.Title, info.Project, info.Client = pick(*title, spec.Title), pick(*project, spec.Project), pick(*client, spec.Client)
+	info.Number, info.Revision, info.Date = pick(*number, spec.Number), pick(*revision, spec.Revision), pick(*date, spec.Date)
 	if info.Project == "" {
 		info.Project = common(docs, func(fm calcdoc.FrontMatter) string { return fm.Project })
 	}

@@ -23,15 +23,12 @@ func esc(s string) string { return html.EscapeString(s) }
 
 var orDash = render.OrDash
 
-// Info is the title block of a calculation package.
+// Info is the title block of a calculation package (calcdoc.TitleBlock:
+// Paper is the size of the cover and contents pages, each sheet keeping
+// its own; Revisions is the package's own revision history), and where
+// the sheets start.
 type Info struct {
-	Title, Project, Client, Number, Revision, Date string
-	Prepared, Checked, Approved                    string
-	// Paper is "a4" (the default when "") or "letter": the size of the
-	// cover and contents pages. Each sheet keeps its own paper.
-	Paper string
-	// Revisions is the package's own revision history.
-	Revisions []calcdoc.Revision
+	calcdoc.TitleBlock
 	// StartPages, when it has one entry per sheet, is the printed page on
 	// which each sheet starts (as SheetStartPages finds it in a first
 	// printing); the contents list shows it. The contents keep room for
@@ -273,13 +270,7 @@ func cover(w *bytes.Buffer, info Info, title string, sheets []Sheet, hashes []st
 	render.Field(tw, "Approved", info.Approved)
 	render.Field(tw, "Sheets", fmt.Sprint(len(sheets)))
 	tw.WriteString("</tr>\n</table>\n")
-	if len(info.Revisions) > 0 {
-		tw.WriteString("<table class=\"revs\"><caption>Revision history of the package</caption>\n<tr><th>Rev</th><th>Date</th><th>By</th><th>Description</th></tr>\n")
-		for _, r := range info.Revisions {
-			tw.Printf("<tr><td>%s</td><td>%s</td><td>%s</td><td>%s</td></tr>\n", esc(r.Rev), esc(r.Date), esc(r.By), esc(r.Note))
-		}
-		tw.WriteString("</table>\n")
-	}
+	render.RevisionHistory(tw, "Revision history of the package", info.Revisions)
 	tw.WriteString("</header>\n")
 	w.Write(tw.Bytes())
 

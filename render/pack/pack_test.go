@@ -27,8 +27,8 @@ var pkgFiles = []pkgFile{
 	{"long.md", sheettest.LongDoc(110)},
 }
 
-var pkgInfo = Info{Title: "Test works electrical calculations", Project: "Test works", Number: "TW-PKG-01", Revision: "A", Date: "2026-11-05",
-	Revisions: []calcdoc.Revision{{Rev: "A", Date: "2026-11-05", By: "TS", Note: "Issued for review"}}}
+var pkgInfo = Info{TitleBlock: calcdoc.TitleBlock{Title: "Test works electrical calculations", Project: "Test works", Number: "TW-PKG-01", Revision: "A", Date: "2026-11-05",
+	Revisions: []calcdoc.Revision{{Rev: "A", Date: "2026-11-05", By: "TS", Note: "Issued for review"}}}}
 
 // buildPackage writes the files into dir and returns the package of their
 // sheets, each stamped clean with a fixed commit.

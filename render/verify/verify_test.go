@@ -373,8 +373,8 @@ var pkgFiles = []pkgFile{
 	{"long.md", sheettest.LongDoc(110)},
 }
 
-var pkgInfo = pack.Info{Title: "Test works electrical calculations", Project: "Test works", Number: "TW-PKG-01", Revision: "A", Date: "2026-11-05",
-	Revisions: []calcdoc.Revision{{Rev: "A", Date: "2026-11-05", By: "TS", Note: "Issued for review"}}}
+var pkgInfo = pack.Info{TitleBlock: calcdoc.TitleBlock{Title: "Test works electrical calculations", Project: "Test works", Number: "TW-PKG-01", Revision: "A", Date: "2026-11-05",
+	Revisions: []calcdoc.Revision{{Rev: "A", Date: "2026-11-05", By: "TS", Note: "Issued for review"}}}}
 
 // buildPackage returns the package of the files' sheets, each stamped
 // clean with a fixed commit.
