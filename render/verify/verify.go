@@ -108,8 +108,9 @@ func (r *Report) OK() bool {
 }
 
 // Verify checks a built sheet, or a calculation package, against the
-// source it carries. For each sheet it recovers the embedded source (HTML
-// entities undone, or base64 decoded), computes the source's SHA-256 (FIPS
+// source it carries. It reads the page with an HTML tokenizer
+// (golang.org/x/net/html). For each sheet it recovers the embedded source
+// (HTML entities undone, or base64 decoded), computes the source's SHA-256 (FIPS
 // 180-4) and compares it with the hash stated on the source element and in
 // the stamp; then it evaluates the source again (calcdoc.Parse with the
 // recorded path), renders it with the options the sheet records (the
