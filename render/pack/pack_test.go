@@ -112,6 +112,18 @@ func TestPackageHTML(t *testing.T) {
 		}
 		seen[m[1]] = true
 	}
+	// every link within the page leads to an element of the page (HTML:
+	// a fragment "#X" names the element whose id is X)
+	links := 0
+	for _, m := range regexp.MustCompile(` href="#([^"]*)"`).FindAllStringSubmatch(html, -1) {
+		links++
+		if !seen[m[1]] {
+			t.Errorf("the link #%s leads to no element", m[1])
+		}
+	}
+	if links < len(paths) {
+		t.Errorf("%d links within the package, want at least the contents' %d", links, len(paths))
+	}
 	if strings.Count(html, "<style>") != 1 {
 		t.Errorf("the package has %d style elements, want one", strings.Count(html, "<style>"))
 	}

@@ -392,3 +392,25 @@ func buildPackage(t *testing.T, files []pkgFile) []byte {
 	}
 	return page
 }
+
+// A source whose lines end in CR LF, or in a lone CR, is carried byte for
+// byte: the sheet verifies, and the hash is that of the bytes as given
+// (the HTML tokenizer turns CR LF into LF in the text it returns, so the
+// source must be read from the raw bytes).
+func TestVerifyLineEnds(t *testing.T) {
+	for name, src := range map[string]string{
+		"crlf":    strings.ReplaceAll(sheettest.HeaterDoc, "\n", "\r\n"),
+		"lone cr": strings.Replace(sheettest.HeaterDoc, "# heater", "\r", 1) + "Note.\rEnd.\n",
+	} {
+		t.Run(name, func(t *testing.T) {
+			page := verifySheet(t, "heater.md", src, "0.1.0")
+			rep, err := Verify(page, "0.1.0")
+			if err != nil {
+				t.Fatal(err)
+			}
+			if !rep.OK() || rep.Sheets[0].SHA256 != stamp.Hash([]byte(src)) {
+				t.Errorf("OK %v, hash %s, differences %v", rep.OK(), rep.Sheets[0].SHA256, rep.Sheets[0].Differences)
+			}
+		})
+	}
+}
