@@ -85,15 +85,33 @@ func (d *Document) BlockFor(n ast.Node) *Block { return d.byNode[n] }
 // InlineFor returns the inline value of a code span node, or nil.
 func (d *Document) InlineFor(n ast.Node) *Inline { return d.inlineN[n] }
 
-// FailedChecks counts the checks that do not hold.
-func (d *Document) FailedChecks() int {
-	n := 0
+// CheckCounts counts the document's checks: those that hold, those that
+// do not, and those that could not be evaluated (no result). It is the
+// one place that counts them.
+func (d *Document) CheckCounts() (held, failed, notEvaluated int) {
 	for _, c := range d.Checks {
-		if c.Result != nil && !c.Result.Pass {
-			n++
+		switch {
+		case c.Result == nil:
+			notEvaluated++
+		case c.Result.Pass:
+			held++
+		default:
+			failed++
 		}
 	}
-	return n
+	return held, failed, notEvaluated
+}
+
+// FailedChecks counts the checks that do not hold.
+func (d *Document) FailedChecks() int {
+	_, failed, _ := d.CheckCounts()
+	return failed
+}
+
+// HeldChecks counts the checks that hold.
+func (d *Document) HeldChecks() int {
+	held, _, _ := d.CheckCounts()
+	return held
 }
 
 // PosAt converts a byte offset of the file into a line and column.

@@ -14,21 +14,38 @@ import (
 
 // Revision is one row of the revision history.
 type Revision struct {
-	Rev, Date, By, Note string
+	Rev  string `yaml:"rev"`
+	Date string `yaml:"date"` // YYYY-MM-DD (ValidDate)
+	By   string `yaml:"by"`
+	Note string `yaml:"note"`
+}
+
+// TitleBlock is the title block of a sheet (read from its front matter) or
+// of a calculation package (read from its package file): the one type
+// both are kept in. The YAML names are the keys of both files.
+type TitleBlock struct {
+	Title    string `yaml:"title"`
+	Project  string `yaml:"project"`
+	Client   string `yaml:"client"`
+	Number   string `yaml:"number"`
+	Revision string `yaml:"revision"`
+	Date     string `yaml:"date"` // YYYY-MM-DD (ValidDate)
+	Prepared string `yaml:"prepared"`
+	Checked  string `yaml:"checked"`
+	Approved string `yaml:"approved"`
+	// Paper is "a4" or "letter" ("" is a4).
+	Paper     string     `yaml:"paper"`
+	Revisions []Revision `yaml:"revisions"`
 }
 
 // FrontMatter holds the keys of a document's front matter (LANGUAGE.md
-// section 1).
+// section 1): the title block and how values are shown.
 type FrontMatter struct {
-	Title, Project, Number, Revision string
-	Prepared, Checked, Approved      string
-	Date, Client                     string
-	Revisions                        []Revision
-	Digits                           int             // significant figures shown, 2 to 12
-	Phasors                          string          // "rms" or "peak"
-	Paper                            string          // "a4" or "letter"
-	Units                            *expr.Preferred // preferred display units, or nil
-	Present                          bool            // the document has front matter
+	TitleBlock
+	Digits  int             // significant figures shown, 2 to 12
+	Phasors string          // "rms" or "peak"
+	Units   *expr.Preferred // preferred display units, or nil
+	Present bool            // the document has front matter
 }
 
 // DefaultDigits is the number of significant figures shown when the front
@@ -161,7 +178,7 @@ func parseFrontMatter(text []byte, fm *FrontMatter, errs, warns *expr.ErrorList)
 			fm.Client = str(k, v)
 		case "date":
 			fm.Date = str(k, v)
-			if fm.Date != "" && !validDate(fm.Date) {
+			if fm.Date != "" && !ValidDate(fm.Date) {
 				errs.Add(pos(v), fmt.Sprintf("front matter key \"date\": %q is not a date written YYYY-MM-DD", fm.Date))
 			}
 		case "digits":
@@ -207,7 +224,7 @@ func parseFrontMatter(text []byte, fm *FrontMatter, errs, warns *expr.ErrorList)
 						r.Rev = val
 					case "date":
 						r.Date = val
-						if val != "" && !validDate(val) {
+						if val != "" && !ValidDate(val) {
 							errs.Add(pos(rv), fmt.Sprintf("revision date %q is not a date written YYYY-MM-DD", val))
 						}
 					case "by":
@@ -226,7 +243,9 @@ func parseFrontMatter(text []byte, fm *FrontMatter, errs, warns *expr.ErrorList)
 	}
 }
 
-func validDate(s string) bool {
+// ValidDate reports whether s is a date written YYYY-MM-DD that exists in
+// the calendar (time.Parse's reading of the layout 2006-01-02).
+func ValidDate(s string) bool {
 	if !dateRE.MatchString(s) {
 		return false
 	}

@@ -86,32 +86,53 @@ func (w *Writer) UnavailableRow(u *expr.UnavailableError) {
 
 // Sheet writes the HTML sheet of a document.
 func Sheet(doc *calcdoc.Document, opt Options) ([]byte, error) {
-	w := &Writer{Doc: doc, values: map[valueKey]shownValue{}}
+	w := newWriter(doc)
 	// a sheet is about fifteen times its source: grow once, not by doubling
 	w.Grow(64<<10 + 20*len(doc.Source))
-	fm := doc.Front
-	title := fm.Title
-	if title == "" {
-		title = baseName(doc.Path)
-	}
 	w.WriteString("<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n")
 	w.Printf("<meta name=\"generator\" content=\"calcdoc %s\">\n", esc(opt.Version))
-	w.Printf("<title>%s</title>\n", esc(sheetTitle(fm, title)))
+	w.Printf("<title>%s</title>\n", esc(HeadTitle(doc)))
 	w.WriteString("<style>\n")
-	w.WriteString(css)
-	w.WriteString(pageCSS(fm, opt))
+	w.WriteString(CSS)
+	w.WriteString(PageCSS(doc, opt))
 	w.WriteString("</style>\n")
 	w.WriteString(opt.HeadExtra)
 	w.WriteString("</head>\n<body>\n")
-	if m := markerText(doc, opt); m != "" {
+	if err := body(w, doc, opt); err != nil {
+		return nil, err
+	}
+	w.WriteString("</body>\n</html>\n")
+	return w.Bytes(), nil
+}
+
+// Body writes what a sheet holds in its <body>: the marker of a sheet not
+// fit for issue, the title block, the summary, the body, the appendix, the
+// stamp, the caution and the embedded source. A page that holds several
+// sheets (a package) composes it with CSS, PageCSS and HeadTitle, as Sheet
+// does.
+func Body(doc *calcdoc.Document, opt Options) ([]byte, error) {
+	w := newWriter(doc)
+	w.Grow(32<<10 + 20*len(doc.Source))
+	if err := body(w, doc, opt); err != nil {
+		return nil, err
+	}
+	return w.Bytes(), nil
+}
+
+func newWriter(doc *calcdoc.Document) *Writer {
+	return &Writer{Doc: doc, values: map[valueKey]shownValue{}}
+}
+
+func body(w *Writer, doc *calcdoc.Document, opt Options) error {
+	if m := MarkerText(doc, opt); m != "" {
 		w.Printf("<div class=\"marker\" aria-hidden=\"true\"><span>%s</span></div>\n", esc(m))
 		w.Printf("<p class=\"marker-text\">%s</p>\n", esc(m))
 	}
-	titleBlock(w, fm, title, opt)
+	titleBlock(w, doc.Front, SheetTitle(doc))
 	summary(w, doc)
 	w.WriteString("<main class=\"body\">\n")
 	if err := prose(w, doc); err != nil {
-		return nil, err
+		return err
 	}
 	w.WriteString("</main>\n")
 	if w.Appendix.Len() > 0 {
@@ -126,8 +147,22 @@ func Sheet(doc *calcdoc.Document, opt Options) ([]byte, error) {
 	if opt.EmbedSource {
 		embedSource(w, doc)
 	}
-	w.WriteString("</body>\n</html>\n")
-	return w.Bytes(), nil
+	return nil
+}
+
+// SheetTitle is the title a sheet shows: its front matter's, else the
+// file's base name.
+func SheetTitle(doc *calcdoc.Document) string {
+	if doc.Front.Title != "" {
+		return doc.Front.Title
+	}
+	return baseName(doc.Path)
+}
+
+// HeadTitle is the text of a sheet's <title>: the document number, if
+// any, and the title.
+func HeadTitle(doc *calcdoc.Document) string {
+	return sheetTitle(doc.Front, SheetTitle(doc))
 }
 
 func sheetTitle(fm calcdoc.FrontMatter, title string) string {
@@ -144,8 +179,8 @@ func baseName(p string) string {
 	return strings.TrimSuffix(p, ".md")
 }
 
-// cssString quotes s as a CSS string.
-func cssString(s string) string {
+// CSSString quotes s as a CSS string.
+func CSSString(s string) string {
 	var b strings.Builder
 	b.WriteByte('"')
 	for _, r := range s {
@@ -162,9 +197,11 @@ func cssString(s string) string {
 	return b.String()
 }
 
-// pageCSS is the @page rule: paper size and the margin boxes that put the
-// document number, revision and "page N of M" on every printed page.
-func pageCSS(fm calcdoc.FrontMatter, opt Options) string {
+// PageCSS is the @page rule of a sheet: paper size and the margin boxes
+// that put the document number, revision and "page N of M" on every
+// printed page.
+func PageCSS(doc *calcdoc.Document, opt Options) string {
+	fm := doc.Front
 	size := "A4"
 	if fm.Paper == "letter" {
 		size = "letter"
@@ -187,57 +224,58 @@ func pageCSS(fm calcdoc.FrontMatter, opt Options) string {
   @bottom-center { content: %s; font: 7pt monospace; }
   @bottom-right { content: "page " counter(page) " of " counter(pages); font: 8pt sans-serif; }
 }
-`, size, cssString(left), cssString(center))
+`, size, CSSString(left), CSSString(center))
 }
 
-func field(w *Writer, label, value string) {
+// Field writes one labelled cell of a title block.
+func Field(w *Writer, label, value string) {
 	if value == "" {
 		value = "—"
 	}
 	w.Printf("<td><span class=\"lbl\">%s</span><span class=\"val\">%s</span></td>", esc(label), esc(value))
 }
 
-func titleBlock(w *Writer, fm calcdoc.FrontMatter, title string, opt Options) {
+func titleBlock(w *Writer, fm calcdoc.FrontMatter, title string) {
 	w.WriteString("<header class=\"tb\">\n<table class=\"tb\">\n")
 	w.WriteString("<tr>")
-	field(w, "Project", fm.Project)
-	field(w, "Client", fm.Client)
-	field(w, "Document no.", fm.Number)
-	field(w, "Revision", fm.Revision)
+	Field(w, "Project", fm.Project)
+	Field(w, "Client", fm.Client)
+	Field(w, "Document no.", fm.Number)
+	Field(w, "Revision", fm.Revision)
 	w.WriteString("</tr>\n<tr class=\"tbtitle\">")
 	w.Printf("<td colspan=\"3\"><span class=\"lbl\">Title</span><span class=\"val title\">%s</span></td>", esc(title))
-	field(w, "Date", fm.Date)
+	Field(w, "Date", fm.Date)
 	w.WriteString("</tr>\n<tr>")
-	field(w, "Prepared", fm.Prepared)
-	field(w, "Checked", fm.Checked)
-	field(w, "Approved", fm.Approved)
+	Field(w, "Prepared", fm.Prepared)
+	Field(w, "Checked", fm.Checked)
+	Field(w, "Approved", fm.Approved)
 	ph := "RMS values"
 	if fm.Phasors == "peak" {
 		ph = "peak values"
 	}
-	field(w, "Phasors", ph)
+	Field(w, "Phasors", ph)
 	w.WriteString("</tr>\n</table>\n")
-	if len(fm.Revisions) > 0 {
-		w.WriteString("<table class=\"revs\"><caption>Revision history</caption>\n<tr><th>Rev</th><th>Date</th><th>By</th><th>Description</th></tr>\n")
-		for _, r := range fm.Revisions {
-			w.Printf("<tr><td>%s</td><td>%s</td><td>%s</td><td>%s</td></tr>\n", esc(r.Rev), esc(r.Date), esc(r.By), esc(r.Note))
-		}
-		w.WriteString("</table>\n")
-	}
+	RevisionHistory(w, "Revision history", fm.Revisions)
 	w.WriteString("</header>\n")
+}
+
+// RevisionHistory writes a title block's revision history as a table with
+// caption; nothing when there is none.
+func RevisionHistory(w *Writer, caption string, revs []calcdoc.Revision) {
+	if len(revs) == 0 {
+		return
+	}
+	w.Printf("<table class=\"revs\"><caption>%s</caption>\n<tr><th>Rev</th><th>Date</th><th>By</th><th>Description</th></tr>\n", esc(caption))
+	for _, r := range revs {
+		w.Printf("<tr><td>%s</td><td>%s</td><td>%s</td><td>%s</td></tr>\n", esc(r.Rev), esc(r.Date), esc(r.By), esc(r.Note))
+	}
+	w.WriteString("</table>\n")
 }
 
 // summary states at the top whether the sheet evaluated, how many checks
 // hold, and lists every error and warning with its position.
 func summary(w *Writer, doc *calcdoc.Document) {
-	failed := doc.FailedChecks()
-	held := 0
-	for _, c := range doc.Checks {
-		if c.Result != nil && c.Result.Pass {
-			held++
-		}
-	}
-	notEval := len(doc.Checks) - held - failed
+	held, failed, notEval := doc.CheckCounts()
 	state := "Evaluated without errors."
 	if len(doc.Errors) > 0 {
 		state = fmt.Sprintf("%d error%s: the sheet is incomplete.", len(doc.Errors), plural(len(doc.Errors)))

@@ -13,7 +13,6 @@ import (
 	"testing"
 
 	"calcdoc/calcdoc"
-	"calcdoc/calcdoc/stamp"
 	"calcdoc/render/pdf"
 	"calcdoc/render/pdf/pdftest"
 )
@@ -26,9 +25,9 @@ var goldenExamples = []string{"motor-pfc", "cable-voltage-drop", "earth-fault-lo
 // fixedOptions stamp a sheet with fixed facts, so the bytes depend on the
 // source alone.
 func fixedOptions(src []byte) Options {
-	return Options{Version: "test", EmbedSource: true, Stamp: &stamp.Stamp{
-		SHA256: stamp.Hash(src), Commit: "0123456789abcdef0123456789abcdef01234567", CommitDate: "2026-11-30T12:00:00Z",
-		State: stamp.Clean, Detail: "fixed stamp of the golden files",
+	return Options{Version: "test", EmbedSource: true, Stamp: &StampInfo{
+		SHA256: SourceHash(src), Commit: "0123456789abcdef0123456789abcdef01234567", CommitDate: "2026-11-30T12:00:00Z",
+		State: TreeClean, Detail: "fixed stamp of the golden files",
 	}}
 }
 

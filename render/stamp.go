@@ -2,29 +2,115 @@ package render
 
 import (
 	"bytes"
+	"crypto/sha256"
 	"encoding/base64"
+	"encoding/hex"
+	"fmt"
 	"unicode/utf8"
 
 	"calcdoc/calcdoc"
-	"calcdoc/calcdoc/stamp"
 )
 
-// StampInfo is what traces a sheet to its source.
-type StampInfo = stamp.Stamp
+// TreeState says how the source bytes relate to git.
+type TreeState int
 
-// markerText is the diagonal marker's wording, or "" for a sheet fit to
+const (
+	// TreeUnknown is the zero value: git was found but its answer could not be
+	// had or read (a timeout, a damaged repository, a path git refuses).
+	// Detail says what happened. A zero StampInfo never claims to be clean.
+	TreeUnknown TreeState = iota
+	// TreeClean: the bytes read are byte for byte the file's blob at HEAD.
+	// Commit is then the last commit that changed the file.
+	TreeClean
+	// TreeModified: HEAD holds the file, but the bytes read differ from its
+	// blob at HEAD, whether the change is unstaged or staged and not yet
+	// committed. Commit is the last commit that changed the file, i.e. the
+	// commit the uncommitted changes start from.
+	TreeModified
+	// TreeUntracked: HEAD does not hold the file. It was never added, or it is
+	// ignored, or it is only added to the index and never committed, or the
+	// repository has no commit yet. Commit is "".
+	TreeUntracked
+	// TreeNoRepo: the file is not inside a git work tree. Commit is "".
+	TreeNoRepo
+	// TreeNoGit: no git executable was found in PATH. Commit is "".
+	TreeNoGit
+)
+
+// String returns a lower-case name for the state: "unknown", "clean",
+// "modified", "untracked", "no-repo" or "no-git".
+func (s TreeState) String() string {
+	switch s {
+	case TreeUnknown:
+		return "unknown"
+	case TreeClean:
+		return "clean"
+	case TreeModified:
+		return "modified"
+	case TreeUntracked:
+		return "untracked"
+	case TreeNoRepo:
+		return "no-repo"
+	case TreeNoGit:
+		return "no-git"
+	}
+	return fmt.Sprintf("State(%d)", int(s))
+}
+
+// ParseTreeState is the inverse of TreeState.String; ok is false for a
+// word it does not give.
+func ParseTreeState(s string) (st TreeState, ok bool) {
+	for st := TreeUnknown; st <= TreeNoGit; st++ {
+		if st.String() == s {
+			return st, true
+		}
+	}
+	return TreeUnknown, false
+}
+
+// StampInfo is what traces a sheet to its source, as the sheet shows it:
+// plain data, filled in by the issuing layer (render/stamp finds it from
+// git).
+type StampInfo struct {
+	// SHA256 is the lower-case hex SHA-256 (FIPS 180-4) of the source
+	// bytes, 64 characters.
+	SHA256 string
+	// Commit is the full hash of the last commit in HEAD's history that
+	// changed the file (as `git log -1 --format=%H -- FILE`), or "" when
+	// State is not TreeClean or TreeModified.
+	Commit string
+	// CommitDate is that commit's committer date in strict ISO 8601 with
+	// the committer's offset (as `git log -1 --format=%cI`), e.g.
+	// "2024-03-05T10:20:30+01:00"; "" when Commit is "".
+	CommitDate string
+	// State says how the bytes relate to git.
+	State TreeState
+	// Detail is one sentence for the sheet that says what State means for
+	// this file, e.g. "git is not installed; no commit recorded".
+	Detail string
+}
+
+// SourceHash returns the lower-case hexadecimal SHA-256 digest (FIPS
+// 180-4) of src: 64 characters, the same as the first field that
+// `sha256sum` prints.
+func SourceHash(src []byte) string {
+	sum := sha256.Sum256(src)
+	return hex.EncodeToString(sum[:])
+}
+
+// MarkerText is the diagonal marker's wording, or "" for a sheet fit to
 // issue: one built from uncommitted changes, or with failing checks or
 // errors, is marked.
-func markerText(doc *calcdoc.Document, opt Options) string {
+func MarkerText(doc *calcdoc.Document, opt Options) string {
 	var why string
 	switch {
 	case len(doc.Errors) > 0:
 		why = "errors in the calculation"
 	case doc.FailedChecks() > 0:
 		why = "a check is not satisfied"
-	case opt.Stamp != nil && opt.Stamp.State != stamp.Clean:
+	case opt.Stamp != nil && opt.Stamp.State != TreeClean:
 		switch opt.Stamp.State {
-		case stamp.Modified, stamp.Untracked:
+		case TreeModified, TreeUntracked:
 			why = "uncommitted changes"
 		default:
 			why = "source not under version control"
@@ -57,29 +143,30 @@ func stampSection(w *Writer, doc *calcdoc.Document, opt Options) {
 	}
 	row("Last commit of the file", commit)
 	row("Working tree", esc(stateWords(s.State))+"; "+esc(s.Detail))
-	row("Revision and date", esc(orDash(doc.Front.Revision))+", "+esc(orDash(doc.Front.Date)))
+	row("Revision and date", esc(OrDash(doc.Front.Revision))+", "+esc(OrDash(doc.Front.Date)))
 	row("calcdoc version", esc(opt.Version))
 	w.WriteString("</table>\n</section>\n")
 }
 
-func orDash(s string) string {
+// OrDash is s, or a dash where it is empty.
+func OrDash(s string) string {
 	if s == "" {
 		return "—"
 	}
 	return s
 }
 
-func stateWords(s stamp.State) string {
+func stateWords(s TreeState) string {
 	switch s {
-	case stamp.Clean:
+	case TreeClean:
 		return "clean: the file is as committed"
-	case stamp.Modified:
+	case TreeModified:
 		return "uncommitted changes: the file differs from the last commit"
-	case stamp.Untracked:
+	case TreeUntracked:
 		return "uncommitted changes: the file is not committed"
-	case stamp.NoRepo:
+	case TreeNoRepo:
 		return "not in a git repository"
-	case stamp.NoGit:
+	case TreeNoGit:
 		return "git not available"
 	}
 	return "unknown"
@@ -97,7 +184,7 @@ func embedSource(w *Writer, doc *calcdoc.Document) {
 	if !text {
 		enc = "base64"
 	}
-	w.Printf("<pre hidden id=\"%s\" data-path=\"%s\" data-encoding=\"%s\" data-sha256=\"%s\">", SourceID, esc(doc.Path), enc, stamp.Hash(doc.Source))
+	w.Printf("<pre hidden id=\"%s\" data-path=\"%s\" data-encoding=\"%s\" data-sha256=\"%s\">", SourceID, esc(doc.Path), enc, SourceHash(doc.Source))
 	if text {
 		escapeInto(&w.Buffer, doc.Source)
 	} else {

@@ -1,9 +1,9 @@
 package render
 
-// css is the sheet's style: plain, dense and legible, thin black rules,
+// CSS is the sheet's style: plain, dense and legible, thin black rules,
 // a narrow gutter of source line numbers, nothing that needs colour to be
 // understood (verdicts and errors are words).
-const css = `:root { --rule: 0.6pt solid #222; --thin: 0.4pt solid #888; }
+const CSS = `:root { --rule: 0.6pt solid #222; --thin: 0.4pt solid #888; }
 * { box-sizing: border-box; }
 html { background: #f4f4f0; }
 body { font: 10pt/1.35 "DejaVu Sans", "Liberation Sans", Arial, sans-serif; color: #111; background: #fff;

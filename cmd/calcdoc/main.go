@@ -4,17 +4,16 @@
 package main
 
 import (
+	"errors"
 	"flag"
 	"fmt"
 	"io"
 	"os"
 	"path/filepath"
 	"runtime/debug"
-	"strings"
 
 	"calcdoc/calcdoc"
-	"calcdoc/calcdoc/stamp"
-	"calcdoc/render"
+	"calcdoc/cmd/internal/build"
 )
 
 // version is calcdoc's version; a release build may set it with
@@ -149,16 +148,13 @@ func (c *cli) printErrors(doc *calcdoc.Document) {
 	}
 }
 
-// SheetOptions are the options of a built sheet: stamped and carrying its
+// sheetOptions are the options of a built sheet: stamped and carrying its
 // source.
-func sheetOptions(doc *calcdoc.Document) render.Options {
-	st := stamp.Of(doc.Path, doc.Source)
-	return render.Options{Version: version, Stamp: &st, EmbedSource: true}
-}
+func sheetOptions(doc *calcdoc.Document) build.Options { return build.Stamped(doc, version) }
 
 // inputs parses the flags of a command that takes PATHs and collects its
 // documents; st is exitOK, or the usage status to return.
-func (c *cli) inputs(fs *flag.FlagSet, args []string) (inputs []calcdoc.Input, st int) {
+func (c *cli) inputs(fs *flag.FlagSet, args []string) (inputs []build.Input, st int) {
 	paths, err := parseFlags(fs, args)
 	if err != nil {
 		return nil, exitUsage
@@ -166,7 +162,7 @@ func (c *cli) inputs(fs *flag.FlagSet, args []string) (inputs []calcdoc.Input, s
 	if len(paths) == 0 {
 		return nil, c.usageErr("%s needs at least one PATH", fs.Name())
 	}
-	inputs, err = calcdoc.Collect(paths)
+	inputs, err = build.Collect(paths)
 	if err != nil {
 		return nil, c.usageErr("%v", err)
 	}
@@ -180,7 +176,7 @@ func (c *cli) build(args []string) int {
 	if st0 != exitOK {
 		return st0
 	}
-	single := *out != "" && strings.HasSuffix(strings.ToLower(*out), ".html")
+	single := *out != "" && build.OutIsFile(*out)
 	if single && len(inputs) != 1 {
 		return c.usageErr("-o %s names one file, but there are %d documents: give a folder", *out, len(inputs))
 	}
@@ -193,30 +189,23 @@ func (c *cli) build(args []string) int {
 			continue
 		}
 		c.printErrors(doc)
-		html, err := render.Sheet(doc, sheetOptions(doc))
-		if err != nil {
+		target := build.Target(*out, in.Path, in.Rel)
+		var re *build.RenderError
+		var we *build.WriteError
+		switch err := build.Write(doc, sheetOptions(doc), in.Path, target, nil); {
+		case errors.As(err, &re):
 			fmt.Fprintf(c.stderr, "%s: cannot render: %v\n", in.Path, err)
 			st = exitError
 			continue
-		}
-		target := strings.TrimSuffix(in.Path, ".md") + ".html"
-		switch {
-		case single:
-			target = *out
-		case *out != "":
-			target = filepath.Join(*out, strings.TrimSuffix(in.Rel, ".md")+".html")
-		}
-		if calcdoc.SameFile(target, in.Path) {
+		case errors.Is(err, build.ErrOverSource):
 			fmt.Fprintf(c.stderr, "%s: refusing to write the sheet over its source\n", in.Path)
 			st = exitUsage
 			continue
-		}
-		if err := os.MkdirAll(filepath.Dir(target), 0o755); err != nil {
+		case errors.As(err, &we) && we.Folder:
 			fmt.Fprintf(c.stderr, "calcdoc: %v\n", err)
 			st = exitError
 			continue
-		}
-		if err := calcdoc.WriteFileAtomic(target, html); err != nil {
+		case err != nil:
 			fmt.Fprintf(c.stderr, "calcdoc: cannot write %s: %v\n", target, err)
 			st = exitError
 			continue
@@ -229,16 +218,7 @@ func (c *cli) build(args []string) int {
 
 // summaryLine says how a document evaluated.
 func summaryLine(doc *calcdoc.Document) string {
-	held, failed := 0, 0
-	for _, ch := range doc.Checks {
-		if ch.Result != nil {
-			if ch.Result.Pass {
-				held++
-			} else {
-				failed++
-			}
-		}
-	}
+	held, failed, _ := doc.CheckCounts()
 	s := fmt.Sprintf("%d values, %d checks (%d satisfied, %d not satisfied), %d errors", len(doc.Values), len(doc.Checks), held, failed, len(doc.Errors))
 	if len(doc.Warnings) > 0 {
 		s += fmt.Sprintf(", %d warnings", len(doc.Warnings))

@@ -8,12 +8,11 @@ import (
 	"io"
 	"os"
 	"path/filepath"
-	"regexp"
 	"slices"
-	"time"
 
 	"calcdoc/calcdoc"
-	"calcdoc/render"
+	"calcdoc/cmd/internal/build"
+	"calcdoc/render/pack"
 	"calcdoc/render/pdf"
 
 	"go.yaml.in/yaml/v3"
@@ -37,36 +36,11 @@ var (
 	readPDF  = pdf.PDFText
 )
 
-// packageSpec is a package file (YAML). Sheets are paths relative to the
-// file's folder.
+// packageSpec is a package file (YAML): the package's title block and
+// its sheets, paths relative to the file's folder.
 type packageSpec struct {
-	Title     string `yaml:"title"`
-	Project   string `yaml:"project"`
-	Client    string `yaml:"client"`
-	Number    string `yaml:"number"`
-	Revision  string `yaml:"revision"`
-	Date      string `yaml:"date"`
-	Prepared  string `yaml:"prepared"`
-	Checked   string `yaml:"checked"`
-	Approved  string `yaml:"approved"`
-	Paper     string `yaml:"paper"`
-	Revisions []struct {
-		Rev  string `yaml:"rev"`
-		Date string `yaml:"date"`
-		By   string `yaml:"by"`
-		Note string `yaml:"note"`
-	} `yaml:"revisions"`
-	Sheets []string `yaml:"sheets"`
-}
-
-var specDateRE = regexp.MustCompile(`^\d{4}-\d{2}-\d{2}$`)
-
-func validSpecDate(s string) bool {
-	if !specDateRE.MatchString(s) {
-		return false
-	}
-	_, err := time.Parse("2006-01-02", s)
-	return err == nil
+	calcdoc.TitleBlock `yaml:",inline"`
+	Sheets             []string `yaml:"sheets"`
 }
 
 // readSpec reads a package file. Every key must be known: a misspelt key
@@ -82,11 +56,11 @@ func readSpec(path string) (*packageSpec, error) {
 	if err := dec.Decode(&spec); err != nil && !errors.Is(err, io.EOF) {
 		return nil, fmt.Errorf("%s: %v (known keys: title, project, client, number, revision, date, prepared, checked, approved, paper, revisions, sheets)", path, err)
 	}
-	if spec.Date != "" && !validSpecDate(spec.Date) {
+	if spec.Date != "" && !calcdoc.ValidDate(spec.Date) {
 		return nil, fmt.Errorf("%s: date %q is not a date written YYYY-MM-DD", path, spec.Date)
 	}
 	for _, r := range spec.Revisions {
-		if r.Date != "" && !validSpecDate(r.Date) {
+		if r.Date != "" && !calcdoc.ValidDate(r.Date) {
 			return nil, fmt.Errorf("%s: revision %s: date %q is not a date written YYYY-MM-DD", path, r.Rev, r.Date)
 		}
 	}
@@ -111,7 +85,7 @@ func (c *cli) pack(args []string) int {
 	if err != nil {
 		return exitUsage
 	}
-	if *date != "" && !validSpecDate(*date) {
+	if *date != "" && !calcdoc.ValidDate(*date) {
 		return c.usageErr("--date %q is not a date written YYYY-MM-DD", *date)
 	}
 
@@ -147,7 +121,7 @@ func (c *cli) pack(args []string) int {
 	default:
 		sheetPaths = paths
 	}
-	inputs, err := calcdoc.Collect(sheetPaths)
+	inputs, err := build.Collect(sheetPaths)
 	if err != nil {
 		return c.usageErr("%v", err)
 	}
@@ -165,11 +139,11 @@ func (c *cli) pack(args []string) int {
 		target = defaultPackage
 	}
 	for _, in := range inputs {
-		if calcdoc.SameFile(target, in.Path) || (*pdfOut != "" && calcdoc.SameFile(*pdfOut, in.Path)) {
+		if build.SameFile(target, in.Path) || (*pdfOut != "" && build.SameFile(*pdfOut, in.Path)) {
 			return c.usageErr("refusing to write the package over its source %s", in.Path)
 		}
 	}
-	if *pdfOut != "" && calcdoc.SameFile(*pdfOut, target) {
+	if *pdfOut != "" && build.SameFile(*pdfOut, target) {
 		return c.usageErr("--pdf %s and the HTML package are the same file", *pdfOut)
 	}
 
@@ -183,14 +157,9 @@ func (c *cli) pack(args []string) int {
 		docs = append(docs, doc)
 	}
 
-	info := render.PackageInfo{
-		Title: pick(*title, spec.Title), Project: pick(*project, spec.Project), Client: pick(*client, spec.Client),
-		Number: pick(*number, spec.Number), Revision: pick(*revision, spec.Revision), Date: pick(*date, spec.Date),
-		Prepared: spec.Prepared, Checked: spec.Checked, Approved: spec.Approved, Paper: spec.Paper,
-	}
-	for _, r := range spec.Revisions {
-		info.Revisions = append(info.Revisions, calcdoc.Revision{Rev: r.Rev, Date: r.Date, By: r.By, Note: r.Note})
-	}
+	info := pack.Info{TitleBlock: spec.TitleBlock}
+	info.Title, info.Project, info.Client = pick(*title, spec.Title), pick(*project, spec.Project), pick(*client, spec.Client)
+	info.Number, info.Revision, info.Date = pick(*number, spec.Number), pick(*revision, spec.Revision), pick(*date, spec.Date)
 	if info.Project == "" {
 		info.Project = common(docs, func(fm calcdoc.FrontMatter) string { return fm.Project })
 	}
@@ -202,7 +171,7 @@ func (c *cli) pack(args []string) int {
 	}
 
 	st := exitOK
-	sheets := make([]render.PackageSheet, len(docs))
+	sheets := make([]pack.Sheet, len(docs))
 	numbers := map[string]string{}
 	for i, doc := range docs {
 		c.printErrors(doc)
@@ -213,10 +182,10 @@ func (c *cli) pack(args []string) int {
 			}
 			numbers[n] = doc.Path
 		}
-		sheets[i] = render.PackageSheet{Doc: doc, Options: sheetOptions(doc)}
+		sheets[i] = pack.Sheet{Doc: doc, Options: sheetOptions(doc)}
 		st = status(doc, st)
 	}
-	page, err := render.Package(info, sheets, version)
+	page, err := pack.Package(info, sheets, version)
 	if err != nil {
 		fmt.Fprintf(c.stderr, "calcdoc: cannot render the package: %v\n", err)
 		return exitError
@@ -225,7 +194,7 @@ func (c *cli) pack(args []string) int {
 		fmt.Fprintf(c.stderr, "calcdoc: %v\n", err)
 		return exitError
 	}
-	if err := calcdoc.WriteFileAtomic(target, page); err != nil {
+	if err := build.WriteFileAtomic(target, page); err != nil {
 		fmt.Fprintf(c.stderr, "calcdoc: cannot write %s: %v\n", target, err)
 		return exitError
 	}
@@ -233,7 +202,7 @@ func (c *cli) pack(args []string) int {
 	for i, s := range sheets {
 		hashes[i] = s.Options.Stamp.SHA256
 	}
-	fmt.Fprintf(c.stdout, "package -> %s: %d sheets, package sha256 %s\n", target, len(sheets), render.PackageHash(hashes))
+	fmt.Fprintf(c.stdout, "package -> %s: %d sheets, package sha256 %s\n", target, len(sheets), pack.Hash(hashes))
 
 	if *pdfOut != "" {
 		err := c.printPackage(info, sheets, target, *pdfOut)
@@ -255,7 +224,7 @@ func (c *cli) pack(args []string) int {
 // starts, writes the package again with those pages in its contents and
 // prints it once more (the contents keep room for the numbers, so no page
 // moves); otherwise the contents go without page numbers, and it says so.
-func (c *cli) printPackage(info render.PackageInfo, sheets []render.PackageSheet, target, pdfPath string) error {
+func (c *cli) printPackage(info pack.Info, sheets []pack.Sheet, target, pdfPath string) error {
 	ctx := context.Background()
 	if err := printPDF(ctx, target, pdfPath); err != nil {
 		return err
@@ -265,24 +234,24 @@ func (c *cli) printPackage(info render.PackageInfo, sheets []render.PackageSheet
 		fmt.Fprintf(c.stderr, "calcdoc: note: the contents have no page numbers: %v\n", err)
 		return nil
 	}
-	starts, ok := render.SheetStartPages(pages, len(sheets))
+	starts, ok := pack.SheetStartPages(pages, len(sheets))
 	if !ok {
 		fmt.Fprintf(c.stderr, "calcdoc: note: the contents have no page numbers: the sheets' first pages were not found in the printed text\n")
 		return nil
 	}
 	info.StartPages = starts
-	page, err := render.Package(info, sheets, version)
+	page, err := pack.Package(info, sheets, version)
 	if err != nil {
 		return err
 	}
-	if err := calcdoc.WriteFileAtomic(target, page); err != nil {
+	if err := build.WriteFileAtomic(target, page); err != nil {
 		return fmt.Errorf("cannot write %s: %v", target, err)
 	}
 	if err := printPDF(ctx, target, pdfPath); err != nil {
 		return err
 	}
 	if pages, err := readPDF(ctx, pdfPath); err == nil {
-		if again, ok := render.SheetStartPages(pages, len(sheets)); !ok || !slices.Equal(again, starts) {
+		if again, ok := pack.SheetStartPages(pages, len(sheets)); !ok || !slices.Equal(again, starts) {
 			fmt.Fprintf(c.stderr, "calcdoc: warning: the sheets moved when the contents got their page numbers: check the contents of %s\n", pdfPath)
 		}
 	}

@@ -4,7 +4,7 @@ import (
 	"fmt"
 	"os"
 
-	"calcdoc/render"
+	"calcdoc/render/verify"
 )
 
 func init() {
@@ -32,8 +32,8 @@ func (c *cli) verify(args []string) int {
 			st = max(st, exitUsage)
 			continue
 		}
-		rep, err := render.Verify(page, version)
-		if err != nil { // render.ErrNotSheet
+		rep, err := verify.Verify(page, version)
+		if err != nil { // verify.ErrNotSheet
 			fmt.Fprintf(c.stderr, "calcdoc: %s: %v\n", p, err)
 			st = max(st, exitUsage)
 			continue
@@ -48,7 +48,7 @@ func (c *cli) verify(args []string) int {
 
 // printReport writes one line per sheet and an indented line per
 // difference.
-func (c *cli) printReport(path string, rep *render.Report) {
+func (c *cli) printReport(path string, rep *verify.Report) {
 	if rep.Package {
 		verdict := "matches"
 		if !rep.OK() {

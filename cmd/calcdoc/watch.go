@@ -9,7 +9,7 @@ import (
 	"os/signal"
 	"syscall"
 
-	"calcdoc/calcdoc/watch"
+	"calcdoc/cmd/internal/preview"
 )
 
 func init() {
@@ -21,7 +21,7 @@ func init() {
 // missing PATH, bad -o or --addr), 3 when it cannot listen or watch.
 func (c *cli) watch(args []string) int {
 	fs := c.flagSet("watch")
-	addr := fs.String("addr", watch.DefaultAddr, "HOST:PORT to serve the preview on; an address other than loopback shows the sheets to the network")
+	addr := fs.String("addr", preview.DefaultAddr, "HOST:PORT to serve the preview on; an address other than loopback shows the sheets to the network")
 	out := fs.String("o", "", "also write each sheet on every save: into this folder, or into this .html file for one document")
 	paths, err := parseFlags(fs, args)
 	if err != nil {
@@ -31,15 +31,15 @@ func (c *cli) watch(args []string) int {
 		return c.usageErr("watch needs at least one PATH")
 	}
 	if _, _, err := net.SplitHostPort(*addr); err != nil {
-		return c.usageErr("--addr %s: %v (give HOST:PORT, such as %s)", *addr, err, watch.DefaultAddr)
+		return c.usageErr("--addr %s: %v (give HOST:PORT, such as %s)", *addr, err, preview.DefaultAddr)
 	}
 	ln, err := net.Listen("tcp", *addr)
 	if err != nil {
 		fmt.Fprintf(c.stderr, "calcdoc: cannot serve on %s: %v\n", *addr, err)
 		return exitError
 	}
-	public := !watch.IsLoopback(ln.Addr())
-	w, err := watch.New(watch.Config{
+	public := !preview.IsLoopback(ln.Addr())
+	w, err := preview.New(preview.Config{
 		Paths:   paths,
 		Out:     *out,
 		Version: version,
@@ -49,7 +49,7 @@ func (c *cli) watch(args []string) int {
 	})
 	if err != nil {
 		ln.Close()
-		var ce *watch.ConfigError
+		var ce *preview.ConfigError
 		if errors.As(err, &ce) {
 			return c.usageErr("%v", err)
 		}
@@ -62,7 +62,7 @@ func (c *cli) watch(args []string) int {
 	fmt.Fprintf(c.stdout, "serving the preview at http://%s/ (stop with Ctrl-C)\n", ln.Addr())
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	defer stop()
-	if err := watch.Serve(ctx, ln, w); err != nil {
+	if err := preview.Serve(ctx, ln, w); err != nil {
 		fmt.Fprintf(c.stderr, "calcdoc: %v\n", err)
 		return exitError
 	}

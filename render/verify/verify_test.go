@@ -1,27 +1,31 @@
-package render
+package verify
 
 import (
 	"errors"
+	"fmt"
 	"os"
 	"path/filepath"
 	"strings"
 	"testing"
 
 	"calcdoc/calcdoc"
-	"calcdoc/calcdoc/stamp"
+	"calcdoc/render"
+	"calcdoc/render/internal/sheettest"
+	"calcdoc/render/pack"
+	"calcdoc/render/stamp"
 )
 
 // verifyStamp is a stamp as stamp.Of gives it for a file outside any
 // repository, with a detail that needs escaping in an attribute.
-func verifyStamp(src []byte) *StampInfo {
-	return &StampInfo{SHA256: stamp.Hash(src), Commit: "89abcdef0123456789abcdef0123456789abcdef", CommitDate: "2026-11-02T09:30:00+01:00",
+func verifyStamp(src []byte) *render.StampInfo {
+	return &render.StampInfo{SHA256: stamp.Hash(src), Commit: "89abcdef0123456789abcdef0123456789abcdef", CommitDate: "2026-11-02T09:30:00+01:00",
 		State: stamp.Modified, Detail: `source differs from its last commit 89abcdef0123 of 2026-11-02T09:30:00+01:00: uncommitted changes & "quotes" <kept>`}
 }
 
 func verifySheet(t *testing.T, path, src, version string) []byte {
 	t.Helper()
 	doc := calcdoc.Parse(path, []byte(src))
-	page, err := Sheet(doc, Options{Version: version, Stamp: verifyStamp([]byte(src)), EmbedSource: true})
+	page, err := render.Sheet(doc, render.Options{Version: version, Stamp: verifyStamp([]byte(src)), EmbedSource: true})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -44,7 +48,7 @@ func replaceAfter(t *testing.T, s, mark, old, new string) string {
 	return s[:j] + new + s[j+len(old):]
 }
 
-// In stampDoc (stamp_test.go), P = V²/R = (230 V)²/26.45 Ω = 52 900/26.45 W
+// In sheettest.HeaterDoc (stamp_test.go), P = V²/R = (230 V)²/26.45 Ω = 52 900/26.45 W
 // = 2000 W exactly (Joule's law, common practice), on line 11; the check
 // P <= 2.1 kW is on line 12.
 func TestVerifySheet(t *testing.T) {
@@ -94,7 +98,7 @@ func TestVerifySheet(t *testing.T) {
 			},
 			false, []string{"text"}, []string{"heater circuits"}},
 	}
-	orig := verifySheet(t, "calc/heater.md", stampDoc, "0.1.0")
+	orig := verifySheet(t, "calc/heater.md", sheettest.HeaterDoc, "0.1.0")
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
 			page := c.edit(t, string(orig))
@@ -133,7 +137,7 @@ func TestVerifySheet(t *testing.T) {
 // A value row that names one value of several, and the text line of a
 // difference, are read back as they are on the page.
 func TestVerifyNamesValueAndLine(t *testing.T) {
-	page := string(verifySheet(t, "heater.md", stampDoc, "0.1.0"))
+	page := string(verifySheet(t, "heater.md", sheettest.HeaterDoc, "0.1.0"))
 	edited := replaceAfter(t, page, `data-value="R" data-line="10">`, "<mn>26.45</mn>", "<mn>26.54</mn>")
 	rep, err := Verify([]byte(edited), "0.1.0")
 	if err != nil {
@@ -170,9 +174,9 @@ func TestVerifyNamesValueAndLine(t *testing.T) {
 // A source that is not UTF-8 is carried as base64 and recovered byte for
 // byte: its hash is sha256sum's of the file (GNU coreutils).
 func TestVerifyBase64Source(t *testing.T) {
-	src := strings.Replace(stampDoc, "heater circuit", "heater \xff circuit", 1)
+	src := strings.Replace(sheettest.HeaterDoc, "heater circuit", "heater \xff circuit", 1)
 	p := filepath.Join(t.TempDir(), "latin.md")
-	writeFile(t, p, src)
+	sheettest.WriteFile(t, p, src)
 	page := verifySheet(t, "latin.md", src, "0.1.0")
 	if !strings.Contains(string(page), `data-encoding="base64"`) {
 		t.Fatal("the source is not carried as base64")
@@ -184,7 +188,7 @@ func TestVerifyBase64Source(t *testing.T) {
 	if !rep.OK() {
 		t.Fatalf("does not verify: %v", rep.Sheets[0].Differences)
 	}
-	if got, want := rep.Sheets[0].SHA256, coreutilsSHA256(t, p); got != want {
+	if got, want := rep.Sheets[0].SHA256, sheettest.Sha256sum(t, p); got != want {
 		t.Errorf("recovered hash %s, sha256sum says %s", got, want)
 	}
 	// a damaged base64 body is named, not a panic
@@ -203,7 +207,7 @@ func TestVerifyBase64Source(t *testing.T) {
 
 // A sheet built by another version says so when it does not match.
 func TestVerifyVersionNote(t *testing.T) {
-	page := verifySheet(t, "heater.md", stampDoc, "0.0.9")
+	page := verifySheet(t, "heater.md", sheettest.HeaterDoc, "0.0.9")
 	rep, err := Verify(page, "0.1.0")
 	if err != nil {
 		t.Fatal(err)
@@ -215,7 +219,7 @@ func TestVerifyVersionNote(t *testing.T) {
 	if n := s.VersionNote(); !strings.Contains(n, "built by calcdoc 0.0.9 and is verified by calcdoc 0.1.0") {
 		t.Errorf("version note %q", n)
 	}
-	same := verifySheet(t, "heater.md", stampDoc, "0.1.0")
+	same := verifySheet(t, "heater.md", sheettest.HeaterDoc, "0.1.0")
 	rep, _ = Verify(same, "0.1.0")
 	if n := rep.Sheets[0].VersionNote(); n != "" {
 		t.Errorf("same version gives a note %q", n)
@@ -223,7 +227,7 @@ func TestVerifyVersionNote(t *testing.T) {
 }
 
 func TestVerifyNotASheet(t *testing.T) {
-	src, err := os.ReadFile(filepath.Join("..", "examples", "motor-pfc.md"))
+	src, err := os.ReadFile(filepath.Join("..", "..", "examples", "motor-pfc.md"))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -235,8 +239,8 @@ func TestVerifyNotASheet(t *testing.T) {
 		{"plain html", "<!DOCTYPE html><html><body><p>hello</p></body></html>"},
 		{"markdown source", string(src)},
 		{"sheet without embedded source", func() string {
-			doc := calcdoc.Parse("a.md", []byte(stampDoc))
-			p, _ := Sheet(doc, Options{Version: "t", Stamp: verifyStamp([]byte(stampDoc))})
+			doc := calcdoc.Parse("a.md", []byte(sheettest.HeaterDoc))
+			p, _ := render.Sheet(doc, render.Options{Version: "t", Stamp: verifyStamp([]byte(sheettest.HeaterDoc))})
 			return string(p)
 		}()},
 	} {
@@ -254,7 +258,9 @@ func TestPlainText(t *testing.T) {
 		{"scalar with unit", `<math display="inline"><mrow><mo>=</mo><mrow><mn>119.3</mn><mo>∠</mo><mn>−16.26</mn><mo>°</mo><mspace width="0.25em"/><mi mathvariant="normal">A</mi></mrow></mrow></math>`, "=119.3∠−16.26° A"},
 		{"matrix rows", `<mtable><mtr><mtd><mn>1</mn></mtd><mtd><mn>2</mn></mtd></mtr><mtr><mtd><mn>3</mn></mtd><mtd><mn>4</mn></mtd></mtr></mtable>`, "1 2 ; 3 4"},
 		{"entities", `<span>a &lt; b &amp; c</span>`, "a < b & c"},
-		{"a tag of blanks", "a< >b<>c", "abc"},
+		// WHATWG HTML, tokenization, "tag open state": a "<" not followed
+		// by a letter, "/" or "!" is text
+		{"a less-than sign that opens no tag", "a< >b<>c", "a< >b<>c"},
 		{"an unclosed tag", "a<mn", "a"},
 	} {
 		t.Run(c.name, func(t *testing.T) {
@@ -268,13 +274,13 @@ func TestPlainText(t *testing.T) {
 // Verify never panics on a damaged page, and a report that is OK has every
 // sheet matching with no difference.
 func FuzzVerify(f *testing.F) {
-	f.Add(verifySheetBytes(stampDoc))
-	f.Add(verifySheetBytes(strings.Replace(stampDoc, "heater", "h\xffeater", 1)))
-	var sheets []PackageSheet
-	for _, src := range []string{stampDoc, pkgDropDoc} {
-		sheets = append(sheets, PackageSheet{Doc: calcdoc.Parse("p.md", []byte(src)), Options: Options{Version: "f", Stamp: verifyStamp([]byte(src)), EmbedSource: true}})
+	f.Add(verifySheetBytes(sheettest.HeaterDoc))
+	f.Add(verifySheetBytes(strings.Replace(sheettest.HeaterDoc, "heater", "h\xffeater", 1)))
+	var sheets []pack.Sheet
+	for _, src := range []string{sheettest.HeaterDoc, sheettest.DropDoc} {
+		sheets = append(sheets, pack.Sheet{Doc: calcdoc.Parse("p.md", []byte(src)), Options: render.Options{Version: "f", Stamp: verifyStamp([]byte(src)), EmbedSource: true}})
 	}
-	if page, err := Package(pkgInfo, sheets, "f"); err == nil {
+	if page, err := pack.Package(pkgInfo, sheets, "f"); err == nil {
 		f.Add(page)
 	}
 	f.Fuzz(func(t *testing.T, page []byte) {
@@ -297,6 +303,114 @@ func FuzzVerify(f *testing.F) {
 
 func verifySheetBytes(src string) []byte {
 	doc := calcdoc.Parse("f.md", []byte(src))
-	page, _ := Sheet(doc, Options{Version: "f", Stamp: verifyStamp([]byte(src)), EmbedSource: true})
+	page, _ := render.Sheet(doc, render.Options{Version: "f", Stamp: verifyStamp([]byte(src)), EmbedSource: true})
 	return page
+}
+
+// Every sheet of a package verifies from the package's HTML alone; an
+// edited value, or a hash edited on the cover, is named.
+func TestVerifyPackage(t *testing.T) {
+	page := buildPackage(t, pkgFiles)
+	cases := []struct {
+		name     string
+		edit     func(t *testing.T, p string) string
+		badSheet int    // the sheet that must not match, 0 for none
+		say      string // what a difference must say
+		cover    bool   // a cover difference is expected
+	}{
+		{"untouched", func(t *testing.T, p string) string { return p }, 0, "", false},
+		{"a value of sheet 2 edited", func(t *testing.T, p string) string {
+			// dV = 2·12 A·7.41 mΩ/m·85 m = 15.12 V (Ohm's law, common practice), line 21
+			return replaceAfter(t, p, `data-value="dV" data-line="21">`, "<mn>15.12</mn>", "<mn>15.21</mn>")
+		}, 2, "value dV (line 21): sheet shows 15.21 V, source gives 15.12 V", false},
+		{"the source of sheet 3 edited", func(t *testing.T, p string) string {
+			return replaceAfter(t, p, `<pre hidden id="s3-calcdoc-source"`, "V_0 = 230 V", "V_0 = 240 V")
+		}, 3, "hash: the embedded source's SHA-256", true},
+		{"a hash on the cover edited", func(t *testing.T, p string) string {
+			return replaceAfter(t, p, `<tr data-sheet="1" data-sha256="`, `data-sha256="`, `data-sha256="f`)
+		}, 0, "hash: the cover lists sheet 1 with SHA-256 f", true},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			rep, err := Verify([]byte(c.edit(t, string(page))), "test")
+			if err != nil {
+				t.Fatal(err)
+			}
+			if !rep.Package || len(rep.Sheets) != 3 {
+				t.Fatalf("package %v with %d sheets", rep.Package, len(rep.Sheets))
+			}
+			var msgs []string
+			for _, d := range rep.PackageDifferences {
+				msgs = append(msgs, "cover: "+d.Message)
+			}
+			for _, s := range rep.Sheets {
+				if s.Match != (s.Index != c.badSheet) {
+					t.Errorf("sheet %d: match %v", s.Index, s.Match)
+				}
+				for _, d := range s.Differences {
+					msgs = append(msgs, fmt.Sprintf("sheet %d: %s", s.Index, d.Message))
+				}
+			}
+			all := strings.Join(msgs, "\n")
+			if rep.OK() != (c.badSheet == 0 && !c.cover) {
+				t.Errorf("OK %v:\n%s", rep.OK(), all)
+			}
+			if (len(rep.PackageDifferences) > 0) != c.cover {
+				t.Errorf("cover differences: %v", rep.PackageDifferences)
+			}
+			if !strings.Contains(all, c.say) {
+				t.Errorf("no difference says %q:\n%s", c.say, all)
+			}
+		})
+	}
+}
+
+type pkgFile struct{ name, src string }
+
+var pkgFiles = []pkgFile{
+	{"heater.md", sheettest.HeaterDoc},
+	{"drop.md", sheettest.DropDoc},
+	{"long.md", sheettest.LongDoc(110)},
+}
+
+var pkgInfo = pack.Info{TitleBlock: calcdoc.TitleBlock{Title: "Test works electrical calculations", Project: "Test works", Number: "TW-PKG-01", Revision: "A", Date: "2026-11-05",
+	Revisions: []calcdoc.Revision{{Rev: "A", Date: "2026-11-05", By: "TS", Note: "Issued for review"}}}}
+
+// buildPackage returns the package of the files' sheets, each stamped
+// clean with a fixed commit.
+func buildPackage(t *testing.T, files []pkgFile) []byte {
+	t.Helper()
+	var sheets []pack.Sheet
+	for _, f := range files {
+		st := &render.StampInfo{SHA256: stamp.Hash([]byte(f.src)), Commit: "0123456789abcdef0123456789abcdef01234567",
+			CommitDate: "2026-11-05T08:00:00Z", State: stamp.Clean, Detail: "source is as committed"}
+		sheets = append(sheets, pack.Sheet{Doc: calcdoc.Parse(f.name, []byte(f.src)), Options: render.Options{Version: "test", Stamp: st, EmbedSource: true}})
+	}
+	page, err := pack.Package(pkgInfo, sheets, "test")
+	if err != nil {
+		t.Fatal(err)
+	}
+	return page
+}
+
+// A source whose lines end in CR LF, or in a lone CR, is carried byte for
+// byte: the sheet verifies, and the hash is that of the bytes as given
+// (the HTML tokenizer turns CR LF into LF in the text it returns, so the
+// source must be read from the raw bytes).
+func TestVerifyLineEnds(t *testing.T) {
+	for name, src := range map[string]string{
+		"crlf":    strings.ReplaceAll(sheettest.HeaterDoc, "\n", "\r\n"),
+		"lone cr": strings.Replace(sheettest.HeaterDoc, "# heater", "\r", 1) + "Note.\rEnd.\n",
+	} {
+		t.Run(name, func(t *testing.T) {
+			page := verifySheet(t, "heater.md", src, "0.1.0")
+			rep, err := Verify(page, "0.1.0")
+			if err != nil {
+				t.Fatal(err)
+			}
+			if !rep.OK() || rep.Sheets[0].SHA256 != stamp.Hash([]byte(src)) {
+				t.Errorf("OK %v, hash %s, differences %v", rep.OK(), rep.Sheets[0].SHA256, rep.Sheets[0].Differences)
+			}
+		})
+	}
 }

@@ -1,4 +1,8 @@
-package calcdoc
+// Package build is what the command and the live preview share: the
+// inputs a PATH stands for, where each sheet goes, the stamp and options of
+// a built sheet, and the build step itself (render, refuse to write over
+// the source, write atomically).
+package build
 
 import (
 	"fmt"
@@ -6,15 +10,22 @@ import (
 	"io/fs"
 	"os"
 	"path/filepath"
-	"regexp"
 	"sort"
+	"strings"
+
+	"calcdoc/calcdoc"
 )
 
-// evaluatedFence matches the opening fence of a calc or solve block.
-var evaluatedFence = regexp.MustCompile("(?m)^[ ]{0,3}(```+|~~~+)[ \t]*(calc|solve)([ \t]|$)")
+// SkipDir reports whether a folder is never looked into when a PATH is a
+// folder.
+func SkipDir(name string) bool { return name == ".git" || name == "node_modules" }
 
-// HasCalc reports whether a document holds a calc or solve block.
-func HasCalc(src []byte) bool { return evaluatedFence.Match(src) }
+// Holds reports whether a file found below a folder PATH is a document to
+// build: it holds an evaluated block.
+func Holds(src []byte) bool { return calcdoc.HasCalc(src) }
+
+// IsMarkdown reports whether a file name is a document's (ends in .md).
+func IsMarkdown(name string) bool { return filepath.Ext(name) == ".md" }
 
 // Input is one document to process and the path of the output relative to
 // the PATH it was found under.
@@ -35,7 +46,7 @@ func Collect(paths []string) ([]Input, error) {
 			return nil, fmt.Errorf("%s: no such file or folder", p)
 		}
 		if !info.IsDir() {
-			if filepath.Ext(p) != ".md" {
+			if !IsMarkdown(p) {
 				return nil, fmt.Errorf("%s: not a Markdown document (the name must end in .md)", p)
 			}
 			out = append(out, Input{Path: p, Rel: filepath.Base(p)})
@@ -47,16 +58,16 @@ func Collect(paths []string) ([]Input, error) {
 				return nil // unreadable entries are skipped
 			}
 			if d.IsDir() {
-				if path != p && (d.Name() == ".git" || d.Name() == "node_modules") {
+				if path != p && SkipDir(d.Name()) {
 					return filepath.SkipDir
 				}
 				return nil
 			}
-			if filepath.Ext(path) != ".md" || !d.Type().IsRegular() {
+			if !IsMarkdown(path) || !d.Type().IsRegular() {
 				return nil
 			}
 			src, rerr := os.ReadFile(path)
-			if rerr != nil || !HasCalc(src) {
+			if rerr != nil || !Holds(src) {
 				return nil
 			}
 			rel, _ := filepath.Rel(p, path)
@@ -81,9 +92,7 @@ func Collect(paths []string) ([]Input, error) {
 // makes Write, Sync or Close fail with ENOSPC) the temporary file is
 // removed and the old file is left as it was.
 func WriteFileAtomic(path string, data []byte) error {
-	return WriteFileAtomicWith(path, data, func(dir, pattern string) (TempFile, error) {
-		return os.CreateTemp(dir, pattern)
-	})
+	return WriteFileAtomicWith(path, data, createTemp)
 }
 
 // TempFile is the temporary file of an atomic write.
@@ -142,4 +151,22 @@ func SameFile(a, b string) bool {
 	aa, _ := filepath.Abs(a)
 	bb, _ := filepath.Abs(b)
 	return aa == bb
+}
+
+// OutIsFile reports whether an -o value names one .html file rather than a
+// folder.
+func OutIsFile(out string) bool { return strings.HasSuffix(strings.ToLower(out), ".html") }
+
+// Target is where the sheet of the document file goes, rel being its path
+// relative to the PATH it was found under: beside the source without -o
+// (out ""), out itself when it names one .html file, else the same
+// relative path under the folder out.
+func Target(out, file, rel string) string {
+	switch {
+	case out == "":
+		return strings.TrimSuffix(file, ".md") + ".html"
+	case OutIsFile(out):
+		return out
+	}
+	return filepath.Join(out, strings.TrimSuffix(rel, ".md")+".html")
 }

@@ -1,4 +1,4 @@
-package render
+package stamp
 
 import (
 	"os"
@@ -8,7 +8,8 @@ import (
 	"testing"
 
 	"calcdoc/calcdoc"
-	"calcdoc/calcdoc/stamp"
+	"calcdoc/render"
+	"calcdoc/render/internal/sheettest"
 )
 
 // The outside references of the stamp tests: git's own command line
@@ -38,34 +39,15 @@ func stampGit(t *testing.T, dir string, args ...string) string {
 	return strings.TrimSpace(string(out))
 }
 
-// coreutilsSHA256 is the digest GNU coreutils' sha256sum prints for path.
 func coreutilsSHA256(t *testing.T, path string) string {
 	t.Helper()
-	if _, err := exec.LookPath("sha256sum"); err != nil {
-		t.Skip("sha256sum (GNU coreutils) is not installed")
-	}
-	out, err := exec.Command("sha256sum", path).Output()
-	if err != nil {
-		t.Fatalf("sha256sum %s: %v", path, err)
-	}
-	f := strings.Fields(string(out))
-	if len(f) == 0 || len(f[0]) != 64 {
-		t.Fatalf("sha256sum printed %q", out)
-	}
-	return f[0]
+	return sheettest.Sha256sum(t, path)
 }
 
-const stampDoc = `---
-title: Stamp test, heater circuit
-number: STP-E-001
-revision: A
-date: 2026-11-02
----
-
-` + "```calc\nV = 230 V\nR = 26.45 ohm\nP = V^2 / R\ncheck P <= 2.1 kW\n```\n"
+const stampDoc = sheettest.HeaterDoc
 
 // builtSheet builds the sheet of the file at path as calcdoc build does:
-// stamped by stamp.Of, source embedded.
+// stamped by Of, source embedded.
 func builtSheet(t *testing.T, path string) string {
 	t.Helper()
 	src, err := os.ReadFile(path)
@@ -73,23 +55,15 @@ func builtSheet(t *testing.T, path string) string {
 		t.Fatal(err)
 	}
 	doc := calcdoc.Parse(path, src)
-	st := stamp.Of(path, src)
-	page, err := Sheet(doc, Options{Version: "test", Stamp: &st, EmbedSource: true})
+	st := Of(path, src)
+	page, err := render.Sheet(doc, render.Options{Version: "test", Stamp: &st, EmbedSource: true})
 	if err != nil {
 		t.Fatal(err)
 	}
 	return string(page)
 }
 
-func writeFile(t *testing.T, path, text string) {
-	t.Helper()
-	if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
-		t.Fatal(err)
-	}
-	if err := os.WriteFile(path, []byte(text), 0o644); err != nil {
-		t.Fatal(err)
-	}
-}
+func writeFile(t *testing.T, path, text string) { t.Helper(); sheettest.WriteFile(t, path, text) }
 
 // The stamp of a built sheet in a temporary git repository: a committed
 // file gives its commit and hash and no marker; a modified file the marker

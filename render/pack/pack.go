@@ -1,28 +1,34 @@
-package render
+// Package pack writes a calculation package: one HTML file with a cover,
+// a contents list and every sheet, composed from the evaluated documents
+// and the sheet writer's parts (render.Body, render.CSS).
+package pack
 
 import (
 	"bytes"
 	"errors"
 	"fmt"
+	"html"
 	"regexp"
 	"strconv"
 	"strings"
 
 	"calcdoc/calcdoc"
-	"calcdoc/calcdoc/stamp"
+	"calcdoc/render"
+	"calcdoc/render/stamp"
 
 	"github.com/yuin/goldmark/ast"
 )
 
-// PackageInfo is the title block of a calculation package.
-type PackageInfo struct {
-	Title, Project, Client, Number, Revision, Date string
-	Prepared, Checked, Approved                    string
-	// Paper is "a4" (the default when "") or "letter": the size of the
-	// cover and contents pages. Each sheet keeps its own paper.
-	Paper string
-	// Revisions is the package's own revision history.
-	Revisions []calcdoc.Revision
+func esc(s string) string { return html.EscapeString(s) }
+
+var orDash = render.OrDash
+
+// Info is the title block of a calculation package (calcdoc.TitleBlock:
+// Paper is the size of the cover and contents pages, each sheet keeping
+// its own; Revisions is the package's own revision history), and where
+// the sheets start.
+type Info struct {
+	calcdoc.TitleBlock
 	// StartPages, when it has one entry per sheet, is the printed page on
 	// which each sheet starts (as SheetStartPages finds it in a first
 	// printing); the contents list shows it. The contents keep room for
@@ -30,23 +36,23 @@ type PackageInfo struct {
 	StartPages []int
 }
 
-// PackageSheet is one sheet of a package: the evaluated document and the
-// options its sheet is built with (as for Sheet).
-type PackageSheet struct {
+// Sheet is one sheet of a package: the evaluated document and the
+// options its sheet is built with (as for render.Sheet).
+type Sheet struct {
 	Doc     *calcdoc.Document
-	Options Options
+	Options render.Options
 }
 
-// pkgSheetOpen starts the section that holds one sheet of a package.
-const pkgSheetOpen = `<section class="pkg-sheet"`
+// SheetOpen starts the section that holds one sheet of a package.
+const SheetOpen = `<section class="pkg-sheet"`
 
-// PackageHash returns the hash of a package whose sheets' source hashes
+// Hash returns the hash of a package whose sheets' source hashes
 // are hashes, in package order: the lower-case hexadecimal SHA-256 (FIPS
 // 180-4) of the text made of each hash followed by one line feed (U+000A),
 // that is of the bytes that `printf '%s\n' H1 H2 ...` writes, so that
 // `printf '%s\n' H1 H2 ... | sha256sum` prints it too. Each hash is taken
 // as given (Package gives 64 lower-case hexadecimal digits).
-func PackageHash(hashes []string) string {
+func Hash(hashes []string) string {
 	var b strings.Builder
 	for _, h := range hashes {
 		b.WriteString(h)
@@ -57,7 +63,7 @@ func PackageHash(hashes []string) string {
 
 // sourceHash is the SHA-256 of a sheet's source: the stamp's, else
 // computed.
-func (s PackageSheet) sourceHash() string {
+func (s Sheet) sourceHash() string {
 	if s.Options.Stamp != nil && s.Options.Stamp.SHA256 != "" {
 		return s.Options.Stamp.SHA256
 	}
@@ -68,7 +74,7 @@ func (s PackageSheet) sourceHash() string {
 // every sheet, each starting on a new page. The cover has the package's
 // title block, the list of sheets (number, title, revision, date,
 // working-tree state, result and source SHA-256), the package hash
-// (PackageHash over the sheets' hashes, with the rule stated) and the
+// (Hash over the sheets' hashes, with the rule stated) and the
 // revision history of every sheet. Each sheet is the body of its Sheet,
 // with its ids prefixed "sK-" (K its position from 1) so that links stay
 // within the sheet, and its source embedded as on a built sheet, so that
@@ -80,7 +86,7 @@ func (s PackageSheet) sourceHash() string {
 // its own page counter). A package with a sheet that is not fit for issue
 // (see the sheet's marker) carries a diagonal marker on every page and
 // lists those sheets on the cover. version is calcdoc's version.
-func Package(info PackageInfo, sheets []PackageSheet, version string) ([]byte, error) {
+func Package(info Info, sheets []Sheet, version string) ([]byte, error) {
 	if len(sheets) == 0 {
 		return nil, errors.New("a package needs at least one sheet")
 	}
@@ -93,7 +99,7 @@ func Package(info PackageInfo, sheets []PackageSheet, version string) ([]byte, e
 	for i, s := range sheets {
 		hashes[i] = s.sourceHash()
 	}
-	pkgHash := PackageHash(hashes)
+	pkgHash := Hash(hashes)
 	title := info.Title
 	if title == "" {
 		title = "Calculation package"
@@ -107,14 +113,14 @@ func Package(info PackageInfo, sheets []PackageSheet, version string) ([]byte, e
 		t = info.Number + " " + title
 	}
 	fmt.Fprintf(&w, "<title>%s</title>\n<style>\n", esc(t))
-	w.WriteString(css)
+	w.WriteString(render.CSS)
 	w.WriteString(pkgCSS)
 	w.WriteString(packagePageCSS(info, title, sheets, pkgHash))
 	w.WriteString("</style>\n</head>\n<body class=\"package\">\n")
 
 	var marked []string
 	for i, s := range sheets {
-		if m := markerText(s.Doc, s.Options); m != "" {
+		if m := render.MarkerText(s.Doc, s.Options); m != "" {
 			marked = append(marked, fmt.Sprintf("sheet %d (%s): %s", i+1, orDash(s.Doc.Front.Number), strings.TrimPrefix(m, "NOT FOR ISSUE: ")))
 		}
 	}
@@ -129,7 +135,7 @@ func Package(info PackageInfo, sheets []PackageSheet, version string) ([]byte, e
 	cover(&w, info, title, sheets, hashes, pkgHash, marked, version)
 	contents(&w, sheets, info.StartPages)
 	for i, s := range sheets {
-		sec, err := packageSection(s.Doc, s.Options, i+1)
+		sec, err := Section(s.Doc, s.Options, i+1)
 		if err != nil {
 			return nil, fmt.Errorf("sheet %d (%s): %w", i+1, s.Doc.Path, err)
 		}
@@ -166,7 +172,7 @@ section.pkg-sheet .marker { display: none; }
 
 // packagePageCSS writes the @page rules: the cover and contents pages, and
 // one named page per sheet with its own page counter.
-func packagePageCSS(info PackageInfo, title string, sheets []PackageSheet, pkgHash string) string {
+func packagePageCSS(info Info, title string, sheets []Sheet, pkgHash string) string {
 	size := func(paper string) string {
 		if paper == "letter" {
 			return "letter"
@@ -190,7 +196,7 @@ func packagePageCSS(info PackageInfo, title string, sheets []PackageSheet, pkgHa
   @bottom-center { content: %s; font: 7pt monospace; }
   @bottom-right { content: "page " counter(page) " of " counter(pages); font: 8pt sans-serif; }
 }
-`, size(info.Paper), cssString(pkgNo), cssString(title), cssString("package sha256 "+short12(pkgHash)))
+`, size(info.Paper), render.CSSString(pkgNo), render.CSSString(title), render.CSSString("package sha256 "+short12(pkgHash)))
 	n := len(sheets)
 	for i, s := range sheets {
 		k := i + 1
@@ -213,32 +219,25 @@ func packagePageCSS(info PackageInfo, title string, sheets []PackageSheet, pkgHa
   @bottom-right { content: "page " counter(page) " of " counter(pages); font: 8pt sans-serif; }
 }
 #sheet-%d { page: cd-sheet-%d; }
-`, k, size(fm.Paper), k, cssString(pkgNo), k, n, k, cssString(left), cssString(center), k, k)
+`, k, size(fm.Paper), k, render.CSSString(pkgNo), k, n, k, render.CSSString(left), render.CSSString(center), k, k)
 	}
 	return b.String()
 }
 
-// packageSection is sheet k of a package: the body of its Sheet, ids
-// prefixed, in a section of its own.
-func packageSection(doc *calcdoc.Document, opt Options, k int) ([]byte, error) {
-	page, err := Sheet(doc, opt)
+// Section is sheet k of a package: the sheet's body (render.Body), with
+// its ids and links within the sheet prefixed (SheetPrefix), in a section
+// of its own.
+func Section(doc *calcdoc.Document, opt render.Options, k int) ([]byte, error) {
+	body, err := render.Body(doc, opt)
 	if err != nil {
 		return nil, err
 	}
-	const open, end = "</head>\n<body>\n", "</body>\n</html>\n"
-	i := bytes.Index(page, []byte(open))
-	if i < 0 || !bytes.HasSuffix(page, []byte(end)) {
-		return nil, errors.New("the sheet has no <body> to put in the package")
-	}
-	body := page[i+len(open) : len(page)-len(end)]
-	prefix := sheetPrefix(k)
-	// Text and attribute values are escaped on a sheet (a quote is
-	// &#34;), so ` id="` and ` href="#` only ever occur in tags.
-	body = bytes.ReplaceAll(body, []byte(` id="`), []byte(` id="`+prefix))
-	body = bytes.ReplaceAll(body, []byte(` href="#`), []byte(` href="#`+prefix))
 	var w bytes.Buffer
-	fmt.Fprintf(&w, "%s id=\"sheet-%d\" data-sheet=\"%d\">\n", pkgSheetOpen, k, k)
-	w.Write(body)
+	w.Grow(len(body) + len(body)/16 + 128)
+	fmt.Fprintf(&w, "%s id=\"sheet-%d\" data-sheet=\"%d\">\n", SheetOpen, k, k)
+	if err := prefixIDs(&w, body, SheetPrefix(k)); err != nil {
+		return nil, err
+	}
 	w.WriteString("</section>\n")
 	return w.Bytes(), nil
 }
@@ -251,33 +250,27 @@ func short12(h string) string {
 	return h
 }
 
-// sheetPrefix is the prefix of the ids of sheet k in a package.
-func sheetPrefix(k int) string { return fmt.Sprintf("s%d-", k) }
+// SheetPrefix is the prefix of the ids of sheet k in a package.
+func SheetPrefix(k int) string { return fmt.Sprintf("s%d-", k) }
 
-func cover(w *bytes.Buffer, info PackageInfo, title string, sheets []PackageSheet, hashes []string, pkgHash string, marked []string, version string) {
+func cover(w *bytes.Buffer, info Info, title string, sheets []Sheet, hashes []string, pkgHash string, marked []string, version string) {
 	fmt.Fprintf(w, "<section class=\"cover\" data-package-sha256=\"%s\" data-sheets=\"%d\" data-version=\"%s\">\n", pkgHash, len(sheets), esc(version))
-	tw := &Writer{}
+	tw := &render.Writer{}
 	tw.WriteString("<header class=\"tb\">\n<table class=\"tb\">\n<tr>")
-	field(tw, "Project", info.Project)
-	field(tw, "Client", info.Client)
-	field(tw, "Package no.", info.Number)
-	field(tw, "Revision", info.Revision)
+	render.Field(tw, "Project", info.Project)
+	render.Field(tw, "Client", info.Client)
+	render.Field(tw, "Package no.", info.Number)
+	render.Field(tw, "Revision", info.Revision)
 	tw.WriteString("</tr>\n<tr class=\"tbtitle\">")
 	tw.Printf("<td colspan=\"3\"><span class=\"lbl\">Calculation package</span><span class=\"val title\">%s</span></td>", esc(title))
-	field(tw, "Date", info.Date)
+	render.Field(tw, "Date", info.Date)
 	tw.WriteString("</tr>\n<tr>")
-	field(tw, "Prepared", info.Prepared)
-	field(tw, "Checked", info.Checked)
-	field(tw, "Approved", info.Approved)
-	field(tw, "Sheets", fmt.Sprint(len(sheets)))
+	render.Field(tw, "Prepared", info.Prepared)
+	render.Field(tw, "Checked", info.Checked)
+	render.Field(tw, "Approved", info.Approved)
+	render.Field(tw, "Sheets", fmt.Sprint(len(sheets)))
 	tw.WriteString("</tr>\n</table>\n")
-	if len(info.Revisions) > 0 {
-		tw.WriteString("<table class=\"revs\"><caption>Revision history of the package</caption>\n<tr><th>Rev</th><th>Date</th><th>By</th><th>Description</th></tr>\n")
-		for _, r := range info.Revisions {
-			tw.Printf("<tr><td>%s</td><td>%s</td><td>%s</td><td>%s</td></tr>\n", esc(r.Rev), esc(r.Date), esc(r.By), esc(r.Note))
-		}
-		tw.WriteString("</table>\n")
-	}
+	render.RevisionHistory(tw, "Revision history of the package", info.Revisions)
 	tw.WriteString("</header>\n")
 	w.Write(tw.Bytes())
 
@@ -298,7 +291,7 @@ func cover(w *bytes.Buffer, info PackageInfo, title string, sheets []PackageShee
 			state = shortState(s.Options.Stamp.State)
 		}
 		fmt.Fprintf(w, "<tr data-sheet=\"%d\" data-sha256=\"%s\"><td>%d</td><td>%s</td><td>%s</td><td>%s</td><td>%s</td><td>%s</td><td>%s</td><td><code class=\"hash\">%s</code></td></tr>\n",
-			i+1, hashes[i], i+1, esc(orDash(fm.Number)), esc(sheetTitleOf(s.Doc)), esc(orDash(fm.Revision)), esc(orDash(fm.Date)),
+			i+1, hashes[i], i+1, esc(orDash(fm.Number)), esc(render.SheetTitle(s.Doc)), esc(orDash(fm.Revision)), esc(orDash(fm.Date)),
 			esc(state), esc(outcome(s.Doc)), hashes[i])
 	}
 	w.WriteString("</table>\n")
@@ -329,7 +322,7 @@ func cover(w *bytes.Buffer, info PackageInfo, title string, sheets []PackageShee
 }
 
 // contents lists the sheets and their first two levels of headings.
-func contents(w *bytes.Buffer, sheets []PackageSheet, starts []int) {
+func contents(w *bytes.Buffer, sheets []Sheet, starts []int) {
 	w.WriteString("<nav class=\"contents\">\n<h2>Contents</h2>\n<ol>\n")
 	for i, s := range sheets {
 		fm := s.Doc.Front
@@ -341,7 +334,7 @@ func contents(w *bytes.Buffer, sheets []PackageSheet, starts []int) {
 		if len(starts) == len(sheets) && starts[i] > 0 {
 			pg = fmt.Sprintf("page %d", starts[i])
 		}
-		fmt.Fprintf(w, "<li><span class=\"pg\">%s</span><a href=\"#sheet-%d\"><span class=\"cn\">Sheet %d</span> %s: %s</a>", pg, i+1, i+1, esc(label), esc(sheetTitleOf(s.Doc)))
+		fmt.Fprintf(w, "<li><span class=\"pg\">%s</span><a href=\"#sheet-%d\"><span class=\"cn\">Sheet %d</span> %s: %s</a>", pg, i+1, i+1, esc(label), esc(render.SheetTitle(s.Doc)))
 		if hs := headings(s.Doc, 2); len(hs) > 0 {
 			w.WriteString("\n<ul>\n")
 			for _, h := range hs {
@@ -352,15 +345,6 @@ func contents(w *bytes.Buffer, sheets []PackageSheet, starts []int) {
 		w.WriteString("</li>\n")
 	}
 	w.WriteString("</ol>\n</nav>\n")
-}
-
-// sheetTitleOf is the title a sheet shows: its front matter's, else the
-// file's base name.
-func sheetTitleOf(doc *calcdoc.Document) string {
-	if doc.Front.Title != "" {
-		return doc.Front.Title
-	}
-	return baseName(doc.Path)
 }
 
 // headings returns the text of the document's headings of level 1 to
@@ -428,13 +412,14 @@ func outcome(doc *calcdoc.Document) string {
 	if n := doc.FailedChecks(); n > 0 {
 		return fmt.Sprintf("%d of %d checks not satisfied", n, len(doc.Checks))
 	}
-	held := 0
-	for _, c := range doc.Checks {
-		if c.Result != nil && c.Result.Pass {
-			held++
-		}
+	return fmt.Sprintf("%d of %d checks satisfied", doc.HeldChecks(), len(doc.Checks))
+}
+
+func plural(n int) string {
+	if n == 1 {
+		return ""
 	}
-	return fmt.Sprintf("%d of %d checks satisfied", held, len(doc.Checks))
+	return "s"
 }
 
 // SheetStartPages finds, in the text of a printed package (one string
@@ -446,7 +431,7 @@ func SheetStartPages(pages []string, n int) (starts []int, ok bool) {
 	starts = make([]int, n)
 	for i, p := range pages {
 		for _, m := range startRE.FindAllStringSubmatch(p, -1) {
-			k, of := atoi(m[1]), atoi(m[2])
+			k, of := Atoi(m[1]), Atoi(m[2])
 			if of != n || k < 1 || k > n {
 				continue
 			}
@@ -464,10 +449,12 @@ func SheetStartPages(pages []string, n int) (starts []int, ok bool) {
 	return starts, true
 }
 
+var numberRE = regexp.MustCompile(`^[0-9]+$`)
+
 var startRE = regexp.MustCompile(`sheet ([0-9]+) of ([0-9]+), page 1\b`)
 
-// atoi reads a sheet index written by Package; anything else is 0.
-func atoi(s string) int {
+// Atoi reads a sheet index written by Package; anything else is 0.
+func Atoi(s string) int {
 	if !numberRE.MatchString(s) {
 		return 0
 	}
@@ -476,89 +463,4 @@ func atoi(s string) int {
 		return 0
 	}
 	return n
-}
-
-// verifyPackage verifies every sheet of a package and its cover.
-func verifyPackage(page []byte, version string) (*Report, error) {
-	rep := &Report{Package: true}
-	// the sheets: each section runs to the next one, or to </body>
-	var starts []int
-	for off := 0; ; {
-		i := bytes.Index(page[off:], []byte(pkgSheetOpen))
-		if i < 0 {
-			break
-		}
-		starts = append(starts, off+i)
-		off += i + len(pkgSheetOpen)
-	}
-	bodyEnd := bytes.LastIndex(page, []byte("</body>"))
-	if bodyEnd < 0 || bodyEnd < starts[len(starts)-1] {
-		bodyEnd = len(page)
-	}
-	covered := map[int]string{}
-	var coverHashes []string
-	coverEnd := starts[0]
-	for off := 0; ; {
-		tag, end, ok := startTag(page[:coverEnd], "<tr data-sheet=\"", off)
-		if !ok {
-			break
-		}
-		a := attrs(tag)
-		covered[atoi(a["data-sheet"])] = a["data-sha256"]
-		coverHashes = append(coverHashes, a["data-sha256"])
-		off = end
-	}
-	var statedPkg string
-	if tag, _, ok := startTag(page[:coverEnd], "<section class=\"cover\"", 0); ok {
-		statedPkg = attrs(tag)["data-package-sha256"]
-	} else {
-		rep.PackageDifferences = append(rep.PackageDifferences, Difference{Kind: "record", Message: "the package has no cover record (section class=\"cover\")"})
-	}
-	if len(coverHashes) != len(starts) {
-		rep.PackageDifferences = append(rep.PackageDifferences, Difference{Kind: "record",
-			Message: fmt.Sprintf("the cover lists %d sheets, but the package holds %d", len(coverHashes), len(starts))})
-	}
-	var found []string
-	for j, st := range starts {
-		end := bodyEnd
-		if j+1 < len(starts) {
-			end = starts[j+1]
-		}
-		unit := page[st:end]
-		tag, _, _ := startTag(unit, pkgSheetOpen, 0)
-		k := atoi(attrs(tag)["data-sheet"])
-		lineBase := 1 + bytes.Count(page[:st], []byte("\n"))
-		rec, err := readSheet(unit, sheetPrefix(k))
-		if err != nil {
-			rep.Sheets = append(rep.Sheets, &SheetResult{Index: k, Version: version, Differences: []Difference{{Kind: "record",
-				Message: fmt.Sprintf("sheet %d carries no embedded source", k)}}})
-			continue
-		}
-		res := rec.check(unit, lineBase, version, func(doc *calcdoc.Document, opt Options) ([]byte, error) {
-			return packageSection(doc, opt, k)
-		})
-		res.Index = k
-		rep.Sheets = append(rep.Sheets, res)
-		found = append(found, res.SHA256)
-		if h, ok := covered[k]; !ok {
-			rep.PackageDifferences = append(rep.PackageDifferences, Difference{Kind: "record",
-				Message: fmt.Sprintf("the cover does not list sheet %d", k)})
-		} else if res.SHA256 != "" && h != res.SHA256 {
-			rep.PackageDifferences = append(rep.PackageDifferences, Difference{Kind: "hash", Sheet: h, Source: res.SHA256,
-				Message: fmt.Sprintf("hash: the cover lists sheet %d with SHA-256 %s, but its embedded source's is %s", k, h, res.SHA256)})
-		}
-	}
-	if statedPkg != "" {
-		if ph := PackageHash(coverHashes); ph != statedPkg {
-			rep.PackageDifferences = append(rep.PackageDifferences, Difference{Kind: "hash", Sheet: statedPkg, Source: ph,
-				Message: fmt.Sprintf("hash: the cover states the package SHA-256 %s, but the hashes it lists give %s", statedPkg, ph)})
-		}
-		if len(found) == len(starts) {
-			if ph := PackageHash(found); ph != statedPkg {
-				rep.PackageDifferences = append(rep.PackageDifferences, Difference{Kind: "hash", Sheet: statedPkg, Source: ph,
-					Message: fmt.Sprintf("hash: the cover states the package SHA-256 %s, but the sheets' embedded sources give %s", statedPkg, ph)})
-			}
-		}
-	}
-	return rep, nil
 }

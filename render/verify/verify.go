@@ -1,4 +1,8 @@
-package render
+// Package verify checks a built sheet, or a calculation package, against
+// the source it carries: it reads the page with an HTML tokenizer, takes
+// out the embedded source and the recorded stamp, evaluates and renders the
+// source again with the same sheet writer, and compares the two.
+package verify
 
 import (
 	"bytes"
@@ -12,12 +16,15 @@ import (
 	"unicode/utf8"
 
 	"calcdoc/calcdoc"
-	"calcdoc/calcdoc/stamp"
+	"calcdoc/render"
+	"calcdoc/render/stamp"
 )
+
+var orDash = render.OrDash
 
 // ErrNotSheet is returned by Verify for a page that carries no embedded
 // calcdoc source: it is not a built calcdoc sheet or package.
-var ErrNotSheet = errors.New("not a calcdoc sheet: it carries no embedded source (an element with id \"" + SourceID + "\")")
+var ErrNotSheet = errors.New("not a calcdoc sheet: it carries no embedded source (an element with id \"" + render.SourceID + "\")")
 
 // Difference is one way in which a sheet does not match its source.
 type Difference struct {
@@ -101,8 +108,9 @@ func (r *Report) OK() bool {
 }
 
 // Verify checks a built sheet, or a calculation package, against the
-// source it carries. For each sheet it recovers the embedded source (HTML
-// entities undone, or base64 decoded), computes the source's SHA-256 (FIPS
+// source it carries. It reads the page with an HTML tokenizer
+// (golang.org/x/net/html). For each sheet it recovers the embedded source
+// (HTML entities undone, or base64 decoded), computes the source's SHA-256 (FIPS
 // 180-4) and compares it with the hash stated on the source element and in
 // the stamp; then it evaluates the source again (calcdoc.Parse with the
 // recorded path), renders it with the options the sheet records (the
@@ -120,16 +128,14 @@ func (r *Report) OK() bool {
 // edit the file can build a consistent sheet from another source; the
 // hash is what ties the sheet to the source kept under version control.
 func Verify(page []byte, version string) (*Report, error) {
-	if bytes.Contains(page, []byte(pkgSheetOpen)) {
+	if isPackage(page) {
 		return verifyPackage(page, version)
 	}
 	rec, err := readSheet(page, "")
 	if err != nil {
 		return nil, err
 	}
-	res := rec.check(page, 1, version, func(doc *calcdoc.Document, opt Options) ([]byte, error) {
-		return Sheet(doc, opt)
-	})
+	res := rec.check(page, 1, version, render.Sheet)
 	return &Report{Sheets: []*SheetResult{res}}, nil
 }
 
@@ -140,104 +146,61 @@ type sheetRecord struct {
 	sourceErr   string // why the source could not be recovered
 	sourceSHA   string // data-sha256 of the source element
 	hasStamp    bool
-	opt         Options
+	opt         render.Options
 	recordDiffs []Difference
 }
 
-var (
-	attrRE   = regexp.MustCompile(`\s([a-zA-Z][a-zA-Z0-9-]*)="([^"]*)"`)
-	numberRE = regexp.MustCompile(`^[0-9]+$`)
-)
-
-// attrs reads the attributes of a start tag written by this package
-// (name="value" with the value HTML-escaped).
-func attrs(tag []byte) map[string]string {
-	m := map[string]string{}
-	for _, a := range attrRE.FindAllSubmatch(tag, -1) {
-		if _, dup := m[string(a[1])]; !dup {
-			m[string(a[1])] = html.UnescapeString(string(a[2]))
-		}
-	}
-	return m
-}
-
-// startTag finds the first start tag that begins with open at or after
-// from, returning its text and the offset just past it; ok is false when
-// there is none.
-func startTag(page []byte, open string, from int) (tag []byte, end int, ok bool) {
-	i := bytes.Index(page[from:], []byte(open))
-	if i < 0 {
-		return nil, 0, false
-	}
-	i += from
-	j := bytes.IndexByte(page[i:], '>')
-	if j < 0 {
-		return nil, 0, false
-	}
-	return page[i : i+j+1], i + j + 1, true
-}
-
-// readSheet reads the record of the sheet in page whose ids carry prefix
-// ("" for a standalone sheet).
+// readSheet reads the record of the sheet in page (its elements, read
+// with the HTML tokenizer) whose ids carry prefix ("" for a standalone
+// sheet).
 func readSheet(page []byte, prefix string) (*sheetRecord, error) {
-	tag, end, ok := startTag(page, "<pre hidden id=\""+prefix+SourceID+"\"", 0)
-	if !ok {
+	els := elements(page)
+	src := find(els, func(e *element) bool { return e.name == "pre" && e.attr["id"] == prefix+render.SourceID })
+	if src == nil {
 		return nil, ErrNotSheet
 	}
 	rec := &sheetRecord{}
-	a := attrs(tag)
+	a := src.attr
 	rec.path = a["data-path"]
 	rec.sourceSHA = a["data-sha256"]
-	close := bytes.Index(page[end:], []byte("</pre>"))
-	if close < 0 {
+	if !src.closed {
 		rec.sourceErr = "the embedded source has no end (</pre>)"
 	} else {
-		body := page[end : end+close]
 		switch a["data-encoding"] {
 		case "text":
-			rec.source = []byte(html.UnescapeString(string(body)))
+			rec.source = []byte(html.UnescapeString(string(src.raw)))
 		case "base64":
-			src, err := base64.StdEncoding.DecodeString(string(body))
+			b, err := base64.StdEncoding.DecodeString(string(src.raw))
 			if err != nil {
 				rec.sourceErr = "the embedded source is not valid base64: " + err.Error()
 			}
-			rec.source = src
+			rec.source = b
 		default:
 			rec.sourceErr = fmt.Sprintf("the embedded source has an unknown encoding %q", a["data-encoding"])
 		}
 	}
 	rec.opt.EmbedSource = true
-	if st, _, ok := startTag(page, "<section class=\"stamp\"", 0); ok {
-		s := attrs(st)
+	if st := find(els, func(e *element) bool { return e.name == "section" && e.attr["class"] == "stamp" }); st != nil {
+		s := st.attr
 		rec.hasStamp = true
-		state, known := parseState(s["data-state"])
+		state, known := render.ParseTreeState(s["data-state"])
 		if !known {
 			rec.recordDiffs = append(rec.recordDiffs, Difference{Kind: "record",
 				Message: fmt.Sprintf("the stamp states a working-tree state %q that calcdoc does not know", s["data-state"])})
 		}
 		rec.opt.Version = s["data-version"]
-		rec.opt.Stamp = &StampInfo{SHA256: s["data-sha256"], Commit: s["data-commit"], CommitDate: s["data-commit-date"],
+		rec.opt.Stamp = &render.StampInfo{SHA256: s["data-sha256"], Commit: s["data-commit"], CommitDate: s["data-commit-date"],
 			State: state, Detail: s["data-detail"]}
-	} else if g, _, ok := startTag(page, "<meta name=\"generator\"", 0); ok {
-		rec.opt.Version = strings.TrimPrefix(attrs(g)["content"], "calcdoc ")
+	} else if g := find(els, func(e *element) bool { return e.name == "meta" && e.attr["name"] == "generator" }); g != nil {
+		rec.opt.Version = strings.TrimPrefix(g.attr["content"], "calcdoc ")
 	}
 	return rec, nil
-}
-
-// parseState is the inverse of stamp.State.String.
-func parseState(s string) (stamp.State, bool) {
-	for st := stamp.Unknown; st <= stamp.NoGit; st++ {
-		if st.String() == s {
-			return st, true
-		}
-	}
-	return stamp.Unknown, false
 }
 
 // check verifies the record against unit, the bytes of the sheet as the
 // file holds them, rendering the source again with render. lineBase is the
 // line of the file on which unit starts.
-func (rec *sheetRecord) check(unit []byte, lineBase int, version string, render func(*calcdoc.Document, Options) ([]byte, error)) *SheetResult {
+func (rec *sheetRecord) check(unit []byte, lineBase int, version string, rerender func(*calcdoc.Document, render.Options) ([]byte, error)) *SheetResult {
 	res := &SheetResult{Path: rec.path, SheetVersion: rec.opt.Version, Version: version}
 	if rec.opt.Stamp != nil {
 		res.StatedSHA256 = rec.opt.Stamp.SHA256
@@ -265,7 +228,7 @@ func (rec *sheetRecord) check(unit []byte, lineBase int, version string, render 
 			Message: fmt.Sprintf("hash: the embedded source's SHA-256 is %s, but the sheet's stamp states %s: the sheet is not the one built from this source", res.SHA256, orDash(res.StatedSHA256))})
 	}
 	doc := calcdoc.Parse(rec.path, rec.source)
-	fresh, err := render(doc, rec.opt)
+	fresh, err := rerender(doc, rec.opt)
 	if err != nil {
 		res.Differences = append(res.Differences, Difference{Kind: "record", Message: "the source cannot be rendered again: " + err.Error()})
 		return res
@@ -292,94 +255,31 @@ type item struct {
 
 func (it item) key() string { return it.kind + "\x00" + it.name + "\x00" + strconv.Itoa(it.line) }
 
-var itemRE = regexp.MustCompile(`<([a-z]+)\b[^>]*\s(data-value|data-check)="([^"]*)"[^>]*>`)
-
 // items lists the page's result rows (data-value with data-line) and check
-// rows (data-check, whose value is the line) in page order.
+// rows (data-check, whose value is the line) in page order, each with the
+// plain text of its content.
 func items(page []byte) []item {
 	var out []item
-	for _, m := range itemRE.FindAllSubmatchIndex(page, -1) {
-		tag := page[m[0]:m[1]]
-		name := string(page[m[2]:m[3]])
-		a := attrs(tag)
-		it := item{kind: "value", name: a["data-value"]}
-		lineAttr := a["data-line"]
-		if string(page[m[4]:m[5]]) == "data-check" {
+	for _, e := range elements(page) {
+		it := item{kind: "value", name: e.attr["data-value"]}
+		lineAttr := e.attr["data-line"]
+		switch {
+		case e.hasAttr("data-check"):
 			it = item{kind: "check"}
-			lineAttr = a["data-check"]
+			lineAttr = e.attr["data-check"]
+		case !e.hasAttr("data-value"):
+			continue
 		}
 		if numberRE.MatchString(lineAttr) {
 			it.line, _ = strconv.Atoi(lineAttr)
 		}
-		it.text = plainText(page[m[1]:elementEnd(page, m[1], name)])
+		it.text = plainText(e.raw)
 		out = append(out, it)
 	}
 	return out
 }
 
-// elementEnd returns the offset of the end tag that closes the element
-// named name whose content starts at from (counting nested elements of the
-// same name), or len(page).
-func elementEnd(page []byte, from int, name string) int {
-	open, close := []byte("<"+name), []byte("</"+name+">")
-	depth := 1
-	for i := from; i < len(page); {
-		j := bytes.IndexByte(page[i:], '<')
-		if j < 0 {
-			break
-		}
-		i += j
-		switch {
-		case bytes.HasPrefix(page[i:], close):
-			depth--
-			if depth == 0 {
-				return i
-			}
-			i += len(close)
-		case bytes.HasPrefix(page[i:], open) && len(page) > i+len(open) && (page[i+len(open)] == '>' || page[i+len(open)] == ' '):
-			depth++
-			i += len(open)
-		default:
-			i++
-		}
-	}
-	return len(page)
-}
-
-// plainText is the text of an HTML fragment: tags removed, entities
-// undone, a space where MathML or HTML separates things (mspace, table
-// cells, spans), rows of a matrix separated by "; ", whitespace collapsed.
-func plainText(frag []byte) string {
-	var b strings.Builder
-	for i := 0; i < len(frag); {
-		if frag[i] != '<' {
-			j := bytes.IndexByte(frag[i:], '<')
-			if j < 0 {
-				j = len(frag) - i
-			}
-			b.WriteString(html.UnescapeString(string(frag[i : i+j])))
-			i += j
-			continue
-		}
-		j := bytes.IndexByte(frag[i:], '>')
-		if j < 0 {
-			break
-		}
-		tag := string(frag[i+1 : i+j])
-		name := ""
-		if f := strings.Fields(tag); len(f) > 0 {
-			name = strings.TrimSuffix(strings.TrimPrefix(f[0], "/"), "/")
-		}
-		switch {
-		case tag == "/mtr":
-			b.WriteString("; ")
-		case name == "mspace" || name == "mtd" || name == "span" || name == "div" || name == "td" || name == "th":
-			b.WriteByte(' ')
-		}
-		i += j + 1
-	}
-	return strings.TrimSpace(strings.TrimSuffix(strings.Join(strings.Fields(b.String()), " "), ";"))
-}
+var numberRE = regexp.MustCompile(`^[0-9]+$`)
 
 // compareItems names the result and check rows whose text differs between
 // the sheet and the fresh render, and the rows only one of them has.

@@ -1,4 +1,4 @@
-package watch
+package preview
 
 import (
 	"fmt"
@@ -11,7 +11,7 @@ import (
 	"time"
 
 	"calcdoc/calcdoc"
-	"calcdoc/render"
+	"calcdoc/cmd/internal/build"
 )
 
 // bigDoc is a document of exactly 1,000 statements in ten calc blocks with
@@ -73,7 +73,7 @@ func nearestRank(sorted []time.Duration, p float64) time.Duration {
 // debounce is included. Each iteration is one save, made once the one
 // before has settled; p50 and p95 (nearest rank) are reported in ms.
 //
-//	go test -run '^$' -bench SaveToPage -benchtime 50x ./calcdoc/watch/
+//	go test -run '^$' -bench SaveToPage -benchtime 50x ./cmd/internal/preview/
 func BenchmarkSaveToPage(b *testing.B) {
 	dir := b.TempDir()
 	p := filepath.Join(dir, "big.md")
@@ -121,12 +121,12 @@ func BenchmarkSaveToPage(b *testing.B) {
 }
 
 // BenchmarkEvaluate1000 is the part of the latency that is evaluation and
-// drawing: calcdoc.Parse and render.Sheet of the 1,000-statement document.
+// drawing: calcdoc.Parse and build.Sheet of the 1,000-statement document.
 func BenchmarkEvaluate1000(b *testing.B) {
 	src := []byte(bigDoc(1))
 	for i := 0; i < b.N; i++ {
 		doc := calcdoc.Parse("big.md", src)
-		if _, err := render.Sheet(doc, render.Options{Version: "bench", HeadExtra: liveHead("/big.html", "1")}); err != nil {
+		if _, err := build.Sheet(doc, build.Options{Version: "bench", HeadExtra: liveHead("/big.html", "1")}); err != nil {
 			b.Fatal(err)
 		}
 	}

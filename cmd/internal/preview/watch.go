@@ -1,4 +1,4 @@
-// Package watch is calcdoc's live preview. It watches the folders of the
+// Package preview is calcdoc's live preview (calcdoc watch). It watches the folders of the
 // documents it is given with fsnotify, re-evaluates a document when its
 // file changes, keeps the sheet of each document in memory and serves it
 // over HTTP; a small script in each served page reloads it when its
@@ -17,7 +17,7 @@
 // that does not evaluate shows its errors in place, and a file that cannot
 // be read is served as a page saying so, never as the sheet of an earlier
 // save.
-package watch
+package preview
 
 import (
 	"bytes"
@@ -35,7 +35,7 @@ import (
 	"time"
 
 	"calcdoc/calcdoc"
-	"calcdoc/render"
+	"calcdoc/cmd/internal/build"
 
 	"github.com/fsnotify/fsnotify"
 )
@@ -78,7 +78,7 @@ type Config struct {
 	// Built gives the options of the sheets written under Out (stamp,
 	// embedded source); nil means Version only. The live script is never
 	// added to them.
-	Built func(doc *calcdoc.Document) render.Options
+	Built func(doc *calcdoc.Document) build.Options
 	// Log receives one line per rebuild; nil discards them.
 	Log io.Writer
 	// AnyHost accepts requests whatever host name they give. Leave it
@@ -212,7 +212,7 @@ func New(cfg Config) (*Watcher, error) {
 		w.roots = append(w.roots, r)
 	}
 	if cfg.Out != "" {
-		w.outFile = strings.HasSuffix(strings.ToLower(cfg.Out), ".html")
+		w.outFile = build.OutIsFile(cfg.Out)
 		if w.outFile && (len(w.roots) != 1 || files != 1) {
 			return nil, configErr("-o %s names one file, but a folder or several PATHs can hold several documents: give a folder", cfg.Out)
 		}
@@ -383,8 +383,8 @@ func within(path, dir string) bool {
 }
 
 // skipDir reports whether a folder is never looked into, as in
-// calcdoc.Collect.
-func skipDir(name string) bool { return name == ".git" || name == "node_modules" }
+// build.Collect.
+func skipDir(name string) bool { return build.SkipDir(name) }
 
 // wantsDir reports whether a folder lies under a folder PATH, not inside a
 // skipped folder.
@@ -421,7 +421,7 @@ func (r *root) holdsDir(d string) bool {
 // claim finds the PATH a file belongs to (the first on the command line
 // that holds it) and the file's path relative to it, as build counts it.
 func (w *Watcher) claim(file string) (*root, string, bool) {
-	if filepath.Ext(file) != ".md" {
+	if !build.IsMarkdown(file) {
 		return nil, "", false
 	}
 	for _, r := range w.roots {
@@ -581,61 +581,6 @@ func sortedKeys(m map[string]bool) []string {
 	return out
 }
 
-// outcome of reading a file
-type readKind int
-
-const (
-	readOK readKind = iota
-	readAbsent
-	readFailed
-	readRaced     // replaced while being opened: read again at the next rebuild
-	readIrregular // not a regular file (a folder, a named pipe, a symbolic link): never opened
-)
-
-// read reads a document's file. It never opens a file that is not a
-// regular file, such as a symbolic link or a named pipe (readIrregular,
-// with what it is), and refuses (as absent) a file whose folder is no
-// longer the folder watched (a folder on the way replaced by a symbolic
-// link), so that nothing outside the watched folders is ever read.
-func (w *Watcher) read(r *root, file string) ([]byte, readKind, string) {
-	dir := filepath.Dir(file)
-	if real, err := filepath.EvalSymlinks(dir); err != nil || real != dir {
-		return nil, readAbsent, "deleted"
-	}
-	fi, err := os.Lstat(file)
-	if errors.Is(err, fs.ErrNotExist) {
-		return nil, readAbsent, "deleted"
-	}
-	if err != nil {
-		return nil, readFailed, err.Error()
-	}
-	if !fi.Mode().IsRegular() {
-		return nil, readIrregular, "it is " + fileKind(fi.Mode()) + ", not a regular file"
-	}
-	f, err := openDoc(file)
-	if errors.Is(err, fs.ErrNotExist) {
-		return nil, readAbsent, "deleted"
-	}
-	if err != nil {
-		return nil, readFailed, err.Error()
-	}
-	defer f.Close()
-	if fi2, err := f.Stat(); err != nil || !os.SameFile(fi, fi2) {
-		return nil, readRaced, ""
-	}
-	src, err := io.ReadAll(io.LimitReader(f, maxSize+1))
-	if err != nil {
-		return nil, readFailed, err.Error()
-	}
-	if int64(len(src)) > maxSize {
-		return nil, readFailed, fmt.Sprintf("the file is larger than the %d bytes a document may have", maxSize)
-	}
-	if r.file == "" && !calcdoc.HasCalc(src) {
-		return nil, readAbsent, "holds no calc or solve block"
-	}
-	return src, readOK, ""
-}
-
 // rebuild reads a file again and updates its page; it reports whether
 // anything served changed.
 func (w *Watcher) rebuild(file string) bool {
@@ -721,7 +666,7 @@ func (w *Watcher) rebuild(file string) bool {
 	case p.failed > 0:
 		p.state = stFail
 	}
-	body, err := render.Sheet(doc, render.Options{Version: w.cfg.Version, HeadExtra: liveHead("/"+key, p.version)})
+	body, err := build.Sheet(doc, build.Options{Version: w.cfg.Version, HeadExtra: liveHead("/"+key, p.version)})
 	if err != nil {
 		p.state, p.problem, p.status = stUndrawn, err.Error(), 500
 		body = problemPage(key, p.version, "Cannot draw "+display,
@@ -741,23 +686,6 @@ func (w *Watcher) rebuild(file string) bool {
 	line += w.writeOut(doc, file, rel)
 	w.logf("%s", line)
 	return true
-}
-
-// fileKind names what a file that is not a regular file is.
-func fileKind(m fs.FileMode) string {
-	switch {
-	case m&fs.ModeDir != 0:
-		return "a folder"
-	case m&fs.ModeSymlink != 0:
-		return "a symbolic link (watch follows none)"
-	case m&fs.ModeNamedPipe != 0:
-		return "a named pipe"
-	case m&fs.ModeSocket != 0:
-		return "a socket"
-	case m&fs.ModeDevice != 0:
-		return "a device"
-	}
-	return "a special file"
 }
 
 // unshadow forgets that file was kept from an address.
@@ -788,26 +716,16 @@ func (w *Watcher) writeOut(doc *calcdoc.Document, file, rel string) string {
 	if w.cfg.Out == "" {
 		return ""
 	}
-	target := w.cfg.Out
-	if !w.outFile {
-		target = filepath.Join(w.cfg.Out, strings.TrimSuffix(rel, ".md")+".html")
-	}
-	if calcdoc.SameFile(target, file) {
-		return "; not written: " + target + " is the source itself"
-	}
-	opt := render.Options{Version: w.cfg.Version}
+	target := build.Target(w.cfg.Out, file, rel)
+	opt := build.Options{Version: w.cfg.Version}
 	if w.cfg.Built != nil {
 		opt = w.cfg.Built(doc)
 	}
 	opt.HeadExtra = ""
-	html, err := render.Sheet(doc, opt)
-	if err == nil {
-		err = os.MkdirAll(filepath.Dir(target), 0o755)
-	}
-	if err == nil {
-		err = writeAtomic(target, html)
-	}
-	if err != nil {
+	switch err := build.Write(doc, opt, file, target, createTemp); {
+	case errors.Is(err, build.ErrOverSource):
+		return "; not written: " + target + " is the source itself"
+	case err != nil:
 		return "; cannot write " + target + " (any earlier one is left as it was): " + err.Error()
 	}
 	return " -> " + target
@@ -815,17 +733,11 @@ func (w *Watcher) writeOut(doc *calcdoc.Document, file, rel string) string {
 
 // tempFile is the temporary file a sheet is written to before it is
 // renamed into place.
-type tempFile = calcdoc.TempFile
+type tempFile = build.TempFile
 
 // createTemp makes the temporary file of a write; it is os.CreateTemp, and
 // the tests replace it to write to a disk that fills up.
 var createTemp = func(dir, pattern string) (tempFile, error) { return os.CreateTemp(dir, pattern) }
-
-// writeAtomic is calcdoc.WriteFileAtomic with the temporary file made by
-// createTemp.
-func writeAtomic(path string, data []byte) error {
-	return calcdoc.WriteFileAtomicWith(path, data, createTemp)
-}
 
 func (w *Watcher) nextVersion() string {
 	w.seq++

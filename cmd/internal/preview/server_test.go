@@ -1,4 +1,4 @@
-package watch
+package preview
 
 import (
 	"bufio"

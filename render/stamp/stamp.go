@@ -12,8 +12,6 @@ package stamp
 import (
 	"bytes"
 	"context"
-	"crypto/sha256"
-	"encoding/hex"
 	"errors"
 	"fmt"
 	"os"
@@ -21,73 +19,27 @@ import (
 	"path/filepath"
 	"strings"
 	"time"
+
+	"calcdoc/render"
 )
 
-// State says how the source bytes relate to git.
-type State int
+// State says how the source bytes relate to git; the sheet writer holds
+// the type, as it shows it.
+type State = render.TreeState
 
+// The states, as render defines them.
 const (
-	// Unknown is the zero value: git was found but its answer could not be
-	// had or read (a timeout, a damaged repository, a path git refuses).
-	// Detail says what happened. A zero Stamp never claims to be Clean.
-	Unknown State = iota
-	// Clean: the bytes read are byte for byte the file's blob at HEAD.
-	// Commit is then the last commit that changed the file.
-	Clean
-	// Modified: HEAD holds the file, but the bytes read differ from its
-	// blob at HEAD, whether the change is unstaged or staged and not yet
-	// committed. Commit is the last commit that changed the file, i.e. the
-	// commit the uncommitted changes start from.
-	Modified
-	// Untracked: HEAD does not hold the file. It was never added, or it is
-	// ignored, or it is only added to the index and never committed, or the
-	// repository has no commit yet. Commit is "".
-	Untracked
-	// NoRepo: the file is not inside a git work tree. Commit is "".
-	NoRepo
-	// NoGit: no git executable was found in PATH. Commit is "".
-	NoGit
+	Unknown   = render.TreeUnknown
+	Clean     = render.TreeClean
+	Modified  = render.TreeModified
+	Untracked = render.TreeUntracked
+	NoRepo    = render.TreeNoRepo
+	NoGit     = render.TreeNoGit
 )
 
-// String returns a lower-case name for the state: "unknown", "clean",
-// "modified", "untracked", "no-repo" or "no-git".
-func (s State) String() string {
-	switch s {
-	case Unknown:
-		return "unknown"
-	case Clean:
-		return "clean"
-	case Modified:
-		return "modified"
-	case Untracked:
-		return "untracked"
-	case NoRepo:
-		return "no-repo"
-	case NoGit:
-		return "no-git"
-	}
-	return fmt.Sprintf("State(%d)", int(s))
-}
-
-// Stamp traces one source file.
-type Stamp struct {
-	// SHA256 is the lower-case hex SHA-256 (FIPS 180-4) of the source
-	// bytes exactly as given to Of, 64 characters.
-	SHA256 string
-	// Commit is the full hash of the last commit in HEAD's history that
-	// changed the file (as `git log -1 --format=%H -- FILE`), or "" when
-	// State is not Clean or Modified.
-	Commit string
-	// CommitDate is that commit's committer date in strict ISO 8601 with
-	// the committer's offset (as `git log -1 --format=%cI`), e.g.
-	// "2024-03-05T10:20:30+01:00"; "" when Commit is "".
-	CommitDate string
-	// State says how the bytes relate to git.
-	State State
-	// Detail is one sentence for the sheet that says what State means for
-	// this file, e.g. "git is not installed; no commit recorded".
-	Detail string
-}
+// Stamp traces one source file: the sheet writer's plain record
+// (render.StampInfo), which Of fills in.
+type Stamp = render.StampInfo
 
 // Timeout bounds each git command that Of runs; a command that has not
 // answered by then is killed and the stamp is Unknown.
@@ -98,10 +50,7 @@ var timeout = Timeout
 
 // Hash returns the lower-case hexadecimal SHA-256 digest (FIPS 180-4) of
 // src: 64 characters, the same as the first field that `sha256sum` prints.
-func Hash(src []byte) string {
-	sum := sha256.Sum256(src)
-	return hex.EncodeToString(sum[:])
-}
+func Hash(src []byte) string { return render.SourceHash(src) }
 
 // Of stamps the source file at path whose bytes, as the caller read them,
 // are src. It runs git in the file's own work tree (found from the file's

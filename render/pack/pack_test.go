@@ -1,8 +1,9 @@
-package render
+package pack
 
 import (
 	"context"
 	"fmt"
+	htmlpkg "html"
 	"os/exec"
 	"path/filepath"
 	"regexp"
@@ -11,67 +12,37 @@ import (
 	"testing"
 
 	"calcdoc/calcdoc"
-	"calcdoc/calcdoc/stamp"
+	"calcdoc/render"
+	"calcdoc/render/internal/sheettest"
 	"calcdoc/render/pdf"
 	"calcdoc/render/pdf/pdftest"
+	"calcdoc/render/stamp"
 )
-
-const pkgDropDoc = `---
-title: Yard lighting circuit, voltage drop
-project: Test works
-number: VD-E-002
-revision: B
-date: 2026-11-03
-revisions:
-  - {rev: A, date: 2026-10-20, by: TS, note: First issue}
-  - {rev: B, date: 2026-11-03, by: TS, note: Route length measured on site}
----
-
-# Lighting circuit L3
-
-## Drop along the route
-
-` + "```calc\nV_n = 230 V\nI_L = 12 A\nL = 85 m\nr = 7.41 mohm/m\ndV = 2 * I_L * r * L\ncheck dV / V_n <= 0.05\n```\n"
-
-// pkgLongDoc is a document of n statements in several sections, long
-// enough to print on several pages.
-func pkgLongDoc(n int) string {
-	var b strings.Builder
-	b.WriteString("---\ntitle: Branch currents of a long feeder\nproject: Test works\nnumber: LNG-E-003\nrevision: C\ndate: 2026-11-04\n---\n\n# Branch currents\n\n```calc\nV_0 = 230 V\nZ_0 = (0.5 + j0.2) ohm\n")
-	for i := 1; i <= n; i++ {
-		fmt.Fprintf(&b, "I_%d = V_0 / (Z_0 * %d)   # branch %d\n", i, i, i)
-		if i%40 == 0 {
-			b.WriteString("```\n\n## Further branches\n\n```calc\n")
-		}
-	}
-	b.WriteString("```\n")
-	return b.String()
-}
 
 type pkgFile struct{ name, src string }
 
 var pkgFiles = []pkgFile{
-	{"heater.md", stampDoc},
-	{"drop.md", pkgDropDoc},
-	{"long.md", pkgLongDoc(110)},
+	{"heater.md", sheettest.HeaterDoc},
+	{"drop.md", sheettest.DropDoc},
+	{"long.md", sheettest.LongDoc(110)},
 }
 
-var pkgInfo = PackageInfo{Title: "Test works electrical calculations", Project: "Test works", Number: "TW-PKG-01", Revision: "A", Date: "2026-11-05",
-	Revisions: []calcdoc.Revision{{Rev: "A", Date: "2026-11-05", By: "TS", Note: "Issued for review"}}}
+var pkgInfo = Info{TitleBlock: calcdoc.TitleBlock{Title: "Test works electrical calculations", Project: "Test works", Number: "TW-PKG-01", Revision: "A", Date: "2026-11-05",
+	Revisions: []calcdoc.Revision{{Rev: "A", Date: "2026-11-05", By: "TS", Note: "Issued for review"}}}}
 
 // buildPackage writes the files into dir and returns the package of their
 // sheets, each stamped clean with a fixed commit.
 func buildPackage(t *testing.T, dir string, files []pkgFile) ([]byte, []string) {
 	t.Helper()
-	var sheets []PackageSheet
+	var sheets []Sheet
 	var paths []string
 	for _, f := range files {
 		p := filepath.Join(dir, f.name)
-		writeFile(t, p, f.src)
+		sheettest.WriteFile(t, p, f.src)
 		paths = append(paths, p)
-		st := &StampInfo{SHA256: stamp.Hash([]byte(f.src)), Commit: "0123456789abcdef0123456789abcdef01234567",
+		st := &render.StampInfo{SHA256: stamp.Hash([]byte(f.src)), Commit: "0123456789abcdef0123456789abcdef01234567",
 			CommitDate: "2026-11-05T08:00:00Z", State: stamp.Clean, Detail: "source is as committed"}
-		sheets = append(sheets, PackageSheet{Doc: calcdoc.Parse(f.name, []byte(f.src)), Options: Options{Version: "test", Stamp: st, EmbedSource: true}})
+		sheets = append(sheets, Sheet{Doc: calcdoc.Parse(f.name, []byte(f.src)), Options: render.Options{Version: "test", Stamp: st, EmbedSource: true}})
 	}
 	page, err := Package(pkgInfo, sheets, "test")
 	if err != nil {
@@ -93,9 +64,9 @@ func TestPackageHTML(t *testing.T) {
 		{"VD-E-002", "Yard lighting circuit, voltage drop"},
 		{"LNG-E-003", "Branch currents of a long feeder"},
 	} {
-		sum := coreutilsSHA256(t, paths[i])
+		sum := sheettest.Sha256sum(t, paths[i])
 		sums = append(sums, sum)
-		row := fmt.Sprintf(`<tr data-sheet="%d" data-sha256="%s"><td>%d</td><td>%s</td><td>%s</td>`, i+1, sum, i+1, want.number, esc(want.title))
+		row := fmt.Sprintf(`<tr data-sheet="%d" data-sha256="%s"><td>%d</td><td>%s</td><td>%s</td>`, i+1, sum, i+1, want.number, htmlpkg.EscapeString(want.title))
 		if !strings.Contains(html, row) {
 			t.Errorf("the cover lacks the row %s", row)
 		}
@@ -116,7 +87,7 @@ func TestPackageHTML(t *testing.T) {
 		t.Fatalf("printf | sha256sum: %v", err)
 	}
 	want := strings.Fields(string(out))[0]
-	if got := PackageHash(sums); got != want {
+	if got := Hash(sums); got != want {
 		t.Errorf("PackageHash %s, sha256sum %s", got, want)
 	}
 	if !strings.Contains(html, `data-package-sha256="`+want+`"`) || !strings.Contains(html, `<code class="hash">`+want+`</code>`) {
@@ -141,6 +112,18 @@ func TestPackageHTML(t *testing.T) {
 		}
 		seen[m[1]] = true
 	}
+	// every link within the page leads to an element of the page (HTML:
+	// a fragment "#X" names the element whose id is X)
+	links := 0
+	for _, m := range regexp.MustCompile(` href="#([^"]*)"`).FindAllStringSubmatch(html, -1) {
+		links++
+		if !seen[m[1]] {
+			t.Errorf("the link #%s leads to no element", m[1])
+		}
+	}
+	if links < len(paths) {
+		t.Errorf("%d links within the package, want at least the contents' %d", links, len(paths))
+	}
 	if strings.Count(html, "<style>") != 1 {
 		t.Errorf("the package has %d style elements, want one", strings.Count(html, "<style>"))
 	}
@@ -152,69 +135,11 @@ func TestPackageHTML(t *testing.T) {
 // The SHA-256 of no bytes (NIST CAVP, SHA256ShortMsg, Len = 0) is the
 // hash of an empty package.
 func TestPackageHashEmpty(t *testing.T) {
-	if got := PackageHash(nil); got != "e3b0c44298fc1c149afbf4c8996fb92427ae41e4649b934ca495991b7852b855" {
-		t.Errorf("PackageHash(nil) = %s", got)
+	if got := Hash(nil); got != "e3b0c44298fc1c149afbf4c8996fb92427ae41e4649b934ca495991b7852b855" {
+		t.Errorf("Hash(nil) = %s", got)
 	}
 	if _, err := Package(pkgInfo, nil, "test"); err == nil {
 		t.Error("a package without sheets is accepted")
-	}
-}
-
-// Every sheet of a package verifies from the package's HTML alone; an
-// edited value, or a hash edited on the cover, is named.
-func TestVerifyPackage(t *testing.T) {
-	page, _ := buildPackage(t, t.TempDir(), pkgFiles)
-	cases := []struct {
-		name     string
-		edit     func(t *testing.T, p string) string
-		badSheet int    // the sheet that must not match, 0 for none
-		say      string // what a difference must say
-		cover    bool   // a cover difference is expected
-	}{
-		{"untouched", func(t *testing.T, p string) string { return p }, 0, "", false},
-		{"a value of sheet 2 edited", func(t *testing.T, p string) string {
-			// dV = 2·12 A·7.41 mΩ/m·85 m = 15.12 V (Ohm's law, common practice), line 21
-			return replaceAfter(t, p, `data-value="dV" data-line="21">`, "<mn>15.12</mn>", "<mn>15.21</mn>")
-		}, 2, "value dV (line 21): sheet shows 15.21 V, source gives 15.12 V", false},
-		{"the source of sheet 3 edited", func(t *testing.T, p string) string {
-			return replaceAfter(t, p, `<pre hidden id="s3-calcdoc-source"`, "V_0 = 230 V", "V_0 = 240 V")
-		}, 3, "hash: the embedded source's SHA-256", true},
-		{"a hash on the cover edited", func(t *testing.T, p string) string {
-			return replaceAfter(t, p, `<tr data-sheet="1" data-sha256="`, `data-sha256="`, `data-sha256="f`)
-		}, 0, "hash: the cover lists sheet 1 with SHA-256 f", true},
-	}
-	for _, c := range cases {
-		t.Run(c.name, func(t *testing.T) {
-			rep, err := Verify([]byte(c.edit(t, string(page))), "test")
-			if err != nil {
-				t.Fatal(err)
-			}
-			if !rep.Package || len(rep.Sheets) != 3 {
-				t.Fatalf("package %v with %d sheets", rep.Package, len(rep.Sheets))
-			}
-			var msgs []string
-			for _, d := range rep.PackageDifferences {
-				msgs = append(msgs, "cover: "+d.Message)
-			}
-			for _, s := range rep.Sheets {
-				if s.Match != (s.Index != c.badSheet) {
-					t.Errorf("sheet %d: match %v", s.Index, s.Match)
-				}
-				for _, d := range s.Differences {
-					msgs = append(msgs, fmt.Sprintf("sheet %d: %s", s.Index, d.Message))
-				}
-			}
-			all := strings.Join(msgs, "\n")
-			if rep.OK() != (c.badSheet == 0 && !c.cover) {
-				t.Errorf("OK %v:\n%s", rep.OK(), all)
-			}
-			if (len(rep.PackageDifferences) > 0) != c.cover {
-				t.Errorf("cover differences: %v", rep.PackageDifferences)
-			}
-			if !strings.Contains(all, c.say) {
-				t.Errorf("no difference says %q:\n%s", c.say, all)
-			}
-		})
 	}
 }
 
@@ -233,7 +158,7 @@ func TestPackagePDF(t *testing.T) {
 	dir := t.TempDir()
 	page, _ := buildPackage(t, dir, pkgFiles)
 	hp := filepath.Join(dir, "package.html")
-	writeFile(t, hp, string(page))
+	sheettest.WriteFile(t, hp, string(page))
 	pp := filepath.Join(dir, "package.pdf")
 	ctx := context.Background()
 	if err := pdf.Print(ctx, hp, pp); err != nil {
@@ -314,16 +239,16 @@ func TestPackagePDF(t *testing.T) {
 	}
 	info := pkgInfo
 	info.StartPages = starts
-	var sheets []PackageSheet
+	var sheets []Sheet
 	for _, f := range pkgFiles {
-		st := &StampInfo{SHA256: stamp.Hash([]byte(f.src)), State: stamp.Clean}
-		sheets = append(sheets, PackageSheet{Doc: calcdoc.Parse(f.name, []byte(f.src)), Options: Options{Version: "test", Stamp: st, EmbedSource: true}})
+		st := &render.StampInfo{SHA256: stamp.Hash([]byte(f.src)), State: stamp.Clean}
+		sheets = append(sheets, Sheet{Doc: calcdoc.Parse(f.name, []byte(f.src)), Options: render.Options{Version: "test", Stamp: st, EmbedSource: true}})
 	}
 	page2, err := Package(info, sheets, "test")
 	if err != nil {
 		t.Fatal(err)
 	}
-	writeFile(t, hp, string(page2))
+	sheettest.WriteFile(t, hp, string(page2))
 	if err := pdf.Print(ctx, hp, pp); err != nil {
 		t.Fatal(err)
 	}

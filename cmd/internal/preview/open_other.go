@@ -1,6 +1,6 @@
 //go:build !unix
 
-package watch
+package preview
 
 import "os"
 

@@ -1,0 +1,106 @@
+package build
+
+import (
+	"errors"
+	"os"
+	"path/filepath"
+	"reflect"
+	"testing"
+
+	"calcdoc/calcdoc"
+)
+
+// The rules checked here are the README's ("Commands"): without -o a
+// sheet NAME.html goes beside NAME.md; -o DIR keeps the paths relative to
+// the PATH given; -o FILE.html names the file; a folder PATH means every
+// .md below it that holds a calc or solve block, .git folders skipped
+// (node_modules too: the rule the command has always applied).
+
+func TestTarget(t *testing.T) {
+	for _, c := range []struct{ out, file, rel, want string }{
+		{"", filepath.Join("calc", "feeder.md"), "feeder.md", filepath.Join("calc", "feeder.html")},
+		{"site", filepath.Join("calc", "sub", "feeder.md"), filepath.Join("sub", "feeder.md"), filepath.Join("site", "sub", "feeder.html")},
+		{"one.html", filepath.Join("calc", "feeder.md"), "feeder.md", "one.html"},
+		{"ONE.HTML", "feeder.md", "feeder.md", "ONE.HTML"},
+	} {
+		if got := Target(c.out, c.file, c.rel); got != c.want {
+			t.Errorf("Target(%q, %q, %q) = %q, want %q", c.out, c.file, c.rel, got, c.want)
+		}
+	}
+}
+
+func write(t *testing.T, path, text string) {
+	t.Helper()
+	if err := os.MkdirAll(filepath.Dir(path), 0o755); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(path, []byte(text), 0o644); err != nil {
+		t.Fatal(err)
+	}
+}
+
+const calcDoc = "# A\n\n```calc\nV = 230 V\n```\n"
+
+func TestCollectFolderRule(t *testing.T) {
+	dir := t.TempDir()
+	write(t, filepath.Join(dir, "b.md"), calcDoc)
+	write(t, filepath.Join(dir, "a", "c.md"), calcDoc)
+	write(t, filepath.Join(dir, "notes.md"), "# prose only\n")
+	write(t, filepath.Join(dir, ".git", "x.md"), calcDoc)
+	write(t, filepath.Join(dir, "node_modules", "y.md"), calcDoc)
+	write(t, filepath.Join(dir, "z.txt"), calcDoc)
+	got, err := Collect([]string{dir})
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := []Input{
+		{Path: filepath.Join(dir, "a", "c.md"), Rel: filepath.Join("a", "c.md")},
+		{Path: filepath.Join(dir, "b.md"), Rel: "b.md"},
+	}
+	if !reflect.DeepEqual(got, want) {
+		t.Errorf("Collect = %v, want %v", got, want)
+	}
+	if _, err := Collect([]string{filepath.Join(dir, "z.txt")}); err == nil {
+		t.Error("a file not ending in .md is accepted")
+	}
+	empty := t.TempDir()
+	write(t, filepath.Join(empty, "notes.md"), "# prose only\n")
+	if _, err := Collect([]string{empty}); err == nil {
+		t.Error("a folder without documents is accepted")
+	}
+}
+
+// The build step refuses to write over the source, and writes the sheet
+// where Target says otherwise.
+func TestWrite(t *testing.T) {
+	dir := t.TempDir()
+	src := filepath.Join(dir, "a.md")
+	write(t, src, calcDoc)
+	doc, err := calcdoc.Load(src)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := Write(doc, Options{Version: "t"}, src, src, nil); !errors.Is(err, ErrOverSource) {
+		t.Errorf("writing over the source: %v", err)
+	}
+	if b, _ := os.ReadFile(src); string(b) != calcDoc {
+		t.Errorf("the source was changed: %q", b)
+	}
+	target := Target(filepath.Join(dir, "out"), src, "a.md")
+	if err := Write(doc, Options{Version: "t"}, src, target, nil); err != nil {
+		t.Fatal(err)
+	}
+	want, err := Sheet(doc, Options{Version: "t"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got, _ := os.ReadFile(target); string(got) != string(want) {
+		t.Error("the written sheet is not the sheet")
+	}
+	blocked := filepath.Join(dir, "file")
+	write(t, blocked, "x")
+	var we *WriteError
+	if err := Write(doc, Options{Version: "t"}, src, filepath.Join(blocked, "a.html"), nil); !errors.As(err, &we) || !we.Folder {
+		t.Errorf("a folder that cannot be made: %v", err)
+	}
+}
