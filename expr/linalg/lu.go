@@ -350,7 +350,12 @@ func (f *LU[T]) Inverse() ([]T, error) {
 		col[j] = fromF[T](1)
 		f.solveB(col)
 		for i := 0; i < n; i++ {
-			x[i*n+j] = f.rowIn(f.colOut(col[i], i), j)
+			if f.auto {
+				// one exact scaling by 2^(ce_i + re_j)
+				x[i*n+j] = ldexpT(col[i], f.ce[i]+f.re[j])
+			} else {
+				x[i*n+j] = divF(mulF(col[i], f.cs[i]), f.rq[j])
+			}
 		}
 	}
 	return x, nil
