@@ -163,6 +163,10 @@ type SolveSet struct {
 	Solved bool
 	// Linear is true when the set was classified affine in its unknowns.
 	Linear bool
+	// ComplexLU is true for a linear set that is complex-linear (see
+	// solve.Linear.ComplexLinear): its complex matrix was factored rather
+	// than the real form, and Cond is that matrix's.
+	ComplexLU bool
 	// Refined is true for a linear set whose direct solution did not meet
 	// the residual tolerance and was refined by Newton iterations.
 	Refined bool
@@ -1282,9 +1286,16 @@ func sameBits(a, b []float64) bool {
 }
 
 func (r *solveRun) problem(x0, rscale []float64) *solve.Problem {
+	var rows []int
+	for i, eq := range r.eqs {
+		if !eq.RealValued {
+			rows = append(rows, r.row[i], r.row[i]+1)
+		}
+	}
 	return &solve.Problem{
 		N: r.n, M: r.m, Residual: r.residual,
 		X0: x0, XScale: r.xscale, RScale: rscale, Complex: r.pairs,
+		ComplexRows: rows,
 	}
 }
 

@@ -4,8 +4,18 @@ import (
 	"fmt"
 	"math"
 
+	"calcdoc/expr/linalg"
+
 	"gonum.org/v1/gonum/mat"
 )
+
+func ones(n int) []float64 {
+	v := make([]float64, n)
+	for i := range v {
+		v[i] = 1
+	}
+	return v
+}
 
 // Options tunes Newton. The zero value selects the defaults.
 type Options struct {
@@ -177,7 +187,8 @@ func (e *evaluator) newton(x0 []float64, opt Options) (*Result, error) {
 	dx := make([]float64, n)
 	xt := make([]float64, n)
 	rt := make([]float64, n)
-	var lu mat.LU
+	neg := make([]float64, n)
+	unitScales := &linalg.Options{RowScale: ones(n), ColScale: ones(n)}
 	for {
 		if f <= opt.ResidualTol {
 			return done(ByResidual)
@@ -194,23 +205,21 @@ func (e *evaluator) newton(x0 []float64, opt Options) (*Result, error) {
 		res.Iterations++
 		step := Step{Iteration: res.Iterations}
 
-		lu.Factorize(jac.T())
-		cond := lu.Cond()
-		logDet, _ := lu.LogDet()
-		if math.IsInf(logDet, -1) || math.IsNaN(logDet) {
-			cond = math.Inf(1)
+		// Ĵ is already scaled: factor it as it is (unit scales)
+		cond := math.Inf(1)
+		lu, ferr := linalg.Factorize(n, jac.RawMatrix().Data, unitScales)
+		if lu != nil {
+			cond = lu.Cond()
 		}
 		step.Cond, res.Cond = cond, cond
 		accepted := false
-		if cond <= CondLimit {
-			var dy mat.VecDense
-			neg := mat.NewVecDense(n, nil)
+		if ferr == nil && lu.CheckCond(CondLimit) == nil {
 			for i := range rhat {
-				neg.SetVec(i, -rhat[i])
+				neg[i] = -rhat[i]
 			}
-			if lu.SolveVecTo(&dy, true, neg) == nil {
+			if dy, err := lu.Solve(neg); err == nil {
 				for k := range dx {
-					dx[k] = e.scale[k] * dy.AtVec(k)
+					dx[k] = e.scale[k] * dy[k]
 				}
 				size := e.stepSize(x, dx)
 				if size <= opt.StepTol {

@@ -78,9 +78,7 @@ func Factorize[T Scalar](n int, a []T, opt *Options) (*LU[T], error) {
 		}
 	}
 	f := &LU[T]{n: n, sign: 1, b: make([]T, n*n)}
-	if opt == nil || (opt.RowScale == nil && opt.ColScale == nil) {
-		f.autoScale(a)
-	} else if err := f.givenScale(a, opt); err != nil {
+	if err := f.scale(a, opt); err != nil {
 		return nil, err
 	}
 	for j := 0; j < n; j++ {
@@ -95,6 +93,34 @@ func Factorize[T Scalar](n int, a []T, opt *Options) (*LU[T], error) {
 		return f, f.sing
 	}
 	return f, nil
+}
+
+// Scale returns the scaled matrix B of the n×n matrix a (row by row) as
+// opt says (nil: automatic powers of two), without factoring it: what a
+// diagnosis of a singular matrix (such as its singular value decomposition)
+// should look at. Errors are those of Factorize for invalid input.
+func Scale[T Scalar](n int, a []T, opt *Options) ([]T, error) {
+	if n < 1 || len(a) != n*n {
+		return nil, &NotSquare{N: n, Len: len(a)}
+	}
+	for i, v := range a {
+		if !finiteT(v) {
+			return nil, &NotFinite{Row: i / n, Col: i % n}
+		}
+	}
+	f := &LU[T]{n: n, b: make([]T, n*n)}
+	if err := f.scale(a, opt); err != nil {
+		return nil, err
+	}
+	return f.b, nil
+}
+
+func (f *LU[T]) scale(a []T, opt *Options) error {
+	if opt == nil || (opt.RowScale == nil && opt.ColScale == nil) {
+		f.autoScale(a)
+		return nil
+	}
+	return f.givenScale(a, opt)
 }
 
 // scaleExp is the power of two e with 2^e·x in [0.5, 1) for x > 0, else 0.
@@ -172,7 +198,20 @@ func (f *LU[T]) givenScale(a []T, opt *Options) error {
 	return nil
 }
 
+// blockSize is the number of pivot steps whose updates of the trailing
+// matrix are applied together (see factor).
+var blockSize = 32
+
 // factor runs Gaussian elimination with partial pivoting on a copy of B.
+//
+// It is blocked: the pivots of blockSize columns are found on that panel
+// alone (each panel column fully updated before its pivot is chosen), then
+// the rows of U to the right of the panel, then the trailing rows, each
+// row by all the panel's multipliers while it is in cache. Every entry
+// receives the same updates, l_ip·u_pj for ascending p, as in the unblocked
+// algorithm, so the factors are identical to it bit for bit; only the
+// order in which entries are visited differs, which reads the trailing
+// matrix once per panel instead of once per pivot.
 func (f *LU[T]) factor() {
 	n := f.n
 	f.lu = append([]T(nil), f.b...)
@@ -185,44 +224,73 @@ func (f *LU[T]) factor() {
 		big = math.Max(big, absT(v))
 	}
 	lu := f.lu
-	for k := 0; k < n; k++ {
-		p, best := k, absT(lu[k*n+k])
-		for i := k + 1; i < n; i++ {
-			if v := absT(lu[i*n+k]); v > best {
-				p, best = i, v
+	for k0 := 0; k0 < n; k0 += blockSize {
+		kend := min(k0+blockSize, n)
+		// the panel: columns k0..kend-1, all rows from the pivot down
+		for k := k0; k < kend; k++ {
+			p, best := k, absT(lu[k*n+k])
+			for i := k + 1; i < n; i++ {
+				if v := absT(lu[i*n+k]); v > best {
+					p, best = i, v
+				}
+			}
+			if best == 0 || best <= PivotTol*big {
+				c := math.Inf(1)
+				if best > 0 {
+					c = big / best
+				}
+				f.sing = &Singular{Pivot: k, Cond: c}
+				f.cond = c
+				return
+			}
+			if p != k {
+				rk, rp := lu[k*n:(k+1)*n], lu[p*n:(p+1)*n]
+				for j := range rk {
+					rk[j], rp[j] = rp[j], rk[j]
+				}
+				f.perm[k], f.perm[p] = f.perm[p], f.perm[k]
+				f.sign = -f.sign
+			}
+			piv := lu[k*n+k]
+			rk := lu[k*n+k+1 : k*n+kend]
+			for i := k + 1; i < n; i++ {
+				q := lu[i*n+k] / piv
+				lu[i*n+k] = q
+				if q == 0 {
+					continue
+				}
+				axpy(lu[i*n+k+1:i*n+kend], rk, q)
 			}
 		}
-		if best == 0 || best <= PivotTol*big {
-			c := math.Inf(1)
-			if best > 0 {
-				c = big / best
-			}
-			f.sing = &Singular{Pivot: k, Cond: c}
-			f.cond = c
-			return
+		if kend == n {
+			break
 		}
-		if p != k {
-			rk, rp := lu[k*n:(k+1)*n], lu[p*n:(p+1)*n]
-			for j := range rk {
-				rk[j], rp[j] = rp[j], rk[j]
-			}
-			f.perm[k], f.perm[p] = f.perm[p], f.perm[k]
-			f.sign = -f.sign
-		}
-		piv := lu[k*n+k]
-		rk := lu[k*n+k+1 : (k+1)*n]
-		for i := k + 1; i < n; i++ {
-			q := lu[i*n+k] / piv
-			lu[i*n+k] = q
-			if q == 0 {
-				continue
-			}
-			ri := lu[i*n+k+1 : (i+1)*n]
-			ri = ri[:len(rk)]
-			for j, v := range rk {
-				ri[j] -= q * v
+		// U to the right of the panel: rows k0..kend-1
+		for r := k0 + 1; r < kend; r++ {
+			rr := lu[r*n+kend : (r+1)*n]
+			for p := k0; p < r; p++ {
+				if l := lu[r*n+p]; l != 0 {
+					axpy(rr, lu[p*n+kend:(p+1)*n], l)
+				}
 			}
 		}
+		// the trailing rows
+		for i := kend; i < n; i++ {
+			ri := lu[i*n+kend : (i+1)*n]
+			for p := k0; p < kend; p++ {
+				if l := lu[i*n+p]; l != 0 {
+					axpy(ri, lu[p*n+kend:(p+1)*n], l)
+				}
+			}
+		}
+	}
+}
+
+// axpy is y_j −= q·x_j.
+func axpy[T Scalar](y, x []T, q T) {
+	y = y[:len(x)]
+	for j, v := range x {
+		y[j] -= q * v
 	}
 }
 

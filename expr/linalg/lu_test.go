@@ -4,6 +4,7 @@ import (
 	"errors"
 	"math"
 	"math/cmplx"
+	"math/rand/v2"
 	"testing"
 )
 
@@ -251,5 +252,37 @@ func TestGivenScales(t *testing.T) {
 	// det A = 1·(−1e6) − 2e6·1 = −3e6
 	if d, ok := f.DetValue(); !ok || math.Abs(d+3e6) > 1e-15*3e6 {
 		t.Errorf("det = %v, want −3e6", d)
+	}
+}
+
+// TestBlockedEqualsUnblocked: the blocked elimination applies the same
+// updates in the same order per entry as the unblocked one (blockSize 1),
+// so the factors agree bit for bit (n = 77: two full panels and a part).
+func TestBlockedEqualsUnblocked(t *testing.T) {
+	const n = 77
+	a := make([]complex128, n*n)
+	ar := make([]float64, n*n)
+	// pseudo-random entries (fixed seed) with magnitudes over 1e±4
+	rng := rand.New(rand.NewPCG(77, 1))
+	for i := range a {
+		v := rng.NormFloat64() * math.Pow(10, float64(rng.IntN(9)-4))
+		a[i] = complex(v, rng.NormFloat64())
+		ar[i] = v
+	}
+	saved := blockSize
+	defer func() { blockSize = saved }()
+	blockSize = 1
+	c1, err1 := Factorize(n, a, nil)
+	r1, err2 := Factorize(n, ar, nil)
+	blockSize = saved
+	c2, err3 := Factorize(n, a, nil)
+	r2, err4 := Factorize(n, ar, nil)
+	if err1 != nil || err2 != nil || err3 != nil || err4 != nil {
+		t.Fatal(err1, err2, err3, err4)
+	}
+	for i := range c1.lu {
+		if c1.lu[i] != c2.lu[i] || r1.lu[i] != r2.lu[i] {
+			t.Fatalf("entry %d differs: %v/%v, %v/%v", i, c1.lu[i], c2.lu[i], r1.lu[i], r2.lu[i])
+		}
 	}
 }
