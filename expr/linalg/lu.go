@@ -4,7 +4,8 @@
 // solve blocks) and real ones (the real form of a solve block whose
 // equations involve conj, re or im of an unknown, and Newton's Jacobian).
 //
-// It imports only the standard library. Numeric conditions are typed
+// It imports only the standard library and, for the real elimination,
+// gonum's LAPACK (lapack/gonum.Dgetrf). Numeric conditions are typed
 // values: *Singular, *IllConditioned, *NotSquare, *BadScale, *NotFinite,
 // to be told apart with errors.As. Nothing here panics on a singular
 // matrix.
@@ -12,6 +13,8 @@ package linalg
 
 import (
 	"math"
+
+	"gonum.org/v1/gonum/lapack/gonum"
 )
 
 // Scalar is the element type of a matrix: real or complex.
@@ -204,7 +207,8 @@ var blockSize = 32
 
 // factor runs Gaussian elimination with partial pivoting on a copy of B.
 //
-// It is blocked: the pivots of blockSize columns are found on that panel
+// A real B is factored by factorReal. A complex B here; the elimination
+// is blocked: the pivots of blockSize columns are found on that panel
 // alone (each panel column fully updated before its pivot is chosen), then
 // the rows of U to the right of the panel, then the trailing rows, each
 // row by all the panel's multipliers while it is in cache. Every entry
@@ -222,6 +226,10 @@ func (f *LU[T]) factor() {
 	big := 0.0
 	for _, v := range f.b {
 		big = math.Max(big, absT(v))
+	}
+	if g, ok := any(f).(*LU[float64]); ok {
+		factorReal(g, big)
+		return
 	}
 	lu := f.lu
 	for k0 := 0; k0 < n; k0 += blockSize {
@@ -282,6 +290,36 @@ func (f *LU[T]) factor() {
 					axpy(ri, lu[p*n+kend:(p+1)*n], l)
 				}
 			}
+		}
+	}
+}
+
+// factorReal factors a real B with gonum's Dgetrf (row-major LAPACK,
+// blocked, with assembly kernels): the same partial pivoting, by the
+// largest |entry| of the column, so |U_kk| is the largest candidate pivot
+// of step k and the pivot test is made on the diagonal afterwards (Dgetrf
+// skips the division at a zero pivot, so no NaN precedes the first failing
+// step). Its row interchanges (row k with row ipiv[k], in turn) become perm.
+func factorReal(f *LU[float64], big float64) {
+	n := f.n
+	ipiv := make([]int, n)
+	gonum.Implementation{}.Dgetrf(n, n, f.lu, n, ipiv)
+	for k, p := range ipiv {
+		if p != k {
+			f.perm[k], f.perm[p] = f.perm[p], f.perm[k]
+			f.sign = -f.sign
+		}
+	}
+	for k := 0; k < n; k++ {
+		best := math.Abs(f.lu[k*n+k])
+		if best == 0 || best <= PivotTol*big || math.IsNaN(best) {
+			c := math.Inf(1)
+			if best > 0 {
+				c = big / best
+			}
+			f.sing = &Singular{Pivot: k, Cond: c}
+			f.cond = c
+			return
 		}
 	}
 }
