@@ -1428,19 +1428,19 @@ func joinAnd(s []string) string {
 // equation furthest from balance there.
 func (r *solveRun) noConvergence(ne *solve.NoConvergenceError) {
 	var reason string
-	switch {
-	case strings.HasPrefix(ne.Reason, "iteration limit"):
-		reason = fmt.Sprintf("the iteration limit of %d iterations was reached", solve.MaxIterations)
-	case strings.HasPrefix(ne.Reason, "no step reduces"):
+	switch ne.Reason {
+	case solve.IterationLimit:
+		reason = fmt.Sprintf("the iteration limit of %d iterations was reached", ne.Limit)
+	case solve.NoDescent:
 		reason = "no step brings the equations closer to balance: the iteration is stuck at a point that is not a solution, so the set may have no solution, or the starting point is too far from one"
-	case strings.HasPrefix(ne.Reason, "the Jacobian"):
+	case solve.JacobianFailed:
 		reason = "the equations could not be evaluated near the last iterate"
 		var xe *expr.Error
 		if errors.As(ne.Err, &xe) {
 			reason += " (" + xe.Msg + ")"
 		}
 	default:
-		reason = ne.Reason
+		reason = ne.Reason.String()
 	}
 	msg := fmt.Sprintf("no solution found: %s; after %d iteration%s the scaled residual is %.3g (the tolerance is %.0e)", reason, ne.Iterations, plural(ne.Iterations), ne.ResidualNorm, solve.ResidualTol)
 	if len(ne.X) == r.n {
