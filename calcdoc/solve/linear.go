@@ -175,7 +175,14 @@ type SingularError struct {
 	Contradiction []float64
 	Lead          int
 	Mismatch      float64
+
+	// Cause is the condition expr/linalg reported: a *linalg.Singular, a
+	// *linalg.IllConditioned, or a *linalg.NotFinite for a solution that
+	// overflows. Unwrap returns it, so errors.As finds it.
+	Cause error
 }
+
+func (e *SingularError) Unwrap() error { return e.Cause }
 
 // ContradictTol is the relative size above which the part of the
 // equilibrated right-hand side outside the range of a singular matrix makes
@@ -327,13 +334,15 @@ func singularOf(n int, a, s, q, b []float64, cond float64, cause error) *Singula
 	zeroPivot := errors.As(cause, &ls) && ls.Exact()
 	as, err := linalg.Scale(n, a, &linalg.Options{RowScale: q, ColScale: s})
 	if err != nil {
-		return &SingularError{Cond: cond, ZeroPivot: zeroPivot, Rank: -1}
+		return &SingularError{Cond: cond, ZeroPivot: zeroPivot, Rank: -1, Cause: cause}
 	}
 	bs := make([]float64, n)
 	for i := range bs {
 		bs[i] = b[i] / q[i]
 	}
-	return singular(mat.NewDense(n, n, as), bs, q, b, cond, zeroPivot)
+	se := singular(mat.NewDense(n, n, as), bs, q, b, cond, zeroPivot)
+	se.Cause = cause
+	return se
 }
 
 func scales(v []float64, n int, name string) ([]float64, error) {

@@ -6,6 +6,8 @@ import (
 	"math/cmplx"
 	"testing"
 
+	"calcdoc/expr/linalg"
+
 	"gonum.org/v1/gonum/mat"
 )
 
@@ -102,6 +104,15 @@ func TestSingular(t *testing.T) {
 			}
 			if se.Error() == "" {
 				t.Error("empty error message")
+			}
+			// the typed condition of expr/linalg is reachable by errors.As
+			var ls *linalg.Singular
+			var ic *linalg.IllConditioned
+			if !errors.As(err, &ls) && !errors.As(err, &ic) {
+				t.Errorf("cause %v: want a *linalg.Singular or *linalg.IllConditioned", se.Cause)
+			}
+			if ls != nil && ls.Exact() != se.ZeroPivot {
+				t.Errorf("ZeroPivot = %v, linalg.Singular exact = %v", se.ZeroPivot, ls.Exact())
 			}
 		})
 	}

@@ -309,3 +309,31 @@ func TestBlockedEqualsUnblocked(t *testing.T) {
 		t.Errorf("Cond: real %v, complex %v", r.Cond(), rc.Cond())
 	}
 }
+
+// TestDetRange: det diag(1e200, 1e200) = 1e400 and det diag(1e-200,
+// 1e-200) = 1e-400 lie outside binary64 (largest 1.8e308, smallest
+// subnormal 4.9e-324; hand derivation), but Det's mantissa and exponent
+// hold them: log₂|det| = log₂|m| + e = ±400·log₂10.
+func TestDetRange(t *testing.T) {
+	for _, c := range []struct {
+		v    float64
+		want float64 // log₂|det|
+		inf  bool
+	}{
+		{1e200, 400 * math.Log2(10), true},
+		{1e-200, -400 * math.Log2(10), false},
+	} {
+		f, err := Factorize(2, []complex128{complex(c.v, 0), 0, 0, complex(c.v, 0)}, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		m, e := f.Det()
+		if got := math.Log2(cmplx.Abs(m)) + float64(e); math.Abs(got-c.want) > 1e-12*math.Abs(c.want) {
+			t.Errorf("det diag(%g, %g): log₂|det| = %v, want %v", c.v, c.v, got, c.want)
+		}
+		z, ok := f.DetValue()
+		if ok || (c.inf && !cmplx.IsInf(z)) || (!c.inf && z != 0) {
+			t.Errorf("DetValue = %v, %v; want out of range (ok false)", z, ok)
+		}
+	}
+}
