@@ -74,6 +74,7 @@ func (r *solveRun) solveSet() bool {
 	var x []float64
 	if linear {
 		set.Linear, set.lin, set.MaxDeviation = true, lin, lin.MaxDeviation
+		set.ComplexLU = lin.ComplexLinear()
 		xs, cond, err := solve.SolveLinear(lin)
 		set.Cond = cond
 		if err != nil {

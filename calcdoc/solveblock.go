@@ -163,6 +163,10 @@ type SolveSet struct {
 	Solved bool
 	// Linear is true when the set was classified affine in its unknowns.
 	Linear bool
+	// ComplexLU is true for a linear set that is complex-linear (see
+	// solve.Linear.ComplexLinear): its complex matrix was factored rather
+	// than the real form, and Cond is that matrix's.
+	ComplexLU bool
 	// Refined is true for a linear set whose direct solution did not meet
 	// the residual tolerance and was refined by Newton iterations.
 	Refined bool
@@ -1286,9 +1290,16 @@ func sameBits(a, b []float64) bool {
 }
 
 func (r *solveRun) problem(x0, rscale []float64) *solve.Problem {
+	var rows []int
+	for i, eq := range r.eqs {
+		if !eq.RealValued {
+			rows = append(rows, r.row[i], r.row[i]+1)
+		}
+	}
 	return &solve.Problem{
 		N: r.n, M: r.m, Residual: r.residual,
 		X0: x0, XScale: r.xscale, RScale: rscale, Complex: r.pairs,
+		ComplexRows: rows,
 	}
 }
 
@@ -1421,19 +1432,19 @@ func joinAnd(s []string) string {
 // equation furthest from balance there.
 func (r *solveRun) noConvergence(ne *solve.NoConvergenceError) {
 	var reason string
-	switch {
-	case strings.HasPrefix(ne.Reason, "iteration limit"):
-		reason = fmt.Sprintf("the iteration limit of %d iterations was reached", solve.MaxIterations)
-	case strings.HasPrefix(ne.Reason, "no step reduces"):
+	switch ne.Reason {
+	case solve.IterationLimit:
+		reason = fmt.Sprintf("the iteration limit of %d iterations was reached", ne.Limit)
+	case solve.NoDescent:
 		reason = "no step brings the equations closer to balance: the iteration is stuck at a point that is not a solution, so the set may have no solution, or the starting point is too far from one"
-	case strings.HasPrefix(ne.Reason, "the Jacobian"):
+	case solve.JacobianFailed:
 		reason = "the equations could not be evaluated near the last iterate"
 		var xe *expr.Error
 		if errors.As(ne.Err, &xe) {
 			reason += " (" + xe.Msg + ")"
 		}
 	default:
-		reason = ne.Reason
+		reason = ne.Reason.String()
 	}
 	msg := fmt.Sprintf("no solution found: %s; after %d iteration%s the scaled residual is %.3g (the tolerance is %.0e)", reason, ne.Iterations, plural(ne.Iterations), ne.ResidualNorm, solve.ResidualTol)
 	if len(ne.X) == r.n {

@@ -1,10 +1,17 @@
 package expr
 
 import (
+	"errors"
 	"fmt"
 	"math"
 	"math/cmplx"
+
+	"calcdoc/expr/linalg"
 )
+
+// unitRoundoff is u = 2⁻⁵³, the relative rounding error of one binary64
+// operation (IEEE 754-2019, round to nearest).
+const unitRoundoff = linalg.UnitRoundoff
 
 // MaxMatrixEntries bounds the entries of a matrix that a product or diag
 // makes (a 100×100 matrix), so that no expression of a short line takes
@@ -219,6 +226,62 @@ func consistentDims(m *Matrix) (r, c []Dim, ok bool) {
 	return r, c, true
 }
 
+// singularError words a condition of linalg.Factorize for inv and det: a
+// matrix singular after scaling its rows and columns (by powers of two),
+// with the condition estimate of the scaled matrix.
+func singularError(err error) error {
+	var s *linalg.Singular
+	if !errors.As(err, &s) {
+		return err
+	}
+	if s.Exact() {
+		return fmt.Errorf("the matrix is singular: it has no inverse (after scaling its rows and columns a pivot is exactly 0: condition estimate infinite)")
+	}
+	return fmt.Errorf("the matrix is singular: it has no inverse (after scaling its rows and columns its condition estimate is %.2g; above %g counts as singular)", s.Cond, 1/linalg.PivotTol)
+}
+
+// inverseResid is, for each entry of the computed inverse X of the n×n
+// matrix A (both row by row), the bound on its rounding residue described
+// at Resid: 8n·u·(|X||A||X|)_ij + (|X||R_A||X|)_ij, R_A the residue bound
+// of A (nil: none). The first term is the first-order bound of the error
+// of an inverse computed from an LU factorisation with partial pivoting
+// (Higham, Accuracy and Stability of Numerical Algorithms, 2nd ed.,
+// section 14.3, with the growth of |L||U| over |A| taken into the constant
+// 8n); the second carries the residue already in A (δX = −X·δA·X to first
+// order).
+func inverseResid(x, a []complex128, ra []float64, n int) []float64 {
+	ax := make([]float64, n*n)
+	rx := make([]float64, n*n)
+	for i := 0; i < n; i++ {
+		for k := 0; k < n; k++ {
+			xa := cmplx.Abs(x[i*n+k])
+			if xa == 0 {
+				continue
+			}
+			for l := 0; l < n; l++ {
+				ax[i*n+l] += xa * cmplx.Abs(a[k*n+l])
+				if ra != nil {
+					rx[i*n+l] += xa * ra[k*n+l]
+				}
+			}
+		}
+	}
+	res := make([]float64, n*n)
+	c := 8 * float64(n) * unitRoundoff
+	for i := 0; i < n; i++ {
+		for l := 0; l < n; l++ {
+			if ax[i*n+l] == 0 && rx[i*n+l] == 0 {
+				continue
+			}
+			for j := 0; j < n; j++ {
+				xl := cmplx.Abs(x[l*n+j])
+				res[i*n+j] += (c*ax[i*n+l] + rx[i*n+l]) * xl
+			}
+		}
+	}
+	return res
+}
+
 func matInv(args []Value) (Value, error) {
 	m, err := oneMatrix(args, "a square matrix")
 	if err != nil {
@@ -236,11 +299,15 @@ func matInv(args []Value) (Value, error) {
 	for i, e := range m.E {
 		a[i] = e.Z
 	}
-	f := factor(a, n)
-	if f.singular {
-		return nil, f.singularError()
+	f, err := linalg.Factorize(n, a, nil)
+	if err != nil {
+		return nil, singularError(err)
 	}
-	x, res := f.inverse(a, m.Resid)
+	x, err := f.Inverse()
+	if err != nil {
+		return nil, singularError(err)
+	}
+	res := inverseResid(x, a, m.Resid, n)
 	out := NewMatrix(n, n)
 	out.Resid = res
 	for i := 0; i < n; i++ {
@@ -284,8 +351,13 @@ func matDet(args []Value) (Value, error) {
 	}
 	// singular after equilibration: the determinant is 0 (its computed
 	// value would be rounding residue)
-	z, ok := factor(a, n).det()
-	if !ok {
+	f, err := linalg.Factorize(n, a, nil)
+	var ls *linalg.Singular
+	if err != nil && !errors.As(err, &ls) {
+		return nil, err
+	}
+	z, ok := f.DetValue()
+	if !ok && z == 0 {
 		return nil, fmt.Errorf("the determinant underflows: it is not zero, but below %.2g in coherent SI units, the smallest number calcdoc can hold", math.SmallestNonzeroFloat64)
 	}
 	return &Scalar{Z: z, Dim: d}, nil

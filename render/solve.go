@@ -192,8 +192,12 @@ func solvedParts(w *Writer, b *calcdoc.Block, set *calcdoc.SolveSet) {
 	partOpen(w)
 	w.WriteString("<p class=\"method\">")
 	if set.Linear {
-		fmt.Fprintf(w, "<strong>Linear, solved directly.</strong> The equations are affine in the unknowns (confirmed at %d further points to within %s). The real form (real and imaginary parts as separate unknowns and equations) is solved by LU factorisation with partial pivoting of the scaled matrix; condition number estimate κ₁ = %s.",
-			solve.LinearProbes, sci(solve.LinearTol), sci(set.Cond))
+		form := ". The real form (real and imaginary parts as separate unknowns and equations) is solved"
+		if set.ComplexLU {
+			form = " and complex-linear: the complex matrix (one row per equation, one column per complex unknown) is solved"
+		}
+		fmt.Fprintf(w, "<strong>Linear, solved directly.</strong> The equations are affine in the unknowns (confirmed at %d further points to within %s)%s by LU factorisation with partial pivoting of the scaled matrix; condition number estimate κ₁ = %s.",
+			solve.LinearProbes, sci(solve.LinearTol), form, sci(set.Cond))
 		if set.Refined {
 			fmt.Fprintf(w, " The direct solution was refined by %d Newton iteration%s.", set.Iterations, plural(set.Iterations))
 		}

@@ -14,7 +14,9 @@
 //     [LinearProbes] further pseudo-random points to the relative tolerance
 //     [LinearTol];
 //   - solves a linear set directly ([SolveLinear]): LU with partial pivoting of
-//     the equilibrated matrix, the 1-norm condition number estimate, and for a
+//     the equilibrated matrix (package expr/linalg; the complex matrix of half
+//     the order when the set is complex-linear, see [Linear.ComplexLinear]),
+//     the 1-norm condition number estimate, and for a
 //     singular or badly conditioned matrix (condition number above
 //     [CondLimit]) a [*SingularError] naming, from the SVD null spaces, the
 //     unknowns that are not determined and the equations that depend on each

@@ -8,8 +8,8 @@ import (
 
 // complexProblem returns the real form of the complex system A z = b: unknown
 // 2k is Re z_k and 2k+1 is Im z_k; residual 2i is Re(Σ_k A_ik z_k − b_i) and
-// 2i+1 its imaginary part. The residual is computed in complex128 arithmetic,
-// as the document layer does.
+// 2i+1 its imaginary part (named as pairs in Complex and ComplexRows). The
+// residual is computed in complex128 arithmetic, as the document layer does.
 func complexProblem(a [][]complex128, b []complex128) *Problem {
 	n := len(b)
 	pairs := make([]int, 0, 2*n)
@@ -19,7 +19,7 @@ func complexProblem(a [][]complex128, b []complex128) *Problem {
 	z := make([]complex128, n)
 	return &Problem{
 		N: 2 * n, M: 2 * n,
-		Complex: pairs,
+		Complex: pairs, ComplexRows: pairs,
 		Residual: func(x, r []float64) error {
 			for k := range z {
 				z[k] = complex(x[2*k], x[2*k+1])

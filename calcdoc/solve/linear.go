@@ -1,11 +1,14 @@
 package solve
 
 import (
+	"errors"
 	"fmt"
 	"math"
 	"math/rand/v2"
 	"strconv"
 	"strings"
+
+	"calcdoc/expr/linalg"
 
 	"gonum.org/v1/gonum/mat"
 )
@@ -28,6 +31,10 @@ type Linear struct {
 	// SolveLinear equilibrates the matrix; ones if nil. Linearize copies them
 	// from the Problem (with complex pairs sharing their larger scale).
 	XScale, RScale []float64
+
+	// Complex and ComplexRows are the Problem's pairs of unknowns and of
+	// residuals (see Problem); Linearize copies them.
+	Complex, ComplexRows []int
 
 	// MaxDeviation is the largest relative departure from the affine model
 	// seen at the probe points, in the units of LinearTol (the left side of
@@ -129,6 +136,8 @@ func (e *evaluator) linearize() (lin *Linear, ok bool, err error) {
 		N: n, M: m, A: a, B: b,
 		XScale:       append([]float64(nil), e.scale...),
 		RScale:       append([]float64(nil), e.rscale...),
+		Complex:      append([]int(nil), e.p.Complex...),
+		ComplexRows:  append([]int(nil), e.p.ComplexRows...),
 		MaxDeviation: maxDev,
 	}, true, nil
 }
@@ -166,7 +175,14 @@ type SingularError struct {
 	Contradiction []float64
 	Lead          int
 	Mismatch      float64
+
+	// Cause is the condition expr/linalg reported: a *linalg.Singular, a
+	// *linalg.IllConditioned, or a *linalg.NotFinite for a solution that
+	// overflows. Unwrap returns it, so errors.As finds it.
+	Cause error
 }
+
+func (e *SingularError) Unwrap() error { return e.Cause }
 
 // ContradictTol is the relative size above which the part of the
 // equilibrated right-hand side outside the range of a singular matrix makes
@@ -212,92 +228,121 @@ func joinInts(v []int) string {
 
 // SolveLinear solves the square system A x = b.
 //
-// It equilibrates with the scales, Â = diag(1/q) A diag(s) and b̂_i = b_i/q_i,
-// factorises Â by LU with partial pivoting (gonum's mat.LU of Âᵀ, whose
-// max-row-sum condition estimate is the 1-norm estimate κ₁(Â) = ‖Â‖₁‖Â⁻¹‖₁,
-// LAPACK's dgecon method: a lower bound on κ₁ that is usually within a small
-// factor), solves Â y = b̂ and returns x_k = s_k y_k with cond = κ₁(Â).
+// It factors the equilibrated matrix Â = diag(1/q) A diag(s) by LU with
+// partial pivoting (package expr/linalg, with the scales s = XScale and
+// q = RScale given), estimates its 1-norm condition number κ₁(Â) =
+// ‖Â‖₁‖Â⁻¹‖₁ (Hager–Higham: a lower bound, usually exact, in practice
+// within a factor 3; see linalg.LU.Cond), solves Â y = b̂ with b̂_i = b_i/q_i
+// and returns x_k = s_k y_k with cond = κ₁(Â).
 //
-// When a pivot is zero or cond exceeds CondLimit, x is nil and err is a
-// *SingularError; cond is still returned. A non-square A gives a
+// When the set is complex-linear (Linear.ComplexLinear) the same is done
+// on the complex matrix C of half the order, C_ik = Â of the 2×2 block
+// [[Re c, −Im c], [Im c, Re c]] of complex equation i and complex unknown
+// k, and cond is κ₁ of the equilibrated C. Otherwise (real unknowns, or
+// equations that use conj, re or im of an unknown) the real form Â is
+// factored.
+//
+// When a pivot is zero or negligible (linalg.PivotTol) or cond exceeds
+// CondLimit, x is nil and err is a *SingularError, its diagnosis made on
+// the real form; cond is still returned. A non-square A gives a
 // *DimensionError, other bad input an error wrapping ErrBadProblem.
 func SolveLinear(lin *Linear) (x []float64, cond float64, err error) {
-	as, bs, s, q, err := equilibrate(lin)
+	a, s, q, err := checkLinear(lin)
 	if err != nil {
 		return nil, 0, err
 	}
-	n := len(bs)
-	var lu mat.LU
-	lu.Factorize(as.T())
-	cond = lu.Cond()
-	logDet, _ := lu.LogDet()
-	zeroPivot := math.IsInf(logDet, -1) || math.IsNaN(logDet)
-	if zeroPivot {
-		cond = math.Inf(1)
+	n := len(s)
+	if cf := lin.complexForm(); cf != nil {
+		f, ferr := linalg.Factorize(cf.n, cf.a, &linalg.Options{RowScale: cf.q, ColScale: cf.s})
+		if ferr != nil && f == nil {
+			return nil, 0, badProblem("%v", ferr)
+		}
+		cond = f.Cond()
+		if ferr = f.CheckCond(CondLimit); ferr == nil {
+			z, serr := f.Solve(cf.b)
+			if serr == nil {
+				return cf.unpack(z, n), cond, nil
+			}
+		}
+		return nil, cond, singularOf(n, a, s, q, lin.B, cond, ferr)
 	}
-	if zeroPivot || math.IsNaN(cond) || cond > CondLimit {
-		return nil, cond, singular(as, bs, q, lin.B, cond, zeroPivot)
+	f, ferr := linalg.Factorize(n, a, &linalg.Options{RowScale: q, ColScale: s})
+	if ferr != nil && f == nil {
+		return nil, 0, badProblem("%v", ferr)
 	}
-	var y mat.VecDense
-	if err := lu.SolveVecTo(&y, true, mat.NewVecDense(n, bs)); err != nil {
-		return nil, cond, singular(as, bs, q, lin.B, cond, true)
-	}
-	x = make([]float64, n)
-	for k := range x {
-		x[k] = s[k] * y.AtVec(k)
-		if !finite(x[k]) {
-			return nil, cond, singular(as, bs, q, lin.B, cond, false)
+	cond = f.Cond()
+	if ferr = f.CheckCond(CondLimit); ferr == nil {
+		y, serr := f.Solve(lin.B)
+		if serr == nil {
+			return y, cond, nil
 		}
 	}
-	return x, cond, nil
+	return nil, cond, singularOf(n, a, s, q, lin.B, cond, ferr)
 }
 
-// equilibrate validates lin and returns Â, b̂, s and q.
-func equilibrate(lin *Linear) (as *mat.Dense, bs, s, q []float64, err error) {
+// checkLinear validates lin and returns A row by row with the scales s and
+// q (ones where not given).
+func checkLinear(lin *Linear) (a, s, q []float64, err error) {
 	if lin == nil || lin.A == nil {
-		return nil, nil, nil, nil, badProblem("nil Linear or nil matrix")
+		return nil, nil, nil, badProblem("nil Linear or nil matrix")
 	}
 	if lin.A.IsEmpty() {
-		return nil, nil, nil, nil, badProblem("empty matrix")
+		return nil, nil, nil, badProblem("empty matrix")
 	}
 	m, n := lin.A.Dims()
 	if (lin.N != 0 && lin.N != n) || (lin.M != 0 && lin.M != m) {
-		return nil, nil, nil, nil, badProblem("Linear says %d×%d but A is %d×%d", lin.M, lin.N, m, n)
+		return nil, nil, nil, badProblem("Linear says %d×%d but A is %d×%d", lin.M, lin.N, m, n)
 	}
 	if m != n {
-		return nil, nil, nil, nil, &DimensionError{N: n, M: m}
+		return nil, nil, nil, &DimensionError{N: n, M: m}
 	}
 	if len(lin.B) != m {
-		return nil, nil, nil, nil, badProblem("b has %d entries for %d equations", len(lin.B), m)
+		return nil, nil, nil, badProblem("b has %d entries for %d equations", len(lin.B), m)
 	}
 	s, err = scales(lin.XScale, n, "XScale")
 	if err != nil {
-		return nil, nil, nil, nil, err
+		return nil, nil, nil, err
 	}
 	q, err = scales(lin.RScale, m, "RScale")
 	if err != nil {
-		return nil, nil, nil, nil, err
+		return nil, nil, nil, err
 	}
-	as = mat.NewDense(m, n, nil)
-	bs = make([]float64, m)
+	a = make([]float64, m*n)
 	for i := 0; i < m; i++ {
 		if !finite(lin.B[i]) {
-			return nil, nil, nil, nil, badProblem("b[%d] = %v is not finite", i, lin.B[i])
+			return nil, nil, nil, badProblem("b[%d] = %v is not finite", i, lin.B[i])
 		}
-		bs[i] = lin.B[i] / q[i]
 		for k := 0; k < n; k++ {
 			v := lin.A.At(i, k)
 			if !finite(v) {
-				return nil, nil, nil, nil, badProblem("A[%d][%d] = %v is not finite", i, k, v)
+				return nil, nil, nil, badProblem("A[%d][%d] = %v is not finite", i, k, v)
 			}
-			w := v * s[k] / q[i]
-			if !finite(w) {
-				return nil, nil, nil, nil, badProblem("A[%d][%d]·s_%d/q_%d overflows", i, k, k, i)
+			if !finite(v * s[k] / q[i]) {
+				return nil, nil, nil, badProblem("A[%d][%d]·s_%d/q_%d overflows", i, k, k, i)
 			}
-			as.Set(i, k, w)
+			a[i*n+k] = v
 		}
 	}
-	return as, bs, s, q, nil
+	return a, s, q, nil
+}
+
+// singularOf builds the SingularError of the real form from the condition
+// that linalg reported (*linalg.Singular, *linalg.IllConditioned, or a
+// solution that overflows).
+func singularOf(n int, a, s, q, b []float64, cond float64, cause error) *SingularError {
+	var ls *linalg.Singular
+	zeroPivot := errors.As(cause, &ls) && ls.Exact()
+	as, err := linalg.Scale(n, a, &linalg.Options{RowScale: q, ColScale: s})
+	if err != nil {
+		return &SingularError{Cond: cond, ZeroPivot: zeroPivot, Rank: -1, Cause: cause}
+	}
+	bs := make([]float64, n)
+	for i := range bs {
+		bs[i] = b[i] / q[i]
+	}
+	se := singular(mat.NewDense(n, n, as), bs, q, b, cond, zeroPivot)
+	se.Cause = cause
+	return se
 }
 
 func scales(v []float64, n int, name string) ([]float64, error) {

@@ -6,6 +6,8 @@ import (
 	"math/cmplx"
 	"testing"
 
+	"calcdoc/expr/linalg"
+
 	"gonum.org/v1/gonum/mat"
 )
 
@@ -102,6 +104,15 @@ func TestSingular(t *testing.T) {
 			}
 			if se.Error() == "" {
 				t.Error("empty error message")
+			}
+			// the typed condition of expr/linalg is reachable by errors.As
+			var ls *linalg.Singular
+			var ic *linalg.IllConditioned
+			if !errors.As(err, &ls) && !errors.As(err, &ic) {
+				t.Errorf("cause %v: want a *linalg.Singular or *linalg.IllConditioned", se.Cause)
+			}
+			if ls != nil && ls.Exact() != se.ZeroPivot {
+				t.Errorf("ZeroPivot = %v, linalg.Singular exact = %v", se.ZeroPivot, ls.Exact())
 			}
 		})
 	}
@@ -504,4 +515,63 @@ func TestEvalErrors(t *testing.T) {
 			}
 		})
 	}
+}
+
+// TestComplexLinearForm checks which form SolveLinear factors. Hand
+// derivation for the set 3z + conj(z) = b with z = x + jy: 4x + j2y = b, so
+// x = Re b/4 and y = Im b/2; its real form [[4, 0], [0, 2]] is not of the
+// complex shape [[a, −b], [b, a]], so the real form is factored. The set
+// (2 − j)z = b is complex-linear: z = b/(2 − j) = b(2 + j)/5.
+func TestComplexLinearForm(t *testing.T) {
+	b := complex(8, -6)
+	conjSet := &Problem{
+		N: 2, M: 2, Complex: []int{0, 1}, ComplexRows: []int{0, 1},
+		Residual: func(x, r []float64) error {
+			z := complex(x[0], x[1])
+			d := 3*z + complex(real(z), -imag(z)) - b
+			r[0], r[1] = real(d), imag(d)
+			return nil
+		},
+	}
+	lin, ok, err := Linearize(conjSet)
+	if err != nil || !ok {
+		t.Fatalf("Linearize: ok=%v err=%v", ok, err)
+	}
+	if lin.ComplexLinear() {
+		t.Error("3z + conj(z) classified complex-linear")
+	}
+	x, _, err := SolveLinear(lin)
+	if err != nil {
+		t.Fatal(err)
+	}
+	checkClose(t, x, []float64{real(b) / 4, imag(b) / 2}, 1e-15)
+
+	cp := complexProblem([][]complex128{{2 - 1i}}, []complex128{b})
+	lin, ok, err = Linearize(cp)
+	if err != nil || !ok {
+		t.Fatalf("Linearize: ok=%v err=%v", ok, err)
+	}
+	if !lin.ComplexLinear() {
+		t.Error("(2 − j)z classified not complex-linear")
+	}
+	x, cond, err := SolveLinear(lin)
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := b * (2 + 1i) / 5
+	checkClose(t, x, []float64{real(want), imag(want)}, 1e-15)
+	if math.Abs(cond-1) > 1e-15 {
+		// a 1×1 matrix: κ₁ = |c|·|1/c| = 1 (up to rounding of 1/c)
+		t.Errorf("cond = %v, want 1", cond)
+	}
+	// without the row pairs the real form is factored
+	cp.ComplexRows = nil
+	lin, _, _ = Linearize(cp)
+	if lin.ComplexLinear() {
+		t.Error("complex-linear without ComplexRows")
+	}
+	if x, _, err = SolveLinear(lin); err != nil {
+		t.Fatal(err)
+	}
+	checkClose(t, x, []float64{real(want), imag(want)}, 1e-15)
 }

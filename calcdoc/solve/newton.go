@@ -4,8 +4,18 @@ import (
 	"fmt"
 	"math"
 
+	"calcdoc/expr/linalg"
+
 	"gonum.org/v1/gonum/mat"
 )
+
+func ones(n int) []float64 {
+	v := make([]float64, n)
+	for i := range v {
+		v[i] = 1
+	}
+	return v
+}
 
 // Options tunes Newton. The zero value selects the defaults.
 type Options struct {
@@ -80,6 +90,36 @@ type Result struct {
 	History             []Step    // one entry per Newton iteration
 }
 
+// Reason says why Newton stopped without converging.
+type Reason int
+
+// The reasons of a NoConvergenceError.
+const (
+	// IterationLimit: Options.MaxIter iterations were made
+	// (NoConvergenceError.Limit) without meeting a convergence test.
+	IterationLimit Reason = iota + 1
+	// NoDescent: no Newton or Levenberg–Marquardt step reduces the scaled
+	// residual norm: the iterate is at a local minimum of ‖r‖_q that is
+	// not a root (the set may have no real solution, or the starting point
+	// is too far from one).
+	NoDescent
+	// JacobianFailed: the residual could not be evaluated at the points
+	// of the finite-difference Jacobian (NoConvergenceError.Err says why).
+	JacobianFailed
+)
+
+func (r Reason) String() string {
+	switch r {
+	case IterationLimit:
+		return "iteration limit"
+	case NoDescent:
+		return "no descent"
+	case JacobianFailed:
+		return "Jacobian not evaluated"
+	}
+	return fmt.Sprintf("Reason(%d)", int(r))
+}
+
 // NoConvergenceError reports that Newton stopped without meeting either
 // convergence test. X is the last iterate, for diagnosis only: it is not a
 // solution.
@@ -87,13 +127,27 @@ type NoConvergenceError struct {
 	Iterations   int
 	ResidualNorm float64 // ‖r(X)‖_q
 	X            []float64
-	Reason       string
+	Reason       Reason
+	Limit        int // the iteration limit in force (Options.MaxIter resolved)
 	History      []Step
 	Err          error // underlying cause (an *EvalError), if any
 }
 
+// describe words the reason for Error.
+func (e *NoConvergenceError) describe() string {
+	switch e.Reason {
+	case IterationLimit:
+		return fmt.Sprintf("iteration limit %d reached", e.Limit)
+	case NoDescent:
+		return "no step reduces the scaled residual norm: the iterate is at a local minimum of ‖r‖ that is not a root (the set may have no real solution, or the starting point is too far from one)"
+	case JacobianFailed:
+		return "the Jacobian could not be evaluated"
+	}
+	return e.Reason.String()
+}
+
 func (e *NoConvergenceError) Error() string {
-	s := fmt.Sprintf("solve: no convergence after %d iteration(s), scaled residual norm %.3g: %s", e.Iterations, e.ResidualNorm, e.Reason)
+	s := fmt.Sprintf("solve: no convergence after %d iteration(s), scaled residual norm %.3g: %s", e.Iterations, e.ResidualNorm, e.describe())
 	if e.Err != nil {
 		s += ": " + e.Err.Error()
 	}
@@ -161,10 +215,10 @@ func (e *evaluator) newton(x0 []float64, opt Options) (*Result, error) {
 	}
 	f := e.norm(r)
 	res := &Result{Method: MethodNewton, InitialResidualNorm: f}
-	fail := func(reason string, cause error) error {
+	fail := func(reason Reason, cause error) error {
 		return &NoConvergenceError{
 			Iterations: res.Iterations, ResidualNorm: f, X: x,
-			Reason: reason, History: res.History, Err: cause,
+			Reason: reason, Limit: opt.MaxIter, History: res.History, Err: cause,
 		}
 	}
 	done := func(c Criterion) (*Result, error) {
@@ -177,16 +231,17 @@ func (e *evaluator) newton(x0 []float64, opt Options) (*Result, error) {
 	dx := make([]float64, n)
 	xt := make([]float64, n)
 	rt := make([]float64, n)
-	var lu mat.LU
+	neg := make([]float64, n)
+	unitScales := &linalg.Options{RowScale: ones(n), ColScale: ones(n)}
 	for {
 		if f <= opt.ResidualTol {
 			return done(ByResidual)
 		}
 		if res.Iterations >= opt.MaxIter {
-			return nil, fail(fmt.Sprintf("iteration limit %d reached", opt.MaxIter), nil)
+			return nil, fail(IterationLimit, nil)
 		}
 		if err := e.jacobian(x, r, jac, opt.Central); err != nil {
-			return nil, fail("the Jacobian could not be evaluated", err)
+			return nil, fail(JacobianFailed, err)
 		}
 		for i := range rhat {
 			rhat[i] = r[i] / e.rscale[i]
@@ -194,23 +249,21 @@ func (e *evaluator) newton(x0 []float64, opt Options) (*Result, error) {
 		res.Iterations++
 		step := Step{Iteration: res.Iterations}
 
-		lu.Factorize(jac.T())
-		cond := lu.Cond()
-		logDet, _ := lu.LogDet()
-		if math.IsInf(logDet, -1) || math.IsNaN(logDet) {
-			cond = math.Inf(1)
+		// Ĵ is already scaled: factor it as it is (unit scales)
+		cond := math.Inf(1)
+		lu, ferr := linalg.Factorize(n, jac.RawMatrix().Data, unitScales)
+		if lu != nil {
+			cond = lu.Cond()
 		}
 		step.Cond, res.Cond = cond, cond
 		accepted := false
-		if cond <= CondLimit {
-			var dy mat.VecDense
-			neg := mat.NewVecDense(n, nil)
+		if ferr == nil && lu.CheckCond(CondLimit) == nil {
 			for i := range rhat {
-				neg.SetVec(i, -rhat[i])
+				neg[i] = -rhat[i]
 			}
-			if lu.SolveVecTo(&dy, true, neg) == nil {
+			if dy, err := lu.Solve(neg); err == nil {
 				for k := range dx {
-					dx[k] = e.scale[k] * dy.AtVec(k)
+					dx[k] = e.scale[k] * dy[k]
 				}
 				size := e.stepSize(x, dx)
 				if size <= opt.StepTol {
@@ -241,7 +294,7 @@ func (e *evaluator) newton(x0 []float64, opt Options) (*Result, error) {
 		if !accepted {
 			lambda, ft, ok := e.levenberg(x, jac, rhat, f, dx, xt, rt)
 			if !ok {
-				return nil, fail("no step reduces the scaled residual norm: the iterate is at a local minimum of ‖r‖ that is not a root (the set may have no real solution, or the starting point is too far from one)", nil)
+				return nil, fail(NoDescent, nil)
 			}
 			copy(x, xt)
 			copy(r, rt)

@@ -45,8 +45,9 @@ func toComplex(v [][2]float64) []complex128 {
 	return out
 }
 
-// TestNumPyComplexSystems solves the real 2n×2n form of each reference system
-// through Linearize and SolveLinear and compares with numpy.linalg.solve
+// TestNumPyComplexSystems classifies the real 2n×2n form of each reference
+// system with Linearize, solves it with SolveLinear (through the complex LU of
+// order n, the set being complex-linear) and compares with numpy.linalg.solve
 // (reference: testdata/solve/complex_systems.json).
 func TestNumPyComplexSystems(t *testing.T) {
 	ref := loadRef(t)
@@ -90,24 +91,44 @@ func TestNumPyComplexSystems(t *testing.T) {
 				}
 			}
 
+			if !lin.ComplexLinear() {
+				t.Fatal("the real form of a complex system is not recognised as complex-linear")
+			}
 			x, cond, err := SolveLinear(lin)
 			if err != nil {
 				t.Fatalf("SolveLinear: %v", err)
 			}
-			// For an m×m matrix κ₁ ≤ m·κ₂ (norm equivalence ‖·‖₁ ≤ √m‖·‖₂),
-			// the real form has the complex matrix's κ₂ (NumPy's cond), and
-			// the LAPACK estimate never exceeds κ₁.
-			if !(cond >= 1) || cond > float64(2*c.N)*c.Cond2*(1+1e-9) {
+			// For an n×n matrix κ₁ ≤ n·κ₂ (norm equivalence ‖·‖₁ ≤ √n‖·‖₂),
+			// NumPy's cond is κ₂ of the complex matrix, the scales are ones,
+			// and the Hager–Higham estimate never exceeds κ₁.
+			if !(cond >= 1) || cond > float64(c.N)*c.Cond2*(1+1e-9) {
 				t.Errorf("cond = %v, NumPy 2-norm cond = %v", cond, c.Cond2)
 			}
 			want := toComplex(c.X)
-			num, den := 0.0, 0.0
-			for k, w := range want {
-				num = math.Max(num, cmplx.Abs(complex(x[2*k], x[2*k+1])-w))
-				den = math.Max(den, cmplx.Abs(w))
+			check := func(form string, x []float64) {
+				num, den := 0.0, 0.0
+				for k, w := range want {
+					num = math.Max(num, cmplx.Abs(complex(x[2*k], x[2*k+1])-w))
+					den = math.Max(den, cmplx.Abs(w))
+				}
+				if num/den > 1e-9 {
+					t.Errorf("%s: relative difference from NumPy %.3g > 1e-9", form, num/den)
+				}
 			}
-			if num/den > 1e-9 {
-				t.Errorf("relative difference from NumPy %.3g > 1e-9", num/den)
+			check("complex LU", x)
+
+			// the same set without its row pairs is solved in the real form
+			real := *lin
+			real.ComplexRows = nil
+			xr, condr, err := SolveLinear(&real)
+			if err != nil {
+				t.Fatalf("SolveLinear, real form: %v", err)
+			}
+			check("real form", xr)
+			// κ₁ of the real form of order 2n ≤ 2n·κ₂ (κ₂ is the same for
+			// the complex matrix and its real form)
+			if !(condr >= 1) || condr > float64(2*c.N)*c.Cond2*(1+1e-9) {
+				t.Errorf("real form cond = %v, NumPy 2-norm cond = %v", condr, c.Cond2)
 			}
 		})
 	}

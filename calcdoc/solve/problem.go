@@ -38,6 +38,15 @@ type Problem struct {
 	// the magnitude used for finite-difference steps and step tolerances is
 	// the modulus of the complex unknown. The hint is not required.
 	Complex []int
+
+	// ComplexRows optionally names the residuals that are the real and
+	// imaginary parts of one complex equation, as a flat list of index
+	// pairs [re₀, im₀, re₁, im₁, …], each index at most once. When every
+	// unknown is in a Complex pair, every residual in a ComplexRows pair
+	// and the linear model has the structure of a complex matrix (see
+	// Linear.ComplexLinear), SolveLinear factors the complex matrix, of
+	// half the order, instead of the real form. The hint is not required.
+	ComplexRows []int
 }
 
 // ErrBadProblem is wrapped by the errors that report an invalid Problem,
@@ -179,6 +188,19 @@ func newEvaluator(p *Problem) (*evaluator, error) {
 			return nil, badProblem("Complex names unknown %d more than once", k)
 		}
 		seen[k] = true
+	}
+	if len(p.ComplexRows)%2 != 0 {
+		return nil, badProblem("ComplexRows has %d entries: it must list pairs", len(p.ComplexRows))
+	}
+	seenRow := make([]bool, p.M)
+	for j, i := range p.ComplexRows {
+		if i < 0 || i >= p.M {
+			return nil, badProblem("ComplexRows[%d] = %d is not a residual index (0..%d)", j, i, p.M-1)
+		}
+		if seenRow[i] {
+			return nil, badProblem("ComplexRows names residual %d more than once", i)
+		}
+		seenRow[i] = true
 	}
 	for j := 0; j < len(p.Complex); j += 2 {
 		re, im := p.Complex[j], p.Complex[j+1]
