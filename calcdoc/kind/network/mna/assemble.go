@@ -58,11 +58,11 @@ type EquationKind int
 
 // The kinds of equations.
 const (
-	KCL         EquationKind = iota // Kirchhoff's current law at a node
-	SourceEq                        // a voltage source
-	CurrentEq                       // a current source
-	RatioEq                         // a transformer's voltage ratio
-	CoupledEq                       // a coupled Z branch
+	KCL       EquationKind = iota // Kirchhoff's current law at a node
+	SourceEq                      // a voltage source
+	CurrentEq                     // a current source
+	RatioEq                       // a transformer's voltage ratio
+	CoupledEq                     // a coupled Z branch
 )
 
 // Equation is one row of the set: Row holds its coefficients, B its
