@@ -1,6 +1,7 @@
 package mna
 
 import (
+	"fmt"
 	"math"
 	"math/cmplx"
 	"strings"
@@ -121,3 +122,5 @@ func branchIS(r *Result, name string) (complex128, complex128) {
 	}
 	panic("no branch " + name)
 }
+
+func sprintf(format string, a ...any) string { return fmt.Sprintf(format, a...) }

@@ -258,6 +258,10 @@ func Check(n *Netlist, exists func(name string) bool) (*Topology, expr.ErrorList
 			errs.Add(members[0].Pos, fmt.Sprintf("%s made of nodes %s has no ground: add a line ground NODE naming one of them (each galvanically separate part, such as a transformer's secondary, has its own ground)", what, names(members)))
 		case len(grounds) > 1:
 			sort.SliceStable(gLines, func(a, b int) bool { return gLines[a].Pos.Before(gLines[b].Pos) })
+			grounds = grounds[:0]
+			for _, g := range gLines {
+				grounds = append(grounds, g.Node)
+			}
 			errs.Add(gLines[1].Pos, fmt.Sprintf("nodes %s are all grounds of one connected part of the network (nodes %s): a part has one ground, the reference of its voltages; keep one ground line and delete the others", names(grounds), names(members)))
 		}
 	}
@@ -304,7 +308,15 @@ func Check(n *Netlist, exists func(name string) bool) (*Topology, expr.ErrorList
 				cut = append(cut, b.Name)
 			}
 		}
-		errs.Add(members[0].Pos, fmt.Sprintf("nodes %s are joined to the rest of the network only through the current sources %s (a cut set of current sources): their currents are fixed, so the voltages of these nodes are not determined; add a Z or Y branch from one of them to the rest of the network", names(members), joinAnd(cut)))
+		what := "nodes " + names(members) + " are"
+		if len(members) == 1 {
+			what = "node " + members[0].Name + " is"
+		}
+		srcs := "the current sources " + joinAnd(cut)
+		if len(cut) == 1 {
+			srcs = "the current source " + cut[0]
+		}
+		errs.Add(members[0].Pos, fmt.Sprintf("%s joined to the rest of the network only through %s (a cut set of current sources): their currents are fixed, so the voltages there are not determined; add a Z or Y branch from there to the rest of the network", what, srcs))
 	}
 	if len(errs) > 0 {
 		errs.Sort()

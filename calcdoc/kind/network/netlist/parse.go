@@ -354,7 +354,7 @@ func (l *line) ratioTail(off int) (int, bool) {
 		}
 	}
 	if best < 0 {
-		l.errorf(off, "a transformer is written NAME: FROM -> TO ratio r to FROM2 -> TO2 (its second winding after the word to), as in tx: P -> N ratio 11 kV / 0.4 kV to S -> n")
+		l.errorf(l.space(off), "a transformer is written NAME: FROM -> TO ratio r to FROM2 -> TO2 (its second winding after the word to), as in tx: P -> N ratio 11 kV / 0.4 kV to S -> n")
 		return 0, false
 	}
 	return best, true
