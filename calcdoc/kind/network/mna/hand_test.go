@@ -174,3 +174,24 @@ mill: B -> N Z Z_L`, "", env)
 		}
 	}
 }
+
+// TestHandCurrentControlled: a current source controlled by the current
+// of a voltage source, and one controlled by its own current. Hand
+// derivation: with k = 0.5·I_g, KCL at A gives −I_g + V_A/4 + 0.5·I_g = 0
+// and I_g = (10 − V_A)/1, so 0.75·V_A = 5, V_A = 20/3 V, I_g = 10/3 A,
+// I_k = 5/3 A. With m = 1 A + 0.5·I_m alone, I_m = 2 A.
+func TestHandCurrentControlled(t *testing.T) {
+	r := solveText(t, `ground 0
+g: 0 -> A source 10 V, Z 1 Ω
+r: A -> 0 Z 4 Ω
+k: A -> 0 current 0.5 * I_g`, "", nil)
+	wantC(t, "V_A", nodeV(r, "A"), 20.0/3, 1e-14)
+	ik, _ := branchIS(r, "k")
+	wantC(t, "I_k", ik, 5.0/3, 1e-14)
+	r = solveText(t, `ground 0
+g: 0 -> A source 10 V, Z 1 Ω
+r: A -> 0 Z 4 Ω
+m: A -> 0 current 1 A + 0.5 * I_m`, "", nil)
+	im, _ := branchIS(r, "m")
+	wantC(t, "I_m", im, 2, 1e-14)
+}
