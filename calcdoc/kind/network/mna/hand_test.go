@@ -195,3 +195,32 @@ m: A -> 0 current 1 A + 0.5 * I_m`, "", nil)
 	im, _ := branchIS(r, "m")
 	wantC(t, "I_m", im, 2, 1e-14)
 }
+
+// TestKCLTerms: the KCL terms of the transformer example's nodes. At S
+// (hand derivation): the second winding's current conj(r)·I_tx comes out
+// at S (a term −conj(r)·I_tx leaving) and the load's (V_S − V_n)/Z leaves;
+// with the solution the terms sum to zero.
+func TestKCLTerms(t *testing.T) {
+	r := solveText(t, `ground N
+ground n
+g: N -> P source 1000 V
+tx: P -> N ratio 10∠30° to S -> n
+load: S -> n Z (3 + j4) Ω`, "", nil)
+	nw, s := r.Network, r.Solution
+	terms := nw.KCLTerms(r.Topo.Index["S"])
+	if len(terms) != 2 || terms[0].Form != BySecondWinding || terms[0].Sign != -1 || terms[1].Form != ByImpedance || terms[1].Sign != 1 {
+		t.Fatalf("terms at S: %+v", terms)
+	}
+	if nw.KCLTerms(r.Topo.Index["N"]) != nil {
+		t.Fatal("a ground has a KCL equation")
+	}
+	for i := range r.Topo.Nodes {
+		var sum complex128
+		for _, tm := range nw.KCLTerms(i) {
+			sum += complex(float64(tm.Sign), 0) * tm.Factor * s.I[tm.Branch]
+		}
+		if cmplx.Abs(sum) > 1e-12 {
+			t.Errorf("node %s: the terms sum to %v", r.Topo.Nodes[i].Name, sum)
+		}
+	}
+}

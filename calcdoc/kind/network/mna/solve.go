@@ -44,6 +44,11 @@ type Solution struct {
 	// current branches take in, and Delivered − Taken. Transformers pass
 	// power on and are in neither sum.
 	Delivered, Taken, Mismatch complex128
+	// BalanceError is |Mismatch| over the sum of the moduli of the
+	// branches' powers (transformers included): by Tellegen's theorem it
+	// is rounding at a solution that satisfies KCL, and at most AcceptTol
+	// at an accepted one.
+	BalanceError float64
 
 	// Backward is the largest componentwise backward error of the
 	// equations as written, at equation WorstEquation; Cond the 1-norm
@@ -155,6 +160,13 @@ func (nw *Network) results(s *Solution) {
 		}
 	}
 	s.Mismatch = s.Delivered - s.Taken
+	size := 0.0
+	for _, p := range s.S {
+		size += cmplx.Abs(p)
+	}
+	if size > 0 {
+		s.BalanceError = cmplx.Abs(s.Mismatch) / size
+	}
 }
 
 // locals are the network's quantities at the solution, by name, for
@@ -252,7 +264,12 @@ func (nw *Network) accept(at expr.Pos, s *Solution) error {
 			s.Backward, s.WorstEquation = w, i
 		}
 	}
-	if !(s.Backward <= AcceptTol) {
+	if !(s.Backward <= AcceptTol) || !(s.BalanceError <= AcceptTol) {
+		if s.Backward <= AcceptTol {
+			return expr.Errorf(at, "no solution found: the sources deliver %s but the branches take in %s, a difference of %s of the powers, above the tolerance %s",
+				expr.Describe(&expr.Scalar{Z: s.Delivered, Dim: expr.DimPower}), expr.Describe(&expr.Scalar{Z: s.Taken, Dim: expr.DimPower}),
+				strconv.FormatFloat(s.BalanceError, 'g', 3, 64), strconv.FormatFloat(AcceptTol, 'e', 0, 64))
+		}
 		i := s.WorstEquation
 		dim := expr.DimVoltage
 		if k := nw.Equations[i].Kind; k == KCL || k == CurrentEq {
