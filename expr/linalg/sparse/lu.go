@@ -116,7 +116,6 @@ func Factor(a *Matrix) (*LU, error) {
 	el := &elim{rows: rows, cols: cols, rowDone: rowDone, colDone: colDone, colMax: make([]float64, n)}
 
 	for k := 0; k < n; k++ {
-		el.step = k
 		p, q, ok := el.pivot()
 		if !ok {
 			return nil, el.singular(k)
@@ -180,7 +179,6 @@ type elim struct {
 	cols             [][]int
 	rowDone, colDone []bool
 	colMax           []float64 // largest squared modulus of each active column, set by pivot
-	step             int
 }
 
 func entryAt(r []Entry, j int) complex128 {

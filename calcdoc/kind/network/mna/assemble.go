@@ -65,8 +65,9 @@ const (
 	CoupledEq                     // a coupled Z branch
 )
 
-// Equation is one row of the set: Row holds its coefficients, B its
-// right-hand side, and Node or Branch what it belongs to.
+// Equation is one row of the set (its coefficients are that row of
+// Network.A, its right-hand side that entry of Network.B): what it is, and
+// the node or branch it belongs to.
 type Equation struct {
 	Kind   EquationKind
 	Node   int // KCL: the node

@@ -1,7 +1,6 @@
 package mna
 
 import (
-	"fmt"
 	"math"
 	"math/cmplx"
 	"math/rand/v2"
@@ -275,5 +274,3 @@ func joinAnd(s []string) string {
 	}
 	return out
 }
-
-var _ = fmt.Sprintf
