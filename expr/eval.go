@@ -12,6 +12,7 @@ import (
 // the values substituted. The zero Trace is empty and ready to use.
 type Trace struct {
 	entries []traceEntry
+	lookups []Lookup // the table look-ups (tables.go)
 }
 
 type traceEntry struct {
@@ -274,6 +275,9 @@ func (ev *evaluator) ident(n *Ident) (Value, error) {
 		}
 		return b.Value, nil
 	}
+	if err := ev.tableRef(n); err != nil {
+		return nil, err
+	}
 	if c, ok := constants[key]; ok {
 		return c, nil
 	}
@@ -515,6 +519,9 @@ func powZ(x, y complex128) complex128 {
 
 func (ev *evaluator) call(n *Call) (Value, error) {
 	name, key := n.Fun.Name, n.Fun.key()
+	if n.Fun.Dot > 0 || tableFuncs[key] {
+		return ev.lookup(n) // a look-up in a table (tables.go)
+	}
 	// an entry of a matrix value: M(i, j), v(i)
 	if v, ok := ev.locals[key]; ok {
 		return ev.index(n, v)

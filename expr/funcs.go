@@ -93,6 +93,10 @@ func init() {
 		"round": {1, 2, roundFn(roundHalfAway)},
 		"ceil":  {1, 2, roundFn(roundUp)},
 		"floor": {1, 2, roundFn(roundDown)},
+		// look-ups in tables of data (tables.go)
+		"interp": {2, 2, noTableCall("interp")},
+		"up":     {2, 2, noTableCall("up")},
+		"down":   {2, 2, noTableCall("down")},
 	}
 }
 
