@@ -165,3 +165,17 @@ func checkTempDisplay(s *Scalar, u *Unit) error {
 // keepsTemp names the built-in functions whose result keeps the
 // absolute-temperature mark of their arguments.
 var keepsTemp = map[string]bool{"round": true, "ceil": true, "floor": true, "min": true, "max": true}
+
+// compareTemp is the error of comparing an absolute temperature with a
+// temperature difference (theta <= 363 K): compare two temperatures, or
+// two differences.
+func compareTemp(at Pos, a, b *Scalar) error {
+	if a.AbsTemp == b.AbsTemp || a.Dim != DimTemperature || b.Dim != DimTemperature {
+		return nil
+	}
+	t, d := a, b
+	if b.AbsTemp {
+		t, d = b, a
+	}
+	return Errorf(at, "cannot compare the absolute temperature %s with the temperature difference %s: write the limit in °C (e.g. 90 °C), or compare differences (theta - 20 °C <= 50 K)", Describe(t), Describe(d))
+}

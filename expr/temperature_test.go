@@ -152,3 +152,24 @@ func TestTemperatureErrors(t *testing.T) {
 		t.Errorf("70 °C: %v", err)
 	}
 }
+
+// Checks on temperatures: two absolute temperatures, or two differences;
+// no share of the limit for absolute temperatures.
+func TestTemperatureChecks(t *testing.T) {
+	b := runBlock("theta = 70 °C\ncheck theta <= 90 °C\ncheck theta - 20 °C <= 60 K")
+	if errs := b.allErrors(); len(errs) > 0 {
+		t.Fatal(errs[0])
+	}
+	c1, c2 := b.results[1].Check, b.results[2].Check
+	if !c1.Pass || c1.HasUtil {
+		t.Errorf("theta <= 90 °C: pass %v, utilisation shown %v", c1.Pass, c1.HasUtil)
+	}
+	// hand derivation: 50 K of 60 K is 0.8333
+	if !c2.Pass || !c2.HasUtil || math.Abs(c2.Utilisation-50.0/60) > 1e-12 {
+		t.Errorf("theta - 20 °C <= 60 K: %+v", c2)
+	}
+	err := firstError("theta = 70 °C\ncheck theta <= 363 K")
+	if err == nil || !strings.Contains(err.Error(), "cannot compare the absolute temperature 70 °C with the temperature difference 363 K") {
+		t.Errorf("error %v", err)
+	}
+}
