@@ -74,6 +74,9 @@ func roundFn(mode roundMode) func([]Value) (Value, error) {
 		if step.Dim != x.Dim && !(x.Z == 0 && x.Dim.IsZero()) {
 			return nil, fmt.Errorf("the step %s is %s, but %s is %s: give the step in the unit of the value, e.g. %s", Describe(step), dimWord(step.Dim), Describe(x), dimWord(x.Dim), stepExample(x))
 		}
+		if x.Dim == DimPower && x.IsReal() && x.Kind != PowerNone && step.Kind != PowerNone && step.Kind != x.Kind {
+			return nil, fmt.Errorf("the step %s is %s power, but %s is %s power: give the step in %s", Describe(step), article(step.Kind), Describe(x), article(x.Kind), x.Kind.Unit())
+		}
 		if !step.IsReal() || !(real(step.Z) > 0) {
 			return nil, fmt.Errorf("the step must be a positive real value, not %s", Describe(step))
 		}

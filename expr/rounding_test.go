@@ -85,6 +85,7 @@ func TestRoundingErrors(t *testing.T) {
 		{"round(33.7°)", "give the step in its unit, e.g. 1°"},
 		{"round([1; 2], 1)", "rounds a single value"},
 		{"round(1, 2, 3)", "round takes 1 to 2 arguments, not 3"},
+		{"ceil(137 kvar, 25 kW)", "the step 25 kW is an active power, but 137 kvar is a reactive power: give the step in var"},
 		{"round(71.3 °C, 5 °C)", "the step 5 °C is an absolute temperature: give the step as a difference in K"},
 	} {
 		err := firstError(c.src)

@@ -52,6 +52,12 @@ func (t *Table) keyOf(x *expr.Scalar) (float64, error) {
 	if !x.IsReal() {
 		return 0, fmt.Errorf("the key %s is complex: look up a real value (abs, re or im of it)", expr.Describe(x))
 	}
+	if abs := key.Unit != nil && key.Unit.Offset != 0; d == expr.DimTemperature && abs != x.AbsTemp {
+		if abs {
+			return 0, fmt.Errorf("the key %s is a temperature difference, but the key %s of %s is a temperature in %s: look up a temperature, e.g. 20 %s", expr.Describe(x), key.Name, t.Name, key.Unit.Text, key.Unit.Text)
+		}
+		return 0, fmt.Errorf("the key %s is an absolute temperature, but the key %s of %s is a temperature difference in %s: look up a difference", expr.Describe(x), key.Name, t.Name, key.Unit.Text)
+	}
 	return real(x.Z), nil
 }
 

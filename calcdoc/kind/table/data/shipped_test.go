@@ -4,6 +4,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"strings"
 	"testing"
 
 	"calcdoc/expr"
@@ -23,6 +24,7 @@ func shipped(t *testing.T, name string) *Table {
 	if err != nil {
 		t.Fatal(err)
 	}
+	tab.Name = strings.TrimSuffix(name, ".csv")
 	return tab
 }
 
@@ -126,6 +128,14 @@ func TestShippedTemperatureCoefficients(t *testing.T) {
 	// the key is an absolute temperature, 20 °C = 293.15 K
 	if k := tab.Key(0); !k.AbsTemp || real(k.Z) != 293.15 {
 		t.Errorf("key %v (absolute %v)", k.Z, k.AbsTemp)
+	}
+	// looked up by 20 °C, not by the difference 293.15 K
+	if v, _, err := tab.Lookup("alpha_cu", &expr.Scalar{Z: 293.15, Dim: expr.DimTemperature, AbsTemp: true}); err != nil || real(v.Z) != 0.00393 {
+		t.Errorf("alpha_cu(20 °C) = %v %v", v, err)
+	}
+	_, _, err := tab.Lookup("alpha_cu", &expr.Scalar{Z: 293.15, Dim: expr.DimTemperature})
+	if err == nil || !strings.Contains(err.Error(), "the key 293.1 K is a temperature difference, but the key theta_0 of temperature-coefficients is a temperature in °C") {
+		t.Errorf("error %v", err)
 	}
 }
 
