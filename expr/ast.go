@@ -21,11 +21,23 @@ type Number struct {
 }
 
 // Ident is a name: Name as written, Key the form under which it is
-// compared (NameKey).
+// compared (NameKey). A column of a table, "cu.R_20", is one Ident whose
+// Dot is the byte offset of the "." in Name (0 for a plain name); its Key
+// is the keys of the two parts joined by ".".
 type Ident struct {
 	span
 	Name string
 	Key  string
+	Dot  int
+}
+
+// Column splits a column of a table, "cu.R_20", into the table's name and
+// the column's, as written; ok is false for a plain name.
+func (n *Ident) Column() (table, col string, ok bool) {
+	if n.Dot <= 0 {
+		return "", "", false
+	}
+	return n.Name[:n.Dot], n.Name[n.Dot+1:], true
 }
 
 // WithUnit is an operand followed by a unit: "230 V", "(0.12 + j0.08) Ω", "30°".

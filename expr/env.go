@@ -3,6 +3,7 @@ package expr
 import (
 	"fmt"
 	"sort"
+	"strings"
 
 	"golang.org/x/text/unicode/norm"
 )
@@ -39,6 +40,8 @@ type Env struct {
 	vars  map[string]*Binding
 	funcs map[string]*Func
 	order []string
+	// tables are the tables of data defined by DefineTable (tables.go).
+	tables map[string]*tableBinding
 	// Preferred is the document's preferred display units, or nil.
 	Preferred *Preferred
 }
@@ -81,6 +84,9 @@ func BuiltinNames() []string {
 
 // CanDefine reports why name cannot be defined at pos, or nil.
 func (e *Env) CanDefine(name string, pos Pos) *Error {
+	if tab, col, ok := strings.Cut(name, "."); ok {
+		return Errorf(pos, "%q is a column of a table (%s.%s): a name being defined holds no '.' (write %s_%s)", name, tab, col, tab, col)
+	}
 	key := NameKey(name)
 	if IsBuiltin(key) {
 		what := "built-in function"
@@ -97,6 +103,9 @@ func (e *Env) CanDefine(name string, pos Pos) *Error {
 	}
 	if f := e.funcs[key]; f != nil {
 		return Errorf(pos, "%q is already defined as a function at line %d%s: each name is defined once", name, f.Pos.Line, sameNameNote(name, f.Name))
+	}
+	if t := e.tables[key]; t != nil {
+		return Errorf(pos, "%q is already defined as a table at line %d%s: each name is defined once", name, t.pos.Line, sameNameNote(name, t.name))
 	}
 	return nil
 }

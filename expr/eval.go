@@ -12,6 +12,7 @@ import (
 // the values substituted. The zero Trace is empty and ready to use.
 type Trace struct {
 	entries []traceEntry
+	lookups []Lookup // the table look-ups (tables.go)
 }
 
 type traceEntry struct {
@@ -156,6 +157,9 @@ func (ev *evaluator) eval1(n Node) (Value, error) {
 		if err != nil {
 			return nil, err
 		}
+		if n.Unit.Offset != 0 {
+			return withOffsetUnit(n, x, false)
+		}
 		s, ok := scalarOf(x)
 		if !ok {
 			m := x.(*Matrix)
@@ -174,6 +178,14 @@ func (ev *evaluator) eval1(n Node) (Value, error) {
 		}
 		return &Scalar{Z: s.Z * complex(n.Unit.Scale, 0), Dim: s.Dim.Mul(n.Unit.Dim), Angle: n.Unit.Angle && s.Dim.IsZero(), Kind: n.Unit.Kind}, nil
 	case *Unary:
+		if u, ok := n.X.(*WithUnit); ok && n.Op == SUB && u.Unit.Offset != 0 {
+			// "-20 °C" is (-20) °C, a temperature below zero on the scale
+			x, err := ev.eval(u.X)
+			if err != nil {
+				return nil, err
+			}
+			return withOffsetUnit(u, x, true)
+		}
 		x, err := ev.eval(n.X)
 		if err != nil {
 			return nil, err
@@ -181,12 +193,16 @@ func (ev *evaluator) eval1(n Node) (Value, error) {
 		if n.Op == ADD {
 			return x, nil
 		}
+		if hasTemp(x) {
+			return nil, negTemp(n.P, x)
+		}
 		return neg(x), nil
 	case *Abs:
 		x, err := ev.eval(n.X)
 		if err != nil {
 			return nil, err
 		}
+		x = ev.inKelvin(n.X, x)
 		s, ok := scalarOf(x)
 		if !ok {
 			return nil, Errorf(n.P, "|x| needs a single value, not %s (use det for a determinant)", Describe(x))
@@ -200,6 +216,11 @@ func (ev *evaluator) eval1(n Node) (Value, error) {
 		y, err := ev.eval(n.Y)
 		if err != nil {
 			return nil, err
+		}
+		if n.Op != ADD && n.Op != SUB {
+			// an absolute temperature enters a product, quotient, power
+			// or parallel combination in K (temperature.go)
+			x, y = ev.inKelvin(n.X, x), ev.inKelvin(n.Y, y)
 		}
 		return binaryOp(n, x, y)
 	case *Call:
@@ -253,6 +274,9 @@ func (ev *evaluator) ident(n *Ident) (Value, error) {
 			return nil, &UnavailableError{Pos: n.P, Name: n.Name, Def: b.cause()}
 		}
 		return b.Value, nil
+	}
+	if err := ev.tableRef(n); err != nil {
+		return nil, err
 	}
 	if c, ok := constants[key]; ok {
 		return c, nil
@@ -341,8 +365,12 @@ func binaryOp(n *Binary, x, y Value) (Value, error) {
 		if err != nil {
 			return nil, err
 		}
+		t, err := sumTemp(n.Op, n.OpPos, xs, ys)
+		if err != nil {
+			return nil, err
+		}
 		// a ± b is an angle when both are (LANGUAGE.md section 3)
-		return &Scalar{Z: z, Dim: d, Angle: xs.Angle && ys.Angle, Kind: k}, nil
+		return &Scalar{Z: z, Dim: d, Angle: xs.Angle && ys.Angle, Kind: k, AbsTemp: t}, nil
 	case MUL:
 		if z := xs.Z * ys.Z; z == 0 && xs.Z != 0 && ys.Z != 0 {
 			return nil, underflow(n.OpPos, "product")
@@ -491,6 +519,9 @@ func powZ(x, y complex128) complex128 {
 
 func (ev *evaluator) call(n *Call) (Value, error) {
 	name, key := n.Fun.Name, n.Fun.key()
+	if n.Fun.Dot > 0 || tableFuncs[key] {
+		return ev.lookup(n) // a look-up in a table (tables.go)
+	}
 	// an entry of a matrix value: M(i, j), v(i)
 	if v, ok := ev.locals[key]; ok {
 		return ev.index(n, v)
@@ -506,6 +537,9 @@ func (ev *evaluator) call(n *Call) (Value, error) {
 		v, err := ev.eval(a)
 		if err != nil {
 			return nil, err
+		}
+		if !keepsTemp[key] || ev.env.funcs[key] != nil {
+			v = ev.inKelvin(a, v) // a function takes an absolute temperature in K
 		}
 		args[i] = v
 	}

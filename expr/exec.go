@@ -48,6 +48,9 @@ func (e *Env) EvalCheck(c *Compare, trace *Trace) (*CheckResult, error) {
 		if _, ok := sumDim(a, b); !ok {
 			return nil, Errorf(c.X[i+1].Pos(), "cannot compare %s with %s: the units differ (%s and %s)", Describe(a), Describe(b), dimWord(a.Dim), dimWord(b.Dim))
 		}
+		if err := compareTemp(c.X[i+1].Pos(), a, b); err != nil {
+			return nil, err
+		}
 		var h bool
 		switch op {
 		case EQ, NE:
@@ -75,7 +78,9 @@ func (e *Env) EvalCheck(c *Compare, trace *Trace) (*CheckResult, error) {
 		res.Holds = append(res.Holds, h)
 		res.Pass = res.Pass && h
 	}
-	if len(c.Ops) == 1 && res.Values[0].IsReal() && res.Values[1].IsReal() {
+	// no share of a limit for absolute temperatures: 80 °C against 90 °C
+	// is not 97 % of anything (temperature.go)
+	if len(c.Ops) == 1 && res.Values[0].IsReal() && res.Values[1].IsReal() && !res.Values[0].AbsTemp && !res.Values[1].AbsTemp {
 		x, y := real(res.Values[0].Z), real(res.Values[1].Z)
 		switch c.Ops[0] {
 		case LT, LE:

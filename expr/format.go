@@ -73,7 +73,7 @@ func CheckDisplay(v Value, d *Display) error {
 		if s.Dim != d.Unit.Dim && !isPlainZero(s) {
 			return fmt.Errorf("the unit %s is %s, but the value is %s", d.Unit.Text, dimWord(d.Unit.Dim), dimWord(s.Dim))
 		}
-		return nil
+		return checkTempDisplay(s, d.Unit)
 	}
 	switch x := v.(type) {
 	case *Scalar:
@@ -137,7 +137,7 @@ func FormatScalar(s *Scalar, d *Display, digits int) Shown {
 	if c.degrees {
 		return Shown{Kind: ShownReal, A: fmtDegrees(real(s.Z)*180/math.Pi, digits), Unit: "°"}
 	}
-	z := s.Z / complex(c.scale, 0)
+	z := (s.Z - complex(c.offset, 0)) / complex(c.scale, 0)
 	form := c.form
 	mag := cmplx.Abs(z)
 	if form == -1 {
@@ -182,6 +182,7 @@ func clampDigits(digits int) int {
 type unitChoice struct {
 	unit    string
 	scale   float64
+	offset  float64 // value of 0 in the unit (°C: 273.15 K)
 	form    Form
 	degrees bool
 }
@@ -205,11 +206,19 @@ func chooseUnit(s *Scalar, d *Display, digits int) unitChoice {
 			c.form = DefaultForm(s.Dim)
 		}
 	}
-	if d != nil && d.Unit != nil && (d.Unit.Dim == s.Dim || isPlainZero(s)) && fitsKind(s, d.Unit) {
-		c.unit, c.scale = d.Unit.Text, d.Unit.Scale
-		if c.unit == "deg" {
+	if d != nil && d.Unit != nil && (d.Unit.Dim == s.Dim || isPlainZero(s)) && fitsKind(s, d.Unit) && (d.Unit.Offset == 0 || s.AbsTemp) {
+		c.unit, c.scale, c.offset = d.Unit.Text, d.Unit.Scale, d.Unit.Offset
+		switch c.unit {
+		case "deg":
 			c.unit = "°"
+		case "degC":
+			c.unit = "°C"
 		}
+		return c
+	}
+	if s.AbsTemp && s.Dim == DimTemperature {
+		// an absolute temperature is shown in °C (temperature.go)
+		c.unit, c.offset = "°C", CelsiusZero
 		return c
 	}
 	if s.Dim.IsZero() && s.Angle && c.form == -1 {
@@ -261,9 +270,24 @@ func fitsKind(s *Scalar, u *Unit) bool {
 // significant figures (the same decision as FormatScalar), and the size of
 // that unit in coherent SI units: phasor diagrams, plot axes and sweep
 // tables scale their numbers by it.
+//
+// A unit with an offset (°C) is never returned here, since a number
+// scaled by it alone would be wrong: an absolute temperature is given in
+// K. DisplayUnitOffset gives °C with its offset.
 func DisplayUnit(s *Scalar, d *Display, digits int) (unit string, scale float64) {
+	unit, scale, offset := DisplayUnitOffset(s, d, digits)
+	if offset != 0 {
+		return "K", 1
+	}
+	return unit, scale
+}
+
+// DisplayUnitOffset is DisplayUnit with the offset of the unit: the
+// number shown is (value − offset) / scale. The offset is 0 except for an
+// absolute temperature shown in °C (273.15).
+func DisplayUnitOffset(s *Scalar, d *Display, digits int) (unit string, scale, offset float64) {
 	c := chooseUnit(s, d, clampDigits(digits))
-	return c.unit, c.scale
+	return c.unit, c.scale, c.offset
 }
 
 // defaultSymbol is the unit a dimension is shown in when its line names

@@ -89,6 +89,14 @@ func init() {
 		"abc":       {1, 3, abcFn},
 		// power
 		"powerfactor": {1, 1, powerFactorFn},
+		// rounding to a step (rounding.go)
+		"round": {1, 2, roundFn(roundHalfAway)},
+		"ceil":  {1, 2, roundFn(roundUp)},
+		"floor": {1, 2, roundFn(roundDown)},
+		// look-ups in tables of data (tables.go)
+		"interp": {2, 2, noTableCall("interp")},
+		"up":     {2, 2, noTableCall("up")},
+		"down":   {2, 2, noTableCall("down")},
 	}
 }
 
@@ -201,6 +209,9 @@ func minMax(isMax bool) func([]Value) (Value, error) {
 		}
 		var best *Scalar
 		for _, s := range vals {
+			if s.AbsTemp != vals[0].AbsTemp && s.Dim == vals[0].Dim {
+				return nil, fmt.Errorf("cannot compare the absolute temperature and the temperature difference among the arguments: give all as temperatures (°C) or all as differences (K)")
+			}
 			if !s.IsReal() {
 				return nil, fmt.Errorf("cannot order complex values such as %s: compare abs, re or im", Describe(s))
 			}
@@ -219,6 +230,7 @@ func minMax(isMax bool) func([]Value) (Value, error) {
 		r.Z = complex(real(r.Z), 0)
 		r.Kind = PowerNone // not among the operations that keep a power's kind
 		r.Angle = false    // not an operation of the angle rule
+		// the mark of absolute temperatures is kept (temperature.go)
 		return &r, nil
 	}
 }

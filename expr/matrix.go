@@ -79,7 +79,11 @@ func matrixOp(n *Binary, x, y Value) (Value, error) {
 			if err != nil {
 				return nil, err
 			}
-			out.E[i] = Scalar{Z: z, Dim: d, Kind: k}
+			t, err := sumTemp(n.Op, n.OpPos, a, b)
+			if err != nil {
+				return nil, err
+			}
+			out.E[i] = Scalar{Z: z, Dim: d, Kind: k, AbsTemp: t}
 		}
 		out.Resid = residSum(xm, ym)
 		return out, nil

@@ -314,6 +314,10 @@ func (p *parser) firstComparison() int {
 
 func (p *parser) ident(t Token) *Ident {
 	// the key is computed once here, for every later lookup of the node
+	if dot := strings.IndexByte(t.Text, '.'); dot > 0 {
+		// a column of a table: the key of each part, joined by "."
+		return &Ident{span: span{p.pos(t.Off), p.pos(t.End)}, Name: t.Text, Key: NameKey(t.Text[:dot]) + "." + NameKey(t.Text[dot+1:]), Dot: dot}
+	}
 	return &Ident{span: span{p.pos(t.Off), p.pos(t.End)}, Name: t.Text, Key: NameKey(t.Text)}
 }
 

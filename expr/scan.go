@@ -436,8 +436,17 @@ func (s *scanner) unitAllowed(space bool, start int) bool {
 // token, so that its statement is not evaluated.
 func (s *scanner) scanName(start int, space bool) {
 	ascii := true
+	dot := -1
 	for s.off < len(s.text) {
 		if c := s.text[s.off]; c < utf8.RuneSelf {
+			if c == '.' && dot < 0 {
+				// a column of a table, "cu.R_20" (LANGUAGE.md section 9)
+				if r, _ := s.peekRune(s.off + 1); startsName(r) {
+					dot = s.off - start
+					s.off++
+					continue
+				}
+			}
 			if !(isLetter(rune(c)) || isDigit(rune(c)) || c == '_') {
 				break
 			}
@@ -454,7 +463,16 @@ func (s *scanner) scanName(start int, space bool) {
 	text := s.text[start:s.off]
 	t := Token{Kind: IDENT, Text: text, Off: start, End: s.off, SpaceBefore: space}
 	if !ascii {
-		if off, msg := checkName(text); off >= 0 {
+		off, msg := checkName(text)
+		if dot >= 0 {
+			if off, msg = checkName(text[:dot]); off < 0 {
+				off, msg = checkName(text[dot+1:])
+				if off >= 0 {
+					off += dot + 1
+				}
+			}
+		}
+		if off >= 0 {
 			s.errAt(start+off, msg)
 			t.Kind = ILLEGAL
 			s.emit(t)

@@ -169,6 +169,10 @@ type unitDef struct {
 	name       string
 }
 
+// unitOffsets holds the value of 0 in a unit with an offset, in coherent
+// SI units: its values are absolute temperatures (temperature.go).
+var unitOffsets = map[string]float64{"°C": CelsiusZero, "degC": CelsiusZero}
+
 // unitTable is the table of unit symbols. A symbol written in a document is
 // looked up whole first; only when it is not in the table is it read as an
 // SI prefix followed by a prefixable symbol. That rule settles the symbols
@@ -219,6 +223,9 @@ func init() {
 	} {
 		addUnit(u)
 	}
+	// degree Celsius: t/°C = T/K − 273.15 (SI Brochure, 9th edition, 2.3.1)
+	addUnit(unitDef{sym: "°C", scale: 1, dim: DimTemperature, name: "degree Celsius"})
+	addUnit(unitDef{sym: "degC", scale: 1, dim: DimTemperature, name: "degree Celsius"})
 	// Alternative spellings of the same characters.
 	unitTable["\u2126"] = unitTable["\u03a9"] // U+2126 OHM SIGN reads as U+03A9
 }
@@ -297,6 +304,9 @@ type Unit struct {
 	// Plain marks a dimensionless unit that a value keeps when written in
 	// it: % and pu.
 	Plain bool
+	// Offset is the value of 0 in this unit in coherent SI units: 273.15
+	// (K) for °C, whose values are absolute temperatures (temperature.go).
+	Offset float64
 }
 
 // ParseUnit reads a unit expression: symbols joined by "·", "*" or "/",
@@ -343,6 +353,12 @@ func parseUnit(text string) (*Unit, error) {
 		scale, dim, angle, ok := lookupSymbol(sym)
 		if !ok {
 			return nil, unknownUnitError(sym)
+		}
+		if off, has := unitOffsets[sym]; has {
+			if start != 0 || i != len(rs) {
+				return nil, fmt.Errorf("%s is a point on a temperature scale and cannot be part of a compound unit in %q: a step of 1 %s is 1 K, so write K (e.g. 1/K, W/K)", sym, text, sym)
+			}
+			u.Offset = off
 		}
 		pow := 1
 		if i < len(rs) {

@@ -18,13 +18,16 @@ type Value interface {
 // radians (from an angle unit, arg, or an inverse trigonometric function),
 // so that the sheet shows it in degrees. Sense is set on the value of
 // powerfactor(S): it says how the sheet shows it ("0.9140 lagging"), never
-// how it computes (powerfactor.go).
+// how it computes (powerfactor.go). AbsTemp marks an absolute temperature
+// (a point on the scale, shown in °C) as against a temperature difference
+// (shown in K): temperature.go.
 type Scalar struct {
-	Z     complex128
-	Dim   Dim
-	Sense PFSense
-	Angle bool
-	Kind  PowerKind // of a power (dimension of W): active, reactive, apparent or none
+	Z       complex128
+	Dim     Dim
+	Sense   PFSense
+	Angle   bool
+	Kind    PowerKind // of a power (dimension of W): active, reactive, apparent or none
+	AbsTemp bool
 }
 
 // PowerKind is the kind of a power, as IEEE Std 1459-2010 names them:
