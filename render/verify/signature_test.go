@@ -238,3 +238,22 @@ func TestSignatures(t *testing.T) {
 		}
 	})
 }
+
+// A package is signed as a sheet is: the signature follows its last
+// sheet; a style added to its head after signing breaks the signature
+// and fails the package.
+func TestSignPackage(t *testing.T) {
+	k := newSignKeys(t)
+	page := buildPackage(t, pkgFiles)
+	signed := sign(t, page, k.bob, "approved", "bob@example.invalid")
+	rep := checkSigned(t, signed, k.allowed)
+	if !rep.OK() || !rep.Package || len(rep.Signatures) != 1 || !rep.Signatures[0].Confirmed {
+		t.Fatalf("%+v %+v", rep.PackageDifferences, rep.Signatures)
+	}
+	forged := strings.Replace(string(signed), "</head>", "<style>.marker{display:none}</style>\n</head>", 1)
+	rep = checkSigned(t, []byte(forged), k.allowed)
+	if rep.OK() || rep.Signatures[0].Valid || !strings.Contains(rep.Signatures[0].Problem, "broke") ||
+		len(rep.PackageDifferences) == 0 || !strings.Contains(rep.PackageDifferences[0].Message, "in <head>") {
+		t.Fatalf("%+v %+v", rep.PackageDifferences, rep.Signatures)
+	}
+}

@@ -1,7 +1,11 @@
 // Package verify checks a built sheet, or a calculation package, against
-// the source it carries: it reads the page with an HTML tokenizer, takes
-// out the embedded source and the recorded stamp, evaluates and renders the
-// source again with the same sheet writer, and compares the two.
+// the inputs and facts it records: it reads the page with an HTML
+// tokenizer, takes out the signature elements, the embedded source and
+// the recorded stamp, evaluates and writes the whole file again with the
+// same sheet and package writers, and compares every byte; inside the
+// source's git repository it also holds the recorded facts against git.
+// It adds and checks signatures in the SSH signature format (OpenSSH
+// PROTOCOL.sshsig) by calling ssh-keygen -Y, as git does.
 package verify
 
 import (
