@@ -257,3 +257,20 @@ func TestSignPackage(t *testing.T) {
 		t.Fatalf("%+v %+v", rep.PackageDifferences, rep.Signatures)
 	}
 }
+
+// An allowed-signers file that ssh-keygen cannot read is named as such,
+// not taken for an unknown signer.
+func TestSignersFileBroken(t *testing.T) {
+	k := newSignKeys(t)
+	signed := sign(t, verifySheet(t, "heater.md", sheettest.HeaterDoc, "test"), k.alice, "checked", "alice@example.invalid")
+	bad := filepath.Join(k.dir, "bad_signers")
+	if err := os.WriteFile(bad, []byte("alice@example.invalid not-a-key\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	for _, f := range []string{bad, filepath.Join(k.dir, "none")} {
+		rep := checkSigned(t, signed, f)
+		if rep.OK() || strings.Contains(rep.Signatures[0].Problem, "unknown signer") || !strings.Contains(rep.Signatures[0].Problem, "allowed-signers file") {
+			t.Errorf("%s: %+v", f, rep.Signatures)
+		}
+	}
+}

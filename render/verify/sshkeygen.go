@@ -91,6 +91,11 @@ func Principals(armored, allowed string) ([]string, error) {
 			if _, serr := os.Stat(allowed); serr != nil {
 				return fmt.Errorf("the allowed-signers file cannot be read: %v", serr)
 			}
+			for _, l := range strings.Split(stderr, "\n") {
+				if l = strings.TrimSpace(l); l != "" && l != "No principal matched." {
+					return fmt.Errorf("ssh-keygen cannot read the allowed-signers file %s: %s", allowed, l)
+				}
+			}
 			return nil // no principal matched
 		case err != nil:
 			return fmt.Errorf("ssh-keygen -Y find-principals: %v: %s", err, stderr)
