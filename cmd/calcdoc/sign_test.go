@@ -97,4 +97,10 @@ func TestSignCommand(t *testing.T) {
 	if st != exitCheckFail || !strings.Contains(out, "signature 1 (checked, by alice@example.invalid") || !strings.Contains(out, "FAILS: broke") {
 		t.Fatalf("verify of an edited sheet: %d\n%s", st, out)
 	}
+	// a file that does not verify is not signed
+	before, _ := os.ReadFile(edited)
+	st, _, errs = runCLI("sign", "--key", alice, "--role", "checked", edited)
+	if after, _ := os.ReadFile(edited); st != exitCheckFail || string(after) != string(before) || !strings.Contains(errs, "not signed: the file does not verify") {
+		t.Fatalf("sign of an edited sheet: %d %s", st, errs)
+	}
 }

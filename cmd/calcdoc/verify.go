@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"os"
 
+	"calcdoc/render/stamp"
 	"calcdoc/render/verify"
 )
 
@@ -74,7 +75,11 @@ func (c *cli) printReport(path string, rep *verify.Report) {
 			continue
 		}
 		if s.Match {
-			fmt.Fprintf(c.stdout, "%s: matches its source %s (sha256 %s, built by calcdoc %s)\n", name, src, s.SHA256, s.SheetVersion)
+			note := ""
+			if s.Git != nil && s.Git.Why != "" && s.Git.Why != stamp.NoCommitRecorded {
+				note = "; its commit and state were not checked against git: " + s.Git.Why
+			}
+			fmt.Fprintf(c.stdout, "%s: matches its source %s (sha256 %s, built by calcdoc %s)%s\n", name, src, s.SHA256, s.SheetVersion, note)
 			continue
 		}
 		fmt.Fprintf(c.stdout, "%s: DOES NOT MATCH its source %s\n", name, src)

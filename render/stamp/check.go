@@ -22,6 +22,10 @@ type GitCheck struct {
 	Problems []string
 }
 
+// NoCommitRecorded is GitCheck.Why for a sheet that records no commit
+// (nothing to hold against git).
+const NoCommitRecorded = "the sheet records no commit"
+
 // Check holds a sheet's recorded stamp against git. candidates are the
 // paths at which the source may be found (the recorded path taken from
 // the current folder, then from the sheet's folder); the first that is a
@@ -34,7 +38,7 @@ type GitCheck struct {
 // differs from it when the sheet says modified.
 func Check(st Stamp, src []byte, candidates ...string) GitCheck {
 	if st.Commit == "" {
-		return GitCheck{Why: "the sheet records no commit"}
+		return GitCheck{Why: NoCommitRecorded}
 	}
 	gitPath, err := exec.LookPath("git")
 	if err != nil {
