@@ -59,6 +59,7 @@ func verifyPackage(b []byte, opt Options) (*Report, error) {
 	}
 	var found []string
 	var sheets []pack.Sheet
+	complete := true // every sheet evaluated, so the package can be written again
 	for j, sec := range sections {
 		end := bodyEnd
 		if j+1 < len(sections) {
@@ -69,19 +70,21 @@ func verifyPackage(b []byte, opt Options) (*Report, error) {
 		lineBase := 1 + bytes.Count(b[:sec.start], []byte("\n"))
 		rec, err := readSheet(unit, pack.SheetPrefix(k))
 		if err != nil {
-			sheets = nil
+			complete = false
 			rep.Sheets = append(rep.Sheets, &SheetResult{Index: k, Version: opt.Version, Differences: []Difference{{Kind: "record",
 				Message: fmt.Sprintf("sheet %d carries no embedded source", k)}}})
 			continue
 		}
-		if rec.sourceErr == "" && (sheets != nil || j == 0) {
-			o := rec.opt
-			o.Version = opt.Version
-			sheets = append(sheets, pack.Sheet{Doc: calcdoc.Parse(rec.path, rec.source), Options: o})
-		}
 		res := rec.check(unit, lineBase, opt, func(doc *calcdoc.Document, opt render.Options) ([]byte, error) {
 			return pack.Section(doc, opt, k)
 		})
+		if res.doc == nil {
+			complete = false
+		} else {
+			o := rec.opt
+			o.Version = opt.Version
+			sheets = append(sheets, pack.Sheet{Doc: res.doc, Options: o})
+		}
 		res.Index = k
 		rep.Sheets = append(rep.Sheets, res)
 		found = append(found, res.SHA256)
@@ -104,6 +107,9 @@ func verifyPackage(b []byte, opt Options) (*Report, error) {
 					Message: fmt.Sprintf("hash: the cover states the package SHA-256 %s, but the sheets' embedded sources give %s", statedPkg, ph)})
 			}
 		}
+	}
+	if !complete {
+		sheets = nil
 	}
 	rep.PackageDifferences = append(rep.PackageDifferences, wholePackage(b, cover, sections, sheets, opt)...)
 	return rep, nil

@@ -76,7 +76,7 @@ func (s Signature) Element(signed []byte) (string, error) {
 	fmt.Fprintf(&b, "<h2>Signature: %s</h2>\n<table class=\"stamp\">\n", e(s.Role))
 	row := func(k, v string) { fmt.Fprintf(&b, "<tr><th>%s</th><td>%s</td></tr>\n", k, v) }
 	row("Role", e(s.Role))
-	row("Signer", e(OrDashed(s.Principal)))
+	row("Signer", e(orDash(s.Principal)))
 	row("Key", "<code>"+e(info.KeyType)+" "+e(info.Fingerprint)+"</code>")
 	t := "not recorded"
 	if s.Time != "" {
@@ -89,9 +89,6 @@ func (s Signature) Element(signed []byte) (string, error) {
 	fmt.Fprintf(&b, "<pre hidden class=\"sshsig\">%s</pre>\n</section>\n", e(s.Armored))
 	return b.String(), nil
 }
-
-// OrDashed is s, or a dash where it is empty.
-func OrDashed(s string) string { return orDash(s) }
 
 // Canonical returns the canonical form of a file (the file without its
 // signature elements), the signatures it carries in file order, and a

@@ -77,6 +77,9 @@ type SheetResult struct {
 	// Git is what holding the recorded facts against git found; nil when
 	// it was not asked for or the sheet has no stamp.
 	Git *stamp.GitCheck
+	// doc is the document evaluated from the embedded source; nil when it
+	// was not evaluated
+	doc *calcdoc.Document
 }
 
 // Report is the verification of one HTML file.
@@ -289,6 +292,7 @@ func (rec *sheetRecord) check(unit []byte, lineBase int, opt Options, rerender f
 		}
 	}
 	doc := calcdoc.Parse(rec.path, rec.source)
+	res.doc = doc
 	ropt := rec.opt
 	ropt.Version = opt.Version
 	fresh, err := rerender(doc, ropt)
