@@ -40,14 +40,20 @@ usage:
                                        rebuild on every save and serve a live preview
   calcdoc package [-o FILE] [--pdf FILE] PATH...
                                        one stamped calculation package
-  calcdoc verify SHEET.html...         re-evaluate the source a sheet carries and
-                                       confirm the sheet still matches it
+  calcdoc verify [--signers FILE] SHEET.html...
+                                       confirm that every byte of a sheet or package
+                                       is what calcdoc writes from the inputs it
+                                       carries, and check its signatures
+  calcdoc sign --key KEY --role checked|approved SHEET.html...
+                                       sign issued sheets with an SSH key
   calcdoc version
 
 A PATH that is a folder means every .md file below it that holds a calc or
 solve block. Exit status: 0 all evaluated and every check holds, 1 a check
 fails, 3 a document has an error, 2 a usage error. verify: 0 every sheet
-matches its source, 1 one does not, 2 a usage error.
+matches its source and every signature holds, 1 one does not, 2 a usage
+error. sign: 0 signed, 1 the file does not verify or the signer is not
+allowed the role, 2 a usage error, 3 signing failed.
 `
 
 type cli struct {

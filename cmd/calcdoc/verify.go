@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"os"
 
+	"calcdoc/render/stamp"
 	"calcdoc/render/verify"
 )
 
@@ -17,6 +18,7 @@ func init() {
 // cannot be read, a file that is not a calcdoc sheet or package).
 func (c *cli) verify(args []string) int {
 	fs := c.flagSet("verify")
+	signers := fs.String("signers", "", "an allowed-signers file (git's format) that confirms each signature's signer and role")
 	paths, err := parseFlags(fs, args)
 	if err != nil {
 		return exitUsage
@@ -32,7 +34,7 @@ func (c *cli) verify(args []string) int {
 			st = max(st, exitUsage)
 			continue
 		}
-		rep, err := verify.Verify(page, version)
+		rep, err := verify.Check(page, verify.Options{Version: version, SheetPath: p, Git: true, Signers: *signers})
 		if err != nil { // verify.ErrNotSheet
 			fmt.Fprintf(c.stderr, "calcdoc: %s: %v\n", p, err)
 			st = max(st, exitUsage)
@@ -56,7 +58,7 @@ func (c *cli) printReport(path string, rep *verify.Report) {
 		}
 		fmt.Fprintf(c.stdout, "%s: package of %d sheets: %s\n", path, len(rep.Sheets), verdict)
 		for _, d := range rep.PackageDifferences {
-			fmt.Fprintf(c.stdout, "  cover: %s\n", d)
+			fmt.Fprintf(c.stdout, "  package: %s\n", d)
 		}
 	}
 	for _, s := range rep.Sheets {
@@ -68,16 +70,31 @@ func (c *cli) printReport(path string, rep *verify.Report) {
 		if src == "" {
 			src = "(no path recorded)"
 		}
+		if s.Match && s.Git != nil && s.Git.Applies {
+			fmt.Fprintf(c.stdout, "%s: matches its source %s (sha256 %s, built by calcdoc %s); its commit and state agree with git in %s\n", name, src, s.SHA256, s.SheetVersion, s.Git.Repo)
+			continue
+		}
 		if s.Match {
-			fmt.Fprintf(c.stdout, "%s: matches its source %s (sha256 %s, built by calcdoc %s)\n", name, src, s.SHA256, s.SheetVersion)
+			note := ""
+			if s.Git != nil && s.Git.Why != "" && s.Git.Why != stamp.NoCommitRecorded {
+				note = "; its commit and state were not checked against git: " + s.Git.Why
+			}
+			fmt.Fprintf(c.stdout, "%s: matches its source %s (sha256 %s, built by calcdoc %s)%s\n", name, src, s.SHA256, s.SheetVersion, note)
 			continue
 		}
 		fmt.Fprintf(c.stdout, "%s: DOES NOT MATCH its source %s\n", name, src)
 		for _, d := range s.Differences {
 			fmt.Fprintf(c.stdout, "    %s\n", d)
 		}
-		if n := s.VersionNote(); n != "" {
-			fmt.Fprintf(c.stdout, "    note: %s\n", n)
+	}
+	for _, s := range rep.Signatures {
+		switch {
+		case !s.OK:
+			fmt.Fprintf(c.stdout, "  %s: FAILS: %s\n", s.Label(), s.Problem)
+		case s.Confirmed:
+			fmt.Fprintf(c.stdout, "  %s: good; the allowed-signers file gives the key to %s and allows the role %s\n", s.Label(), s.Principal, s.Role)
+		default:
+			fmt.Fprintf(c.stdout, "  %s: good for its key; the signer is not confirmed (give --signers FILE)\n", s.Label())
 		}
 	}
 }

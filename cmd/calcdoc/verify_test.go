@@ -43,6 +43,13 @@ func TestVerifyCommand(t *testing.T) {
 	}
 	numberEdited := edit("number.html", `data-value="P" data-line="10">`, "<mn>3.023</mn>", "<mn>3.032</mn>")
 	sourceEdited := edit("source.html", `<pre hidden id="calcdoc-source"`, "R = 17.5 ohm", "R = 16.5 ohm")
+	i := strings.Index(string(page), `<section class="stamp"`)
+	j := strings.Index(string(page), "</section>\n<footer class=\"caution\">")
+	if i < 0 || j < i {
+		t.Fatal("no stamp section before the caution")
+	}
+	noStamp := write(t, dir, "nostamp.html", string(page[:i])+string(page[j+len("</section>\n"):]))
+	appended := write(t, dir, "appended.html", string(page)+"<p>Approved for construction.</p>\n")
 
 	cases := []struct {
 		name   string
@@ -55,6 +62,8 @@ func TestVerifyCommand(t *testing.T) {
 		{"one number edited", []string{numberEdited}, exitCheckFail,
 			[]string{"DOES NOT MATCH", "value P (line 10): sheet shows 3.032 kW, source gives 3.023 kW"}, ""},
 		{"embedded source edited", []string{sourceEdited}, exitCheckFail, []string{"DOES NOT MATCH", "hash: the embedded source's SHA-256 is"}, ""},
+		{"stamp removed", []string{noStamp}, exitCheckFail, []string{"DOES NOT MATCH", "stamp: the sheet has no stamp section"}, ""},
+		{"bytes after </body>", []string{appended}, exitCheckFail, []string{"DOES NOT MATCH", "after </body>: the sheet goes on", "Approved for construction."}, ""},
 		{"one of two fails", []string{sheet, numberEdited}, exitCheckFail, []string{"heater.html: matches", "number.html: DOES NOT MATCH"}, ""},
 		{"not a sheet", []string{src}, exitUsage, nil, "not a calcdoc sheet"},
 		{"missing file", []string{filepath.Join(dir, "none.html")}, exitUsage, nil, "cannot read"},

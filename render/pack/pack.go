@@ -5,6 +5,7 @@ package pack
 
 import (
 	"bytes"
+	"encoding/json"
 	"errors"
 	"fmt"
 	"html"
@@ -317,8 +318,35 @@ func cover(w *bytes.Buffer, info Info, title string, sheets []Sheet, hashes []st
 		}
 	}
 	w.WriteString("</table>\n")
+	w.WriteString(Record(info))
 	fmt.Fprintf(w, "<p class=\"gen\">Made by calcdoc %s. Every sheet carries its own source: <code>calcdoc verify</code> on this file evaluates each one again and confirms that the sheet, its hash and the package hash still match it.</p>\n", esc(version))
 	w.WriteString("</section>\n")
+}
+
+// RecordID is the id of the hidden element of the cover that records the
+// package's title block and start pages (Info) as JSON, so that verify
+// can write the whole package again from what the file carries.
+const RecordID = "calcdoc-package"
+
+// Record is the hidden element that carries info: a <pre hidden> (never
+// a script) holding Info as JSON (encoding/json, Go field names),
+// HTML-escaped.
+func Record(info Info) string {
+	b, err := json.Marshal(info)
+	if err != nil { // Info holds only strings and ints
+		panic(err)
+	}
+	return fmt.Sprintf("<pre hidden id=\"%s\" data-encoding=\"json\">%s</pre>\n", RecordID, esc(string(b)))
+}
+
+// ParseRecord reads the JSON of a Record, after its HTML escapes are
+// undone. Unknown keys are an error.
+func ParseRecord(b []byte) (Info, error) {
+	var info Info
+	dec := json.NewDecoder(bytes.NewReader(b))
+	dec.DisallowUnknownFields()
+	err := dec.Decode(&info)
+	return info, err
 }
 
 // contents lists the sheets and their first two levels of headings.

@@ -3,6 +3,8 @@ package verify
 import (
 	"bytes"
 	"fmt"
+	"html"
+	"strings"
 
 	"calcdoc/calcdoc"
 	"calcdoc/render"
@@ -15,7 +17,7 @@ func isSheetSection(e *element) bool { return e.name == "section" && e.attr["cla
 func isPackage(b []byte) bool { return find(elements(b), isSheetSection) != nil }
 
 // verifyPackage verifies every sheet of a package and its cover.
-func verifyPackage(b []byte, version string) (*Report, error) {
+func verifyPackage(b []byte, opt Options) (*Report, error) {
 	rep := &Report{Package: true}
 	p := tokenize(b)
 	// the sheets: each section runs to the next one, or to </body>
@@ -56,6 +58,8 @@ func verifyPackage(b []byte, version string) (*Report, error) {
 			Message: fmt.Sprintf("the cover lists %d sheets, but the package holds %d", len(coverHashes), len(sections))})
 	}
 	var found []string
+	var sheets []pack.Sheet
+	complete := true // every sheet evaluated, so the package can be written again
 	for j, sec := range sections {
 		end := bodyEnd
 		if j+1 < len(sections) {
@@ -66,13 +70,21 @@ func verifyPackage(b []byte, version string) (*Report, error) {
 		lineBase := 1 + bytes.Count(b[:sec.start], []byte("\n"))
 		rec, err := readSheet(unit, pack.SheetPrefix(k))
 		if err != nil {
-			rep.Sheets = append(rep.Sheets, &SheetResult{Index: k, Version: version, Differences: []Difference{{Kind: "record",
+			complete = false
+			rep.Sheets = append(rep.Sheets, &SheetResult{Index: k, Version: opt.Version, Differences: []Difference{{Kind: "record",
 				Message: fmt.Sprintf("sheet %d carries no embedded source", k)}}})
 			continue
 		}
-		res := rec.check(unit, lineBase, version, func(doc *calcdoc.Document, opt render.Options) ([]byte, error) {
+		res := rec.check(unit, lineBase, opt, func(doc *calcdoc.Document, opt render.Options) ([]byte, error) {
 			return pack.Section(doc, opt, k)
 		})
+		if res.doc == nil {
+			complete = false
+		} else {
+			o := rec.opt
+			o.Version = opt.Version
+			sheets = append(sheets, pack.Sheet{Doc: res.doc, Options: o})
+		}
 		res.Index = k
 		rep.Sheets = append(rep.Sheets, res)
 		found = append(found, res.SHA256)
@@ -96,5 +108,61 @@ func verifyPackage(b []byte, version string) (*Report, error) {
 			}
 		}
 	}
+	if !complete {
+		sheets = nil
+	}
+	rep.PackageDifferences = append(rep.PackageDifferences, wholePackage(b, cover, sections, sheets, opt)...)
 	return rep, nil
+}
+
+// wholePackage writes the package again from the title block its cover
+// records and its sheets' records, and names how the file's head, cover
+// and contents, and what follows the last sheet, differ from it (each
+// sheet's own section is checked by its SheetResult).
+func wholePackage(b []byte, cover *element, sections []*element, sheets []pack.Sheet, opt Options) []Difference {
+	if cover != nil && cover.attr["data-version"] != opt.Version {
+		v := cover.attr["data-version"]
+		return []Difference{{Kind: "version", Sheet: v, Source: opt.Version,
+			Message: fmt.Sprintf("version: the package was made by calcdoc %s; this is calcdoc %s, which vouches only for the packages it writes itself: verify it with calcdoc %s", orDash(v), orDash(opt.Version), orDash(v))}}
+	}
+	rec := find(elements(b), func(e *element) bool { return e.name == "pre" && e.attr["id"] == pack.RecordID })
+	if rec == nil || !rec.closed {
+		return []Difference{{Kind: "record", Message: "the package's cover carries no record of its title block (pre id=\"" + pack.RecordID + "\"), which every package calcdoc writes carries"}}
+	}
+	info, err := pack.ParseRecord([]byte(html.UnescapeString(string(rec.raw))))
+	if err != nil {
+		return []Difference{{Kind: "record", Message: "the package's record of its title block cannot be read: " + err.Error()}}
+	}
+	if len(sheets) != len(sections) {
+		return nil // a sheet without its source is reported on its own
+	}
+	fresh, err := pack.Package(info, sheets, opt.Version)
+	if err != nil {
+		return []Difference{{Kind: "record", Message: "the package cannot be written again: " + err.Error()}}
+	}
+	if bytes.Equal(fresh, b) {
+		return nil
+	}
+	var fsecs []*element
+	for _, e := range elements(fresh) {
+		if isSheetSection(e) {
+			fsecs = append(fsecs, e)
+		}
+	}
+	var out []Difference
+	// head, cover and contents: everything before the first sheet
+	head, fhead := b[:sections[0].start], fresh[:fsecs[0].start]
+	if !bytes.Equal(head, fhead) {
+		out = append(out, comparePages(head, fhead, 1, false)...)
+	}
+	// what follows the last sheet
+	_, end := bodyBounds(b)
+	_, fend := bodyBounds(fresh)
+	if !bytes.Equal(b[end:], fresh[fend:]) {
+		d := firstDiff(b, fresh, end, fend, 1)
+		d.Kind = "after-body"
+		d.Message = "after </body>: " + strings.TrimPrefix(d.Message, "text: ")
+		out = append(out, d)
+	}
+	return out
 }

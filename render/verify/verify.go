@@ -1,7 +1,11 @@
 // Package verify checks a built sheet, or a calculation package, against
-// the source it carries: it reads the page with an HTML tokenizer, takes
-// out the embedded source and the recorded stamp, evaluates and renders the
-// source again with the same sheet writer, and compares the two.
+// the inputs and facts it records: it reads the page with an HTML
+// tokenizer, takes out the signature elements, the embedded source and
+// the recorded stamp, evaluates and writes the whole file again with the
+// same sheet and package writers, and compares every byte; inside the
+// source's git repository it also holds the recorded facts against git.
+// It adds and checks signatures in the SSH signature format (OpenSSH
+// PROTOCOL.sshsig) by calling ssh-keygen -Y, as git does.
 package verify
 
 import (
@@ -10,6 +14,7 @@ import (
 	"errors"
 	"fmt"
 	"html"
+	"path/filepath"
 	"regexp"
 	"strconv"
 	"strings"
@@ -69,16 +74,12 @@ type SheetResult struct {
 	Match bool
 	// Differences name what differs when Match is false.
 	Differences []Difference
-}
-
-// VersionNote is a sentence for a mismatch between versions, or "" when
-// the sheet was built by the verifying version.
-func (r *SheetResult) VersionNote() string {
-	if r.SheetVersion == r.Version {
-		return ""
-	}
-	return fmt.Sprintf("the sheet was built by calcdoc %s and is verified by calcdoc %s: another version may lay a sheet out differently, so a difference of layout alone does not mean the calculation changed",
-		orDash(r.SheetVersion), orDash(r.Version))
+	// Git is what holding the recorded facts against git found; nil when
+	// it was not asked for or the sheet has no stamp.
+	Git *stamp.GitCheck
+	// doc is the document evaluated from the embedded source; nil when it
+	// was not evaluated
+	doc *calcdoc.Document
 }
 
 // Report is the verification of one HTML file.
@@ -91,6 +92,8 @@ type Report struct {
 	// hash listed on the cover that is not the sheet's, or a package hash
 	// that does not follow from the listed hashes.
 	PackageDifferences []Difference
+	// Signatures are the signatures the file carries, in file order.
+	Signatures []SignatureResult
 }
 
 // OK reports whether every sheet matches and the cover (of a package)
@@ -98,6 +101,11 @@ type Report struct {
 func (r *Report) OK() bool {
 	if len(r.PackageDifferences) > 0 || len(r.Sheets) == 0 {
 		return false
+	}
+	for _, s := range r.Signatures {
+		if !s.OK {
+			return false
+		}
 	}
 	for _, s := range r.Sheets {
 		if !s.Match {
@@ -107,36 +115,76 @@ func (r *Report) OK() bool {
 	return true
 }
 
-// Verify checks a built sheet, or a calculation package, against the
-// source it carries. It reads the page with an HTML tokenizer
-// (golang.org/x/net/html). For each sheet it recovers the embedded source
-// (HTML entities undone, or base64 decoded), computes the source's SHA-256 (FIPS
-// 180-4) and compares it with the hash stated on the source element and in
-// the stamp; then it evaluates the source again (calcdoc.Parse with the
-// recorded path), renders it with the options the sheet records (the
-// stamp's version, hash, commit, state and detail; source embedded) and
-// compares the result with the page byte for byte. Where they differ it
-// names each result row (data-value, by name and line) and each check row
-// (data-check) whose text differs, or else the first differing line.
-// version is the verifying calcdoc's version, used only in messages.
+// Options say how Check works.
+type Options struct {
+	// Version is the verifying calcdoc's version: a sheet that records
+	// another version fails, and the fresh render carries this one.
+	Version string
+	// SheetPath is the path of the HTML file ("" when not known). With
+	// Git, the recorded source path is looked for from the current folder
+	// and from this file's folder.
+	SheetPath string
+	// Git holds the recorded git facts against the repository that holds
+	// the source, when the recorded path leads to one (stamp.Check).
+	Git bool
+	// Signers is an allowed-signers file in git's format; "" checks each
+	// signature against the key it carries without naming a signer.
+	Signers string
+}
+
+// Verify is Check without git and with no allowed-signers file.
+func Verify(page []byte, version string) (*Report, error) {
+	return Check(page, Options{Version: version})
+}
+
+// Check checks a built sheet, or a calculation package, against the
+// inputs and facts it records. It reads the page with an HTML tokenizer
+// (golang.org/x/net/html). It takes out the signature elements (the
+// canonical form, Canonical); every other byte must be what this calcdoc
+// writes. For each sheet it recovers the embedded source (HTML entities
+// undone, or base64 decoded), computes the source's SHA-256 (FIPS 180-4)
+// and compares it with the hash stated on the source element and in the
+// stamp; then it evaluates the source again (calcdoc.Parse with the
+// recorded path), renders it with the facts the sheet records (hash,
+// commit, state and detail; source embedded) and compares the result
+// with the page byte for byte: head, styles, body and what follows
+// </body>. A package is written again whole (pack.Package with the title
+// block its cover records). Where they differ it names each result row
+// (data-value, by name and line) and each check row (data-check) whose
+// text differs, and the first difference of the head, of the body and
+// after </body>, with the element that holds it. A sheet without a stamp
+// fails, and so does one built by another calcdoc version (naming it).
+// With opt.Git, the recorded commit, date and working-tree state are held
+// against git (stamp.Check). Each signature is checked (signature.go).
 //
 // The error is ErrNotSheet for a page that carries no embedded source;
 // a sheet that carries one but does not match is a Report that is not OK.
 //
-// Verify shows that the page is what its embedded source gives and that
-// the stated hashes fit that source. It is not a signature: whoever can
-// edit the file can build a consistent sheet from another source; the
-// hash is what ties the sheet to the source kept under version control.
-func Verify(page []byte, version string) (*Report, error) {
-	if isPackage(page) {
-		return verifyPackage(page, version)
+// Check shows that the file is what this calcdoc writes from the inputs
+// and facts it records, and that the stated hashes fit those inputs; a
+// signature shows that the holder of a key signed those bytes. Neither
+// shows that the inputs are right.
+func Check(page []byte, opt Options) (*Report, error) {
+	canon, sigs, sigDiffs := Canonical(page)
+	var rep *Report
+	if isPackage(canon) {
+		var err error
+		if rep, err = verifyPackage(canon, opt); err != nil {
+			return nil, err
+		}
+	} else {
+		rec, err := readSheet(canon, "")
+		if err != nil {
+			return nil, err
+		}
+		res := rec.check(canon, 1, opt, func(doc *calcdoc.Document, o render.Options) ([]byte, error) {
+			return render.Sheet(doc, o)
+		})
+		rep = &Report{Sheets: []*SheetResult{res}}
 	}
-	rec, err := readSheet(page, "")
-	if err != nil {
-		return nil, err
-	}
-	res := rec.check(page, 1, version, render.Sheet)
-	return &Report{Sheets: []*SheetResult{res}}, nil
+	rep.PackageDifferences = append(rep.PackageDifferences, sigDiffs...)
+	rep.Signatures = checkSignatures(canon, sigs, opt)
+	return rep, nil
 }
 
 // sheetRecord is what a sheet says about itself.
@@ -198,10 +246,11 @@ func readSheet(page []byte, prefix string) (*sheetRecord, error) {
 }
 
 // check verifies the record against unit, the bytes of the sheet as the
-// file holds them, rendering the source again with render. lineBase is the
-// line of the file on which unit starts.
-func (rec *sheetRecord) check(unit []byte, lineBase int, version string, rerender func(*calcdoc.Document, render.Options) ([]byte, error)) *SheetResult {
-	res := &SheetResult{Path: rec.path, SheetVersion: rec.opt.Version, Version: version}
+// file holds them (a whole page, or one section of a package), rendering
+// the source again with rerender. lineBase is the line of the file on
+// which unit starts.
+func (rec *sheetRecord) check(unit []byte, lineBase int, opt Options, rerender func(*calcdoc.Document, render.Options) ([]byte, error)) *SheetResult {
+	res := &SheetResult{Path: rec.path, SheetVersion: rec.opt.Version, Version: opt.Version}
 	if rec.opt.Stamp != nil {
 		res.StatedSHA256 = rec.opt.Stamp.SHA256
 	}
@@ -211,6 +260,10 @@ func (rec *sheetRecord) check(unit []byte, lineBase int, version string, rerende
 		return res
 	}
 	res.SHA256 = stamp.Hash(rec.source)
+	if !rec.hasStamp {
+		res.Differences = append(res.Differences, Difference{Kind: "stamp",
+			Message: "stamp: the sheet has no stamp section (section class=\"stamp\"), which every sheet that build writes carries: it was removed, or the page was not written by build"})
+	}
 	hashDiff := false
 	switch {
 	case rec.sourceSHA != res.SHA256 && rec.hasStamp && res.StatedSHA256 == rec.sourceSHA:
@@ -227,8 +280,22 @@ func (rec *sheetRecord) check(unit []byte, lineBase int, version string, rerende
 		res.Differences = append(res.Differences, Difference{Kind: "hash", Sheet: res.StatedSHA256, Source: res.SHA256,
 			Message: fmt.Sprintf("hash: the embedded source's SHA-256 is %s, but the sheet's stamp states %s: the sheet is not the one built from this source", res.SHA256, orDash(res.StatedSHA256))})
 	}
+	if rec.opt.Version != opt.Version {
+		res.Differences = append(res.Differences, Difference{Kind: "version", Sheet: rec.opt.Version, Source: opt.Version,
+			Message: fmt.Sprintf("version: the sheet was built by calcdoc %s; this is calcdoc %s, which vouches only for the sheets it writes itself: verify it with calcdoc %s", orDash(rec.opt.Version), orDash(opt.Version), orDash(rec.opt.Version))})
+		return res
+	}
+	if opt.Git && rec.opt.Stamp != nil {
+		res.Git = rec.gitCheck(opt)
+		for _, p := range res.Git.Problems {
+			res.Differences = append(res.Differences, Difference{Kind: "git", Message: "git: " + p})
+		}
+	}
 	doc := calcdoc.Parse(rec.path, rec.source)
-	fresh, err := rerender(doc, rec.opt)
+	res.doc = doc
+	ropt := rec.opt
+	ropt.Version = opt.Version
+	fresh, err := rerender(doc, ropt)
 	if err != nil {
 		res.Differences = append(res.Differences, Difference{Kind: "record", Message: "the source cannot be rendered again: " + err.Error()})
 		return res
@@ -237,12 +304,19 @@ func (rec *sheetRecord) check(unit []byte, lineBase int, version string, rerende
 		res.Match = len(res.Differences) == 0
 		return res
 	}
-	diffs := compareItems(unit, fresh)
-	if len(diffs) == 0 && !hashDiff {
-		diffs = []Difference{firstLineDiff(unit, fresh, lineBase)}
-	}
-	res.Differences = append(res.Differences, diffs...)
+	res.Differences = append(res.Differences, comparePages(unit, fresh, lineBase, hashDiff)...)
 	return res
+}
+
+// gitCheck holds the recorded stamp against git, looking for the source
+// at its recorded path from the current folder and from the sheet's.
+func (rec *sheetRecord) gitCheck(opt Options) *stamp.GitCheck {
+	cands := []string{rec.path}
+	if opt.SheetPath != "" && !filepath.IsAbs(rec.path) {
+		cands = append(cands, filepath.Join(filepath.Dir(opt.SheetPath), rec.path), filepath.Join(filepath.Dir(opt.SheetPath), filepath.Base(rec.path)))
+	}
+	c := stamp.Check(*rec.opt.Stamp, rec.source, cands...)
+	return &c
 }
 
 // item is one result or check row of a page.
@@ -339,39 +413,6 @@ func quoteText(s string) string {
 		return "nothing"
 	}
 	return s
-}
-
-// firstLineDiff reports the first line where the pages differ; lineBase is
-// the file line on which the compared bytes start.
-func firstLineDiff(sheet, fresh []byte, lineBase int) Difference {
-	sl := strings.Split(string(sheet), "\n")
-	fl := strings.Split(string(fresh), "\n")
-	i := 0
-	for i < len(sl) && i < len(fl) && sl[i] == fl[i] {
-		i++
-	}
-	get := func(lines []string) string {
-		if i < len(lines) {
-			return lines[i]
-		}
-		return ""
-	}
-	s, f := get(sl), get(fl)
-	col := 0
-	for col < len(s) && col < len(f) && s[col] == f[col] {
-		col++
-	}
-	line := lineBase + i
-	d := Difference{Kind: "text", Line: line, Sheet: excerpt(s, col), Source: excerpt(f, col)}
-	switch {
-	case i >= len(sl):
-		d.Message = fmt.Sprintf("text: the sheet ends at line %d, where the source gives more: «%s»", line-1, d.Source)
-	case i >= len(fl):
-		d.Message = fmt.Sprintf("text: the sheet goes on at line %d, where the source gives no more: «%s»", line, d.Sheet)
-	default:
-		d.Message = fmt.Sprintf("text: first difference at line %d of the file: sheet has «%s», source gives «%s»", line, d.Sheet, d.Source)
-	}
-	return d
 }
 
 // excerpt returns at most about 120 bytes of s around byte col, cut on

@@ -80,13 +80,14 @@ func TestVerifySheet(t *testing.T) {
 			func(t *testing.T, p string) string {
 				return replaceAfter(t, p, `<section class="stamp" data-sha256="`, `data-sha256="`, `data-sha256="0`)
 			},
-			false, []string{"hash"}, []string{"but the sheet's stamp states 0"}},
+			// the page foot, in the head's style, shows the stamped hash
+			false, []string{"hash", "text"}, []string{"but the sheet's stamp states 0", "in <head> > <style>"}},
 		{"the stamp's hash cut short",
 			func(t *testing.T, p string) string {
 				i := strings.Index(p, `<section class="stamp" data-sha256="`) + len(`<section class="stamp" data-sha256="`)
 				return p[:i] + "abc" + p[i+64:]
 			},
-			false, []string{"hash"}, []string{"but the sheet's stamp states abc"}},
+			false, []string{"hash", "text"}, []string{"but the sheet's stamp states abc", "in <head> > <style>"}},
 		{"the stamp's commit edited",
 			func(t *testing.T, p string) string {
 				return replaceAfter(t, p, `<section class="stamp"`, `data-commit="89ab`, `data-commit="99ab`)
@@ -205,24 +206,23 @@ func TestVerifyBase64Source(t *testing.T) {
 	}
 }
 
-// A sheet built by another version says so when it does not match.
-func TestVerifyVersionNote(t *testing.T) {
+// A sheet built by another version fails, naming that version, even when
+// this version would write the same bytes.
+func TestVerifyOtherVersion(t *testing.T) {
 	page := verifySheet(t, "heater.md", sheettest.HeaterDoc, "0.0.9")
 	rep, err := Verify(page, "0.1.0")
 	if err != nil {
 		t.Fatal(err)
 	}
 	s := rep.Sheets[0]
-	if !s.Match {
-		t.Fatalf("the same renderer does not reproduce the sheet: %v", s.Differences)
-	}
-	if n := s.VersionNote(); !strings.Contains(n, "built by calcdoc 0.0.9 and is verified by calcdoc 0.1.0") {
-		t.Errorf("version note %q", n)
+	if rep.OK() || s.Match || len(s.Differences) != 1 || s.Differences[0].Kind != "version" ||
+		!strings.Contains(s.Differences[0].Message, "built by calcdoc 0.0.9; this is calcdoc 0.1.0") ||
+		!strings.Contains(s.Differences[0].Message, "verify it with calcdoc 0.0.9") {
+		t.Fatalf("another version: OK %v, %v", rep.OK(), s.Differences)
 	}
 	same := verifySheet(t, "heater.md", sheettest.HeaterDoc, "0.1.0")
-	rep, _ = Verify(same, "0.1.0")
-	if n := rep.Sheets[0].VersionNote(); n != "" {
-		t.Errorf("same version gives a note %q", n)
+	if rep, _ = Verify(same, "0.1.0"); !rep.OK() {
+		t.Errorf("same version: %v", rep.Sheets[0].Differences)
 	}
 }
 
