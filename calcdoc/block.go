@@ -1,9 +1,6 @@
 package calcdoc
 
 import (
-	"fmt"
-	"sort"
-
 	"calcdoc/expr"
 
 	"github.com/yuin/goldmark/ast"
@@ -26,10 +23,14 @@ type Block struct {
 	Result any
 	Errors []*expr.Error
 	// DrawErrors are the errors of Errors that a picture of the block
-	// cannot be drawn (see RegisterDrawCheck).
+	// cannot be drawn (see DrawChecker).
 	DrawErrors []*expr.Error
 	doc        *Document
+	kind       Kind
 }
+
+// KindOf returns the kind that evaluated the block.
+func (b *Block) KindOf() Kind { return b.kind }
 
 // Doc returns the document the block belongs to.
 func (b *Block) Doc() *Document { return b.doc }
@@ -47,40 +48,3 @@ func (b *Block) AddValue(v *NamedValue) { b.doc.Values = append(b.doc.Values, v)
 
 // AddCheck lists a check among the document's checks.
 func (b *Block) AddCheck(c *CheckRecord) { b.doc.Checks = append(b.doc.Checks, c) }
-
-// Kind evaluates one kind of fenced block. A kind is registered by the
-// word its info string starts with; the renderer registers how each kind
-// is drawn in the same way.
-type Kind interface {
-	Eval(b *Block)
-}
-
-// KindFunc adapts a function to Kind.
-type KindFunc func(b *Block)
-
-// Eval calls f(b).
-func (f KindFunc) Eval(b *Block) { f(b) }
-
-var kinds = map[string]Kind{}
-
-// RegisterKind makes blocks whose info string starts with word evaluate
-// with k. It panics if word is taken: registration happens in init.
-func RegisterKind(word string, k Kind) {
-	if _, dup := kinds[word]; dup {
-		panic(fmt.Sprintf("calcdoc: block kind %q registered twice", word))
-	}
-	kinds[word] = k
-}
-
-// LookupKind returns the kind registered for word, or nil.
-func LookupKind(word string) Kind { return kinds[word] }
-
-// Kinds lists the registered block words, sorted.
-func Kinds() []string {
-	var out []string
-	for k := range kinds {
-		out = append(out, k)
-	}
-	sort.Strings(out)
-	return out
-}

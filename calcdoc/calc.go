@@ -31,9 +31,8 @@ func (s *Stmt) Display() *expr.Display {
 	return nil
 }
 
-func init() {
-	RegisterKind("calc", KindFunc(evalCalc))
-}
+// CalcKind evaluates calc blocks.
+var CalcKind Kind = wordKind{"calc", evalCalc}
 
 // Text returns the source between two positions of the block.
 func (b *Block) Text(from, to expr.Pos) string {

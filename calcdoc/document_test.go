@@ -11,7 +11,7 @@ import (
 
 func parse(t *testing.T, src string) *Document {
 	t.Helper()
-	return Parse("test.md", []byte(src))
+	return Parse("test.md", []byte(src), testKinds)
 }
 
 func value(t *testing.T, d *Document, name string) *expr.Scalar {
@@ -157,7 +157,7 @@ func TestErrorsSortedAndEvaluationGoesOn(t *testing.T) {
 }
 
 func TestInvalidUTF8(t *testing.T) {
-	d := Parse("bad.md", []byte("# Title \xff\n\n```calc\nx = 1\n```\n"))
+	d := Parse("bad.md", []byte("# Title \xff\n\n```calc\nx = 1\n```\n"), testKinds)
 	if len(d.Errors) != 1 || !strings.Contains(d.Errors[0].Msg, "UTF-8") || d.Errors[0].Pos != (expr.Pos{Line: 1, Col: 9}) {
 		t.Fatalf("got %v", d.Errors)
 	}
@@ -229,19 +229,5 @@ func TestRawHTMLNotExecuted(t *testing.T) {
 	d := parse(t, "<script>alert(1)</script>\n\n```calc\nx = 1\n```\n")
 	if len(d.Errors) > 0 {
 		t.Fatal(d.Errors)
-	}
-}
-
-func TestHasCalc(t *testing.T) {
-	for src, want := range map[string]bool{
-		"```calc\nx=1\n```":       true,
-		"~~~solve x\n~~~":         true,
-		"```calculator\n```":      false,
-		"```python\ncalc\n```":    false,
-		"text\n   ```calc\n```\n": true,
-	} {
-		if HasCalc([]byte(src)) != want {
-			t.Errorf("HasCalc(%q) != %v", src, want)
-		}
 	}
 }

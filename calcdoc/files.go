@@ -6,15 +6,8 @@ import (
 	"io/fs"
 	"os"
 	"path/filepath"
-	"regexp"
 	"sort"
 )
-
-// evaluatedFence matches the opening fence of a calc or solve block.
-var evaluatedFence = regexp.MustCompile("(?m)^[ ]{0,3}(```+|~~~+)[ \t]*(calc|solve)([ \t]|$)")
-
-// HasCalc reports whether a document holds a calc or solve block.
-func HasCalc(src []byte) bool { return evaluatedFence.Match(src) }
 
 // Input is one document to process and the path of the output relative to
 // the PATH it was found under.
@@ -25,9 +18,10 @@ type Input struct {
 
 // Collect expands the PATHs of the command line: a file is taken as it is
 // (it must end in .md), a folder means every .md file below it that holds
-// a calc or solve block, in lexical order. A missing path, a file that is
-// not .md, or a folder without documents is an error.
-func Collect(paths []string) ([]Input, error) {
+// a block of one of reg's kinds (Registry.HasBlock), in lexical order. A
+// missing path, a file that is not .md, or a folder without documents is
+// an error.
+func Collect(paths []string, reg *Registry) ([]Input, error) {
 	var out []Input
 	for _, p := range paths {
 		info, err := os.Stat(p)
@@ -56,7 +50,7 @@ func Collect(paths []string) ([]Input, error) {
 				return nil
 			}
 			src, rerr := os.ReadFile(path)
-			if rerr != nil || !HasCalc(src) {
+			if rerr != nil || !reg.HasBlock(src) {
 				return nil
 			}
 			rel, _ := filepath.Rel(p, path)

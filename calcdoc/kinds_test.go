@@ -9,7 +9,7 @@ import (
 )
 
 func docOf(lines ...string) *calcdoc.Document {
-	return calcdoc.Parse("kinds_test.md", []byte(strings.Join(lines, "\n")+"\n"))
+	return calcdoc.Parse("kinds_test.md", []byte(strings.Join(lines, "\n")+"\n"), kinds)
 }
 
 func valueShown(d *calcdoc.Document, name string) (calcdoc.ValueJSON, bool) {

@@ -64,9 +64,8 @@ type PhasorItem struct {
 // OK reports whether the entry has a value to draw.
 func (it *PhasorItem) OK() bool { return it.Value != nil && it.Err == nil && it.Unavailable == nil }
 
-func init() {
-	RegisterKind("phasors", KindFunc(evalPhasors))
-}
+// PhasorsKind evaluates phasors blocks.
+var PhasorsKind Kind = wordKind{"phasors", evalPhasors}
 
 // splitTopLevel splits s at the commas outside parentheses and brackets,
 // returning each part with its byte offset in s.

@@ -12,7 +12,7 @@ import (
 
 // phDoc parses a document made of the given lines.
 func phDoc(lines ...string) *calcdoc.Document {
-	return calcdoc.Parse("phasors_test.md", []byte(strings.Join(lines, "\n")+"\n"))
+	return calcdoc.Parse("phasors_test.md", []byte(strings.Join(lines, "\n")+"\n"), kinds)
 }
 
 // phBlock returns the first block of a kind.

@@ -36,7 +36,7 @@ func TestFrontMatterLineBreaks(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			d := Parse("fm.md", []byte(c.src))
+			d := Parse("fm.md", []byte(c.src), testKinds)
 			if len(d.Errors) != 1 {
 				t.Fatalf("errors %v, want one", d.Errors)
 			}
@@ -70,7 +70,7 @@ func TestInlineOverLines(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			d := Parse("inline.md", []byte(c.src))
+			d := Parse("inline.md", []byte(c.src), testKinds)
 			if len(d.Inline) != 1 {
 				t.Fatalf("%d inline values, want 1", len(d.Inline))
 			}
@@ -123,7 +123,7 @@ func TestManyErrors(t *testing.T) {
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
 			var d *Document
-			finishes(t, 2*time.Minute, func() { d = Parse("errors.md", []byte(c.src)) })
+			finishes(t, 2*time.Minute, func() { d = Parse("errors.md", []byte(c.src), testKinds) })
 			if len(d.Errors) != c.count {
 				t.Fatalf("%d errors, want %d", len(d.Errors), c.count)
 			}

@@ -320,7 +320,7 @@ func TestSolveExamplesStillSolve(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		d := Parse(f, src)
+		d := Parse(f, src, testKinds)
 		for _, s := range solveSets(d) {
 			sets++
 			if !s.Solved || s.Backward > SolveAcceptTol {

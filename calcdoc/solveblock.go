@@ -41,9 +41,8 @@ import (
 //  6. The unknowns are defined with their solved values (or defined as
 //     unavailable when the set cannot be solved) and listed as values.
 
-func init() {
-	RegisterKind("solve", KindFunc(evalSolve))
-}
+// SolveKind evaluates solve blocks.
+var SolveKind Kind = wordKind{"solve", evalSolve}
 
 // Limits and tolerances of the document layer of solve blocks; the solver
 // core's own are in package calcdoc/solve.

@@ -12,7 +12,7 @@ import (
 // solving it, for timing the solver's phases on their own.
 func preparedLadder(b *testing.B, n int) *solveRun {
 	b.Helper()
-	d := Parse("ladder.md", []byte(ladderDoc(n)))
+	d := Parse("ladder.md", []byte(ladderDoc(n)), testKinds)
 	var blk *Block
 	for _, x := range d.Blocks {
 		if x.Kind == "solve" {
@@ -24,7 +24,7 @@ func preparedLadder(b *testing.B, n int) *solveRun {
 	}
 	// a fresh document in which the parameters are defined but not the
 	// unknowns: evaluate only the calc block
-	d2 := Parse("params.md", []byte(ladderParams()))
+	d2 := Parse("params.md", []byte(ladderParams()), testKinds)
 	copyBlk := &Block{Kind: "solve", Arg: blk.Arg, ArgPos: blk.ArgPos, InfoPos: blk.InfoPos, Pos: blk.Pos,
 		Lines: blk.Lines, LinePos: blk.LinePos, doc: d2}
 	r := &solveRun{b: copyBlk, set: &SolveSet{}, env: d2.Env}
@@ -52,7 +52,7 @@ func BenchmarkSolveLadder(b *testing.B) {
 		src := []byte(ladderDoc(n))
 		b.Run(fmt.Sprintf("nodes=%d/document", n), func(b *testing.B) {
 			for b.Loop() {
-				d := Parse("ladder.md", src)
+				d := Parse("ladder.md", src, testKinds)
 				if len(d.Errors) > 0 {
 					b.Fatal(d.Errors)
 				}

@@ -131,7 +131,7 @@ func TestSolveSizeLimit(t *testing.T) {
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
 			var d *Document
-			finishes(t, 2*time.Minute, func() { d = Parse("size.md", []byte(c.src)) })
+			finishes(t, 2*time.Minute, func() { d = Parse("size.md", []byte(c.src), testKinds) })
 			if c.check != nil {
 				noErrors(t, d)
 				c.check(t, d)

@@ -17,7 +17,7 @@ import (
 // solveDoc evaluates a document and returns it.
 func solveDoc(t testing.TB, src string) *Document {
 	t.Helper()
-	return Parse("test.md", []byte(src))
+	return Parse("test.md", []byte(src), testKinds)
 }
 
 // noErrors fails the test when the document has errors.

@@ -188,9 +188,8 @@ func (s *Sweep) TableRows() []int {
 	return out
 }
 
-func init() {
-	RegisterKind("sweep", KindFunc(evalSweep))
-}
+// SweepKind evaluates sweep blocks.
+var SweepKind Kind = wordKind{"sweep", evalSweep}
 
 // isName reports whether s is a name: a letter, then letters, digits and _.
 func isName(s string) bool {

@@ -42,7 +42,7 @@ var swF0 = 1 / (2 * math.Pi * math.Sqrt(swL*swC))
 func swDoc(block ...string) *calcdoc.Document {
 	lines := append(append([]string{}, swRLC...), "")
 	lines = append(lines, block...)
-	return calcdoc.Parse("sweep_test.md", []byte(strings.Join(lines, "\n")+"\n"))
+	return calcdoc.Parse("sweep_test.md", []byte(strings.Join(lines, "\n")+"\n"), kinds)
 }
 
 func swSweep(t *testing.T, d *calcdoc.Document) *calcdoc.Sweep {
@@ -260,7 +260,7 @@ func TestSweepRangeUnavailable(t *testing.T) {
 	// range uses it is not evaluated, and that is not a second error.
 	d := calcdoc.Parse("sweep_test.md", []byte(strings.Join([]string{
 		"```calc", "f_bad = 1 Hz + 1 V", "```", "",
-		"```sweep f = 1 Hz .. f_bad", "y = f", "```"}, "\n")))
+		"```sweep f = 1 Hz .. f_bad", "y = f", "```"}, "\n")), kinds)
 	if len(d.Errors) != 1 || d.Errors[0].Pos.Line != 2 {
 		t.Fatalf("want only the error of line 2, got %v", d.Errors)
 	}
@@ -453,7 +453,7 @@ func BenchmarkSweepEval10k(b *testing.B) {
 		"```"), "\n"))
 	b.ReportAllocs()
 	for b.Loop() {
-		d := calcdoc.Parse("bench.md", src)
+		d := calcdoc.Parse("bench.md", src, kinds)
 		if len(d.Errors) != 0 {
 			b.Fatal(d.Errors)
 		}

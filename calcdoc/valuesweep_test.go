@@ -22,7 +22,7 @@ func TestValuesJSONSense(t *testing.T) {
 		"pf_r = powerfactor(-re(S_b))\n" +
 		"pf_v = [pf_b; powerfactor(conj(S_b))]\n" +
 		"```\n"
-	d := calcdoc.Parse("pf.md", []byte(src))
+	d := calcdoc.Parse("pf.md", []byte(src), kinds)
 	if len(d.Errors) > 0 {
 		t.Fatal(d.Errors)
 	}

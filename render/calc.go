@@ -8,10 +8,6 @@ import (
 	"calcdoc/expr"
 )
 
-func init() {
-	RegisterBlock("calc", renderCalc)
-}
-
 // exprML returns a typesetter for a formula (subst false) or its
 // substitution (subst true) in the document's names.
 func (w *Writer) exprML(subst bool, trace *expr.Trace) *ExprML {

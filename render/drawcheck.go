@@ -12,11 +12,6 @@ import (
 // error of the document: the summary counts it, the exit status is 3 and
 // the values JSON lists it. The sheet shows each such error once, where
 // its picture would be.
-func init() {
-	calcdoc.RegisterDrawCheck("phasors", checkPhasorsDrawing)
-	calcdoc.RegisterDrawCheck("sweep", checkSweepDrawing)
-}
-
 // checkPhasorsDrawing reports a phasor diagram that cannot be drawn.
 func checkPhasorsDrawing(b *calcdoc.Block) []*expr.Error {
 	res, _ := b.Result.(*calcdoc.Phasors)

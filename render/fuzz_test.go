@@ -38,7 +38,7 @@ func FuzzDocument(f *testing.F) {
 		if len(src) > 1<<16 {
 			return
 		}
-		doc := calcdoc.Parse("fuzz.md", src)
+		doc := calcdoc.Parse("fuzz.md", src, Standard())
 		lines := strings.Split(string(doc.Text), "\n")
 		for _, e := range append(append(expr.ErrorList{}, doc.Errors...), doc.Warnings...) {
 			l, c := e.Pos.Line, e.Pos.Col

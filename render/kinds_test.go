@@ -29,7 +29,7 @@ func TestExamplesShowPowersByKind(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		doc := calcdoc.Parse(f, src)
+		doc := calcdoc.Parse(f, src, Standard())
 		html, err := Sheet(doc, fixedOptions(src))
 		if err != nil {
 			t.Fatal(err)
@@ -100,7 +100,7 @@ func TestKindNotStatedRow(t *testing.T) {
 		"Q_1 = 3 * 50 kvar",
 		"sqrt(3) * V * 20 A",
 		"```", ""}, "\n"))
-	doc := calcdoc.Parse("kinds.md", src)
+	doc := calcdoc.Parse("kinds.md", src, Standard())
 	html, err := Sheet(doc, fixedOptions(src))
 	if err != nil {
 		t.Fatal(err)
@@ -131,7 +131,7 @@ func TestKindNotStatedSolve(t *testing.T) {
 		want bool
 	}{{"```solve P near 1 kW", true}, {"```solve P[kW] near 1 kW", false}} {
 		src := []byte(tc.head + "\nP / (400 V) = 10 A\n```\n")
-		doc := calcdoc.Parse("kinds.md", src)
+		doc := calcdoc.Parse("kinds.md", src, Standard())
 		if len(doc.Errors) > 0 {
 			t.Fatal(doc.Errors)
 		}

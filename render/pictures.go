@@ -12,11 +12,6 @@ import (
 	"calcdoc/render/svg"
 )
 
-func init() {
-	RegisterBlock("phasors", renderPhasors)
-	RegisterBlock("sweep", renderSweep)
-}
-
 // logDecades is the ratio of the largest to the smallest plotted value
 // from which a sweep plot's y axis is logarithmic (two decades).
 const logDecades = 100

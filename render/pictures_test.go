@@ -17,7 +17,7 @@ import (
 // picSheet evaluates a document made of lines and writes its sheet.
 func picSheet(t testing.TB, lines ...string) (string, *calcdoc.Document) {
 	t.Helper()
-	d := calcdoc.Parse("pictures_test.md", []byte(strings.Join(lines, "\n")+"\n"))
+	d := calcdoc.Parse("pictures_test.md", []byte(strings.Join(lines, "\n")+"\n"), Standard())
 	out, err := Sheet(d, Options{Version: "test"})
 	if err != nil {
 		t.Fatalf("Sheet: %v", err)
@@ -583,7 +583,7 @@ func BenchmarkSweepBuild10k(b *testing.B) {
 	b.ReportAllocs()
 	var size int
 	for b.Loop() {
-		d := calcdoc.Parse("bench.md", src)
+		d := calcdoc.Parse("bench.md", src, Standard())
 		if len(d.Errors) != 0 {
 			b.Fatal(d.Errors)
 		}

@@ -1,8 +1,7 @@
 // Package render writes a calculation sheet: one self-contained HTML file
 // per document, with inline CSS, no outside resource and no script. Prose
 // is rendered by goldmark; evaluated blocks are drawn by the renderer
-// registered for their kind (RegisterBlock), as goldmark renders by node
-// kind.
+// of their kind (Drawer), as goldmark renders by node kind.
 package render
 
 import (
@@ -40,17 +39,10 @@ type Options struct {
 	HeadExtra string
 }
 
-// BlockRenderer draws one evaluated block into w.
-type BlockRenderer func(w *Writer, b *calcdoc.Block)
-
-var blockRenderers = map[string]BlockRenderer{}
-
-// RegisterBlock makes blocks of a kind draw with fn.
-func RegisterBlock(kind string, fn BlockRenderer) {
-	if _, dup := blockRenderers[kind]; dup {
-		panic("render: block kind " + kind + " registered twice")
-	}
-	blockRenderers[kind] = fn
+// Drawer is a block kind's drawing: a kind of the document's registry
+// that implements it draws its blocks into the sheet.
+type Drawer interface {
+	Draw(w *Writer, b *calcdoc.Block)
 }
 
 // Writer is what block renderers write into: the page buffer and the
@@ -303,8 +295,8 @@ func (n *nodes) fenced(out util.BufWriter, src []byte, node ast.Node, entering b
 	}
 	w := n.w
 	if b := w.Doc.BlockFor(node); b != nil {
-		if fn := blockRenderers[b.Kind]; fn != nil {
-			fn(w, b)
+		if d, ok := b.KindOf().(Drawer); ok {
+			d.Draw(w, b)
 			return ast.WalkSkipChildren, nil
 		}
 	}

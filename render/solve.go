@@ -10,10 +10,6 @@ import (
 	"calcdoc/expr"
 )
 
-func init() {
-	RegisterBlock("solve", renderSolve)
-}
-
 // InlineSystemLimit is the largest number of rows or columns of a linear
 // set's matrix drawn in place; a larger matrix, and a longer Newton
 // history, go to the appendix at the end of the sheet.

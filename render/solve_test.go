@@ -16,7 +16,7 @@ import (
 
 func solveSheet(t *testing.T, src string) (*calcdoc.Document, string) {
 	t.Helper()
-	doc := calcdoc.Parse("solve.md", []byte(src))
+	doc := calcdoc.Parse("solve.md", []byte(src), Standard())
 	html, err := Sheet(doc, Options{Version: "test"})
 	if err != nil {
 		t.Fatal(err)

@@ -72,7 +72,7 @@ func builtSheet(t *testing.T, path string) string {
 	if err != nil {
 		t.Fatal(err)
 	}
-	doc := calcdoc.Parse(path, src)
+	doc := calcdoc.Parse(path, src, Standard())
 	st := stamp.Of(path, src)
 	page, err := Sheet(doc, Options{Version: "test", Stamp: &st, EmbedSource: true})
 	if err != nil {

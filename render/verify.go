@@ -264,7 +264,7 @@ func (rec *sheetRecord) check(unit []byte, lineBase int, version string, render 
 		res.Differences = append(res.Differences, Difference{Kind: "hash", Sheet: res.StatedSHA256, Source: res.SHA256,
 			Message: fmt.Sprintf("hash: the embedded source's SHA-256 is %s, but the sheet's stamp states %s: the sheet is not the one built from this source", res.SHA256, orDash(res.StatedSHA256))})
 	}
-	doc := calcdoc.Parse(rec.path, rec.source)
+	doc := calcdoc.Parse(rec.path, rec.source, Standard())
 	fresh, err := render(doc, rec.opt)
 	if err != nil {
 		res.Differences = append(res.Differences, Difference{Kind: "record", Message: "the source cannot be rendered again: " + err.Error()})

@@ -20,7 +20,7 @@ func verifyStamp(src []byte) *StampInfo {
 
 func verifySheet(t *testing.T, path, src, version string) []byte {
 	t.Helper()
-	doc := calcdoc.Parse(path, []byte(src))
+	doc := calcdoc.Parse(path, []byte(src), Standard())
 	page, err := Sheet(doc, Options{Version: version, Stamp: verifyStamp([]byte(src)), EmbedSource: true})
 	if err != nil {
 		t.Fatal(err)
@@ -235,7 +235,7 @@ func TestVerifyNotASheet(t *testing.T) {
 		{"plain html", "<!DOCTYPE html><html><body><p>hello</p></body></html>"},
 		{"markdown source", string(src)},
 		{"sheet without embedded source", func() string {
-			doc := calcdoc.Parse("a.md", []byte(stampDoc))
+			doc := calcdoc.Parse("a.md", []byte(stampDoc), Standard())
 			p, _ := Sheet(doc, Options{Version: "t", Stamp: verifyStamp([]byte(stampDoc))})
 			return string(p)
 		}()},
@@ -272,7 +272,7 @@ func FuzzVerify(f *testing.F) {
 	f.Add(verifySheetBytes(strings.Replace(stampDoc, "heater", "h\xffeater", 1)))
 	var sheets []PackageSheet
 	for _, src := range []string{stampDoc, pkgDropDoc} {
-		sheets = append(sheets, PackageSheet{Doc: calcdoc.Parse("p.md", []byte(src)), Options: Options{Version: "f", Stamp: verifyStamp([]byte(src)), EmbedSource: true}})
+		sheets = append(sheets, PackageSheet{Doc: calcdoc.Parse("p.md", []byte(src), Standard()), Options: Options{Version: "f", Stamp: verifyStamp([]byte(src)), EmbedSource: true}})
 	}
 	if page, err := Package(pkgInfo, sheets, "f"); err == nil {
 		f.Add(page)
@@ -296,7 +296,7 @@ func FuzzVerify(f *testing.F) {
 }
 
 func verifySheetBytes(src string) []byte {
-	doc := calcdoc.Parse("f.md", []byte(src))
+	doc := calcdoc.Parse("f.md", []byte(src), Standard())
 	page, _ := Sheet(doc, Options{Version: "f", Stamp: verifyStamp([]byte(src)), EmbedSource: true})
 	return page
 }

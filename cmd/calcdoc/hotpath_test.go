@@ -13,14 +13,14 @@ func BenchmarkParse2000(b *testing.B) {
 	src := []byte(GenerateDoc(2000))
 	b.ReportAllocs()
 	for i := 0; i < b.N; i++ {
-		calcdoc.Parse("big.md", src)
+		calcdoc.Parse("big.md", src, render.Standard())
 	}
 }
 
 // BenchmarkRender2000 writes the sheet of the evaluated document.
 func BenchmarkRender2000(b *testing.B) {
 	src := []byte(GenerateDoc(2000))
-	doc := calcdoc.Parse("big.md", src)
+	doc := calcdoc.Parse("big.md", src, render.Standard())
 	b.ReportAllocs()
 	b.ResetTimer()
 	for i := 0; i < b.N; i++ {

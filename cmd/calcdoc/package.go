@@ -147,7 +147,7 @@ func (c *cli) pack(args []string) int {
 	default:
 		sheetPaths = paths
 	}
-	inputs, err := calcdoc.Collect(sheetPaths)
+	inputs, err := calcdoc.Collect(sheetPaths, render.Standard())
 	if err != nil {
 		return c.usageErr("%v", err)
 	}
@@ -175,7 +175,7 @@ func (c *cli) pack(args []string) int {
 
 	var docs []*calcdoc.Document
 	for _, in := range inputs {
-		doc, err := calcdoc.Load(in.Path)
+		doc, err := calcdoc.Load(in.Path, render.Standard())
 		if err != nil {
 			fmt.Fprintf(c.stderr, "calcdoc: %v\n", err)
 			return exitUsage
