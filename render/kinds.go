@@ -3,17 +3,18 @@ package render
 import (
 	"calcdoc/calcdoc"
 	"calcdoc/expr"
+	"calcdoc/render/markup"
 )
 
 // unit joins a kind's evaluation, its drawing and its draw check.
 type unit struct {
 	calcdoc.Kind
-	draw  func(w *Writer, b *calcdoc.Block)
+	draw  func(w *markup.Writer, b *calcdoc.Block)
 	check func(b *calcdoc.Block) []*expr.Error
 }
 
 // Draw draws the block.
-func (u unit) Draw(w *Writer, b *calcdoc.Block) { u.draw(w, b) }
+func (u unit) Draw(w *markup.Writer, b *calcdoc.Block) { u.draw(w, b) }
 
 // DrawCheck reports the block's pictures that cannot be drawn.
 func (u unit) DrawCheck(b *calcdoc.Block) []*expr.Error {

@@ -7,6 +7,7 @@ import (
 
 	"calcdoc/calcdoc"
 	"calcdoc/expr"
+	"calcdoc/render/markup"
 	"calcdoc/render/svg"
 )
 
@@ -41,7 +42,7 @@ func TestLabelRuns(t *testing.T) {
 			if len(errs) > 0 {
 				t.Fatalf("parse: %v", errs)
 			}
-			got := LabelRuns(n)
+			got := markup.LabelRuns(n)
 			if len(got) != len(c.want) {
 				t.Fatalf("runs %v, want %v", got, c.want)
 			}

@@ -10,6 +10,7 @@ import (
 
 	"calcdoc/calcdoc"
 	"calcdoc/calcdoc/stamp"
+	"calcdoc/render/markup"
 
 	"github.com/yuin/goldmark/ast"
 )
@@ -256,7 +257,7 @@ func sheetPrefix(k int) string { return fmt.Sprintf("s%d-", k) }
 
 func cover(w *bytes.Buffer, info PackageInfo, title string, sheets []PackageSheet, hashes []string, pkgHash string, marked []string, version string) {
 	fmt.Fprintf(w, "<section class=\"cover\" data-package-sha256=\"%s\" data-sheets=\"%d\" data-version=\"%s\">\n", pkgHash, len(sheets), esc(version))
-	tw := &Writer{}
+	tw := &markup.Writer{}
 	tw.WriteString("<header class=\"tb\">\n<table class=\"tb\">\n<tr>")
 	field(tw, "Project", info.Project)
 	field(tw, "Client", info.Client)

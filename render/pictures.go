@@ -9,6 +9,7 @@ import (
 
 	"calcdoc/calcdoc"
 	"calcdoc/expr"
+	"calcdoc/render/markup"
 	"calcdoc/render/svg"
 )
 
@@ -19,7 +20,7 @@ const logDecades = 100
 // renderPhasors draws a phasors block: a figure with the inline SVG
 // diagram and a caption that holds the block's caption line and the value
 // of every arrow, then the block's errors.
-func renderPhasors(w *Writer, b *calcdoc.Block) {
+func renderPhasors(w *markup.Writer, b *calcdoc.Block) {
 	res, _ := b.Result.(*calcdoc.Phasors)
 	w.Printf("<div class=\"block phasors\" id=\"B%d\">\n", b.Pos.Line)
 	w.Printf("<figure class=\"phasors\" id=\"L%d\">\n", b.InfoPos.Line)
@@ -27,18 +28,18 @@ func renderPhasors(w *Writer, b *calcdoc.Block) {
 	var vals []string
 	if res != nil {
 		arrows = phasorArrows(res)
-		f := w.exprML(false, nil)
+		f := w.ExprMLFor(false, nil)
 		for _, it := range res.Items {
 			if !it.OK() {
 				continue
 			}
 			var lhs string
 			if id, ok := it.Node.(*expr.Ident); ok {
-				lhs = NameML(id.Name)
+				lhs = markup.NameML(id.Name)
 			} else {
 				lhs = f.Node(it.Node, false)
 			}
-			vals = append(vals, Math(lhs+"<mo>=</mo>"+ValueML(it.Value, it.Display, w.Digits(), false)))
+			vals = append(vals, markup.Math(lhs+"<mo>=</mo>"+markup.ValueML(it.Value, it.Display, w.Digits(), false)))
 		}
 	}
 	if len(arrows) > 0 {
@@ -53,7 +54,7 @@ func renderPhasors(w *Writer, b *calcdoc.Block) {
 	}
 	w.WriteString("<figcaption>")
 	if res != nil && res.Caption != "" {
-		w.WriteString(esc(res.Caption))
+		w.WriteString(markup.Esc(res.Caption))
 	}
 	if len(vals) > 0 {
 		if res.Caption != "" {
@@ -82,7 +83,7 @@ func phasorArrows(res *calcdoc.Phasors) []svg.Arrow {
 	var arrows []svg.Arrow
 	for _, it := range res.Items {
 		if it.OK() {
-			arrows = append(arrows, svg.Arrow{Label: it.Text, Runs: LabelRuns(it.Node), Re: it.Re, Im: it.Im, X0: it.X0, Y0: it.Y0, Scale: it.Unit})
+			arrows = append(arrows, svg.Arrow{Label: it.Text, Runs: markup.LabelRuns(it.Node), Re: it.Re, Im: it.Im, X0: it.X0, Y0: it.Y0, Scale: it.Unit})
 		}
 	}
 	return arrows
@@ -92,7 +93,7 @@ func phasorArrows(res *calcdoc.Phasors) []svg.Arrow {
 // line with its formula, a table of a readable subset of the points
 // (calcdoc.Sweep.TableRows), notes on gaps, and a plot per plotted line
 // (magnitude, and angle for a complex line).
-func renderSweep(w *Writer, b *calcdoc.Block) {
+func renderSweep(w *markup.Writer, b *calcdoc.Block) {
 	sw, _ := b.Result.(*calcdoc.Sweep)
 	w.Printf("<div class=\"block sweep\" id=\"B%d\">\n", b.Pos.Line)
 	if sw == nil {
@@ -137,7 +138,7 @@ func renderSweep(w *Writer, b *calcdoc.Block) {
 
 // sweepHead describes the range: "sweep of f from 10 Hz to 100 kHz, 200
 // points spaced evenly on a logarithmic scale".
-func sweepHead(w *Writer, sw *calcdoc.Sweep) string {
+func sweepHead(w *markup.Writer, sw *calcdoc.Sweep) string {
 	if sw.X == nil {
 		return "sweep, not evaluated: its range has no value"
 	}
@@ -145,27 +146,27 @@ func sweepHead(w *Writer, sw *calcdoc.Sweep) string {
 	if sw.Log {
 		spacing = "spaced evenly on a logarithmic scale"
 	}
-	return fmt.Sprintf("sweep of %s from %s to %s, %d points %s", NameHTML(sw.Var),
-		esc(expr.FormatScalar(sw.Start, nil, w.Digits()).String()),
-		esc(expr.FormatScalar(sw.Stop, nil, w.Digits()).String()), sw.N, spacing)
+	return fmt.Sprintf("sweep of %s from %s to %s, %d points %s", markup.NameHTML(sw.Var),
+		markup.Esc(expr.FormatScalar(sw.Start, nil, w.Digits()).String()),
+		markup.Esc(expr.FormatScalar(sw.Stop, nil, w.Digits()).String()), sw.N, spacing)
 }
 
 // sweepLineRow writes one line of the block: gutter, formula, its errors.
-func sweepLineRow(w *Writer, l *calcdoc.SweepLine) {
+func sweepLineRow(w *markup.Writer, l *calcdoc.SweepLine) {
 	line := l.Stmt.Pos().Line
 	if n, ok := l.Stmt.(*expr.Note); ok {
-		w.Printf("<div class=\"row note\" id=\"L%d\"><div class=\"ln\">%d</div><div class=\"txt\">%s</div></div>\n", line, line, esc(n.Text))
+		w.Printf("<div class=\"row note\" id=\"L%d\"><div class=\"ln\">%d</div><div class=\"txt\">%s</div></div>\n", line, line, markup.Esc(n.Text))
 		return
 	}
 	w.Printf("<div class=\"row\" id=\"L%d\"><div class=\"ln\">%d</div><div class=\"math\">", line, line)
-	f := w.exprML(false, nil)
+	f := w.ExprMLFor(false, nil)
 	switch {
 	case l.X != nil && l.Name != "":
-		w.Printf("<div class=\"f\">%s</div>", Math(NameML(l.Name)+"<mo>=</mo>"+f.Node(l.X, false)))
+		w.Printf("<div class=\"f\">%s</div>", markup.Math(markup.NameML(l.Name)+"<mo>=</mo>"+f.Node(l.X, false)))
 	case l.X != nil:
-		w.Printf("<div class=\"f\">%s</div>", Math(f.Node(l.X, false)))
+		w.Printf("<div class=\"f\">%s</div>", markup.Math(f.Node(l.X, false)))
 	default:
-		w.Printf("<div class=\"f\"><code>%s</code></div>", esc(l.Text))
+		w.Printf("<div class=\"f\"><code>%s</code></div>", markup.Esc(l.Text))
 	}
 	for _, e := range l.Errs {
 		w.ErrorRow(e)
@@ -173,7 +174,7 @@ func sweepLineRow(w *Writer, l *calcdoc.SweepLine) {
 	if l.Unavailable != nil {
 		w.UnavailableRow(l.Unavailable)
 	}
-	w.Printf("</div><div class=\"desc\">%s</div></div>\n", esc(l.Stmt.Desc()))
+	w.Printf("</div><div class=\"desc\">%s</div></div>\n", markup.Esc(l.Stmt.Desc()))
 }
 
 // lineLabel is a line's name in plain text: the name it defines, or its
@@ -186,16 +187,16 @@ func lineLabel(l *calcdoc.SweepLine) string {
 }
 
 // lineHeadML is a line's table heading in MathML.
-func lineHeadML(w *Writer, l *calcdoc.SweepLine) string {
+func lineHeadML(w *markup.Writer, l *calcdoc.SweepLine) string {
 	if l.Name != "" {
-		return Math(NameML(l.Name))
+		return markup.Math(markup.NameML(l.Name))
 	}
-	return Math(w.exprML(false, nil).Node(l.X, false))
+	return markup.Math(w.ExprMLFor(false, nil).Node(l.X, false))
 }
 
 // sweepTable writes the table of the points TableRows picks, with a note
 // column naming why a point is there, and the notes on gaps below it.
-func sweepTable(w *Writer, sw *calcdoc.Sweep, cols []*calcdoc.SweepLine) {
+func sweepTable(w *markup.Writer, sw *calcdoc.Sweep, cols []*calcdoc.SweepLine) {
 	rows := sw.TableRows()
 	why := map[int][]string{0: {"first point"}}
 	why[len(sw.X)-1] = append(why[len(sw.X)-1], "last point")
@@ -212,7 +213,7 @@ func sweepTable(w *Writer, sw *calcdoc.Sweep, cols []*calcdoc.SweepLine) {
 		}
 	}
 	w.WriteString("<table class=\"data sweep\">\n<thead><tr><th>point</th>")
-	w.Printf("<th>%s</th>", Math(NameML(sw.Var)))
+	w.Printf("<th>%s</th>", markup.Math(markup.NameML(sw.Var)))
 	for _, l := range cols {
 		w.Printf("<th>%s</th>", lineHeadML(w, l))
 	}
@@ -220,7 +221,7 @@ func sweepTable(w *Writer, sw *calcdoc.Sweep, cols []*calcdoc.SweepLine) {
 	varS := &expr.Scalar{Dim: sw.Dim, Angle: sw.Angle, Kind: sw.Kind}
 	for _, i := range rows {
 		varS.Z = complex(sw.X[i], 0)
-		w.Printf("<tr><td>%d</td><td>%s</td>", i+1, Math(ShownML(expr.FormatScalar(varS, nil, w.Digits()), false)))
+		w.Printf("<tr><td>%d</td><td>%s</td>", i+1, markup.Math(markup.ShownML(expr.FormatScalar(varS, nil, w.Digits()), false)))
 		for _, l := range cols {
 			z := l.Z[i]
 			if cmplx.IsNaN(z) {
@@ -228,9 +229,9 @@ func sweepTable(w *Writer, sw *calcdoc.Sweep, cols []*calcdoc.SweepLine) {
 				continue
 			}
 			s := l.At(i)
-			w.Printf("<td>%s</td>", Math(ShownML(expr.FormatScalar(s, l.Display, w.Digits()), false)+senseML(s)))
+			w.Printf("<td>%s</td>", markup.Math(markup.ShownML(expr.FormatScalar(s, l.Display, w.Digits()), false)+markup.SenseML(s)))
 		}
-		w.Printf("<td class=\"why\">%s</td></tr>\n", esc(strings.Join(uniq(why[i]), ", ")))
+		w.Printf("<td class=\"why\">%s</td></tr>\n", markup.Esc(strings.Join(uniq(why[i]), ", ")))
 	}
 	w.WriteString("</tbody>\n</table>\n")
 	w.Printf("<p class=\"sweepnote\">The table shows %d of the %d points: points spread evenly over the sweep, the first and the last, and the smallest and largest value of each line", len(rows), len(sw.X))
@@ -260,7 +261,7 @@ func sweepTable(w *Writer, sw *calcdoc.Sweep, cols []*calcdoc.SweepLine) {
 			}
 			msg += fmt.Sprintf("; at %s: %s", varText(l.GapAt), m)
 		}
-		w.Printf("<p class=\"sweepnote gapnote\"><strong>Gaps:</strong> %s. These points are left out of the plots.</p>\n", esc(msg))
+		w.Printf("<p class=\"sweepnote gapnote\"><strong>Gaps:</strong> %s. These points are left out of the plots.</p>\n", markup.Esc(msg))
 	}
 }
 
@@ -293,7 +294,7 @@ func plotUnit(l *calcdoc.SweepLine) (string, float64) {
 		if u == "deg" {
 			u = "°"
 		}
-		return unitText(u), l.Display.Unit.Scale
+		return markup.UnitText(u), l.Display.Unit.Scale
 	}
 	if l.Angle && !l.Complex && l.Dim.IsZero() {
 		return "°", math.Pi / 180
@@ -341,7 +342,7 @@ func (f sweepFig) drawErr(err error) *expr.Error {
 
 // sweepPlots writes the figures of one line: its magnitude (complex) or
 // value (real), and for a complex line its angle in degrees.
-func sweepPlots(w *Writer, sw *calcdoc.Sweep, l *calcdoc.SweepLine) {
+func sweepPlots(w *markup.Writer, sw *calcdoc.Sweep, l *calcdoc.SweepLine) {
 	for _, f := range sweepFigs(sw, l) {
 		sweepFigure(w, f)
 	}
@@ -359,7 +360,7 @@ func sweepFigs(sw *calcdoc.Sweep, l *calcdoc.SweepLine) []sweepFig {
 	for i, v := range sw.X {
 		x[i] = v / xScale
 	}
-	xLabel := axisLabel(sw.Var, unitText(xUnit))
+	xLabel := axisLabel(sw.Var, markup.UnitText(xUnit))
 	col := plotColumnsOf(x, sw.Log, plotColumns)
 	unit, scale := plotUnit(l)
 	name := lineLabel(l)
@@ -487,7 +488,7 @@ func thinPlot(p svg.Plot, col []int) svg.Plot {
 // sweepFigure writes one figure, or in its place the error that it cannot
 // be drawn (found already by checkSweepDrawing, so counted as an error of
 // the document).
-func sweepFigure(w *Writer, f sweepFig) {
+func sweepFigure(w *markup.Writer, f sweepFig) {
 	pic, err := f.drawn().Render()
 	if err != nil {
 		w.ErrorRow(f.drawErr(err))
@@ -495,7 +496,7 @@ func sweepFigure(w *Writer, f sweepFig) {
 	}
 	w.WriteString("<figure class=\"sweep\">\n")
 	w.WriteString(pic)
-	w.Printf("<figcaption>%s</figcaption>\n</figure>\n", esc(f.caption))
+	w.Printf("<figcaption>%s</figcaption>\n</figure>\n", markup.Esc(f.caption))
 }
 
 // uniq drops repeated strings, keeping the first of each.

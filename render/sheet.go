@@ -5,13 +5,13 @@
 package render
 
 import (
-	"bytes"
 	"fmt"
 	"sort"
 	"strings"
 
 	"calcdoc/calcdoc"
 	"calcdoc/expr"
+	"calcdoc/render/markup"
 
 	"github.com/yuin/goldmark/ast"
 	"github.com/yuin/goldmark/extension"
@@ -42,43 +42,12 @@ type Options struct {
 // Drawer is a block kind's drawing: a kind of the document's registry
 // that implements it draws its blocks into the sheet.
 type Drawer interface {
-	Draw(w *Writer, b *calcdoc.Block)
-}
-
-// Writer is what block renderers write into: the page buffer and the
-// document being drawn.
-type Writer struct {
-	bytes.Buffer
-	Doc *calcdoc.Document
-	// Appendix collects sections drawn at the end of the sheet (large
-	// matrices of a solve block).
-	Appendix bytes.Buffer
-	values   map[valueKey]shownValue
-	// typesetters are the formula and substitution typesetters of calc rows
-	typesetters [2]*ExprML
-}
-
-// Digits is the number of significant figures of the document.
-func (w *Writer) Digits() int { return w.Doc.Digits() }
-
-// Printf writes formatted text.
-func (w *Writer) Printf(format string, args ...any) { fmt.Fprintf(&w.Buffer, format, args...) }
-
-// ErrorRow writes an error in place: its position and message, on screen
-// and in print, marked by words (not colour alone).
-func (w *Writer) ErrorRow(e *expr.Error) {
-	w.Printf("<div class=\"err\" role=\"alert\"><span class=\"tag\">ERROR</span> <span class=\"at\">line %d, col %d:</span> %s</div>\n", e.Pos.Line, e.Pos.Col, esc(e.Msg))
-}
-
-// UnavailableRow writes the note of a line that could not be evaluated
-// because it uses a name whose definition failed.
-func (w *Writer) UnavailableRow(u *expr.UnavailableError) {
-	w.Printf("<div class=\"na\"><span class=\"tag\">NOT EVALUATED</span> uses %s, which has no value: the definition at line %d failed</div>\n", NameHTML(u.Name), u.Def.Line)
+	Draw(w *markup.Writer, b *calcdoc.Block)
 }
 
 // Sheet writes the HTML sheet of a document.
 func Sheet(doc *calcdoc.Document, opt Options) ([]byte, error) {
-	w := &Writer{Doc: doc, values: map[valueKey]shownValue{}}
+	w := markup.NewWriter(doc)
 	// a sheet is about fifteen times its source: grow once, not by doubling
 	w.Grow(64<<10 + 20*len(doc.Source))
 	fm := doc.Front
@@ -182,14 +151,14 @@ func pageCSS(fm calcdoc.FrontMatter, opt Options) string {
 `, size, cssString(left), cssString(center))
 }
 
-func field(w *Writer, label, value string) {
+func field(w *markup.Writer, label, value string) {
 	if value == "" {
 		value = "—"
 	}
 	w.Printf("<td><span class=\"lbl\">%s</span><span class=\"val\">%s</span></td>", esc(label), esc(value))
 }
 
-func titleBlock(w *Writer, fm calcdoc.FrontMatter, title string, opt Options) {
+func titleBlock(w *markup.Writer, fm calcdoc.FrontMatter, title string, opt Options) {
 	w.WriteString("<header class=\"tb\">\n<table class=\"tb\">\n")
 	w.WriteString("<tr>")
 	field(w, "Project", fm.Project)
@@ -221,7 +190,7 @@ func titleBlock(w *Writer, fm calcdoc.FrontMatter, title string, opt Options) {
 
 // summary states at the top whether the sheet evaluated, how many checks
 // hold, and lists every error and warning with its position.
-func summary(w *Writer, doc *calcdoc.Document) {
+func summary(w *markup.Writer, doc *calcdoc.Document) {
 	failed := doc.FailedChecks()
 	held := 0
 	for _, c := range doc.Checks {
@@ -265,7 +234,7 @@ func plural(n int) string {
 
 // prose renders the Markdown body with goldmark, drawing evaluated blocks
 // and inline values through calcdoc's node renderers.
-func prose(w *Writer, doc *calcdoc.Document) error {
+func prose(w *markup.Writer, doc *calcdoc.Document) error {
 	r := renderer.NewRenderer(renderer.WithNodeRenderers(
 		util.Prioritized(ghtml.NewRenderer(), 1000),
 		util.Prioritized(extension.NewTableHTMLRenderer(), 500),
@@ -277,7 +246,7 @@ func prose(w *Writer, doc *calcdoc.Document) error {
 
 // nodes renders the node kinds calcdoc changes: evaluated fenced blocks,
 // inline values, raw HTML (shown as text) and images (not loaded).
-type nodes struct{ w *Writer }
+type nodes struct{ w *markup.Writer }
 
 func (n *nodes) RegisterFuncs(reg renderer.NodeRendererFuncRegisterer) {
 	reg.Register(ast.KindFencedCodeBlock, n.fenced)
@@ -337,7 +306,7 @@ func (n *nodes) codeSpan(out util.BufWriter, src []byte, node ast.Node, entering
 			}
 			w.Printf("<span class=\"inl-err\" id=\"L%d\">[ERROR: %s]</span>", in.Pos.Line, esc(msg))
 		default:
-			w.Printf("<span class=\"inl\" title=\"%s\">%s</span>", esc(in.Text), Math(ValueML(in.Value, displayFor(w.Doc, in.Display, in.Text), w.Digits(), false)+senseML(in.Value)))
+			w.Printf("<span class=\"inl\" title=\"%s\">%s</span>", esc(in.Text), markup.Math(markup.ValueML(in.Value, displayFor(w.Doc, in.Display, in.Text), w.Digits(), false)+markup.SenseML(in.Value)))
 		}
 		return ast.WalkSkipChildren, nil
 	}

@@ -8,6 +8,7 @@ import (
 	"calcdoc/calcdoc"
 	"calcdoc/calcdoc/solve"
 	"calcdoc/expr"
+	"calcdoc/render/markup"
 )
 
 // InlineSystemLimit is the largest number of rows or columns of a linear
@@ -18,7 +19,7 @@ const InlineSystemLimit = 12
 // renderSolve draws a solve block: the unknowns, each equation as
 // written, how the set was solved, the matrix of a linear set, the
 // solution and a table that evaluates both sides of every equation at it.
-func renderSolve(w *Writer, b *calcdoc.Block) {
+func renderSolve(w *markup.Writer, b *calcdoc.Block) {
 	set, _ := b.Result.(*calcdoc.SolveSet)
 	if set == nil {
 		set = &calcdoc.SolveSet{}
@@ -31,7 +32,7 @@ func renderSolve(w *Writer, b *calcdoc.Block) {
 	line := b.InfoPos.Line
 	w.Printf("<div class=\"row unk\" id=\"L%d\"><div class=\"ln\">%d</div><div class=\"math\"><div class=\"f\">", line, line)
 	if len(set.Unknowns) == 0 {
-		w.WriteString("<span class=\"kindtag\">solve</span> <code>" + esc(b.Arg) + "</code>")
+		w.WriteString("<span class=\"kindtag\">solve</span> <code>" + markup.Esc(b.Arg) + "</code>")
 	} else {
 		w.WriteString("<span class=\"kindtag\">solve for</span> ")
 		for i, u := range set.Unknowns {
@@ -46,34 +47,34 @@ func renderSolve(w *Writer, b *calcdoc.Block) {
 		w.ErrorRow(e)
 		shown[e] = true
 	}
-	w.Printf("</div><div class=\"desc\">%s</div></div>\n", esc(countText(set)))
+	w.Printf("</div><div class=\"desc\">%s</div></div>\n", markup.Esc(countText(set)))
 
 	// the equations, as written
 	for _, l := range set.Lines {
 		ln := l.Stmt.Pos().Line
 		switch s := l.Stmt.(type) {
 		case *expr.Note:
-			w.Printf("<div class=\"row note\" id=\"L%d\"><div class=\"ln\">%d</div><div class=\"txt\">%s</div></div>\n", ln, ln, esc(s.Text))
+			w.Printf("<div class=\"row note\" id=\"L%d\"><div class=\"ln\">%d</div><div class=\"txt\">%s</div></div>\n", ln, ln, markup.Esc(s.Text))
 			continue
 		case *expr.Equation:
 			w.Printf("<div class=\"row eq\" id=\"L%d\"><div class=\"ln\">%d</div><div class=\"math\"><div class=\"f\">", ln, ln)
 			if s.Label != nil {
-				w.Printf("<b class=\"eqlabel\">%s:</b> ", esc(s.Label.Name))
+				w.Printf("<b class=\"eqlabel\">%s:</b> ", markup.Esc(s.Label.Name))
 			}
-			f := w.exprML(false, nil)
-			w.WriteString(Math(f.Node(s.LHS, false) + "<mo>=</mo>" + f.Node(s.RHS, false)))
+			f := w.ExprMLFor(false, nil)
+			w.WriteString(markup.Math(f.Node(s.LHS, false) + "<mo>=</mo>" + f.Node(s.RHS, false)))
 			if l.Equation != nil && l.Equation.RealValued {
 				w.WriteString(" <span class=\"tol\">(real-valued: counts as one real equation)</span>")
 			}
 			w.WriteString("</div>")
 		default:
-			w.Printf("<div class=\"row eq\" id=\"L%d\"><div class=\"ln\">%d</div><div class=\"math\"><div class=\"f\"><code>%s</code></div>", ln, ln, esc(l.Text))
+			w.Printf("<div class=\"row eq\" id=\"L%d\"><div class=\"ln\">%d</div><div class=\"math\"><div class=\"f\"><code>%s</code></div>", ln, ln, markup.Esc(l.Text))
 		}
 		for _, e := range l.Errs {
 			w.ErrorRow(e)
 			shown[e] = true
 		}
-		w.Printf("</div><div class=\"desc\">%s</div></div>\n", esc(l.Stmt.Desc()))
+		w.Printf("</div><div class=\"desc\">%s</div></div>\n", markup.Esc(l.Stmt.Desc()))
 	}
 
 	// what stopped the set, in place
@@ -108,13 +109,13 @@ func renderSolve(w *Writer, b *calcdoc.Block) {
 
 // partOpen starts a part of the block that has no source line of its own
 // (the method, the matrix, the verification): the full width of the block.
-func partOpen(w *Writer) { w.WriteString("<div class=\"part\" style=\"" + partStyle + "\">") }
+func partOpen(w *markup.Writer) { w.WriteString("<div class=\"part\" style=\"" + partStyle + "\">") }
 
 // partStyle is the inline style of a block's parts (the sheet's style
 // sheet has no rule for them); tables keep each value on one line.
 const partStyle = "padding: 2pt 0 2pt 11mm; border-bottom: var(--thin);"
 
-func partClose(w *Writer) { w.WriteString("</div>\n") }
+func partClose(w *markup.Writer) { w.WriteString("</div>\n") }
 
 func hasHave(n int) string {
 	if n == 1 {
@@ -126,7 +127,7 @@ func hasHave(n int) string {
 func namesHTML(us []*calcdoc.Unknown) string {
 	var s []string
 	for _, u := range us {
-		s = append(s, NameHTML(u.Name))
+		s = append(s, markup.NameHTML(u.Name))
 	}
 	switch len(s) {
 	case 1:
@@ -139,11 +140,11 @@ func namesHTML(us []*calcdoc.Unknown) string {
 
 // unknownHTML writes one unknown of the list: its name, its unit, whether
 // it is real or complex, and its starting value.
-func unknownHTML(w *Writer, u *calcdoc.Unknown) string {
+func unknownHTML(w *markup.Writer, u *calcdoc.Unknown) string {
 	var sb strings.Builder
-	sb.WriteString(Math(NameML(u.Name)))
+	sb.WriteString(markup.Math(markup.NameML(u.Name)))
 	if u.HasUnit() {
-		sb.WriteString(" in " + esc(unitText(u.Display.Unit.Text)))
+		sb.WriteString(" in " + markup.Esc(markup.UnitText(u.Display.Unit.Text)))
 	}
 	if u.Real {
 		sb.WriteString(", real")
@@ -151,9 +152,9 @@ func unknownHTML(w *Writer, u *calcdoc.Unknown) string {
 		sb.WriteString(", complex")
 	}
 	if u.Near != nil {
-		sb.WriteString(", starting from " + Math(ValueML(u.Near, u.Display, w.Digits(), false)))
+		sb.WriteString(", starting from " + markup.Math(markup.ValueML(u.Near, u.Display, w.Digits(), false)))
 	} else if u.NearText != "" {
-		sb.WriteString(", starting from <code>" + esc(u.NearText) + "</code>")
+		sb.WriteString(", starting from <code>" + markup.Esc(u.NearText) + "</code>")
 	}
 	return sb.String()
 }
@@ -164,7 +165,7 @@ func countText(set *calcdoc.SolveSet) string {
 		return ""
 	}
 	return fmt.Sprintf("%d real equation%s for %d real unknown%s (a complex equation or unknown counts as two)",
-		set.RealEquations, plural(set.RealEquations), set.RealUnknowns, plural(set.RealUnknowns))
+		set.RealEquations, markup.Plural(set.RealEquations), set.RealUnknowns, markup.Plural(set.RealUnknowns))
 }
 
 // sci writes a small positive figure such as a residual: "3.2e-14", "0".
@@ -180,7 +181,7 @@ func sci(x float64) string {
 	return strings.NewReplacer("e-0", "e-", "e+0", "e", "e+", "e").Replace(fmt.Sprintf("%.3g", x))
 }
 
-func solvedParts(w *Writer, b *calcdoc.Block, set *calcdoc.SolveSet) {
+func solvedParts(w *markup.Writer, b *calcdoc.Block, set *calcdoc.SolveSet) {
 	line := b.InfoPos.Line
 	anchor := fmt.Sprintf("S%d", line)
 
@@ -191,11 +192,11 @@ func solvedParts(w *Writer, b *calcdoc.Block, set *calcdoc.SolveSet) {
 		fmt.Fprintf(w, "<strong>Linear, solved directly.</strong> The equations are affine in the unknowns (confirmed at %d further points to within %s). The real form (real and imaginary parts as separate unknowns and equations) is solved by LU factorisation with partial pivoting of the scaled matrix; condition number estimate κ₁ = %s.",
 			solve.LinearProbes, sci(solve.LinearTol), sci(set.Cond))
 		if set.Refined {
-			fmt.Fprintf(w, " The direct solution was refined by %d Newton iteration%s.", set.Iterations, plural(set.Iterations))
+			fmt.Fprintf(w, " The direct solution was refined by %d Newton iteration%s.", set.Iterations, markup.Plural(set.Iterations))
 		}
 	} else {
 		fmt.Fprintf(w, "<strong>Non-linear, %d iteration%s.</strong> Solved iteratively by damped Newton–Raphson on the real form (real and imaginary parts as separate unknowns), Jacobian by finite differences, from the starting point: the scaled residual fell from %s to %s (tolerance %s",
-			set.Iterations, plural(set.Iterations), sci(set.InitialResidualNorm), sci(set.ResidualNorm), sci(solve.ResidualTol))
+			set.Iterations, markup.Plural(set.Iterations), sci(set.InitialResidualNorm), sci(set.ResidualNorm), sci(solve.ResidualTol))
 		if set.Criterion == solve.ByStep {
 			fmt.Fprintf(w, "; stopped when the Newton step fell below %s of the unknowns", sci(solve.StepTol))
 		}
@@ -215,12 +216,12 @@ func solvedParts(w *Writer, b *calcdoc.Block, set *calcdoc.SolveSet) {
 		}
 		intro := fmt.Sprintf("As a linear system A·x = b (%s; A is %d×%d; for each equation, A·x − b is the side that holds the unknowns minus the other side, left minus right when both hold unknowns):", form, len(sys.Rows), len(sys.Cols))
 		if big {
-			fmt.Fprintf(w, "<p>%s the matrix and vector are in the appendix, <a href=\"#%s\">equation set at line %d</a>.</p>", esc(intro), anchor, line)
-			fmt.Fprintf(&w.Appendix, "<section class=\"solveapp\" id=\"%s\">\n<h3>Equation set at line %d: A and b</h3>\n<p>%s</p>\n", anchor, line, esc(intro))
+			fmt.Fprintf(w, "<p>%s the matrix and vector are in the appendix, <a href=\"#%s\">equation set at line %d</a>.</p>", markup.Esc(intro), anchor, line)
+			fmt.Fprintf(&w.Appendix, "<section class=\"solveapp\" id=\"%s\">\n<h3>Equation set at line %d: A and b</h3>\n<p>%s</p>\n", anchor, line, markup.Esc(intro))
 			systemTable(&w.Appendix, set, sys, w.Digits(), false)
 			w.Appendix.WriteString("</section>\n")
 		} else {
-			fmt.Fprintf(w, "<p>%s</p>", esc(intro))
+			fmt.Fprintf(w, "<p>%s</p>", markup.Esc(intro))
 			var sb strings.Builder
 			systemTable(&sb, set, sys, w.Digits(), true)
 			w.WriteString(sb.String())
@@ -247,8 +248,8 @@ func solvedParts(w *Writer, b *calcdoc.Block, set *calcdoc.SolveSet) {
 		if b := w.Doc.Env.Lookup(u.Name); b != nil && b.Value == expr.Value(u.Value) {
 			disp = b.Display // the chosen display: the bracket, else the preferred unit
 		}
-		w.Printf("<div class=\"r\" data-value=\"%s\" data-line=\"%d\">%s</div>", esc(u.Name), u.Pos.Line, Math(NameML(u.Name)+"<mo>=</mo>"+ValueML(u.Value, disp, w.Digits(), false)))
-		w.kindNote(u.Value)
+		w.Printf("<div class=\"r\" data-value=\"%s\" data-line=\"%d\">%s</div>", markup.Esc(u.Name), u.Pos.Line, markup.Math(markup.NameML(u.Name)+"<mo>=</mo>"+markup.ValueML(u.Value, disp, w.Digits(), false)))
+		w.KindNote(u.Value)
 	}
 	w.WriteString("</div><div class=\"desc\">solution</div></div>\n")
 
@@ -261,8 +262,8 @@ func solvedParts(w *Writer, b *calcdoc.Block, set *calcdoc.SolveSet) {
 			continue
 		}
 		w.Printf("<tr><td>%s</td><td>%s</td><td>%s</td><td>%s</td><td>%s</td></tr>\n",
-			eqLabelHTML(e), Math(ValueML(e.LHS, nil, w.Digits(), false)), Math(ValueML(e.RHS, nil, w.Digits(), false)),
-			Math(diffML(e.Diff, w.Digits())), sci(e.Backward))
+			eqLabelHTML(e), markup.Math(markup.ValueML(e.LHS, nil, w.Digits(), false)), markup.Math(markup.ValueML(e.RHS, nil, w.Digits(), false)),
+			markup.Math(diffML(e.Diff, w.Digits())), sci(e.Backward))
 	}
 	w.WriteString("</table></div>\n")
 	partClose(w)
@@ -272,14 +273,14 @@ func solvedParts(w *Writer, b *calcdoc.Block, set *calcdoc.SolveSet) {
 func diffML(v *expr.Scalar, digits int) string {
 	if v.Z == 0 {
 		u := calcdoc.SIUnit(v.Dim)
-		return "<mn>0</mn>" + unitML(u)
+		return "<mn>0</mn>" + markup.UnitML(u)
 	}
-	return ValueML(v, nil, digits, false)
+	return markup.ValueML(v, nil, digits, false)
 }
 
 func eqLabelHTML(e *calcdoc.SolveEquation) string {
 	if e.Eq.Label != nil {
-		return fmt.Sprintf("%s <span class=\"at\">(line %d)</span>", esc(e.Eq.Label.Name), e.Line)
+		return fmt.Sprintf("%s <span class=\"at\">(line %d)</span>", markup.Esc(e.Eq.Label.Name), e.Line)
 	}
 	return fmt.Sprintf("line %d", e.Line)
 }
@@ -289,7 +290,7 @@ func rowLabel(set *calcdoc.SolveSet, r calcdoc.SystemIndex) string {
 	e := set.Equations[r.Index]
 	name := fmt.Sprintf("line %d", e.Line)
 	if e.Eq.Label != nil {
-		name = esc(e.Eq.Label.Name)
+		name = markup.Esc(e.Eq.Label.Name)
 	}
 	return partPrefix(r.Part) + name
 }
@@ -297,9 +298,9 @@ func rowLabel(set *calcdoc.SolveSet, r calcdoc.SystemIndex) string {
 func colLabel(set *calcdoc.SolveSet, c calcdoc.SystemIndex, mathML bool) string {
 	u := set.Unknowns[c.Index]
 	if mathML {
-		return partPrefix(c.Part) + Math(NameML(u.Name))
+		return partPrefix(c.Part) + markup.Math(markup.NameML(u.Name))
 	}
-	return partPrefix(c.Part) + NameHTML(u.Name)
+	return partPrefix(c.Part) + markup.NameHTML(u.Name)
 }
 
 func partPrefix(p calcdoc.Part) string {
@@ -316,7 +317,7 @@ func partPrefix(p calcdoc.Part) string {
 // column per unknown (or part), then b. Entries carry their units; an
 // exact zero is written 0. mathML selects MathML entries (in place) or
 // plain text (the appendix, where the table may be large).
-func systemTable(out stringWriter, set *calcdoc.SolveSet, sys *calcdoc.SolveSystem, digits int, mathML bool) {
+func systemTable(out markup.StringWriter, set *calcdoc.SolveSet, sys *calcdoc.SolveSystem, digits int, mathML bool) {
 	var sb strings.Builder
 	sb.WriteString("<div class=\"grid\"><table class=\"data system\" style=\"white-space: nowrap;\">\n<tr><th>equation</th>")
 	for _, c := range sys.Cols {
@@ -328,9 +329,9 @@ func systemTable(out stringWriter, set *calcdoc.SolveSet, sys *calcdoc.SolveSyst
 			return "0"
 		}
 		if mathML {
-			return Math(ValueML(&s, nil, digits, false))
+			return markup.Math(markup.ValueML(&s, nil, digits, false))
 		}
-		return esc(expr.FormatScalar(&s, nil, digits).String())
+		return markup.Esc(expr.FormatScalar(&s, nil, digits).String())
 	}
 	for i, r := range sys.Rows {
 		sb.WriteString("<tr><td>" + rowLabel(set, r) + "</td>")
@@ -354,7 +355,7 @@ func historyTable(sb *strings.Builder, h []solve.Step) {
 		case s.Damping < 1:
 			kind = "damped Newton step, t = " + sci(s.Damping)
 		}
-		fmt.Fprintf(sb, "<tr><td>%d</td><td>%s</td><td>%s</td><td>%s</td></tr>\n", s.Iteration, sci(s.ResidualNorm), sci(s.StepSize), esc(kind))
+		fmt.Fprintf(sb, "<tr><td>%d</td><td>%s</td><td>%s</td><td>%s</td></tr>\n", s.Iteration, sci(s.ResidualNorm), sci(s.StepSize), markup.Esc(kind))
 	}
 	sb.WriteString("</table></div>\n")
 }

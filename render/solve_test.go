@@ -12,6 +12,7 @@ import (
 
 	"calcdoc/calcdoc"
 	"calcdoc/expr"
+	"calcdoc/render/markup"
 )
 
 func solveSheet(t *testing.T, src string) (*calcdoc.Document, string) {
@@ -43,7 +44,7 @@ func blockHTML(t *testing.T, page string, line int) string {
 }
 
 func shown(z complex128, d expr.Dim) string {
-	return ShownML(expr.FormatScalar(&expr.Scalar{Z: z, Dim: d}, nil, 4), false)
+	return markup.ShownML(expr.FormatScalar(&expr.Scalar{Z: z, Dim: d}, nil, 4), false)
 }
 
 // TestSolveSheetLinear draws a mesh pair and checks the sheet against the
@@ -68,12 +69,12 @@ func TestSolveSheetLinear(t *testing.T) {
 		// the method and the matrix in its units, rows rhs − lhs (the
 		// unknowns are on the right): A = [[Z+10, −10], [−10, Z+10]] Ω, b = [100 V; 0]
 		"Linear, solved directly", "condition number estimate κ₁ =", "complex form",
-		"<td>" + Math(shown(z+10, expr.DimImpedance)) + "</td><td>" + Math(shown(-10, expr.DimImpedance)) + "</td><td>" + Math(shown(100, expr.DimVoltage)) + "</td>",
+		"<td>" + markup.Math(shown(z+10, expr.DimImpedance)) + "</td><td>" + markup.Math(shown(-10, expr.DimImpedance)) + "</td><td>" + markup.Math(shown(100, expr.DimVoltage)) + "</td>",
 		// the solution, marked for verify, at the line of the info string
-		`<div class="r" data-value="I_a" data-line="5">` + Math(NameML("I_a")+"<mo>=</mo>"+shown(ia, expr.DimCurrent)),
-		`<div class="r" data-value="I_b" data-line="5">` + Math(NameML("I_b")+"<mo>=</mo>"+shown(ib, expr.DimCurrent)),
+		`<div class="r" data-value="I_a" data-line="5">` + markup.Math(markup.NameML("I_a")+"<mo>=</mo>"+shown(ia, expr.DimCurrent)),
+		`<div class="r" data-value="I_b" data-line="5">` + markup.Math(markup.NameML("I_b")+"<mo>=</mo>"+shown(ib, expr.DimCurrent)),
 		// the verification: both sides of m_1 at the solution
-		"Verification", "m_1 <span class=\"at\">(line 7)</span>", Math(shown(100, expr.DimVoltage)),
+		"Verification", "m_1 <span class=\"at\">(line 7)</span>", markup.Math(shown(100, expr.DimVoltage)),
 	} {
 		if !strings.Contains(blk, want) {
 			t.Errorf("the block lacks %q", want)
@@ -94,9 +95,9 @@ func TestSolveSheetRealForm(t *testing.T) {
 		t.Fatal(doc.Errors)
 	}
 	blk := blockHTML(t, page, 1)
-	for _, want := range []string{"real form", "<th>Re " + Math(NameML("V")) + "</th>", "<th>Im " + Math(NameML("V")) + "</th>",
+	for _, want := range []string{"real form", "<th>Re " + markup.Math(markup.NameML("V")) + "</th>", "<th>Im " + markup.Math(markup.NameML("V")) + "</th>",
 		"<td>Re line 2</td>", "<td>Im line 2</td>",
-		`data-value="V" data-line="1">` + Math(NameML("V")+"<mo>=</mo>"+shown(complex(3, -4), expr.DimVoltage))} {
+		`data-value="V" data-line="1">` + markup.Math(markup.NameML("V")+"<mo>=</mo>"+shown(complex(3, -4), expr.DimVoltage))} {
 		if !strings.Contains(blk, want) {
 			t.Errorf("the block lacks %q", want)
 		}
@@ -128,7 +129,7 @@ func TestSolveSheetNonLinear(t *testing.T) {
 	if !strings.Contains(blk, "(real-valued: counts as one real equation)") {
 		t.Error("the real-valued equation is not marked")
 	}
-	if !strings.Contains(blk, Math(NameML("x")+"<mo>=</mo>"+ShownML(expr.FormatScalar(expr.Real(1.4142135623730951), nil, 4), false))) {
+	if !strings.Contains(blk, markup.Math(markup.NameML("x")+"<mo>=</mo>"+markup.ShownML(expr.FormatScalar(expr.Real(1.4142135623730951), nil, 4), false))) {
 		t.Error("the solution √2 is not shown")
 	}
 }
@@ -203,7 +204,7 @@ func TestSolveSheetErrors(t *testing.T) {
 			if j := strings.Index(rowHTML[1:], `<div class="row`); j >= 0 {
 				rowHTML = rowHTML[:j+1]
 			}
-			if !strings.Contains(rowHTML, `<div class="err" role="alert">`) || !strings.Contains(rowHTML, esc(c.msg)) {
+			if !strings.Contains(rowHTML, `<div class="err" role="alert">`) || !strings.Contains(rowHTML, markup.Esc(c.msg)) {
 				t.Errorf("the error %q is not drawn in place in %s", c.msg, c.row)
 			}
 			if strings.Contains(blk, `data-value=`) {

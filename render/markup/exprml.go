@@ -1,4 +1,4 @@
-package render
+package markup
 
 import (
 	"strings"
@@ -67,13 +67,13 @@ type form struct {
 
 // stringWriter is what typesetting writes into: a strings.Builder or the
 // page's bytes.Buffer.
-type stringWriter interface {
+type StringWriter interface {
 	WriteString(s string) (int, error)
 }
 
 // WriteNode typesets n straight into b. paren asks for brackets when n
 // does not stand as a single operand (inside a product, a power, ...).
-func (m *ExprML) WriteNode(b stringWriter, n expr.Node, paren bool) {
+func (m *ExprML) WriteNode(b StringWriter, n expr.Node, paren bool) {
 	if paren {
 		m.operand(b, n, lvAngle, true)
 		return
@@ -113,7 +113,7 @@ func (m *ExprML) valueML(v expr.Value, d *expr.Display, paren bool) string {
 	return "<mrow>" + s.ml + "</mrow>"
 }
 
-var opML = map[expr.Kind]string{
+var OpML = map[expr.Kind]string{
 	expr.ADD: "+", expr.SUB: "−", expr.MUL: "·", expr.PAR: "∥", expr.ANGLE: "∠",
 	expr.LT: "&lt;", expr.LE: "≤", expr.GT: "&gt;", expr.GE: "≥", expr.EQ: "=", expr.NE: "≠",
 }
@@ -133,7 +133,7 @@ func (m *ExprML) substituted(n expr.Node) (shownValue, bool) {
 	}
 	switch n := n.(type) {
 	case *expr.Ident:
-		if v, ok := m.Trace.Value(n); ok && !isConstant(n.Name) {
+		if v, ok := m.Trace.Value(n); ok && !IsConstant(n.Name) {
 			var d *expr.Display
 			if m.DisplayOf != nil {
 				d = m.DisplayOf(n.Name)
@@ -266,7 +266,7 @@ func rightNeed(op expr.Kind) int {
 
 // operand writes n where a form of level need stands, bracketed when its
 // own form is looser, or when it starts with a sign and noSign is set.
-func (m *ExprML) operand(b stringWriter, n expr.Node, need int, noSign bool) {
+func (m *ExprML) operand(b StringWriter, n expr.Node, need int, noSign bool) {
 	f := m.form(n)
 	if f.lv < need || noSign && m.leadSign(n) {
 		b.WriteString("<mrow><mo>(</mo>")
@@ -279,7 +279,7 @@ func (m *ExprML) operand(b stringWriter, n expr.Node, need int, noSign bool) {
 
 // signedOperand writes the right operand of ∠, which may carry one sign
 // before a power (230 V∠−120°).
-func (m *ExprML) signedOperand(b stringWriter, n expr.Node) {
+func (m *ExprML) signedOperand(b StringWriter, n expr.Node) {
 	if unitAfterAngleUnit(n) {
 		// a∠(3° A): without brackets the unit would be the phasor's
 		m.operand(b, n, lvAtom, true)
@@ -339,7 +339,7 @@ func unitAfterAngleUnit(n expr.Node) bool {
 }
 
 // write typesets n without brackets around it.
-func (m *ExprML) write(b stringWriter, n expr.Node) {
+func (m *ExprML) write(b StringWriter, n expr.Node) {
 	n = unparen(n)
 	if s, ok := m.substituted(n); ok {
 		b.WriteString("<mrow>")
@@ -369,7 +369,7 @@ func (m *ExprML) write(b stringWriter, n expr.Node) {
 		} else {
 			m.operand(b, n.X, lvPow, true)
 		}
-		b.WriteString(unitML(n.Unit.Text))
+		b.WriteString(UnitML(n.Unit.Text))
 		b.WriteString("</mrow>")
 	case *expr.Unary:
 		if n.Op == expr.ADD {
@@ -403,7 +403,7 @@ func (m *ExprML) write(b stringWriter, n expr.Node) {
 		b.WriteString("<mrow>")
 		m.operand(b, n.X, m.leftNeed(n.Op), false)
 		b.WriteString("<mo>")
-		b.WriteString(opML[n.Op])
+		b.WriteString(OpML[n.Op])
 		b.WriteString("</mo>")
 		if n.Op == expr.ANGLE {
 			m.signedOperand(b, n.Y)
@@ -430,7 +430,7 @@ func (m *ExprML) write(b stringWriter, n expr.Node) {
 		for i, x := range n.X {
 			if i > 0 {
 				b.WriteString("<mo>")
-				b.WriteString(opML[n.Ops[i-1]])
+				b.WriteString(OpML[n.Ops[i-1]])
 				b.WriteString("</mo>")
 			}
 			m.write(b, x)
@@ -456,7 +456,7 @@ func (m *ExprML) Splits(n expr.Node) bool {
 // between: its top-level terms, each after its + or −, and within each
 // term its factors, each after its ·. Between two pieces it calls cut,
 // with newTerm set before a + or −. Joined, the pieces are n's MathML.
-func (m *ExprML) WritePieces(b stringWriter, n expr.Node, cut func(newTerm bool)) {
+func (m *ExprML) WritePieces(b StringWriter, n expr.Node, cut func(newTerm bool)) {
 	// factors of a term that stands unbracketed at level need
 	var factors func(n expr.Node, need int, noSign bool)
 	factors = func(n expr.Node, need int, noSign bool) {
@@ -483,14 +483,14 @@ func (m *ExprML) WritePieces(b stringWriter, n expr.Node, cut func(newTerm bool)
 		terms(bin.X)
 		cut(true)
 		b.WriteString("<mo form=\"infix\">")
-		b.WriteString(opML[bin.Op])
+		b.WriteString(OpML[bin.Op])
 		b.WriteString("</mo>")
 		factors(bin.Y, lvPar, true)
 	}
 	terms(n)
 }
 
-func isConstant(name string) bool { return name == "pi" || name == "π" || name == "j" }
+func IsConstant(name string) bool { return name == "pi" || name == "π" || name == "j" }
 
 func unparen(n expr.Node) expr.Node {
 	for {
@@ -506,12 +506,12 @@ func numLiteral(text string) string {
 	if m, e, ok := strings.Cut(strings.ToLower(text), "e"); ok {
 		e = strings.TrimPrefix(e, "+")
 		e = strings.Replace(e, "-", "−", 1)
-		return "<mrow><mn>" + esc(m) + "</mn><mo>×</mo><msup><mn>10</mn><mn>" + esc(e) + "</mn></msup></mrow>"
+		return "<mrow><mn>" + Esc(m) + "</mn><mo>×</mo><msup><mn>10</mn><mn>" + Esc(e) + "</mn></msup></mrow>"
 	}
-	return "<mn>" + esc(text) + "</mn>"
+	return "<mn>" + Esc(text) + "</mn>"
 }
 
-func (m *ExprML) call(b stringWriter, n *expr.Call) {
+func (m *ExprML) call(b StringWriter, n *expr.Call) {
 	if len(n.Args) == 1 {
 		switch n.Fun.Name {
 		case "sqrt":
@@ -542,7 +542,7 @@ func (m *ExprML) call(b stringWriter, n *expr.Call) {
 		b.WriteString(NameML(name))
 	} else {
 		b.WriteString("<mi>")
-		b.WriteString(esc(greekOf(name)))
+		b.WriteString(Esc(GreekOf(name)))
 		b.WriteString("</mi>")
 	}
 	b.WriteString("<mo>(</mo>")

@@ -1,4 +1,4 @@
-package render
+package markup
 
 import (
 	"strings"
@@ -52,13 +52,13 @@ func (l *labelText) name(name string) {
 		return
 	}
 	b, sub, hasSub := strings.Cut(name, "_")
-	l.base(greekOf(b))
+	l.base(GreekOf(b))
 	if !hasSub || sub == "" {
 		return
 	}
 	parts := strings.Split(sub, "_")
 	for i, p := range parts {
-		parts[i] = greekOf(p)
+		parts[i] = GreekOf(p)
 	}
 	l.add(strings.Join(parts, ","), svg.ShiftSub)
 }
@@ -66,7 +66,7 @@ func (l *labelText) name(name string) {
 // unit appends a unit: its text as the sheet writes it, an exponent
 // ("m^2") raised.
 func (l *labelText) unit(u string) {
-	t := unitText(u)
+	t := UnitText(u)
 	for t != "" {
 		i := strings.IndexByte(t, '^')
 		if i < 0 {

@@ -1,4 +1,4 @@
-package render
+package markup
 
 import (
 	"math"
@@ -20,7 +20,7 @@ const maxCheckDigits = 15
 // the check's own sense: for == and ≠ not within expr.EqualTolerance, for
 // <, ≤, >, ≥ not exactly equal. disp is the display the row shows every
 // side in.
-func checkRowDigits(vals []*expr.Scalar, ops []expr.Kind, disp *expr.Display, digits int) int {
+func CheckRowDigits(vals []*expr.Scalar, ops []expr.Kind, disp *expr.Display, digits int) int {
 	dg := digits
 	for i, op := range ops {
 		if i+1 >= len(vals) {

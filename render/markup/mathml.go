@@ -1,4 +1,4 @@
-package render
+package markup
 
 import (
 	"html"
@@ -19,14 +19,14 @@ var greek = map[string]string{
 	"Sigma": "Σ", "Phi": "Φ", "Psi": "Ψ", "Omega": "Ω",
 }
 
-func greekOf(s string) string {
+func GreekOf(s string) string {
 	if g, ok := greek[s]; ok {
 		return g
 	}
 	return s
 }
 
-func esc(s string) string { return html.EscapeString(s) }
+func Esc(s string) string { return html.EscapeString(s) }
 
 // NameML typesets a name: the first "_" starts a subscript, spelled Greek
 // names become letters.
@@ -54,23 +54,23 @@ func nameML(name string) string {
 	base, sub, hasSub := strings.Cut(name, "_")
 	if hasSub && sub == "" {
 		// a name ending in "_" is another name than the one without it
-		return "<mi>" + esc(greekOf(base)) + "_</mi>"
+		return "<mi>" + Esc(GreekOf(base)) + "_</mi>"
 	}
-	b := "<mi>" + esc(greekOf(base)) + "</mi>"
+	b := "<mi>" + Esc(GreekOf(base)) + "</mi>"
 	if !hasSub {
 		return b
 	}
 	parts := strings.Split(sub, "_")
 	for i, p := range parts {
-		parts[i] = greekOf(p)
+		parts[i] = GreekOf(p)
 	}
-	return "<msub>" + b + "<mi>" + esc(strings.Join(parts, ",")) + "</mi></msub>"
+	return "<msub>" + b + "<mi>" + Esc(strings.Join(parts, ",")) + "</mi></msub>"
 }
 
 // NameHTML writes a name as HTML text with a <sub> subscript.
 func NameHTML(name string) string {
 	base, sub, hasSub := strings.Cut(name, "_")
-	b := esc(greekOf(base))
+	b := Esc(GreekOf(base))
 	if hasSub && sub == "" {
 		return "<var>" + b + "_</var>"
 	}
@@ -79,9 +79,9 @@ func NameHTML(name string) string {
 	}
 	parts := strings.Split(sub, "_")
 	for i, p := range parts {
-		parts[i] = greekOf(p)
+		parts[i] = GreekOf(p)
 	}
-	return "<var>" + b + "<sub>" + esc(strings.Join(parts, ",")) + "</sub></var>"
+	return "<var>" + b + "<sub>" + Esc(strings.Join(parts, ",")) + "</sub></var>"
 }
 
 // numML typesets a number written by the formatter: "-" becomes a minus
@@ -94,9 +94,9 @@ func numML(s string) string {
 	var out string
 	if m, e, ok := strings.Cut(s, "e"); ok {
 		e = strings.Replace(e, "-", "−", 1)
-		out = "<mn>" + esc(m) + "</mn><mo>×</mo><msup><mn>10</mn><mn>" + esc(e) + "</mn></msup>"
+		out = "<mn>" + Esc(m) + "</mn><mo>×</mo><msup><mn>10</mn><mn>" + Esc(e) + "</mn></msup>"
 	} else {
-		out = "<mn>" + esc(s) + "</mn>"
+		out = "<mn>" + Esc(s) + "</mn>"
 	}
 	if neg {
 		// the sign belongs to the number: no operator spacing
@@ -108,7 +108,7 @@ func numML(s string) string {
 // unitText writes a unit for display: "mm^2" becomes "mm²", "*" becomes "·".
 var unitReplacer = strings.NewReplacer("^2", "²", "^3", "³", "^-1", "⁻¹", "^-2", "⁻²", "^-3", "⁻³", "*", "·")
 
-func unitText(u string) string {
+func UnitText(u string) string {
 	u = unitReplacer.Replace(u)
 	// an ASCII "u" prefix reads as µ
 	if len(u) > 1 && u[0] == 'u' && u != "unit" {
@@ -117,7 +117,7 @@ func unitText(u string) string {
 	return u
 }
 
-func unitML(u string) string {
+func UnitML(u string) string {
 	if v, ok := unitCache.Load(u); ok {
 		return v.(string)
 	}
@@ -135,7 +135,7 @@ func unitML1(u string) string {
 	if u == "°" {
 		return "<mo>°</mo>"
 	}
-	return "<mspace width=\"0.25em\"/><mi mathvariant=\"normal\">" + esc(unitText(u)) + "</mi>"
+	return "<mspace width=\"0.25em\"/><mi mathvariant=\"normal\">" + Esc(UnitText(u)) + "</mi>"
 }
 
 // ShownML typesets a shown value. paren wraps a value that is not a
@@ -175,7 +175,7 @@ func shownML(s expr.Shown) string {
 			num = "<mo>(</mo>" + num + "<mo>)</mo>"
 		}
 	}
-	return num + unitML(s.Unit)
+	return num + UnitML(s.Unit)
 }
 
 // shownForm is the typesetting level of a shown value (see form).
@@ -232,7 +232,7 @@ func ValueML(v expr.Value, d *expr.Display, digits int, paren bool) string {
 			b.WriteString("<mtr>")
 			for j := 0; j < x.Cols; j++ {
 				e := x.At(i, j)
-				b.WriteString("<mtd>" + ShownML(expr.FormatScalar(&e, d, digits), false) + senseML(&e) + "</mtd>")
+				b.WriteString("<mtd>" + ShownML(expr.FormatScalar(&e, d, digits), false) + SenseML(&e) + "</mtd>")
 			}
 			b.WriteString("</mtr>")
 		}
