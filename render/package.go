@@ -480,7 +480,7 @@ func atoi(s string) int {
 }
 
 // verifyPackage verifies every sheet of a package and its cover.
-func verifyPackage(page []byte, version string) (*Report, error) {
+func verifyPackage(page []byte, version string, kinds *calcdoc.Registry) (*Report, error) {
 	rep := &Report{Package: true}
 	// the sheets: each section runs to the next one, or to </body>
 	var starts []int
@@ -535,7 +535,7 @@ func verifyPackage(page []byte, version string) (*Report, error) {
 				Message: fmt.Sprintf("sheet %d carries no embedded source", k)}}})
 			continue
 		}
-		res := rec.check(unit, lineBase, version, func(doc *calcdoc.Document, opt Options) ([]byte, error) {
+		res := rec.check(unit, lineBase, version, kinds, func(doc *calcdoc.Document, opt Options) ([]byte, error) {
 			return packageSection(doc, opt, k)
 		})
 		res.Index = k

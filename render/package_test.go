@@ -11,6 +11,7 @@ import (
 	"testing"
 
 	"calcdoc/calcdoc"
+	"calcdoc/calcdoc/kind"
 	"calcdoc/calcdoc/stamp"
 	"calcdoc/render/pdf"
 	"calcdoc/render/pdf/pdftest"
@@ -71,7 +72,7 @@ func buildPackage(t *testing.T, dir string, files []pkgFile) ([]byte, []string) 
 		paths = append(paths, p)
 		st := &StampInfo{SHA256: stamp.Hash([]byte(f.src)), Commit: "0123456789abcdef0123456789abcdef01234567",
 			CommitDate: "2026-11-05T08:00:00Z", State: stamp.Clean, Detail: "source is as committed"}
-		sheets = append(sheets, PackageSheet{Doc: calcdoc.Parse(f.name, []byte(f.src), Standard()), Options: Options{Version: "test", Stamp: st, EmbedSource: true}})
+		sheets = append(sheets, PackageSheet{Doc: calcdoc.Parse(f.name, []byte(f.src), kind.Standard()), Options: Options{Version: "test", Stamp: st, EmbedSource: true}})
 	}
 	page, err := Package(pkgInfo, sheets, "test")
 	if err != nil {
@@ -185,7 +186,7 @@ func TestVerifyPackage(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			rep, err := Verify([]byte(c.edit(t, string(page))), "test")
+			rep, err := Verify([]byte(c.edit(t, string(page))), "test", kind.Standard())
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -317,7 +318,7 @@ func TestPackagePDF(t *testing.T) {
 	var sheets []PackageSheet
 	for _, f := range pkgFiles {
 		st := &StampInfo{SHA256: stamp.Hash([]byte(f.src)), State: stamp.Clean}
-		sheets = append(sheets, PackageSheet{Doc: calcdoc.Parse(f.name, []byte(f.src), Standard()), Options: Options{Version: "test", Stamp: st, EmbedSource: true}})
+		sheets = append(sheets, PackageSheet{Doc: calcdoc.Parse(f.name, []byte(f.src), kind.Standard()), Options: Options{Version: "test", Stamp: st, EmbedSource: true}})
 	}
 	page2, err := Package(info, sheets, "test")
 	if err != nil {

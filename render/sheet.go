@@ -1,7 +1,7 @@
 // Package render writes a calculation sheet: one self-contained HTML file
 // per document, with inline CSS, no outside resource and no script. Prose
 // is rendered by goldmark; evaluated blocks are drawn by the renderer
-// of their kind (Drawer), as goldmark renders by node kind.
+// of their kind (markup.Drawer), as goldmark renders by node kind.
 package render
 
 import (
@@ -37,12 +37,6 @@ type Options struct {
 	// HeadExtra is raw HTML added at the end of <head> (the live preview's
 	// reload script); built files leave it empty.
 	HeadExtra string
-}
-
-// Drawer is a block kind's drawing: a kind of the document's registry
-// that implements it draws its blocks into the sheet.
-type Drawer interface {
-	Draw(w *markup.Writer, b *calcdoc.Block)
 }
 
 // Sheet writes the HTML sheet of a document.
@@ -264,7 +258,7 @@ func (n *nodes) fenced(out util.BufWriter, src []byte, node ast.Node, entering b
 	}
 	w := n.w
 	if b := w.Doc.BlockFor(node); b != nil {
-		if d, ok := b.KindOf().(Drawer); ok {
+		if d, ok := b.KindOf().(markup.Drawer); ok {
 			d.Draw(w, b)
 			return ast.WalkSkipChildren, nil
 		}

@@ -8,6 +8,7 @@ import (
 	"testing"
 
 	"calcdoc/calcdoc"
+	"calcdoc/calcdoc/kind"
 	"calcdoc/calcdoc/stamp"
 )
 
@@ -72,7 +73,7 @@ func builtSheet(t *testing.T, path string) string {
 	if err != nil {
 		t.Fatal(err)
 	}
-	doc := calcdoc.Parse(path, src, Standard())
+	doc := calcdoc.Parse(path, src, kind.Standard())
 	st := stamp.Of(path, src)
 	page, err := Sheet(doc, Options{Version: "test", Stamp: &st, EmbedSource: true})
 	if err != nil {

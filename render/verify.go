@@ -119,15 +119,16 @@ func (r *Report) OK() bool {
 // the stated hashes fit that source. It is not a signature: whoever can
 // edit the file can build a consistent sheet from another source; the
 // hash is what ties the sheet to the source kept under version control.
-func Verify(page []byte, version string) (*Report, error) {
+// The source is evaluated again with kinds (calcdoc/kind.Standard()).
+func Verify(page []byte, version string, kinds *calcdoc.Registry) (*Report, error) {
 	if bytes.Contains(page, []byte(pkgSheetOpen)) {
-		return verifyPackage(page, version)
+		return verifyPackage(page, version, kinds)
 	}
 	rec, err := readSheet(page, "")
 	if err != nil {
 		return nil, err
 	}
-	res := rec.check(page, 1, version, func(doc *calcdoc.Document, opt Options) ([]byte, error) {
+	res := rec.check(page, 1, version, kinds, func(doc *calcdoc.Document, opt Options) ([]byte, error) {
 		return Sheet(doc, opt)
 	})
 	return &Report{Sheets: []*SheetResult{res}}, nil
@@ -237,7 +238,7 @@ func parseState(s string) (stamp.State, bool) {
 // check verifies the record against unit, the bytes of the sheet as the
 // file holds them, rendering the source again with render. lineBase is the
 // line of the file on which unit starts.
-func (rec *sheetRecord) check(unit []byte, lineBase int, version string, render func(*calcdoc.Document, Options) ([]byte, error)) *SheetResult {
+func (rec *sheetRecord) check(unit []byte, lineBase int, version string, kinds *calcdoc.Registry, render func(*calcdoc.Document, Options) ([]byte, error)) *SheetResult {
 	res := &SheetResult{Path: rec.path, SheetVersion: rec.opt.Version, Version: version}
 	if rec.opt.Stamp != nil {
 		res.StatedSHA256 = rec.opt.Stamp.SHA256
@@ -264,7 +265,7 @@ func (rec *sheetRecord) check(unit []byte, lineBase int, version string, render 
 		res.Differences = append(res.Differences, Difference{Kind: "hash", Sheet: res.StatedSHA256, Source: res.SHA256,
 			Message: fmt.Sprintf("hash: the embedded source's SHA-256 is %s, but the sheet's stamp states %s: the sheet is not the one built from this source", res.SHA256, orDash(res.StatedSHA256))})
 	}
-	doc := calcdoc.Parse(rec.path, rec.source, Standard())
+	doc := calcdoc.Parse(rec.path, rec.source, kinds)
 	fresh, err := render(doc, rec.opt)
 	if err != nil {
 		res.Differences = append(res.Differences, Difference{Kind: "record", Message: "the source cannot be rendered again: " + err.Error()})

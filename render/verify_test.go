@@ -8,6 +8,7 @@ import (
 	"testing"
 
 	"calcdoc/calcdoc"
+	"calcdoc/calcdoc/kind"
 	"calcdoc/calcdoc/stamp"
 )
 
@@ -20,7 +21,7 @@ func verifyStamp(src []byte) *StampInfo {
 
 func verifySheet(t *testing.T, path, src, version string) []byte {
 	t.Helper()
-	doc := calcdoc.Parse(path, []byte(src), Standard())
+	doc := calcdoc.Parse(path, []byte(src), kind.Standard())
 	page, err := Sheet(doc, Options{Version: version, Stamp: verifyStamp([]byte(src)), EmbedSource: true})
 	if err != nil {
 		t.Fatal(err)
@@ -98,7 +99,7 @@ func TestVerifySheet(t *testing.T) {
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
 			page := c.edit(t, string(orig))
-			rep, err := Verify([]byte(page), "0.1.0")
+			rep, err := Verify([]byte(page), "0.1.0", kind.Standard())
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -135,7 +136,7 @@ func TestVerifySheet(t *testing.T) {
 func TestVerifyNamesValueAndLine(t *testing.T) {
 	page := string(verifySheet(t, "heater.md", stampDoc, "0.1.0"))
 	edited := replaceAfter(t, page, `data-value="R" data-line="10">`, "<mn>26.45</mn>", "<mn>26.54</mn>")
-	rep, err := Verify([]byte(edited), "0.1.0")
+	rep, err := Verify([]byte(edited), "0.1.0", kind.Standard())
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -157,7 +158,7 @@ func TestVerifyNamesValueAndLine(t *testing.T) {
 			break
 		}
 	}
-	rep, err = Verify([]byte(strings.Replace(page, "Stamp test, heater circuit</span>", "Stamp test, heater circuit!</span>", 1)), "0.1.0")
+	rep, err = Verify([]byte(strings.Replace(page, "Stamp test, heater circuit</span>", "Stamp test, heater circuit!</span>", 1)), "0.1.0", kind.Standard())
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -177,7 +178,7 @@ func TestVerifyBase64Source(t *testing.T) {
 	if !strings.Contains(string(page), `data-encoding="base64"`) {
 		t.Fatal("the source is not carried as base64")
 	}
-	rep, err := Verify(page, "0.1.0")
+	rep, err := Verify(page, "0.1.0", kind.Standard())
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -192,7 +193,7 @@ func TestVerifyBase64Source(t *testing.T) {
 	i := strings.Index(bad, `data-encoding="base64"`)
 	j := i + strings.Index(bad[i:], ">") + 1
 	bad = bad[:j] + "!!" + bad[j:]
-	rep, err = Verify([]byte(bad), "0.1.0")
+	rep, err = Verify([]byte(bad), "0.1.0", kind.Standard())
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -204,7 +205,7 @@ func TestVerifyBase64Source(t *testing.T) {
 // A sheet built by another version says so when it does not match.
 func TestVerifyVersionNote(t *testing.T) {
 	page := verifySheet(t, "heater.md", stampDoc, "0.0.9")
-	rep, err := Verify(page, "0.1.0")
+	rep, err := Verify(page, "0.1.0", kind.Standard())
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -216,7 +217,7 @@ func TestVerifyVersionNote(t *testing.T) {
 		t.Errorf("version note %q", n)
 	}
 	same := verifySheet(t, "heater.md", stampDoc, "0.1.0")
-	rep, _ = Verify(same, "0.1.0")
+	rep, _ = Verify(same, "0.1.0", kind.Standard())
 	if n := rep.Sheets[0].VersionNote(); n != "" {
 		t.Errorf("same version gives a note %q", n)
 	}
@@ -235,13 +236,13 @@ func TestVerifyNotASheet(t *testing.T) {
 		{"plain html", "<!DOCTYPE html><html><body><p>hello</p></body></html>"},
 		{"markdown source", string(src)},
 		{"sheet without embedded source", func() string {
-			doc := calcdoc.Parse("a.md", []byte(stampDoc), Standard())
+			doc := calcdoc.Parse("a.md", []byte(stampDoc), kind.Standard())
 			p, _ := Sheet(doc, Options{Version: "t", Stamp: verifyStamp([]byte(stampDoc))})
 			return string(p)
 		}()},
 	} {
 		t.Run(c.name, func(t *testing.T) {
-			rep, err := Verify([]byte(c.page), "0.1.0")
+			rep, err := Verify([]byte(c.page), "0.1.0", kind.Standard())
 			if !errors.Is(err, ErrNotSheet) || rep != nil {
 				t.Errorf("got %v, %v; want ErrNotSheet", rep, err)
 			}
@@ -272,13 +273,13 @@ func FuzzVerify(f *testing.F) {
 	f.Add(verifySheetBytes(strings.Replace(stampDoc, "heater", "h\xffeater", 1)))
 	var sheets []PackageSheet
 	for _, src := range []string{stampDoc, pkgDropDoc} {
-		sheets = append(sheets, PackageSheet{Doc: calcdoc.Parse("p.md", []byte(src), Standard()), Options: Options{Version: "f", Stamp: verifyStamp([]byte(src)), EmbedSource: true}})
+		sheets = append(sheets, PackageSheet{Doc: calcdoc.Parse("p.md", []byte(src), kind.Standard()), Options: Options{Version: "f", Stamp: verifyStamp([]byte(src)), EmbedSource: true}})
 	}
 	if page, err := Package(pkgInfo, sheets, "f"); err == nil {
 		f.Add(page)
 	}
 	f.Fuzz(func(t *testing.T, page []byte) {
-		rep, err := Verify(page, "f")
+		rep, err := Verify(page, "f", kind.Standard())
 		if err != nil {
 			if !errors.Is(err, ErrNotSheet) || rep != nil {
 				t.Fatalf("%v, %v", rep, err)
@@ -296,7 +297,7 @@ func FuzzVerify(f *testing.F) {
 }
 
 func verifySheetBytes(src string) []byte {
-	doc := calcdoc.Parse("f.md", []byte(src), Standard())
+	doc := calcdoc.Parse("f.md", []byte(src), kind.Standard())
 	page, _ := Sheet(doc, Options{Version: "f", Stamp: verifyStamp([]byte(src)), EmbedSource: true})
 	return page
 }

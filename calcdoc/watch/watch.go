@@ -35,6 +35,7 @@ import (
 	"time"
 
 	"calcdoc/calcdoc"
+	blockkind "calcdoc/calcdoc/kind"
 	"calcdoc/render"
 
 	"github.com/fsnotify/fsnotify"
@@ -630,7 +631,7 @@ func (w *Watcher) read(r *root, file string) ([]byte, readKind, string) {
 	if int64(len(src)) > maxSize {
 		return nil, readFailed, fmt.Sprintf("the file is larger than the %d bytes a document may have", maxSize)
 	}
-	if r.file == "" && !render.Standard().HasBlock(src) {
+	if r.file == "" && !blockkind.Standard().HasBlock(src) {
 		return nil, readAbsent, "holds no calc or solve block"
 	}
 	return src, readOK, ""
@@ -711,7 +712,7 @@ func (w *Watcher) rebuild(file string) bool {
 	if cur != nil && cur.src != nil && bytes.Equal(cur.src, src) {
 		return false // saved without a change
 	}
-	doc := calcdoc.Parse(display, src, render.Standard())
+	doc := calcdoc.Parse(display, src, blockkind.Standard())
 	p := &page{key: key, file: file, display: display, src: src, status: 200, version: w.nextVersion(), at: start,
 		values: len(doc.Values), checks: len(doc.Checks), failed: doc.FailedChecks(),
 		errors: len(doc.Errors), warning: len(doc.Warnings)}

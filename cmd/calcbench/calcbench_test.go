@@ -10,8 +10,8 @@ import (
 	"testing"
 
 	"calcdoc/calcdoc"
+	"calcdoc/calcdoc/kind"
 	"calcdoc/expr"
-	"calcdoc/render"
 )
 
 // TestQuantile checks the median and quartiles against NumPy's
@@ -122,7 +122,7 @@ func TestGenerate(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			d := calcdoc.Parse("gen.md", []byte(doc), render.Standard())
+			d := calcdoc.Parse("gen.md", []byte(doc), kind.Standard())
 			if len(d.Errors) > 0 {
 				t.Fatalf("%d errors, the first: %v", len(d.Errors), d.Errors[0])
 			}
@@ -234,7 +234,7 @@ func TestFeederArithmetic(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	d := calcdoc.Parse("gen.md", []byte(doc), render.Standard())
+	d := calcdoc.Parse("gen.md", []byte(doc), kind.Standard())
 	vn, zsrc := complex(230, 0), complex(0.02, 0.05)
 	for _, k := range []int{1, 7, 29, 66} {
 		t.Run(fmt.Sprintf("feeder %d", k), func(t *testing.T) {
@@ -268,7 +268,7 @@ func TestLadder(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			d := calcdoc.Parse("ladder.md", []byte(doc), render.Standard())
+			d := calcdoc.Parse("ladder.md", []byte(doc), kind.Standard())
 			if len(d.Errors) > 0 {
 				t.Fatal(d.Errors)
 			}

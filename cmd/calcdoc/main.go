@@ -13,6 +13,7 @@ import (
 	"strings"
 
 	"calcdoc/calcdoc"
+	"calcdoc/calcdoc/kind"
 	"calcdoc/calcdoc/stamp"
 	"calcdoc/render"
 )
@@ -166,7 +167,7 @@ func (c *cli) inputs(fs *flag.FlagSet, args []string) (inputs []calcdoc.Input, s
 	if len(paths) == 0 {
 		return nil, c.usageErr("%s needs at least one PATH", fs.Name())
 	}
-	inputs, err = calcdoc.Collect(paths, render.Standard())
+	inputs, err = calcdoc.Collect(paths, kind.Standard())
 	if err != nil {
 		return nil, c.usageErr("%v", err)
 	}
@@ -186,7 +187,7 @@ func (c *cli) build(args []string) int {
 	}
 	st := exitOK
 	for _, in := range inputs {
-		doc, err := calcdoc.Load(in.Path, render.Standard())
+		doc, err := calcdoc.Load(in.Path, kind.Standard())
 		if err != nil {
 			fmt.Fprintf(c.stderr, "calcdoc: %v\n", err)
 			st = max(st, exitUsage)
@@ -253,7 +254,7 @@ func (c *cli) check(args []string) int {
 	}
 	st := exitOK
 	for _, in := range inputs {
-		doc, err := calcdoc.Load(in.Path, render.Standard())
+		doc, err := calcdoc.Load(in.Path, kind.Standard())
 		if err != nil {
 			fmt.Fprintf(c.stderr, "calcdoc: %v\n", err)
 			st = max(st, exitUsage)
@@ -294,7 +295,7 @@ func (c *cli) values(args []string) int {
 	if info.IsDir() || filepath.Ext(paths[0]) != ".md" {
 		return c.usageErr("%s: values takes one .md document, not a folder", paths[0])
 	}
-	doc, err := calcdoc.Load(paths[0], render.Standard())
+	doc, err := calcdoc.Load(paths[0], kind.Standard())
 	if err != nil {
 		return c.usageErr("%v", err)
 	}

@@ -13,6 +13,7 @@ import (
 	"time"
 
 	"calcdoc/calcdoc"
+	"calcdoc/calcdoc/kind"
 	"calcdoc/render"
 	"calcdoc/render/pdf"
 
@@ -147,7 +148,7 @@ func (c *cli) pack(args []string) int {
 	default:
 		sheetPaths = paths
 	}
-	inputs, err := calcdoc.Collect(sheetPaths, render.Standard())
+	inputs, err := calcdoc.Collect(sheetPaths, kind.Standard())
 	if err != nil {
 		return c.usageErr("%v", err)
 	}
@@ -175,7 +176,7 @@ func (c *cli) pack(args []string) int {
 
 	var docs []*calcdoc.Document
 	for _, in := range inputs {
-		doc, err := calcdoc.Load(in.Path, render.Standard())
+		doc, err := calcdoc.Load(in.Path, kind.Standard())
 		if err != nil {
 			fmt.Fprintf(c.stderr, "calcdoc: %v\n", err)
 			return exitUsage

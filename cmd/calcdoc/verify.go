@@ -1,6 +1,7 @@
 package main
 
 import (
+	"calcdoc/calcdoc/kind"
 	"fmt"
 	"os"
 
@@ -32,7 +33,7 @@ func (c *cli) verify(args []string) int {
 			st = max(st, exitUsage)
 			continue
 		}
-		rep, err := render.Verify(page, version)
+		rep, err := render.Verify(page, version, kind.Standard())
 		if err != nil { // render.ErrNotSheet
 			fmt.Fprintf(c.stderr, "calcdoc: %s: %v\n", p, err)
 			st = max(st, exitUsage)

@@ -1,4 +1,4 @@
-package render
+package sweep
 
 import (
 	"bytes"
@@ -12,13 +12,14 @@ import (
 	"testing"
 
 	"calcdoc/calcdoc"
+	"calcdoc/render"
 )
 
 // picSheet evaluates a document made of lines and writes its sheet.
 func picSheet(t testing.TB, lines ...string) (string, *calcdoc.Document) {
 	t.Helper()
-	d := calcdoc.Parse("pictures_test.md", []byte(strings.Join(lines, "\n")+"\n"), Standard())
-	out, err := Sheet(d, Options{Version: "test"})
+	d := calcdoc.Parse("pictures_test.md", []byte(strings.Join(lines, "\n")+"\n"), testKinds)
+	out, err := render.Sheet(d, render.Options{Version: "test"})
 	if err != nil {
 		t.Fatalf("Sheet: %v", err)
 	}
@@ -583,11 +584,11 @@ func BenchmarkSweepBuild10k(b *testing.B) {
 	b.ReportAllocs()
 	var size int
 	for b.Loop() {
-		d := calcdoc.Parse("bench.md", src, Standard())
+		d := calcdoc.Parse("bench.md", src, testKinds)
 		if len(d.Errors) != 0 {
 			b.Fatal(d.Errors)
 		}
-		out, err := Sheet(d, Options{Version: "bench"})
+		out, err := render.Sheet(d, render.Options{Version: "bench"})
 		if err != nil || !bytes.Contains(out, []byte("<polyline")) {
 			b.Fatal(err)
 		}

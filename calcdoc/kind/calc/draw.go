@@ -1,4 +1,4 @@
-package render
+package calc
 
 import (
 	"calcdoc/calcdoc"

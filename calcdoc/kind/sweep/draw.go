@@ -1,4 +1,4 @@
-package render
+package sweep
 
 import (
 	"fmt"
@@ -16,78 +16,6 @@ import (
 // logDecades is the ratio of the largest to the smallest plotted value
 // from which a sweep plot's y axis is logarithmic (two decades).
 const logDecades = 100
-
-// renderPhasors draws a phasors block: a figure with the inline SVG
-// diagram and a caption that holds the block's caption line and the value
-// of every arrow, then the block's errors.
-func renderPhasors(w *markup.Writer, b *calcdoc.Block) {
-	res, _ := b.Result.(*calcdoc.Phasors)
-	w.Printf("<div class=\"block phasors\" id=\"B%d\">\n", b.Pos.Line)
-	w.Printf("<figure class=\"phasors\" id=\"L%d\">\n", b.InfoPos.Line)
-	var arrows []svg.Arrow
-	var vals []string
-	if res != nil {
-		arrows = phasorArrows(res)
-		f := w.ExprMLFor(false, nil)
-		for _, it := range res.Items {
-			if !it.OK() {
-				continue
-			}
-			var lhs string
-			if id, ok := it.Node.(*expr.Ident); ok {
-				lhs = markup.NameML(id.Name)
-			} else {
-				lhs = f.Node(it.Node, false)
-			}
-			vals = append(vals, markup.Math(lhs+"<mo>=</mo>"+markup.ValueML(it.Value, it.Display, w.Digits(), false)))
-		}
-	}
-	if len(arrows) > 0 {
-		pic, err := svg.PhasorDiagram(arrows, "")
-		if err != nil {
-			if len(b.DrawErrors) == 0 { // else shown with the block's errors
-				w.ErrorRow(phasorDrawErr(b, err))
-			}
-		} else {
-			w.WriteString(pic)
-		}
-	}
-	w.WriteString("<figcaption>")
-	if res != nil && res.Caption != "" {
-		w.WriteString(markup.Esc(res.Caption))
-	}
-	if len(vals) > 0 {
-		if res.Caption != "" {
-			w.WriteString("<br>")
-		}
-		w.Printf("<span class=\"vals\">%s</span>", strings.Join(vals, "; "))
-	}
-	w.WriteString("</figcaption>\n</figure>\n")
-	for _, e := range b.Errors {
-		w.ErrorRow(e)
-	}
-	if res != nil {
-		for _, it := range res.Items {
-			if it.Unavailable != nil {
-				w.UnavailableRow(it.Unavailable)
-			}
-		}
-	}
-	w.WriteString("</div>\n")
-}
-
-// phasorArrows are the arrows of a phasor diagram: one per entry with a
-// value, in order, labelled as the sheet typesets the entry, each from its
-// tail (the tip of the entry it is drawn from, or the origin).
-func phasorArrows(res *calcdoc.Phasors) []svg.Arrow {
-	var arrows []svg.Arrow
-	for _, it := range res.Items {
-		if it.OK() {
-			arrows = append(arrows, svg.Arrow{Label: it.Text, Runs: markup.LabelRuns(it.Node), Re: it.Re, Im: it.Im, X0: it.X0, Y0: it.Y0, Scale: it.Unit})
-		}
-	}
-	return arrows
-}
 
 // renderSweep draws a sweep block: a head naming the range, one row per
 // line with its formula, a table of a readable subset of the points

@@ -1,9 +1,8 @@
-package render
+package sweep
 
 import (
 	"calcdoc/calcdoc"
 	"calcdoc/expr"
-	"calcdoc/render/svg"
 )
 
 // The pictures of phasors and sweep blocks are checked for drawability as
@@ -12,27 +11,6 @@ import (
 // error of the document: the summary counts it, the exit status is 3 and
 // the values JSON lists it. The sheet shows each such error once, where
 // its picture would be.
-// checkPhasorsDrawing reports a phasor diagram that cannot be drawn.
-func checkPhasorsDrawing(b *calcdoc.Block) []*expr.Error {
-	res, _ := b.Result.(*calcdoc.Phasors)
-	if res == nil {
-		return nil
-	}
-	arrows := phasorArrows(res)
-	if len(arrows) == 0 {
-		return nil
-	}
-	if err := svg.CheckPhasors(arrows); err != nil {
-		return []*expr.Error{phasorDrawErr(b, err)}
-	}
-	return nil
-}
-
-// phasorDrawErr is the error of a phasor diagram that cannot be drawn.
-func phasorDrawErr(b *calcdoc.Block, err error) *expr.Error {
-	return expr.Errorf(b.InfoPos, "the diagram could not be drawn: %s", err.Error())
-}
-
 // checkSweepDrawing reports each plot of a sweep that cannot be drawn.
 func checkSweepDrawing(b *calcdoc.Block) []*expr.Error {
 	sw, _ := b.Result.(*calcdoc.Sweep)

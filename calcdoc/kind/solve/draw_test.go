@@ -1,4 +1,4 @@
-package render
+package solve
 
 import (
 	"encoding/xml"
@@ -12,13 +12,14 @@ import (
 
 	"calcdoc/calcdoc"
 	"calcdoc/expr"
+	"calcdoc/render"
 	"calcdoc/render/markup"
 )
 
 func solveSheet(t *testing.T, src string) (*calcdoc.Document, string) {
 	t.Helper()
-	doc := calcdoc.Parse("solve.md", []byte(src), Standard())
-	html, err := Sheet(doc, Options{Version: "test"})
+	doc := calcdoc.Parse("solve.md", []byte(src), testKinds)
+	html, err := render.Sheet(doc, render.Options{Version: "test"})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -224,7 +225,7 @@ func TestSolveSheetErrors(t *testing.T) {
 func TestSolveSheetExamples(t *testing.T) {
 	for _, name := range []string{"feeder-regulator-nodal", "parallel-transformers-mesh", "service-cable-constant-power"} {
 		t.Run(name, func(t *testing.T) {
-			src, err := os.ReadFile(filepath.Join("..", "examples", name+".md"))
+			src, err := os.ReadFile(filepath.Join("..", "..", "..", "examples", name+".md"))
 			if err != nil {
 				t.Fatal(err)
 			}
