@@ -1,6 +1,6 @@
 package calcdoc_test
 
-import "calcdoc/calcdoc"
+import "calcdoc/calcdoc/kind"
 
-// kinds are the kinds of this package's external tests.
-var kinds = calcdoc.NewRegistry(calcdoc.CalcKind, calcdoc.SolveKind, calcdoc.PhasorsKind, calcdoc.SweepKind)
+// kinds are the shipped kinds, which this package's external tests use.
+var kinds = kind.Standard()

@@ -1,13 +1,13 @@
-package calcdoc
+package calcdoc_test
 
 import (
 	"os"
 	"path/filepath"
 	"testing"
-)
 
-// testKinds are the kinds of this package's tests.
-var testKinds = NewRegistry(CalcKind, SolveKind, PhasorsKind, SweepKind)
+	"calcdoc/calcdoc"
+	"calcdoc/calcdoc/kind/calc"
+)
 
 // A document is a calculation when a fenced block starts with a word of
 // the registry (LANGUAGE.md: the info string's first word names the kind),
@@ -25,7 +25,7 @@ func TestHasBlock(t *testing.T) {
 		"    ```calc\n    x = 1\n":              false, // an indented code block, not a fence
 		"```sweep f from 1 Hz to 2 Hz\n```":     true,
 	} {
-		if testKinds.HasBlock([]byte(src)) != want {
+		if kinds.HasBlock([]byte(src)) != want {
 			t.Errorf("HasBlock(%q) != %v", src, want)
 		}
 	}
@@ -42,7 +42,7 @@ func TestCollectFindsBlockInBlockquote(t *testing.T) {
 	}
 	write("quoted.md", "# Note\n\n> ```calc\n> x = 1 V\n> ```\n")
 	write("script.md", "# Script\n\n```python\nx = 1\n```\n")
-	in, err := Collect([]string{dir}, testKinds)
+	in, err := calcdoc.Collect([]string{dir}, kinds)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -50,7 +50,7 @@ func TestCollectFindsBlockInBlockquote(t *testing.T) {
 		t.Fatalf("collected %v, want only quoted.md", in)
 	}
 	// named, the quoted document evaluates its block
-	d, err := Load(in[0].Path, testKinds)
+	d, err := calcdoc.Load(in[0].Path, kinds)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -62,7 +62,7 @@ func TestCollectFindsBlockInBlockquote(t *testing.T) {
 	if err := os.WriteFile(filepath.Join(only, "script.md"), []byte("```python\nx = 1\n```\n"), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	if _, err := Collect([]string{only}, testKinds); err == nil {
+	if _, err := calcdoc.Collect([]string{only}, kinds); err == nil {
 		t.Error("a folder with only a python block gave no error")
 	}
 }
@@ -74,5 +74,5 @@ func TestRegistryDuplicateWord(t *testing.T) {
 			t.Error("no panic for a word owned twice")
 		}
 	}()
-	NewRegistry(CalcKind, CalcKind)
+	calcdoc.NewRegistry(calc.Kind, calc.Kind)
 }

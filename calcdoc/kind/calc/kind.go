@@ -15,7 +15,7 @@ type kind struct{}
 func (kind) Words() []string { return []string{"calc"} }
 
 // Eval evaluates a calc block.
-func (kind) Eval(b *calcdoc.Block) { calcdoc.CalcKind.Eval(b) }
+func (kind) Eval(b *calcdoc.Block) { evalCalc(b) }
 
 // Draw draws an evaluated calc block into the sheet.
 func (kind) Draw(w *markup.Writer, b *calcdoc.Block) { renderCalc(w, b) }

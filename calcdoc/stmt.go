@@ -31,9 +31,6 @@ func (s *Stmt) Display() *expr.Display {
 	return nil
 }
 
-// CalcKind evaluates calc blocks.
-var CalcKind Kind = wordKind{"calc", evalCalc}
-
 // Text returns the source between two positions of the block.
 func (b *Block) Text(from, to expr.Pos) string {
 	var parts []string
@@ -166,13 +163,4 @@ func errorsOf(stmts []expr.Stmt, errs expr.ErrorList) (per [][]*expr.Error, rest
 		}
 	}
 	return per, rest
-}
-
-func evalCalc(b *Block) {
-	if b.Arg != "" {
-		b.Errorf(b.ArgPos, "a calc block takes nothing after the word calc (found %q)", b.Arg)
-	}
-	var errs expr.ErrorList
-	stmts := expr.ParseBlock(b.Source(), expr.CalcMode, &errs)
-	b.Result = EvalStatements(b, stmts, errs)
 }
