@@ -1,6 +1,8 @@
 package calcdoc
 
 import (
+	"unicode/utf8"
+
 	"calcdoc/expr"
 
 	"github.com/yuin/goldmark/ast"
@@ -48,3 +50,31 @@ func (b *Block) AddValue(v *NamedValue) { b.doc.Values = append(b.doc.Values, v)
 
 // AddCheck lists a check among the document's checks.
 func (b *Block) AddCheck(c *CheckRecord) { b.doc.Checks = append(b.doc.Checks, c) }
+
+// SplitTopLevel splits s at the commas outside parentheses and brackets,
+// returning each part with its byte offset in s.
+func SplitTopLevel(s string) (parts []string, offs []int) {
+	depth, start := 0, 0
+	for i := 0; i < len(s); i++ {
+		switch s[i] {
+		case '(', '[':
+			depth++
+		case ')', ']':
+			if depth > 0 {
+				depth--
+			}
+		case ',':
+			if depth == 0 {
+				parts, offs = append(parts, s[start:i]), append(offs, start)
+				start = i + 1
+			}
+		}
+	}
+	return append(parts, s[start:]), append(offs, start)
+}
+
+// ArgAt is the position of byte offset off of the block's argument (the
+// argument lies on the fence line, so only the column moves).
+func (b *Block) ArgAt(off int) expr.Pos {
+	return expr.Pos{Line: b.ArgPos.Line, Col: b.ArgPos.Col + utf8.RuneCountInString(b.Arg[:off])}
+}

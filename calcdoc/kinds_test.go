@@ -5,6 +5,7 @@ import (
 	"testing"
 
 	"calcdoc/calcdoc"
+	"calcdoc/calcdoc/kind/phasors"
 	"calcdoc/expr"
 )
 
@@ -148,7 +149,7 @@ func TestPhasorPowerKinds(t *testing.T) {
 			if b.Kind != "phasors" {
 				continue
 			}
-			for _, it := range b.Result.(*calcdoc.Phasors).Items {
+			for _, it := range b.Result.(*phasors.Phasors).Items {
 				if it.Unit != tc.unit {
 					t.Errorf("phasors %s: %s drawn in %s, want %s", tc.list, it.Text, it.Unit, tc.unit)
 				}

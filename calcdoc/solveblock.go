@@ -366,7 +366,7 @@ func ParseSolveHeader(arg string, pos expr.Pos) ([]*Unknown, expr.ErrorList) {
 	// counts in characters
 	type span struct{ a, b int }
 	var parts []span
-	texts, offs := splitTopLevel(arg)
+	texts, offs := SplitTopLevel(arg)
 	a, prev := 0, 0 // characters before offs[i], counted on from the last part
 	for i, t := range texts {
 		a += utf8.RuneCountInString(arg[prev:offs[i]])

@@ -258,7 +258,7 @@ func parseSweepHeader(b *Block, sw *Sweep) bool {
 	restOff := eq + 1
 	dd := strings.Index(arg[restOff:], "..")
 	if dd < 0 {
-		b.Errorf(b.argPos(restOff), "the sweep range has no \"..\" between its start and its stop: %s", sweepUsage)
+		b.Errorf(b.ArgAt(restOff), "the sweep range has no \"..\" between its start and its stop: %s", sweepUsage)
 		return false
 	}
 	startOff, stopOff := restOff, restOff+dd+2
@@ -281,10 +281,10 @@ func parseSweepHeader(b *Block, sw *Sweep) bool {
 			if k := len(words) - 2; !logSeen && words[k].text == "log" && k > 0 {
 				before = words[k].off
 			}
-			if !parsesClean(stopText[:before], b.argPos(stopOff)) {
+			if !parsesClean(stopText[:before], b.ArgAt(stopOff)) {
 				break
 			}
-			nWord, nPos = w.text, b.argPos(stopOff+w.off)
+			nWord, nPos = w.text, b.ArgAt(stopOff+w.off)
 		} else {
 			break
 		}
@@ -424,7 +424,7 @@ type sweepEndValue struct {
 // at byte offset off of b.Arg.
 func sweepEnd(b *Block, sw *Sweep, what, text string, off int) (sweepEndValue, bool) {
 	lead := len(text) - len(strings.TrimLeft(text, " \t"))
-	pos := b.argPos(off + lead)
+	pos := b.ArgAt(off + lead)
 	text = strings.TrimSpace(text)
 	if text == "" {
 		b.Errorf(pos, "the sweep range has no %s: %s", what, sweepUsage)

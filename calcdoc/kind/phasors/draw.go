@@ -13,7 +13,7 @@ import (
 // diagram and a caption that holds the block's caption line and the value
 // of every arrow, then the block's errors.
 func renderPhasors(w *markup.Writer, b *calcdoc.Block) {
-	res, _ := b.Result.(*calcdoc.Phasors)
+	res, _ := b.Result.(*Phasors)
 	w.Printf("<div class=\"block phasors\" id=\"B%d\">\n", b.Pos.Line)
 	w.Printf("<figure class=\"phasors\" id=\"L%d\">\n", b.InfoPos.Line)
 	var arrows []svg.Arrow
@@ -71,7 +71,7 @@ func renderPhasors(w *markup.Writer, b *calcdoc.Block) {
 // phasorArrows are the arrows of a phasor diagram: one per entry with a
 // value, in order, labelled as the sheet typesets the entry, each from its
 // tail (the tip of the entry it is drawn from, or the origin).
-func phasorArrows(res *calcdoc.Phasors) []svg.Arrow {
+func phasorArrows(res *Phasors) []svg.Arrow {
 	var arrows []svg.Arrow
 	for _, it := range res.Items {
 		if it.OK() {
@@ -83,7 +83,7 @@ func phasorArrows(res *calcdoc.Phasors) []svg.Arrow {
 
 // checkPhasorsDrawing reports a phasor diagram that cannot be drawn.
 func checkPhasorsDrawing(b *calcdoc.Block) []*expr.Error {
-	res, _ := b.Result.(*calcdoc.Phasors)
+	res, _ := b.Result.(*Phasors)
 	if res == nil {
 		return nil
 	}

@@ -16,7 +16,7 @@ type kind struct{}
 func (kind) Words() []string { return []string{"phasors"} }
 
 // Eval evaluates a phasors block.
-func (kind) Eval(b *calcdoc.Block) { calcdoc.PhasorsKind.Eval(b) }
+func (kind) Eval(b *calcdoc.Block) { evalPhasors(b) }
 
 // Draw draws an evaluated phasors block into the sheet.
 func (kind) Draw(w *markup.Writer, b *calcdoc.Block) { renderPhasors(w, b) }

@@ -1,6 +1,7 @@
-package calcdoc
+package phasors
 
 import (
+	"calcdoc/calcdoc"
 	"strings"
 
 	"calcdoc/expr"
@@ -42,7 +43,7 @@ func isBlank(c byte) bool { return c == ' ' || c == '\t' }
 // "NAME from OTHER" counts: its arrow is NAME's). It records an
 // error (or, when that entry has no value, the entry as not evaluated)
 // and returns false when there is none.
-func resolveFrom(b *Block, res *Phasors, it *PhasorItem) bool {
+func resolveFrom(b *calcdoc.Block, res *Phasors, it *PhasorItem) bool {
 	fail := func(format string, args ...any) bool {
 		it.Err = expr.Errorf(it.FromPos, format, args...)
 		b.Errors = append(b.Errors, it.Err)

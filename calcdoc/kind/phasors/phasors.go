@@ -1,10 +1,10 @@
-package calcdoc
+package phasors
 
 import (
+	"calcdoc/calcdoc"
 	"math"
 	"math/cmplx"
 	"strings"
-	"unicode/utf8"
 
 	"calcdoc/expr"
 )
@@ -64,37 +64,6 @@ type PhasorItem struct {
 // OK reports whether the entry has a value to draw.
 func (it *PhasorItem) OK() bool { return it.Value != nil && it.Err == nil && it.Unavailable == nil }
 
-// PhasorsKind evaluates phasors blocks.
-var PhasorsKind Kind = wordKind{"phasors", evalPhasors}
-
-// splitTopLevel splits s at the commas outside parentheses and brackets,
-// returning each part with its byte offset in s.
-func splitTopLevel(s string) (parts []string, offs []int) {
-	depth, start := 0, 0
-	for i := 0; i < len(s); i++ {
-		switch s[i] {
-		case '(', '[':
-			depth++
-		case ')', ']':
-			if depth > 0 {
-				depth--
-			}
-		case ',':
-			if depth == 0 {
-				parts, offs = append(parts, s[start:i]), append(offs, start)
-				start = i + 1
-			}
-		}
-	}
-	return append(parts, s[start:]), append(offs, start)
-}
-
-// argPos is the position of byte offset off of the block's argument (the
-// argument lies on the fence line, so only the column moves).
-func (b *Block) argPos(off int) expr.Pos {
-	return expr.Pos{Line: b.ArgPos.Line, Col: b.ArgPos.Col + utf8.RuneCountInString(b.Arg[:off])}
-}
-
 // evalPhasors evaluates a phasors block.
 //
 // The argument is a list of entries separated by commas outside
@@ -106,7 +75,7 @@ func (b *Block) argPos(off int) expr.Pos {
 // unit of the dimension with the SI prefix that puts M in [1, 1000), VA for
 // a power group holding a complex value, W for an all-real one), so that
 // ring values read as "rings: 50 V" or "rings: 100 kVA".
-func evalPhasors(b *Block) {
+func evalPhasors(b *calcdoc.Block) {
 	res := &Phasors{}
 	b.Result = res
 	var caption []string
@@ -120,15 +89,15 @@ func evalPhasors(b *Block) {
 		b.Errorf(b.InfoPos, "a phasors block lists the values to draw after the word phasors, separated by commas, e.g. phasors V_a, I_a")
 		return
 	}
-	parts, offs := splitTopLevel(b.Arg)
+	parts, offs := calcdoc.SplitTopLevel(b.Arg)
 	for k, part := range parts {
 		lead := len(part) - len(strings.TrimLeft(part, " \t"))
 		text := strings.TrimSpace(part)
-		it := &PhasorItem{Text: text, Pos: b.argPos(offs[k] + lead)}
+		it := &PhasorItem{Text: text, Pos: b.ArgAt(offs[k] + lead)}
 		res.Items = append(res.Items, it)
 		if x, name, nameOff, ok := splitFrom(text); ok {
 			it.Text, it.FromName = x, name
-			it.FromPos = b.argPos(offs[k] + lead + nameOff)
+			it.FromPos = b.ArgAt(offs[k] + lead + nameOff)
 			text = x
 			if !resolveFrom(b, res, it) {
 				continue
@@ -196,7 +165,7 @@ func evalPhasors(b *Block) {
 
 // assignPhasorScales groups the entries with values by dimension and sets
 // each entry's Unit, Factor, Re and Im.
-func assignPhasorScales(b *Block, res *Phasors) {
+func assignPhasorScales(b *calcdoc.Block, res *Phasors) {
 	type group struct {
 		dim     expr.Dim
 		max     float64
@@ -263,5 +232,5 @@ func phasorUnit(d expr.Dim, k expr.PowerKind, m float64, complexValue bool) (str
 	if complexValue {
 		z = cmplx.Rect(m, math.Pi/4)
 	}
-	return expr.DisplayUnit(&expr.Scalar{Z: z, Dim: d, Kind: k}, &expr.Display{Form: expr.FormPolar}, DefaultDigits)
+	return expr.DisplayUnit(&expr.Scalar{Z: z, Dim: d, Kind: k}, &expr.Display{Form: expr.FormPolar}, calcdoc.DefaultDigits)
 }

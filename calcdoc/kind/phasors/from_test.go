@@ -1,4 +1,4 @@
-package calcdoc_test
+package phasors_test
 
 import (
 	"math"
@@ -6,7 +6,7 @@ import (
 	"strings"
 	"testing"
 
-	"calcdoc/calcdoc"
+	"calcdoc/calcdoc/kind/phasors"
 	"calcdoc/expr"
 )
 
@@ -36,7 +36,7 @@ func TestPhasorsTipToTail(t *testing.T) {
 	if len(d.Errors) != 1 || d.Errors[0].Pos.Line != 6 {
 		t.Fatalf("want only the error of line 6, got %v", d.Errors)
 	}
-	res := phBlock(t, d, "phasors").Result.(*calcdoc.Phasors)
+	res := phBlock(t, d, "phasors").Result.(*phasors.Phasors)
 	if len(res.Items) != 3 {
 		t.Fatalf("%d items, want 3", len(res.Items))
 	}
@@ -80,7 +80,7 @@ func TestPhasorsFromChain(t *testing.T) {
 	if len(d.Errors) != 0 {
 		t.Fatalf("errors: %v", d.Errors)
 	}
-	res := phBlock(t, d, "phasors").Result.(*calcdoc.Phasors)
+	res := phBlock(t, d, "phasors").Result.(*phasors.Phasors)
 	wantTips := []complex128{230, complex(230, 100), complex(200, 100)}
 	for k, it := range res.Items {
 		if tip := complex(it.X0+it.Re, it.Y0+it.Im); cmplx.Abs(tip-wantTips[k]) > 1e-9 {
@@ -129,7 +129,7 @@ func TestPhasorsFromUnavailable(t *testing.T) {
 	if len(d.Errors) != 1 || d.Errors[0].Pos.Line != 6 {
 		t.Fatalf("want only the error of line 6, got %v", d.Errors)
 	}
-	res := phBlock(t, d, "phasors").Result.(*calcdoc.Phasors)
+	res := phBlock(t, d, "phasors").Result.(*phasors.Phasors)
 	if it := res.Items[1]; it.OK() || it.Unavailable == nil || it.Unavailable.Name != "bad" {
 		t.Errorf("V_r from bad: ok %v, unavailable %v", it.OK(), it.Unavailable)
 	}

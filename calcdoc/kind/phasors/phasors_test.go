@@ -1,4 +1,4 @@
-package calcdoc_test
+package phasors_test
 
 import (
 	"math"
@@ -7,12 +7,14 @@ import (
 	"testing"
 
 	"calcdoc/calcdoc"
+	"calcdoc/calcdoc/kind"
+	"calcdoc/calcdoc/kind/phasors"
 	"calcdoc/expr"
 )
 
 // phDoc parses a document made of the given lines.
 func phDoc(lines ...string) *calcdoc.Document {
-	return calcdoc.Parse("phasors_test.md", []byte(strings.Join(lines, "\n")+"\n"), kinds)
+	return calcdoc.Parse("phasors_test.md", []byte(strings.Join(lines, "\n")+"\n"), kind.Standard())
 }
 
 // phBlock returns the first block of a kind.
@@ -52,7 +54,7 @@ func TestPhasorsValuesAndScales(t *testing.T) {
 		t.Fatalf("want only the error of line 8, got %v", d.Errors)
 	}
 	b := phBlock(t, d, "phasors")
-	res := b.Result.(*calcdoc.Phasors)
+	res := b.Result.(*phasors.Phasors)
 	if res.Caption != "Feeder at full load, phase a." {
 		t.Errorf("caption %q", res.Caption)
 	}
@@ -146,7 +148,7 @@ func TestPhasorsUnavailableName(t *testing.T) {
 	if len(b.Errors) != 0 {
 		t.Fatalf("unexpected errors %v", b.Errors)
 	}
-	res := b.Result.(*calcdoc.Phasors)
+	res := b.Result.(*phasors.Phasors)
 	if u := res.Items[0].Unavailable; u == nil || u.Name != "bad" || u.Def.Line != 8 {
 		t.Errorf("item 0 unavailable = %+v, want bad defined at line 8", u)
 	}
@@ -159,7 +161,7 @@ func TestPhasorsZeroAndPlain(t *testing.T) {
 	// A zero value and a plain number each get a scale; a group of zeros
 	// has the base unit (nothing to choose a prefix from).
 	d := phDoc("```calc", "I_0 = 0 A", "k = 0.5 + j0.5", "```", "", "```phasors I_0, k", "```")
-	res := phBlock(t, d, "phasors").Result.(*calcdoc.Phasors)
+	res := phBlock(t, d, "phasors").Result.(*phasors.Phasors)
 	if len(d.Errors) != 0 {
 		t.Fatalf("errors %v", d.Errors)
 	}
