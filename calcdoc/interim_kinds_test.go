@@ -12,4 +12,4 @@ func (stmtKind) Eval(b *Block) {
 	b.Result = EvalStatements(b, expr.ParseBlock(b.Source(), expr.CalcMode, &errs), errs)
 }
 
-var testKinds = NewRegistry(stmtKind{}, SolveKind, SweepKind)
+var testKinds = NewRegistry(stmtKind{}, SolveKind)

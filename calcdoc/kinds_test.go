@@ -6,6 +6,7 @@ import (
 
 	"calcdoc/calcdoc"
 	"calcdoc/calcdoc/kind/phasors"
+	"calcdoc/calcdoc/kind/sweep"
 	"calcdoc/expr"
 )
 
@@ -97,10 +98,10 @@ func TestSweepPowerKinds(t *testing.T) {
 	if len(d.Errors) > 0 {
 		t.Fatal(d.Errors)
 	}
-	var sw *calcdoc.Sweep
+	var sw *sweep.Sweep
 	for _, b := range d.Blocks {
 		if b.Kind == "sweep" {
-			sw = b.Result.(*calcdoc.Sweep)
+			sw = b.Result.(*sweep.Sweep)
 		}
 	}
 	want := map[string]expr.PowerKind{"S_x": expr.PowerApparent, "Q_x": expr.PowerReactive, "P_x": expr.PowerActive, "Q_y": expr.PowerReactive}

@@ -605,7 +605,7 @@ func (r *solveRun) prepare() bool {
 	// the equations, read whatever the header says, so they are shown
 	var perrs expr.ErrorList
 	stmts := expr.ParseBlock(b.Source(), expr.EquationMode, &perrs)
-	per, rest := errorsOf(stmts, perrs)
+	per, rest := ErrorsOf(stmts, perrs)
 	labels := map[string]*SolveEquation{}
 	for k, s := range stmts {
 		l := &SolveLine{Stmt: s}

@@ -92,7 +92,7 @@ func runeSlice(s string, a, b int) string {
 // the statements they fall in.
 func EvalStatements(b *Block, stmts []expr.Stmt, errs expr.ErrorList) []*Stmt {
 	var out []*Stmt
-	per, rest := errorsOf(stmts, errs)
+	per, rest := ErrorsOf(stmts, errs)
 	for k, s := range stmts {
 		st := &Stmt{Stmt: s, Text: b.Text(s.Pos(), s.End()), Errs: per[k]}
 		st.Res = b.Env().Exec(s)
@@ -130,11 +130,11 @@ func EvalStatements(b *Block, stmts []expr.Stmt, errs expr.ErrorList) []*Stmt {
 	return out
 }
 
-// errorsOf hands each error of errs to the first statement whose lines
+// ErrorsOf hands each error of errs to the first statement whose lines
 // hold it: per[k] are the errors of stmts[k], in the order of errs, and
 // rest those on no statement's lines. The errors are found by line, so n
 // statements and m errors cost O((n + m)·log m), not n·m.
-func errorsOf(stmts []expr.Stmt, errs expr.ErrorList) (per [][]*expr.Error, rest []*expr.Error) {
+func ErrorsOf(stmts []expr.Stmt, errs expr.ErrorList) (per [][]*expr.Error, rest []*expr.Error) {
 	byLine := make([]int, len(errs))
 	for i := range byLine {
 		byLine[i] = i

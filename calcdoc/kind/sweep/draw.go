@@ -19,10 +19,10 @@ const logDecades = 100
 
 // renderSweep draws a sweep block: a head naming the range, one row per
 // line with its formula, a table of a readable subset of the points
-// (calcdoc.Sweep.TableRows), notes on gaps, and a plot per plotted line
+// (Sweep.TableRows), notes on gaps, and a plot per plotted line
 // (magnitude, and angle for a complex line).
 func renderSweep(w *markup.Writer, b *calcdoc.Block) {
-	sw, _ := b.Result.(*calcdoc.Sweep)
+	sw, _ := b.Result.(*Sweep)
 	w.Printf("<div class=\"block sweep\" id=\"B%d\">\n", b.Pos.Line)
 	if sw == nil {
 		w.WriteString("</div>\n")
@@ -49,7 +49,7 @@ func renderSweep(w *markup.Writer, b *calcdoc.Block) {
 	for _, l := range sw.Lines {
 		sweepLineRow(w, l)
 	}
-	var cols []*calcdoc.SweepLine
+	var cols []*SweepLine
 	for _, l := range sw.Lines {
 		if l.OK() {
 			cols = append(cols, l)
@@ -66,7 +66,7 @@ func renderSweep(w *markup.Writer, b *calcdoc.Block) {
 
 // sweepHead describes the range: "sweep of f from 10 Hz to 100 kHz, 200
 // points spaced evenly on a logarithmic scale".
-func sweepHead(w *markup.Writer, sw *calcdoc.Sweep) string {
+func sweepHead(w *markup.Writer, sw *Sweep) string {
 	if sw.X == nil {
 		return "sweep, not evaluated: its range has no value"
 	}
@@ -80,7 +80,7 @@ func sweepHead(w *markup.Writer, sw *calcdoc.Sweep) string {
 }
 
 // sweepLineRow writes one line of the block: gutter, formula, its errors.
-func sweepLineRow(w *markup.Writer, l *calcdoc.SweepLine) {
+func sweepLineRow(w *markup.Writer, l *SweepLine) {
 	line := l.Stmt.Pos().Line
 	if n, ok := l.Stmt.(*expr.Note); ok {
 		w.Printf("<div class=\"row note\" id=\"L%d\"><div class=\"ln\">%d</div><div class=\"txt\">%s</div></div>\n", line, line, markup.Esc(n.Text))
@@ -107,7 +107,7 @@ func sweepLineRow(w *markup.Writer, l *calcdoc.SweepLine) {
 
 // lineLabel is a line's name in plain text: the name it defines, or its
 // expression as written.
-func lineLabel(l *calcdoc.SweepLine) string {
+func lineLabel(l *SweepLine) string {
 	if l.Name != "" {
 		return l.Name
 	}
@@ -115,7 +115,7 @@ func lineLabel(l *calcdoc.SweepLine) string {
 }
 
 // lineHeadML is a line's table heading in MathML.
-func lineHeadML(w *markup.Writer, l *calcdoc.SweepLine) string {
+func lineHeadML(w *markup.Writer, l *SweepLine) string {
 	if l.Name != "" {
 		return markup.Math(markup.NameML(l.Name))
 	}
@@ -124,7 +124,7 @@ func lineHeadML(w *markup.Writer, l *calcdoc.SweepLine) string {
 
 // sweepTable writes the table of the points TableRows picks, with a note
 // column naming why a point is there, and the notes on gaps below it.
-func sweepTable(w *markup.Writer, sw *calcdoc.Sweep, cols []*calcdoc.SweepLine) {
+func sweepTable(w *markup.Writer, sw *Sweep, cols []*SweepLine) {
 	rows := sw.TableRows()
 	why := map[int][]string{0: {"first point"}}
 	why[len(sw.X)-1] = append(why[len(sw.X)-1], "last point")
@@ -216,7 +216,7 @@ func axisLabel(name, unit string) string {
 // plotUnit is the unit a line's values are plotted in and its size in
 // coherent SI units: the line's display unit, else its default unit
 // (degrees for a real angle).
-func plotUnit(l *calcdoc.SweepLine) (string, float64) {
+func plotUnit(l *SweepLine) (string, float64) {
 	if l.Display != nil && l.Display.Unit != nil {
 		u := l.Display.Unit.Text
 		if u == "deg" {
@@ -270,14 +270,14 @@ func (f sweepFig) drawErr(err error) *expr.Error {
 
 // sweepPlots writes the figures of one line: its magnitude (complex) or
 // value (real), and for a complex line its angle in degrees.
-func sweepPlots(w *markup.Writer, sw *calcdoc.Sweep, l *calcdoc.SweepLine) {
+func sweepPlots(w *markup.Writer, sw *Sweep, l *SweepLine) {
 	for _, f := range sweepFigs(sw, l) {
 		sweepFigure(w, f)
 	}
 }
 
 // sweepFigs are the figures of one line (sweepPlots).
-func sweepFigs(sw *calcdoc.Sweep, l *calcdoc.SweepLine) []sweepFig {
+func sweepFigs(sw *Sweep, l *SweepLine) []sweepFig {
 	n := len(sw.X)
 	x := make([]float64, n)
 	xUnit := baseUnit(sw.Dim, sw.Kind, false)

@@ -13,7 +13,7 @@ import (
 // its picture would be.
 // checkSweepDrawing reports each plot of a sweep that cannot be drawn.
 func checkSweepDrawing(b *calcdoc.Block) []*expr.Error {
-	sw, _ := b.Result.(*calcdoc.Sweep)
+	sw, _ := b.Result.(*Sweep)
 	if sw == nil || sw.X == nil {
 		return nil
 	}

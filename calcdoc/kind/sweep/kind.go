@@ -16,7 +16,7 @@ type kind struct{}
 func (kind) Words() []string { return []string{"sweep"} }
 
 // Eval evaluates a sweep block.
-func (kind) Eval(b *calcdoc.Block) { calcdoc.SweepKind.Eval(b) }
+func (kind) Eval(b *calcdoc.Block) { evalSweep(b) }
 
 // Draw draws an evaluated sweep block into the sheet.
 func (kind) Draw(w *markup.Writer, b *calcdoc.Block) { renderSweep(w, b) }

@@ -1,6 +1,7 @@
-package calcdoc
+package sweep
 
 import (
+	"calcdoc/calcdoc"
 	"math"
 	"math/cmplx"
 	"sort"
@@ -188,9 +189,6 @@ func (s *Sweep) TableRows() []int {
 	return out
 }
 
-// SweepKind evaluates sweep blocks.
-var SweepKind Kind = wordKind{"sweep", evalSweep}
-
 // isName reports whether s is a name: a letter, then letters, digits and _.
 func isName(s string) bool {
 	for i, r := range s {
@@ -205,7 +203,7 @@ func isName(s string) bool {
 const sweepUsage = "write sweep NAME = START .. STOP, then optionally log and the number of points, e.g. sweep f = 10 Hz .. 100 kHz log 200"
 
 // evalSweep evaluates a sweep block (LANGUAGE.md section 6).
-func evalSweep(b *Block) {
+func evalSweep(b *calcdoc.Block) {
 	sw := &Sweep{}
 	b.Result = sw
 	headerOK := parseSweepHeader(b, sw)
@@ -230,7 +228,7 @@ func evalSweep(b *Block) {
 }
 
 // parseSweepHeader reads "NAME = START .. STOP [log] [N]" from b.Arg.
-func parseSweepHeader(b *Block, sw *Sweep) bool {
+func parseSweepHeader(b *calcdoc.Block, sw *Sweep) bool {
 	arg := b.Arg
 	if strings.TrimSpace(arg) == "" {
 		b.Errorf(b.InfoPos, "a sweep block needs its range after the word sweep: %s", sweepUsage)
@@ -422,7 +420,7 @@ type sweepEndValue struct {
 
 // sweepEnd parses and evaluates the start or stop of the range: text lies
 // at byte offset off of b.Arg.
-func sweepEnd(b *Block, sw *Sweep, what, text string, off int) (sweepEndValue, bool) {
+func sweepEnd(b *calcdoc.Block, sw *Sweep, what, text string, off int) (sweepEndValue, bool) {
 	lead := len(text) - len(strings.TrimLeft(text, " \t"))
 	pos := b.ArgAt(off + lead)
 	text = strings.TrimSpace(text)
@@ -468,8 +466,8 @@ func sweepEnd(b *Block, sw *Sweep, what, text string, off int) (sweepEndValue, b
 // prepareSweepLines turns the parsed statements into lines, attaches
 // parse errors, rejects statements a sweep does not take, checks the
 // names the block defines and finds each line's dependencies.
-func prepareSweepLines(b *Block, sw *Sweep, stmts []expr.Stmt, errs expr.ErrorList, headerOK bool) {
-	per, rest := errorsOf(stmts, errs)
+func prepareSweepLines(b *calcdoc.Block, sw *Sweep, stmts []expr.Stmt, errs expr.ErrorList, headerOK bool) {
+	per, rest := calcdoc.ErrorsOf(stmts, errs)
 	local := map[string]int{} // name -> line index
 	for k, s := range stmts {
 		l := &SweepLine{Stmt: s, Text: b.Text(s.Pos(), s.End()), Errs: per[k]}
@@ -544,7 +542,7 @@ func prepareSweepLines(b *Block, sw *Sweep, stmts []expr.Stmt, errs expr.ErrorLi
 // runSweep evaluates every line at every point. The sweep variable and the
 // block's assignments are local names of the evaluation; nothing is
 // defined in the document's names.
-func runSweep(b *Block, sw *Sweep) {
+func runSweep(b *calcdoc.Block, sw *Sweep) {
 	env := b.Env()
 	n := len(sw.X)
 	locals := make(map[string]expr.Value, len(sw.Lines)+1)

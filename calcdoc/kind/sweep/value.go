@@ -1,4 +1,4 @@
-package calcdoc
+package sweep
 
 import (
 	"math/cmplx"

@@ -1,4 +1,4 @@
-package calcdoc_test
+package sweep_test
 
 import (
 	"encoding/json"
@@ -6,6 +6,7 @@ import (
 	"testing"
 
 	"calcdoc/calcdoc"
+	"calcdoc/calcdoc/kind"
 )
 
 // TestValuesJSONSense checks the sense of a power factor in the values
@@ -22,7 +23,7 @@ func TestValuesJSONSense(t *testing.T) {
 		"pf_r = powerfactor(-re(S_b))\n" +
 		"pf_v = [pf_b; powerfactor(conj(S_b))]\n" +
 		"```\n"
-	d := calcdoc.Parse("pf.md", []byte(src), kinds)
+	d := calcdoc.Parse("pf.md", []byte(src), kind.Standard())
 	if len(d.Errors) > 0 {
 		t.Fatal(d.Errors)
 	}

@@ -1,4 +1,4 @@
-package calcdoc_test
+package sweep_test
 
 import (
 	"math"
@@ -8,6 +8,8 @@ import (
 	"testing"
 
 	"calcdoc/calcdoc"
+	"calcdoc/calcdoc/kind"
+	"calcdoc/calcdoc/kind/sweep"
 	"calcdoc/expr"
 )
 
@@ -42,14 +44,14 @@ var swF0 = 1 / (2 * math.Pi * math.Sqrt(swL*swC))
 func swDoc(block ...string) *calcdoc.Document {
 	lines := append(append([]string{}, swRLC...), "")
 	lines = append(lines, block...)
-	return calcdoc.Parse("sweep_test.md", []byte(strings.Join(lines, "\n")+"\n"), kinds)
+	return calcdoc.Parse("sweep_test.md", []byte(strings.Join(lines, "\n")+"\n"), kind.Standard())
 }
 
-func swSweep(t *testing.T, d *calcdoc.Document) *calcdoc.Sweep {
+func swSweep(t *testing.T, d *calcdoc.Document) *sweep.Sweep {
 	t.Helper()
 	for _, b := range d.Blocks {
 		if b.Kind == "sweep" {
-			return b.Result.(*calcdoc.Sweep)
+			return b.Result.(*sweep.Sweep)
 		}
 	}
 	t.Fatal("no sweep block")
@@ -64,7 +66,7 @@ func swRel(a, b float64) float64 {
 }
 
 // swArgMin returns the index of the smallest Plot value of line l.
-func swArgMin(l *calcdoc.SweepLine) int {
+func swArgMin(l *sweep.SweepLine) int {
 	lo, _ := l.Extremes()
 	return lo
 }
@@ -79,7 +81,7 @@ func TestSweepSeriesRLC(t *testing.T) {
 	}{
 		{"log spacing", "```sweep f = 100 Hz .. 10 kHz log 401", 401, true, 100, 1e4},
 		{"linear spacing", "```sweep f = 400 Hz .. 700 Hz 61", 61, false, 400, 700},
-		{"default points", "```sweep f = 0.5*f_1*10 .. 20*f_1", calcdoc.DefaultSweepPoints, false, 250, 1000},
+		{"default points", "```sweep f = 0.5*f_1*10 .. 20*f_1", sweep.DefaultSweepPoints, false, 250, 1000},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -129,7 +131,7 @@ func TestSweepSeriesRLC(t *testing.T) {
 			}
 			// The smallest |Z| lies at the resonance f0 = 1/(2π√(LC)),
 			// within one step of the grid (a ratio step on a log grid).
-			for _, l := range []*calcdoc.SweepLine{z, mag} {
+			for _, l := range []*sweep.SweepLine{z, mag} {
 				i := swArgMin(l)
 				if c.log {
 					step := math.Log(c.z/c.a) / float64(c.n-1)
@@ -260,7 +262,7 @@ func TestSweepRangeUnavailable(t *testing.T) {
 	// range uses it is not evaluated, and that is not a second error.
 	d := calcdoc.Parse("sweep_test.md", []byte(strings.Join([]string{
 		"```calc", "f_bad = 1 Hz + 1 V", "```", "",
-		"```sweep f = 1 Hz .. f_bad", "y = f", "```"}, "\n")), kinds)
+		"```sweep f = 1 Hz .. f_bad", "y = f", "```"}, "\n")), kind.Standard())
 	if len(d.Errors) != 1 || d.Errors[0].Pos.Line != 2 {
 		t.Fatalf("want only the error of line 2, got %v", d.Errors)
 	}
@@ -343,7 +345,7 @@ func TestSweepGaps(t *testing.T) {
 	y, w, big := sw.Lines[0], sw.Lines[1], sw.Lines[2]
 	cases := []struct {
 		name   string
-		l      *calcdoc.SweepLine
+		l      *sweep.SweepLine
 		want   []float64 // NaN: a gap
 		gapErr string
 	}{
@@ -439,8 +441,8 @@ func TestSweepTableRows(t *testing.T) {
 					t.Errorf("row %d missing from %v", m, rows)
 				}
 			}
-			if max := calcdoc.SweepTableRows + 3*len(sw.Lines); len(rows) > max || len(rows) < calcdoc.SweepTableRows {
-				t.Errorf("%d rows, want %d to %d", len(rows), calcdoc.SweepTableRows, max)
+			if max := sweep.SweepTableRows + 3*len(sw.Lines); len(rows) > max || len(rows) < sweep.SweepTableRows {
+				t.Errorf("%d rows, want %d to %d", len(rows), sweep.SweepTableRows, max)
 			}
 		})
 	}
@@ -455,7 +457,7 @@ func BenchmarkSweepEval10k(b *testing.B) {
 		"```"), "\n"))
 	b.ReportAllocs()
 	for b.Loop() {
-		d := calcdoc.Parse("bench.md", src, kinds)
+		d := calcdoc.Parse("bench.md", src, kind.Standard())
 		if len(d.Errors) != 0 {
 			b.Fatal(d.Errors)
 		}
