@@ -78,3 +78,10 @@ func SplitTopLevel(s string) (parts []string, offs []int) {
 func (b *Block) ArgAt(off int) expr.Pos {
 	return expr.Pos{Line: b.ArgPos.Line, Col: b.ArgPos.Col + utf8.RuneCountInString(b.Arg[:off])}
 }
+
+// Attach makes b a block of d without evaluating it, so that a kind's
+// stages can be run on it alone (the solve kind's benchmarks do).
+func (d *Document) Attach(b *Block) *Block {
+	b.doc = d
+	return b
+}

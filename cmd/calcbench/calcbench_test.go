@@ -11,6 +11,7 @@ import (
 
 	"calcdoc/calcdoc"
 	"calcdoc/calcdoc/kind"
+	"calcdoc/calcdoc/kind/solve"
 	"calcdoc/expr"
 )
 
@@ -87,7 +88,7 @@ func calcStatements(d *calcdoc.Document) (stmts, unknowns, equations int) {
 					stmts++
 				}
 			}
-		case *calcdoc.SolveSet:
+		case *solve.SolveSet:
 			unknowns += len(r.Unknowns)
 			equations += len(r.Equations)
 		}

@@ -6,7 +6,7 @@ import (
 	"strings"
 
 	"calcdoc/calcdoc"
-	"calcdoc/calcdoc/solve"
+	numeric "calcdoc/calcdoc/kind/solve/numeric"
 	"calcdoc/expr"
 	"calcdoc/render/markup"
 )
@@ -20,9 +20,9 @@ const InlineSystemLimit = 12
 // written, how the set was solved, the matrix of a linear set, the
 // solution and a table that evaluates both sides of every equation at it.
 func renderSolve(w *markup.Writer, b *calcdoc.Block) {
-	set, _ := b.Result.(*calcdoc.SolveSet)
+	set, _ := b.Result.(*SolveSet)
 	if set == nil {
-		set = &calcdoc.SolveSet{}
+		set = &SolveSet{}
 	}
 	shown := map[*expr.Error]bool{}
 	w.Printf("<div class=\"block solve\" id=\"B%d\">\n", b.Pos.Line)
@@ -124,7 +124,7 @@ func hasHave(n int) string {
 	return "have"
 }
 
-func namesHTML(us []*calcdoc.Unknown) string {
+func namesHTML(us []*Unknown) string {
 	var s []string
 	for _, u := range us {
 		s = append(s, markup.NameHTML(u.Name))
@@ -140,7 +140,7 @@ func namesHTML(us []*calcdoc.Unknown) string {
 
 // unknownHTML writes one unknown of the list: its name, its unit, whether
 // it is real or complex, and its starting value.
-func unknownHTML(w *markup.Writer, u *calcdoc.Unknown) string {
+func unknownHTML(w *markup.Writer, u *Unknown) string {
 	var sb strings.Builder
 	sb.WriteString(markup.Math(markup.NameML(u.Name)))
 	if u.HasUnit() {
@@ -160,7 +160,7 @@ func unknownHTML(w *markup.Writer, u *calcdoc.Unknown) string {
 }
 
 // countText is the count of real equations and real unknowns.
-func countText(set *calcdoc.SolveSet) string {
+func countText(set *SolveSet) string {
 	if set.RealUnknowns == 0 {
 		return ""
 	}
@@ -181,7 +181,7 @@ func sci(x float64) string {
 	return strings.NewReplacer("e-0", "e-", "e+0", "e", "e+", "e").Replace(fmt.Sprintf("%.3g", x))
 }
 
-func solvedParts(w *markup.Writer, b *calcdoc.Block, set *calcdoc.SolveSet) {
+func solvedParts(w *markup.Writer, b *calcdoc.Block, set *SolveSet) {
 	line := b.InfoPos.Line
 	anchor := fmt.Sprintf("S%d", line)
 
@@ -190,22 +190,22 @@ func solvedParts(w *markup.Writer, b *calcdoc.Block, set *calcdoc.SolveSet) {
 	w.WriteString("<p class=\"method\">")
 	if set.Linear {
 		fmt.Fprintf(w, "<strong>Linear, solved directly.</strong> The equations are affine in the unknowns (confirmed at %d further points to within %s). The real form (real and imaginary parts as separate unknowns and equations) is solved by LU factorisation with partial pivoting of the scaled matrix; condition number estimate κ₁ = %s.",
-			solve.LinearProbes, sci(solve.LinearTol), sci(set.Cond))
+			numeric.LinearProbes, sci(numeric.LinearTol), sci(set.Cond))
 		if set.Refined {
 			fmt.Fprintf(w, " The direct solution was refined by %d Newton iteration%s.", set.Iterations, markup.Plural(set.Iterations))
 		}
 	} else {
 		fmt.Fprintf(w, "<strong>Non-linear, %d iteration%s.</strong> Solved iteratively by damped Newton–Raphson on the real form (real and imaginary parts as separate unknowns), Jacobian by finite differences, from the starting point: the scaled residual fell from %s to %s (tolerance %s",
-			set.Iterations, markup.Plural(set.Iterations), sci(set.InitialResidualNorm), sci(set.ResidualNorm), sci(solve.ResidualTol))
-		if set.Criterion == solve.ByStep {
-			fmt.Fprintf(w, "; stopped when the Newton step fell below %s of the unknowns", sci(solve.StepTol))
+			set.Iterations, markup.Plural(set.Iterations), sci(set.InitialResidualNorm), sci(set.ResidualNorm), sci(numeric.ResidualTol))
+		if set.Criterion == numeric.ByStep {
+			fmt.Fprintf(w, "; stopped when the Newton step fell below %s of the unknowns", sci(numeric.StepTol))
 		}
 		w.WriteString(").")
 		if set.Polished {
 			w.WriteString(" The residuals were then rescaled to the size of their terms at the solution found and iterated again, with central differences, until the backward error was met.")
 		}
 	}
-	fmt.Fprintf(w, " Largest componentwise backward error at the solution: %s (accepted up to %s).</p>", sci(set.Backward), sci(calcdoc.SolveAcceptTol))
+	fmt.Fprintf(w, " Largest componentwise backward error at the solution: %s (accepted up to %s).</p>", sci(set.Backward), sci(SolveAcceptTol))
 
 	// the matrix of a linear set
 	if sys := set.System(); sys != nil {
@@ -278,7 +278,7 @@ func diffML(v *expr.Scalar, digits int) string {
 	return markup.ValueML(v, nil, digits, false)
 }
 
-func eqLabelHTML(e *calcdoc.SolveEquation) string {
+func eqLabelHTML(e *SolveEquation) string {
 	if e.Eq.Label != nil {
 		return fmt.Sprintf("%s <span class=\"at\">(line %d)</span>", markup.Esc(e.Eq.Label.Name), e.Line)
 	}
@@ -286,7 +286,7 @@ func eqLabelHTML(e *calcdoc.SolveEquation) string {
 }
 
 // rowLabel and colLabel name a row or column of the system.
-func rowLabel(set *calcdoc.SolveSet, r calcdoc.SystemIndex) string {
+func rowLabel(set *SolveSet, r SystemIndex) string {
 	e := set.Equations[r.Index]
 	name := fmt.Sprintf("line %d", e.Line)
 	if e.Eq.Label != nil {
@@ -295,7 +295,7 @@ func rowLabel(set *calcdoc.SolveSet, r calcdoc.SystemIndex) string {
 	return partPrefix(r.Part) + name
 }
 
-func colLabel(set *calcdoc.SolveSet, c calcdoc.SystemIndex, mathML bool) string {
+func colLabel(set *SolveSet, c SystemIndex, mathML bool) string {
 	u := set.Unknowns[c.Index]
 	if mathML {
 		return partPrefix(c.Part) + markup.Math(markup.NameML(u.Name))
@@ -303,11 +303,11 @@ func colLabel(set *calcdoc.SolveSet, c calcdoc.SystemIndex, mathML bool) string 
 	return partPrefix(c.Part) + markup.NameHTML(u.Name)
 }
 
-func partPrefix(p calcdoc.Part) string {
+func partPrefix(p Part) string {
 	switch p {
-	case calcdoc.RealPart:
+	case RealPart:
 		return "Re "
-	case calcdoc.ImagPart:
+	case ImagPart:
 		return "Im "
 	}
 	return ""
@@ -317,7 +317,7 @@ func partPrefix(p calcdoc.Part) string {
 // column per unknown (or part), then b. Entries carry their units; an
 // exact zero is written 0. mathML selects MathML entries (in place) or
 // plain text (the appendix, where the table may be large).
-func systemTable(out markup.StringWriter, set *calcdoc.SolveSet, sys *calcdoc.SolveSystem, digits int, mathML bool) {
+func systemTable(out markup.StringWriter, set *SolveSet, sys *SolveSystem, digits int, mathML bool) {
 	var sb strings.Builder
 	sb.WriteString("<div class=\"grid\"><table class=\"data system\" style=\"white-space: nowrap;\">\n<tr><th>equation</th>")
 	for _, c := range sys.Cols {
@@ -345,7 +345,7 @@ func systemTable(out markup.StringWriter, set *calcdoc.SolveSet, sys *calcdoc.So
 }
 
 // historyTable lists the Newton iterations.
-func historyTable(sb *strings.Builder, h []solve.Step) {
+func historyTable(sb *strings.Builder, h []numeric.Step) {
 	sb.WriteString("<div class=\"grid\"><table class=\"data history\" style=\"white-space: nowrap;\">\n<tr><th>iteration</th><th>scaled residual after the step</th><th>scaled step</th><th>step taken</th></tr>\n")
 	for _, s := range h {
 		kind := "full Newton step"

@@ -112,9 +112,9 @@ func TestSolveSheetNonLinear(t *testing.T) {
 	if len(doc.Errors) > 0 {
 		t.Fatal(doc.Errors)
 	}
-	var set *calcdoc.SolveSet
+	var set *SolveSet
 	for _, b := range doc.Blocks {
-		set, _ = b.Result.(*calcdoc.SolveSet)
+		set, _ = b.Result.(*SolveSet)
 	}
 	blk := blockHTML(t, page, 1)
 	want := fmt.Sprintf("Non-linear, %d iterations.", set.Iterations)
@@ -238,7 +238,7 @@ func TestSolveSheetExamples(t *testing.T) {
 			}
 			sets := 0
 			for _, b := range doc.Blocks {
-				s, ok := b.Result.(*calcdoc.SolveSet)
+				s, ok := b.Result.(*SolveSet)
 				if !ok {
 					continue
 				}

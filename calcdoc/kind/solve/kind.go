@@ -15,7 +15,7 @@ type kind struct{}
 func (kind) Words() []string { return []string{"solve"} }
 
 // Eval evaluates a solve block.
-func (kind) Eval(b *calcdoc.Block) { calcdoc.SolveKind.Eval(b) }
+func (kind) Eval(b *calcdoc.Block) { evalSolve(b) }
 
 // Draw draws an evaluated solve block into the sheet.
 func (kind) Draw(w *markup.Writer, b *calcdoc.Block) { renderSolve(w, b) }

@@ -1,4 +1,4 @@
-package calcdoc
+package solve
 
 import (
 	"math"
@@ -6,7 +6,7 @@ import (
 	"strconv"
 	"strings"
 
-	"calcdoc/calcdoc/solve"
+	numeric "calcdoc/calcdoc/kind/solve/numeric"
 	"calcdoc/expr"
 
 	"gonum.org/v1/gonum/mat"
@@ -67,21 +67,21 @@ func (r *solveRun) trialReal(i int, size float64, d complex128) error {
 func (r *solveRun) solveSet() bool {
 	set := r.set
 	p := r.problem(r.x0, r.rscale)
-	lin, linear, err := solve.Linearize(p)
+	lin, linear, err := numeric.Linearize(p)
 	if err != nil {
 		return r.coreFailed(err)
 	}
 	var x []float64
 	if linear {
 		set.Linear, set.lin, set.MaxDeviation = true, lin, lin.MaxDeviation
-		xs, cond, err := solve.SolveLinear(lin)
+		xs, cond, err := numeric.SolveLinear(lin)
 		set.Cond = cond
 		if err != nil {
 			return r.coreFailed(err)
 		}
 		x = xs
 	} else {
-		nr, err := solve.Newton(p, solve.Options{})
+		nr, err := numeric.Newton(p, numeric.Options{})
 		if err != nil {
 			return r.coreFailed(err)
 		}
@@ -97,7 +97,7 @@ func (r *solveRun) solveSet() bool {
 	// the solution), until it is met or a run no longer halves it.
 	omega, d, err := r.backward(x)
 	if err != nil {
-		return r.coreFailed(&solve.EvalError{X: x, Equation: -1, Err: err})
+		return r.coreFailed(&numeric.EvalError{X: x, Equation: -1, Err: err})
 	}
 	for round := 0; round < MaxPolish && maxOf(omega) > SolveAcceptTol; round++ {
 		q := make([]float64, r.m)
@@ -110,7 +110,7 @@ func (r *solveRun) solveSet() bool {
 		// central differences: near a multiple root the forward
 		// difference step is as large as the distance to the root, and
 		// the derivative it gives stalls the iteration
-		nr, err := solve.Newton(r.problem(x, q), solve.Options{Central: true})
+		nr, err := numeric.Newton(r.problem(x, q), numeric.Options{Central: true})
 		if err != nil {
 			if round == 0 {
 				return r.coreFailed(err)
@@ -132,7 +132,7 @@ func (r *solveRun) solveSet() bool {
 		before := maxOf(omega)
 		x = nr.X
 		if omega, d, err = r.backward(x); err != nil {
-			return r.coreFailed(&solve.EvalError{X: x, Equation: -1, Err: err})
+			return r.coreFailed(&numeric.EvalError{X: x, Equation: -1, Err: err})
 		}
 		if maxOf(omega) > before/2 {
 			break
@@ -199,7 +199,7 @@ func (r *solveRun) solveSet() bool {
 // difference in the equation's unit.
 func (r *solveRun) accept(x, d []float64, report bool) bool {
 	if err := r.verify(x, nil); err != nil {
-		return r.coreFailed(&solve.EvalError{X: x, Equation: -1, Err: err})
+		return r.coreFailed(&numeric.EvalError{X: x, Equation: -1, Err: err})
 	}
 	worst, worstW, imagFail, nonFinite := -1, 0.0, false, false
 	for i, eq := range r.eqs {
@@ -286,7 +286,7 @@ func (r *solveRun) realUnknownNames() []string {
 	return names
 }
 
-func (r *solveRun) takeNewton(nr *solve.Result) {
+func (r *solveRun) takeNewton(nr *numeric.Result) {
 	set := r.set
 	set.Iterations, set.Criterion, set.ResidualNorm = nr.Iterations, nr.Criterion, nr.ResidualNorm
 	set.History = nr.History
@@ -402,7 +402,7 @@ func sci0(v float64) string { return strconv.FormatFloat(v, 'e', 0, 64) }
 // each other (solve.SingularError.Contradiction): the equations of the
 // combination, and how far its two sides stay apart whatever the unknowns,
 // in the unit of the leading equation.
-func (r *solveRun) contradiction(se *solve.SingularError) {
+func (r *solveRun) contradiction(se *numeric.SingularError) {
 	var names []string
 	seen := map[int]bool{}
 	pos := r.setPos()
@@ -411,7 +411,7 @@ func (r *solveRun) contradiction(se *solve.SingularError) {
 		big = math.Max(big, math.Abs(c*r.rscale[row]))
 	}
 	for row, c := range se.Contradiction {
-		if !(math.Abs(c*r.rscale[row]) > solve.NullTol*big) {
+		if !(math.Abs(c*r.rscale[row]) > numeric.NullTol*big) {
 			continue
 		}
 		i := r.eqOfRow(row)

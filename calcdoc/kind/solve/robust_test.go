@@ -1,6 +1,7 @@
-package calcdoc
+package solve
 
 import (
+	"calcdoc/calcdoc"
 	"fmt"
 	"math/cmplx"
 	"strings"
@@ -94,10 +95,10 @@ func TestSolveSizeLimit(t *testing.T) {
 	cases := []struct {
 		name  string
 		src   string
-		check func(t *testing.T, d *Document) // for a set that is solved
-		count string                          // for a set refused: how the error counts its unknowns
+		check func(t *testing.T, d *calcdoc.Document) // for a set that is solved
+		count string                                  // for a set refused: how the error counts its unknowns
 	}{
-		{"500 complex unknowns: solved", ladderDoc(500), func(t *testing.T, d *Document) {
+		{"500 complex unknowns: solved", ladderDoc(500), func(t *testing.T, d *calcdoc.Document) {
 			want := ladderSweep(500)
 			got := make([]complex128, 500)
 			for k := 1; k <= 500; k++ {
@@ -107,7 +108,7 @@ func TestSolveSizeLimit(t *testing.T) {
 				t.Errorf("largest deviation from the backward sweep %.3g relative, want ≤ 1e-9", worst)
 			}
 		}, ""},
-		{"1000 real unknowns: solved", realUnknownsDoc(1000), func(t *testing.T, d *Document) {
+		{"1000 real unknowns: solved", realUnknownsDoc(1000), func(t *testing.T, d *calcdoc.Document) {
 			for _, k := range []int{1, 500, 1000} {
 				// the equation x_k = k itself
 				if got := valueOf(t, d, fmt.Sprintf("x_%d", k)); got != complex(float64(k), 0) {
@@ -115,7 +116,7 @@ func TestSolveSizeLimit(t *testing.T) {
 				}
 			}
 		}, ""},
-		{"498 complex and 4 real unknowns: solved", mixedDoc(498, 4), func(t *testing.T, d *Document) {
+		{"498 complex and 4 real unknowns: solved", mixedDoc(498, 4), func(t *testing.T, d *calcdoc.Document) {
 			if got := valueOf(t, d, "V_498"); cmplxRel(got, ladderSweep(498)[498]) > 1e-9 {
 				t.Errorf("V_498 = %v, backward sweep %v", got, ladderSweep(498)[498])
 			}
@@ -130,8 +131,8 @@ func TestSolveSizeLimit(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			var d *Document
-			finishes(t, 2*time.Minute, func() { d = Parse("size.md", []byte(c.src), testKinds) })
+			var d *calcdoc.Document
+			finishes(t, 2*time.Minute, func() { d = calcdoc.Parse("size.md", []byte(c.src), testKinds) })
 			if c.check != nil {
 				noErrors(t, d)
 				c.check(t, d)

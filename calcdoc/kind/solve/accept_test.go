@@ -1,6 +1,7 @@
-package calcdoc
+package solve
 
 import (
+	"calcdoc/calcdoc"
 	"math"
 	"math/cmplx"
 	"os"
@@ -29,7 +30,7 @@ func acceptRun(t *testing.T, src string) *solveRun {
 	t.Helper()
 	d := solveDoc(t, src)
 	above := solveDoc(t, src[:strings.LastIndex(src, "```solve")])
-	var b *Block
+	var b *calcdoc.Block
 	for _, bl := range d.Blocks {
 		if _, ok := bl.Result.(*SolveSet); ok {
 			b = bl
@@ -310,7 +311,7 @@ func TestSolveCountGrammar(t *testing.T) {
 // values themselves are checked against references by the examples' own
 // tests and checks).
 func TestSolveExamplesStillSolve(t *testing.T) {
-	files, err := filepath.Glob(filepath.Join("..", "examples", "*.md"))
+	files, err := filepath.Glob(filepath.Join("..", "..", "..", "examples", "*.md"))
 	if err != nil || len(files) == 0 {
 		t.Fatalf("no examples: %v", err)
 	}
@@ -320,7 +321,7 @@ func TestSolveExamplesStillSolve(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		d := Parse(f, src, testKinds)
+		d := calcdoc.Parse(f, src, testKinds)
 		for _, s := range solveSets(d) {
 			sets++
 			if !s.Solved || s.Backward > SolveAcceptTol {

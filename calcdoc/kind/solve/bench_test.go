@@ -1,10 +1,11 @@
-package calcdoc
+package solve
 
 import (
+	"calcdoc/calcdoc"
 	"fmt"
 	"testing"
 
-	"calcdoc/calcdoc/solve"
+	numeric "calcdoc/calcdoc/kind/solve/numeric"
 )
 
 // preparedLadder evaluates the parameters of the ladder document and
@@ -12,8 +13,8 @@ import (
 // solving it, for timing the solver's phases on their own.
 func preparedLadder(b *testing.B, n int) *solveRun {
 	b.Helper()
-	d := Parse("ladder.md", []byte(ladderDoc(n)), testKinds)
-	var blk *Block
+	d := calcdoc.Parse("ladder.md", []byte(ladderDoc(n)), testKinds)
+	var blk *calcdoc.Block
 	for _, x := range d.Blocks {
 		if x.Kind == "solve" {
 			blk = x
@@ -24,9 +25,9 @@ func preparedLadder(b *testing.B, n int) *solveRun {
 	}
 	// a fresh document in which the parameters are defined but not the
 	// unknowns: evaluate only the calc block
-	d2 := Parse("params.md", []byte(ladderParams()), testKinds)
-	copyBlk := &Block{Kind: "solve", Arg: blk.Arg, ArgPos: blk.ArgPos, InfoPos: blk.InfoPos, Pos: blk.Pos,
-		Lines: blk.Lines, LinePos: blk.LinePos, doc: d2}
+	d2 := calcdoc.Parse("params.md", []byte(ladderParams()), testKinds)
+	copyBlk := d2.Attach(&calcdoc.Block{Kind: "solve", Arg: blk.Arg, ArgPos: blk.ArgPos, InfoPos: blk.InfoPos, Pos: blk.Pos,
+		Lines: blk.Lines, LinePos: blk.LinePos})
 	r := &solveRun{b: copyBlk, set: &SolveSet{}, env: d2.Env}
 	if !r.prepare() {
 		b.Fatalf("prepare failed: %v", copyBlk.Errors)
@@ -52,7 +53,7 @@ func BenchmarkSolveLadder(b *testing.B) {
 		src := []byte(ladderDoc(n))
 		b.Run(fmt.Sprintf("nodes=%d/document", n), func(b *testing.B) {
 			for b.Loop() {
-				d := Parse("ladder.md", src, testKinds)
+				d := calcdoc.Parse("ladder.md", src, testKinds)
 				if len(d.Errors) > 0 {
 					b.Fatal(d.Errors)
 				}
@@ -62,15 +63,15 @@ func BenchmarkSolveLadder(b *testing.B) {
 		p := r.problem(r.x0, r.rscale)
 		b.Run(fmt.Sprintf("nodes=%d/classify+assemble", n), func(b *testing.B) {
 			for b.Loop() {
-				if _, ok, err := solve.Linearize(p); err != nil || !ok {
+				if _, ok, err := numeric.Linearize(p); err != nil || !ok {
 					b.Fatalf("Linearize: ok=%v err=%v", ok, err)
 				}
 			}
 		})
-		lin, _, _ := solve.Linearize(p)
+		lin, _, _ := numeric.Linearize(p)
 		b.Run(fmt.Sprintf("nodes=%d/solve", n), func(b *testing.B) {
 			for b.Loop() {
-				if _, _, err := solve.SolveLinear(lin); err != nil {
+				if _, _, err := numeric.SolveLinear(lin); err != nil {
 					b.Fatal(err)
 				}
 			}

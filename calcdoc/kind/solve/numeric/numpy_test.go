@@ -26,7 +26,7 @@ type refSystems struct {
 
 func loadRef(t testing.TB) *refSystems {
 	t.Helper()
-	raw, err := os.ReadFile(filepath.Join("..", "..", "testdata", "solve", "complex_systems.json"))
+	raw, err := os.ReadFile(filepath.Join("..", "..", "..", "..", "testdata", "solve", "complex_systems.json"))
 	if err != nil {
 		t.Fatalf("reading the NumPy reference vectors: %v", err)
 	}

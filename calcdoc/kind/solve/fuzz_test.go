@@ -1,4 +1,4 @@
-package calcdoc
+package solve
 
 import (
 	"strings"

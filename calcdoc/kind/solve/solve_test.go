@@ -1,6 +1,7 @@
-package calcdoc
+package solve
 
 import (
+	"calcdoc/calcdoc"
 	"encoding/json"
 	"fmt"
 	"math"
@@ -15,13 +16,13 @@ import (
 )
 
 // solveDoc evaluates a document and returns it.
-func solveDoc(t testing.TB, src string) *Document {
+func solveDoc(t testing.TB, src string) *calcdoc.Document {
 	t.Helper()
-	return Parse("test.md", []byte(src), testKinds)
+	return calcdoc.Parse("test.md", []byte(src), testKinds)
 }
 
 // noErrors fails the test when the document has errors.
-func noErrors(t testing.TB, d *Document) {
+func noErrors(t testing.TB, d *calcdoc.Document) {
 	t.Helper()
 	for _, e := range d.Errors {
 		t.Errorf("unexpected error %v", e)
@@ -29,7 +30,7 @@ func noErrors(t testing.TB, d *Document) {
 }
 
 // valueOf returns the scalar value of a defined name in SI units.
-func valueOf(t testing.TB, d *Document, name string) complex128 {
+func valueOf(t testing.TB, d *calcdoc.Document, name string) complex128 {
 	t.Helper()
 	b := d.Env.Lookup(name)
 	if b == nil || b.Unavailable {
@@ -43,7 +44,7 @@ func valueOf(t testing.TB, d *Document, name string) complex128 {
 }
 
 // solveSets returns the results of the document's solve blocks.
-func solveSets(d *Document) []*SolveSet {
+func solveSets(d *calcdoc.Document) []*SolveSet {
 	var out []*SolveSet
 	for _, b := range d.Blocks {
 		if s, ok := b.Result.(*SolveSet); ok {
@@ -98,7 +99,7 @@ type refSystems struct {
 // right-hand sides in kV, unknowns shown in kA, so that the solution in SI
 // is 1000 times NumPy's).
 func TestSolveNumPy(t *testing.T) {
-	raw, err := os.ReadFile(filepath.Join("..", "testdata", "solve", "complex_systems.json"))
+	raw, err := os.ReadFile(filepath.Join("..", "..", "..", "testdata", "solve", "complex_systems.json"))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -492,10 +493,10 @@ func TestSolveClassification(t *testing.T) {
 		name   string
 		src    string
 		linear bool
-		check  func(t *testing.T, d *Document)
+		check  func(t *testing.T, d *calcdoc.Document)
 	}{
 		{"mesh pair", "```calc\nZ = (3 + j4) Ω\n```\n```solve I_a[A], I_b[A]\nm_1: 100 V = I_a*Z + (I_a - I_b)*10 Ω\nm_2: 0 V = (I_b - I_a)*10 Ω + I_b*Z\n```\n", true,
-			func(t *testing.T, d *Document) {
+			func(t *testing.T, d *calcdoc.Document) {
 				// Cramer's rule on [[Z+10, −10], [−10, Z+10]]·[I_a; I_b] = [100; 0] (common practice)
 				z := complex(3, 4)
 				det := (z+10)*(z+10) - 100
@@ -503,34 +504,34 @@ func TestSolveClassification(t *testing.T) {
 				closeTo(t, "I_b", valueOf(t, d, "I_b"), 100*10/det)
 			}},
 		{"conj of an unknown is real-linear", "```solve I[A]\nconj(I)*(2 + j1) Ω = (10 + j5) V\n```\n", true,
-			func(t *testing.T, d *Document) {
+			func(t *testing.T, d *calcdoc.Document) {
 				closeTo(t, "I", valueOf(t, d, "I"), cmplx.Conj(complex(10, 5)/complex(2, 1)))
 			}},
 		{"re and im of an unknown", "```solve V[V]\nre(V) = 3 V\nim(V) = -4 V\n```\n", true,
-			func(t *testing.T, d *Document) { closeTo(t, "V", valueOf(t, d, "V"), complex(3, -4)) }},
+			func(t *testing.T, d *calcdoc.Document) { closeTo(t, "V", valueOf(t, d, "V"), complex(3, -4)) }},
 		{"real unknowns, real equations", "```solve x real, y real\nx + 2*y = 5\n3*x - y = 1\n```\n", true,
-			func(t *testing.T, d *Document) {
+			func(t *testing.T, d *calcdoc.Document) {
 				closeTo(t, "x", valueOf(t, d, "x"), 1)
 				closeTo(t, "y", valueOf(t, d, "y"), 2)
 			}},
 		{"abs", "```solve V[V] near (3 + j3) V\n|V| = 5 V\nre(V) = 3 V\n```\n", false,
-			func(t *testing.T, d *Document) { closeTo(t, "V", valueOf(t, d, "V"), complex(3, 4)) }},
+			func(t *testing.T, d *calcdoc.Document) { closeTo(t, "V", valueOf(t, d, "V"), complex(3, 4)) }},
 		{"product of unknowns", "```solve x real near 1.5, y real near 3.5\nx*y = 6\nx + y = 5\n```\n", false,
-			func(t *testing.T, d *Document) {
+			func(t *testing.T, d *calcdoc.Document) {
 				closeTo(t, "x", valueOf(t, d, "x"), 2)
 				closeTo(t, "y", valueOf(t, d, "y"), 3)
 			}},
 		{"power of an unknown", "```solve x real near 1\nx^2 = 2\n```\n", false,
-			func(t *testing.T, d *Document) { closeTo(t, "x", valueOf(t, d, "x"), complex(math.Sqrt2, 0)) }},
+			func(t *testing.T, d *calcdoc.Document) { closeTo(t, "x", valueOf(t, d, "x"), complex(math.Sqrt2, 0)) }},
 		{"conj of a quotient of unknowns", fmt.Sprintf("```solve V_2[V] near 240 V\nV_2 = %s V - (%s + j%s) Ω * conj((%s + j%s) VA / V_2)\n```\n", num(v1), num(rl), num(xl), num(p), num(q)), false,
-			func(t *testing.T, d *Document) {
+			func(t *testing.T, d *calcdoc.Document) {
 				got := cmplx.Abs(valueOf(t, d, "V_2"))
 				if e := math.Abs(got-loadV) / loadV; e > 1e-9 {
 					t.Errorf("|V_2| = %v V, closed form %v V (relative error %.3g)", got, loadV, e)
 				}
 			}},
 		{"product of two complex unknowns", "```solve V[V] near 200 V, I[A] near 20 A\nV*conj(I) = (4000 + j1500) VA\nV = 230 V - I*(0.4 + j0.2) Ω\n```\n", false,
-			func(t *testing.T, d *Document) {
+			func(t *testing.T, d *calcdoc.Document) {
 				v, i := valueOf(t, d, "V"), valueOf(t, d, "I")
 				closeTo(t, "V·conj(I)", v*cmplx.Conj(i), complex(4000, 1500))
 				closeTo(t, "V + I·Z", v+i*complex(0.4, 0.2), 230)
@@ -673,7 +674,7 @@ func TestSolveValues(t *testing.T) {
 	d := solveDoc(t, "Text.\n\n```solve I[kA], R[Ω] real near 10 Ω\nI*10 Ω = 2 kV\nR*abs(I) = 4 kV\n```\n\n```calc\nP = I^2 * R\n```\n")
 	noErrors(t, d)
 	vj := d.ValuesJSON()
-	found := map[string]ValueJSON{}
+	found := map[string]calcdoc.ValueJSON{}
 	for _, v := range vj.Values {
 		found[v.Name] = v
 	}
