@@ -30,13 +30,13 @@ import (
 //     equation (its real part), every other equation as two.
 //  5. The real counts must agree; the set r(x) = 0 is then classified,
 //     solved directly when affine and iteratively otherwise (package
-//     calcdoc/solve), and the solution is accepted only when its
+//     calcdoc/kind/solve/numeric), and the solution is accepted only when its
 //     componentwise backward error is at most SolveAcceptTol.
 //  6. The unknowns are defined with their solved values (or defined as
 //     unavailable when the set cannot be solved) and listed as values.
 
 // Limits and tolerances of the document layer of solve blocks; the solver
-// core's own are in package calcdoc/solve.
+// core's own are in package calcdoc/kind/solve/numeric.
 const (
 	// SolveProbes is the number of pseudo-random points (besides the
 	// starting point and the generic point) at which each equation is

@@ -6,7 +6,7 @@ import (
 )
 
 // The pictures of phasors and sweep blocks are checked for drawability as
-// the blocks are evaluated (calcdoc.RegisterDrawCheck), with the very
+// the blocks are evaluated (calcdoc.DrawChecker), with the very
 // inputs the sheet draws, so that a picture that cannot be drawn is an
 // error of the document: the summary counts it, the exit status is 3 and
 // the values JSON lists it. The sheet shows each such error once, where
