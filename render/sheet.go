@@ -235,7 +235,11 @@ func prose(w *markup.Writer, doc *calcdoc.Document) error {
 		util.Prioritized(extension.NewStrikethroughHTMLRenderer(), 500),
 		util.Prioritized(&nodes{w: w}, 100),
 	))
-	return r.Render(&w.Buffer, doc.Text, doc.Markdown)
+	// the node renderers write into the writer goldmark hands them
+	// (SetOutput); after the body the page's own buffer again
+	err := r.Render(&w.Buffer, doc.Text, doc.Markdown)
+	w.SetOutput(nil)
+	return err
 }
 
 // nodes renders the node kinds calcdoc changes: evaluated fenced blocks,
@@ -251,8 +255,7 @@ func (n *nodes) RegisterFuncs(reg renderer.NodeRendererFuncRegisterer) {
 }
 
 func (n *nodes) fenced(out util.BufWriter, src []byte, node ast.Node, entering bool) (ast.WalkStatus, error) {
-	// what goldmark has buffered goes first, so the page keeps its order
-	out.Flush()
+	n.w.SetOutput(out)
 	if !entering {
 		return ast.WalkSkipChildren, nil
 	}
@@ -285,8 +288,7 @@ func (n *nodes) fenced(out util.BufWriter, src []byte, node ast.Node, entering b
 }
 
 func (n *nodes) codeSpan(out util.BufWriter, src []byte, node ast.Node, entering bool) (ast.WalkStatus, error) {
-	// what goldmark has buffered goes first, so the page keeps its order
-	out.Flush()
+	n.w.SetOutput(out)
 	if !entering {
 		return ast.WalkSkipChildren, nil
 	}
@@ -327,8 +329,7 @@ func displayFor(doc *calcdoc.Document, d *expr.Display, text string) *expr.Displ
 }
 
 func (n *nodes) rawHTML(out util.BufWriter, src []byte, node ast.Node, entering bool) (ast.WalkStatus, error) {
-	// what goldmark has buffered goes first, so the page keeps its order
-	out.Flush()
+	n.w.SetOutput(out)
 	if entering {
 		raw := node.(*ast.RawHTML)
 		for i := 0; i < raw.Segments.Len(); i++ {
@@ -340,8 +341,7 @@ func (n *nodes) rawHTML(out util.BufWriter, src []byte, node ast.Node, entering 
 }
 
 func (n *nodes) htmlBlock(out util.BufWriter, src []byte, node ast.Node, entering bool) (ast.WalkStatus, error) {
-	// what goldmark has buffered goes first, so the page keeps its order
-	out.Flush()
+	n.w.SetOutput(out)
 	if entering {
 		hb := node.(*ast.HTMLBlock)
 		n.w.WriteString("<pre class=\"rawhtml\">")
@@ -361,8 +361,7 @@ func (n *nodes) htmlBlock(out util.BufWriter, src []byte, node ast.Node, enterin
 // image shows an image reference as text: a sheet loads nothing from
 // outside itself.
 func (n *nodes) image(out util.BufWriter, src []byte, node ast.Node, entering bool) (ast.WalkStatus, error) {
-	// what goldmark has buffered goes first, so the page keeps its order
-	out.Flush()
+	n.w.SetOutput(out)
 	if entering {
 		img := node.(*ast.Image)
 		alt := string(img.Text(src)) //nolint:staticcheck // the alt text

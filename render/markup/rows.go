@@ -60,13 +60,13 @@ func (w *Writer) MathRowTail(class, prefix string, m *ExprML, x expr.Node, tail 
 	if !m.Splits(x) {
 		w.WriteString("<div class=\"" + class + "\"><math display=\"inline\"><mrow>")
 		w.WriteString(prefix)
-		m.WriteNode(&w.Buffer, x, false)
+		m.WriteNode(w, x, false)
 		w.WriteString("</mrow></math>" + tail + "</div>")
 		return
 	}
 	cut, end := w.StartPieces(class, "")
 	w.WriteString(prefix)
-	m.WritePieces(&w.Buffer, x, cut)
+	m.WritePieces(w, x, cut)
 	end(tail)
 }
 
@@ -79,7 +79,7 @@ func (w *Writer) CheckRow(m *ExprML, c *expr.Compare) {
 			cut(true)
 			w.WriteString("<mo>" + OpML[c.Ops[i-1]] + "</mo>")
 		}
-		m.WritePieces(&w.Buffer, x, cut)
+		m.WritePieces(w, x, cut)
 	}
 	end("")
 }
