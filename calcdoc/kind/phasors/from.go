@@ -1,9 +1,9 @@
 package phasors
 
 import (
-	"calcdoc/calcdoc"
 	"strings"
 
+	"calcdoc/calcdoc"
 	"calcdoc/expr"
 )
 

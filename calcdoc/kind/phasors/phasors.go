@@ -1,11 +1,11 @@
 package phasors
 
 import (
-	"calcdoc/calcdoc"
 	"math"
 	"math/cmplx"
 	"strings"
 
+	"calcdoc/calcdoc"
 	"calcdoc/expr"
 )
 

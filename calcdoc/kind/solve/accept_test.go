@@ -1,13 +1,14 @@
 package solve
 
 import (
-	"calcdoc/calcdoc"
 	"math"
 	"math/cmplx"
 	"os"
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"calcdoc/calcdoc"
 )
 
 // The inductance per length of a two-wire line of conductor radius r and

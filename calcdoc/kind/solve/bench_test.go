@@ -1,10 +1,10 @@
 package solve
 
 import (
-	"calcdoc/calcdoc"
 	"fmt"
 	"testing"
 
+	"calcdoc/calcdoc"
 	numeric "calcdoc/calcdoc/kind/solve/numeric"
 )
 

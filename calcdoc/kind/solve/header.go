@@ -1,12 +1,12 @@
 package solve
 
 import (
-	"calcdoc/calcdoc"
 	"fmt"
 	"strings"
 	"unicode"
 	"unicode/utf8"
 
+	"calcdoc/calcdoc"
 	"calcdoc/expr"
 )
 

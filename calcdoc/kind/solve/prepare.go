@@ -1,7 +1,6 @@
 package solve
 
 import (
-	"calcdoc/calcdoc"
 	"fmt"
 	"math"
 	"math/cmplx"
@@ -9,12 +8,33 @@ import (
 	"strings"
 	"unicode/utf8"
 
+	"calcdoc/calcdoc"
 	"calcdoc/expr"
 )
 
-// prepare reads the block, checks it and lays out the real form. It
-// returns false when the set cannot be solved (the reason is recorded).
+// prepare reads the block, checks it and lays out the real form, in the
+// nine stages below. It returns false when the set cannot be solved (the
+// reason is recorded).
 func (r *solveRun) prepare() bool {
+	unk, ok := r.readHeader()
+	ok, goOn := r.readEquations(ok)
+	if !goOn || !r.checkUnknowns(unk, ok) || !r.linkEquations(unk) || !r.layout(unk) {
+		return false
+	}
+	generic, genL, genR, ok := r.checkDimensions(unk)
+	if !ok {
+		return false
+	}
+	baseL, baseR, ok := r.evalAtStart(unk)
+	if !ok || !r.countReal(baseL, baseR, genL, genR) {
+		return false
+	}
+	r.residualScales(generic)
+	return true
+}
+
+// readHeader reads the unknowns of the info string (stage 1).
+func (r *solveRun) readHeader() (unk []*Unknown, ok bool) {
 	b, set := r.b, r.set
 	pos := b.ArgPos
 	if !pos.IsValid() {
@@ -25,9 +45,14 @@ func (r *solveRun) prepare() bool {
 	for _, e := range herrs {
 		r.headerErr(e)
 	}
-	ok := len(herrs) == 0
+	return unk, len(herrs) == 0
+}
 
-	// the equations, read whatever the header says, so they are shown
+// readEquations reads the lines as equations, whatever the header says,
+// so they are shown (stage 2). It says whether the set is still sound and
+// whether to go on.
+func (r *solveRun) readEquations(ok bool) (sound, goOn bool) {
+	b, set := r.b, r.set
 	var perrs expr.ErrorList
 	stmts := expr.ParseBlock(b.Source(), expr.EquationMode, &perrs)
 	per, rest := calcdoc.ErrorsOf(stmts, perrs)
@@ -69,10 +94,15 @@ func (r *solveRun) prepare() bool {
 	}
 	if len(set.Equations) == 0 && ok {
 		r.setErr(r.setPos(), "the solve block has no equations: write one equation a line, lhs = rhs (optionally label: lhs = rhs)")
-		return false
+		return ok, false
 	}
+	return ok, true
+}
 
-	// each unknown is a new name, with a usable starting value
+// checkUnknowns makes sure each unknown is a new name with a usable
+// starting value (stage 3).
+func (r *solveRun) checkUnknowns(unk []*Unknown, ok bool) bool {
+	set := r.set
 	for _, u := range unk {
 		if bd := r.env.Lookup(u.Name); bd != nil {
 			r.headerErr(expr.Errorf(u.Pos, "%s is already defined at line %d: the unknowns of a solve block must be new names (choose another name, e.g. %s_2)", u.Name, bd.Pos.Line, u.Name))
@@ -134,8 +164,14 @@ func (r *solveRun) prepare() bool {
 	if !ok || len(unk) == 0 {
 		return false
 	}
+	return true
+}
 
-	// which unknowns each equation involves
+// linkEquations finds which unknowns each equation involves (stage 4):
+// every equation involves one, and every unknown is in one.
+func (r *solveRun) linkEquations(unk []*Unknown) bool {
+	set := r.set
+	ok := true
 	index := map[string]int{}
 	for k, u := range unk {
 		index[expr.NameKey(u.Name)] = k
@@ -169,8 +205,13 @@ func (r *solveRun) prepare() bool {
 	if !ok {
 		return false
 	}
+	return true
+}
 
-	// the layout of the real form, the starting point and the scales
+// layout lays out the real form, the starting point and the scales of
+// the unknowns (stage 5).
+func (r *solveRun) layout(unk []*Unknown) bool {
+	set := r.set
 	r.unk, r.eqs = unk, set.Equations
 	r.loc = make(map[string]expr.Value, len(unk))
 	r.vals = make([]*expr.Scalar, len(unk))
@@ -220,9 +261,15 @@ func (r *solveRun) prepare() bool {
 			r.n, strings.Join(kinds, " and "), MaxSolveUnknowns, MaxSolveUnknowns/2, MaxSolveUnknowns/2)
 		return false
 	}
+	return true
+}
 
-	// dimensions, at the generic point: no unknown zero, no two alike
-	generic := make([]float64, r.n)
+// checkDimensions evaluates both sides of every equation at the generic
+// point, where no unknown is zero and no two are alike, and checks that
+// their dimensions agree (stage 6).
+func (r *solveRun) checkDimensions(unk []*Unknown) (generic []float64, genL, genR []expr.Scalar, ok bool) {
+	ok = true
+	generic = make([]float64, r.n)
 	for k, u := range unk {
 		c := r.col[k]
 		generic[c] = r.sameSide(c, genericFactor(k, 0.6180339887498949)*r.xscale[c])
@@ -231,13 +278,13 @@ func (r *solveRun) prepare() bool {
 		}
 	}
 	r.setX(generic)
-	genL := make([]expr.Scalar, len(r.eqs))
-	genR := make([]expr.Scalar, len(r.eqs))
+	genL = make([]expr.Scalar, len(r.eqs))
+	genR = make([]expr.Scalar, len(r.eqs))
 	for i, eq := range r.eqs {
 		l, rr, err := r.sides(i)
 		if err != nil {
 			if !r.evalFailed(eq, err, "", "") {
-				return false
+				return nil, nil, nil, false
 			}
 			ok = false
 			continue
@@ -260,24 +307,33 @@ func (r *solveRun) prepare() bool {
 		}
 	}
 	if !ok {
-		return false
+		return nil, nil, nil, false
 	}
+	return generic, genL, genR, true
+}
 
-	// the starting point
+// evalAtStart evaluates both sides of every equation at the starting
+// point (stage 7).
+func (r *solveRun) evalAtStart(unk []*Unknown) (baseL, baseR []expr.Scalar, ok bool) {
 	r.setX(r.x0)
-	baseL := make([]expr.Scalar, len(r.eqs))
-	baseR := make([]expr.Scalar, len(r.eqs))
+	baseL = make([]expr.Scalar, len(r.eqs))
+	baseR = make([]expr.Scalar, len(r.eqs))
 	for i, eq := range r.eqs {
 		l, rr, err := r.sides(i)
 		if err != nil {
 			hint := "; give the unknowns starting values with near, e.g. solve " + nearExample(unk[eq.Unknowns[0]])
 			r.evalFailed(eq, err, "the equations cannot be evaluated at the starting point ("+startWords(unk)+"): ", hint)
-			return false
+			return nil, nil, false
 		}
 		baseL[i], baseR[i] = l, rr
 	}
+	return baseL, baseR, true
+}
 
-	// real-valued equations: the residual is real at every point tried
+// countReal finds the equations whose residual is real at every point
+// tried, each one real equation, and checks the real counts (stage 8).
+func (r *solveRun) countReal(baseL, baseR, genL, genR []expr.Scalar) bool {
+	set := r.set
 	realValued := make([]bool, len(r.eqs))
 	for i := range r.eqs {
 		realValued[i] = isRealDiff(baseL[i], baseR[i]) && isRealDiff(genL[i], genR[i])
@@ -321,11 +377,14 @@ func (r *solveRun) prepare() bool {
 		r.setErr(r.setPos(), "%s", r.countMessage())
 		return false
 	}
+	return true
+}
 
-	// the residual scales: the largest term of each equation at the
-	// generic point (1 in SI units where all are zero). A term that
-	// involves an unknown is not zero there, and one that does not has the
-	// same value everywhere.
+// residualScales sets the residual scales (stage 9): the largest term of
+// each equation at the generic point (1 in SI units where all are zero).
+// A term that involves an unknown is not zero there, and one that does
+// not has the same value everywhere.
+func (r *solveRun) residualScales(generic []float64) {
 	r.setX(generic)
 	r.rscale = make([]float64, r.m)
 	for i, eq := range r.eqs {
@@ -344,7 +403,6 @@ func (r *solveRun) prepare() bool {
 			r.rscale[r.row[i]+1] = q
 		}
 	}
-	return true
 }
 
 // genericFactor is the multiple of its scale by which unknown k departs

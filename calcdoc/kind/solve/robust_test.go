@@ -1,13 +1,13 @@
 package solve
 
 import (
-	"calcdoc/calcdoc"
 	"fmt"
 	"math/cmplx"
 	"strings"
 	"testing"
 	"time"
 
+	"calcdoc/calcdoc"
 	"calcdoc/expr"
 )
 

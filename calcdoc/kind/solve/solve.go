@@ -1,9 +1,9 @@
 package solve
 
 import (
-	"calcdoc/calcdoc"
 	"math"
 
+	"calcdoc/calcdoc"
 	numeric "calcdoc/calcdoc/kind/solve/numeric"
 	"calcdoc/expr"
 

@@ -1,7 +1,6 @@
 package solve
 
 import (
-	"calcdoc/calcdoc"
 	"encoding/json"
 	"fmt"
 	"math"
@@ -12,6 +11,7 @@ import (
 	"strings"
 	"testing"
 
+	"calcdoc/calcdoc"
 	"calcdoc/expr"
 )
 

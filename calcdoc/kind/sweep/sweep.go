@@ -1,7 +1,6 @@
 package sweep
 
 import (
-	"calcdoc/calcdoc"
 	"math"
 	"math/cmplx"
 	"sort"
@@ -9,6 +8,7 @@ import (
 	"strings"
 	"unicode"
 
+	"calcdoc/calcdoc"
 	"calcdoc/expr"
 )
 
