@@ -7,6 +7,7 @@ import (
 	"os"
 	"path/filepath"
 	"sort"
+	"strings"
 )
 
 // Input is one document to process and the path of the output relative to
@@ -61,7 +62,7 @@ func Collect(paths []string, reg *Registry) ([]Input, error) {
 			return nil, err
 		}
 		if len(found) == 0 {
-			return nil, fmt.Errorf("%s: no document with a calc or solve block in this folder", p)
+			return nil, fmt.Errorf("%s: no document with a %s block in this folder", p, orList(reg.Words()))
 		}
 		sort.Slice(found, func(i, j int) bool { return found[i].Path < found[j].Path })
 		out = append(out, found...)
@@ -136,4 +137,12 @@ func SameFile(a, b string) bool {
 	aa, _ := filepath.Abs(a)
 	bb, _ := filepath.Abs(b)
 	return aa == bb
+}
+
+// orList joins words as "a, b or c".
+func orList(words []string) string {
+	if len(words) < 2 {
+		return strings.Join(words, "")
+	}
+	return strings.Join(words[:len(words)-1], ", ") + " or " + words[len(words)-1]
 }

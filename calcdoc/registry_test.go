@@ -3,6 +3,7 @@ package calcdoc_test
 import (
 	"os"
 	"path/filepath"
+	"strings"
 	"testing"
 
 	"calcdoc/calcdoc"
@@ -62,8 +63,8 @@ func TestCollectFindsBlockInBlockquote(t *testing.T) {
 	if err := os.WriteFile(filepath.Join(only, "script.md"), []byte("```python\nx = 1\n```\n"), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	if _, err := calcdoc.Collect([]string{only}, kinds); err == nil {
-		t.Error("a folder with only a python block gave no error")
+	if _, err := calcdoc.Collect([]string{only}, kinds); err == nil || !strings.Contains(err.Error(), "no document with a calc, phasors, solve or sweep block") {
+		t.Errorf("a folder with only a python block: error %v", err)
 	}
 }
 
