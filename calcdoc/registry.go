@@ -119,12 +119,3 @@ func infoWord(n *ast.FencedCodeBlock, src []byte) string {
 	word, _, _ := strings.Cut(strings.TrimSpace(string(n.Info.Segment.Value(src))), " ")
 	return word
 }
-
-// wordKind is a kind that owns one word and evaluates with a function.
-type wordKind struct {
-	word string
-	eval func(b *Block)
-}
-
-func (k wordKind) Words() []string { return []string{k.word} }
-func (k wordKind) Eval(b *Block)   { k.eval(b) }

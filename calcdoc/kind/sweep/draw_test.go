@@ -2,16 +2,12 @@ package sweep
 
 import (
 	"bytes"
-	"encoding/xml"
-	"fmt"
-	"io"
 	"math"
-	"math/cmplx"
-	"strconv"
 	"strings"
 	"testing"
 
 	"calcdoc/calcdoc"
+	"calcdoc/calcdoc/kind/internal/svgread"
 	"calcdoc/render"
 )
 
@@ -26,79 +22,15 @@ func picSheet(t testing.TB, lines ...string) (string, *calcdoc.Document) {
 	return string(out), d
 }
 
-// picSVGs returns every inline <svg> element of a page, in order.
-func picSVGs(page string) []string {
-	var out []string
-	for {
-		i := strings.Index(page, "<svg")
-		if i < 0 {
-			return out
-		}
-		j := strings.Index(page[i:], "</svg>")
-		if j < 0 {
-			return out
-		}
-		out = append(out, page[i:i+j+len("</svg>")])
-		page = page[i+j+len("</svg>"):]
-	}
-}
+// the SVG readers these tests share with the phasors kind's
+var (
+	picSVGs = svgread.SVGs
+	picNum  = svgread.Num
+)
 
-// picElement is one element of an SVG: its name, attributes and text.
-type picElement struct {
-	Name  string
-	Attr  map[string]string
-	Text  string
-	Depth int
-}
+type picElement = svgread.Element
 
-// picParse parses an SVG with encoding/xml and lists its elements in
-// document order; any XML error fails the test.
-func picParse(t *testing.T, s string) []picElement {
-	t.Helper()
-	dec := xml.NewDecoder(strings.NewReader(s))
-	var out []picElement
-	var stack []int
-	for {
-		tok, err := dec.Token()
-		if err == io.EOF {
-			break
-		}
-		if err != nil {
-			t.Fatalf("SVG is not well-formed XML: %v\n%.300s", err, s)
-		}
-		switch tok := tok.(type) {
-		case xml.StartElement:
-			e := picElement{Name: tok.Name.Local, Attr: map[string]string{}, Depth: len(stack)}
-			for _, a := range tok.Attr {
-				e.Attr[a.Name.Local] = a.Value
-			}
-			if len(stack) == 0 && (tok.Name.Space != "http://www.w3.org/2000/svg" || tok.Name.Local != "svg") {
-				t.Fatalf("root element %v, want svg in the SVG namespace", tok.Name)
-			}
-			stack = append(stack, len(out))
-			out = append(out, e)
-		case xml.EndElement:
-			stack = stack[:len(stack)-1]
-		case xml.CharData:
-			for _, k := range stack {
-				out[k].Text += string(tok)
-			}
-		}
-	}
-	if len(stack) != 0 {
-		t.Fatalf("SVG has unclosed elements")
-	}
-	return out
-}
-
-func picNum(t *testing.T, s string) float64 {
-	t.Helper()
-	v, err := strconv.ParseFloat(s, 64)
-	if err != nil {
-		t.Fatalf("not a number: %q", s)
-	}
-	return v
-}
+func picParse(t *testing.T, s string) []picElement { return svgread.Parse(t, s) }
 
 var picCalc = []string{
 	"```calc",
@@ -144,115 +76,6 @@ func TestPictureSVGParsesAsXML(t *testing.T) {
 	}
 	if !strings.Contains(page, "<figcaption>Branch a &amp; its &lt;current&gt;") {
 		t.Errorf("caption not escaped into the figcaption")
-	}
-}
-
-// picArrowEnds returns the tips of the arrowheads ("M x,y ...") in order.
-func picArrowEnds(t *testing.T, els []picElement) [][2]float64 {
-	var out [][2]float64
-	for _, e := range els {
-		if e.Name == "path" && e.Attr["class"] == "head" {
-			var x, y float64
-			if _, err := fmt.Sscanf(e.Attr["d"], "M%f,%f", &x, &y); err != nil {
-				t.Fatalf("bad head path %q", e.Attr["d"])
-			}
-			out = append(out, [2]float64{x, y})
-		}
-	}
-	return out
-}
-
-func TestPhasorArrowEnds(t *testing.T) {
-	deg := math.Pi / 180
-	// The scale rule (documented on svg.PhasorGeometry): the primary
-	// (first) scale takes the 1-2-5 ring value v with 2 ≤ M/v ≤ 8 that lets
-	// the other scales fill the grid best; ρ = 0.9·R·v/M pixels per ring,
-	// R = 130; each other scale takes the smallest 1-2-5 ring value ≥ its
-	// M·v_p/M_p. The ring values below are worked out by hand from it.
-	cases := []struct {
-		name   string
-		list   string
-		values []complex128 // in the scale's unit
-		rings  []float64    // ring value of each arrow's scale, by hand
-		rho    float64
-		legend []string
-	}{
-		{
-			// M_V = 230 V: v ∈ {50, 100}. M_A = 10 A: for v = 100 it needs
-			// 4.35 → 5 A (fill 0.87), for v = 50 it needs 2.17 → 5 A (fill
-			// 0.43); v = 100 V wins.
-			name:   "volts and amperes",
-			list:   "V_a, I_a",
-			values: []complex128{230, cmplx.Rect(10, -30*deg)},
-			rings:  []float64{100, 5},
-			rho:    0.9 * 130 * 100 / 230,
-			legend: []string{"rings: 100 V", "rings: 5 A"},
-		},
-		{
-			// 11 kV is drawn in kV, 1.5 kA in kA (the sheet's units for
-			// them). M_V = 11: v ∈ {2, 5}. M_A = 1.5: for v = 5 it needs
-			// 0.68 → 1 kA (fill 0.68), for v = 2 it needs 0.27 → 0.5 kA
-			// (fill 0.55); v = 5 kV wins.
-			name:   "kilovolts and kiloamperes",
-			list:   "V_b, I_b",
-			values: []complex128{11, cmplx.Rect(1.5, -25*deg)},
-			rings:  []float64{5, 1},
-			rho:    0.9 * 130 * 5 / 11,
-			legend: []string{"rings: 5 kV", "rings: 1 kA"},
-		},
-		{
-			// one scale: M = 10 A, v ∈ {2, 5}; with no other scale every
-			// candidate scores alike and the smaller v (more rings) is taken.
-			name:   "one scale",
-			list:   "I_a, I_a * j",
-			values: []complex128{cmplx.Rect(10, -30*deg), cmplx.Rect(10, 60*deg)},
-			rings:  []float64{2, 2},
-			rho:    0.9 * 130 * 2 / 10,
-			legend: []string{"rings: 2 A"},
-		},
-	}
-	for _, c := range cases {
-		t.Run(c.name, func(t *testing.T) {
-			page, d := picSheet(t, picDoc("```phasors "+c.list, "```")...)
-			if len(d.Errors) != 0 {
-				t.Fatalf("errors: %v", d.Errors)
-			}
-			svgs := picSVGs(page)
-			if len(svgs) != 1 {
-				t.Fatalf("%d SVGs", len(svgs))
-			}
-			els := picParse(t, svgs[0])
-			// the centre: the rings' common centre
-			var cx, cy float64
-			for _, e := range els {
-				if e.Name == "circle" && e.Attr["class"] == "ring" {
-					cx, cy = picNum(t, e.Attr["cx"]), picNum(t, e.Attr["cy"])
-					break
-				}
-			}
-			ends := picArrowEnds(t, els)
-			if len(ends) != len(c.values) {
-				t.Fatalf("%d arrows, want %d", len(ends), len(c.values))
-			}
-			for i, v := range c.values {
-				// x = cx + Re·ρ/v_ring, y = cy − Im·ρ/v_ring (SVG's y axis
-				// points down); coordinates are written with two decimals
-				wx := cx + real(v)*c.rho/c.rings[i]
-				wy := cy - imag(v)*c.rho/c.rings[i]
-				if math.Abs(ends[i][0]-wx) > 0.006 || math.Abs(ends[i][1]-wy) > 0.006 {
-					t.Errorf("arrow %d ends at %v, want (%.3f, %.3f)", i, ends[i], wx, wy)
-				}
-			}
-			var legend []string
-			for _, e := range els {
-				if e.Name == "text" && e.Attr["class"] == "scale" {
-					legend = append(legend, e.Text)
-				}
-			}
-			if strings.Join(legend, "|") != strings.Join(c.legend, "|") {
-				t.Errorf("legend %q, want %q", legend, c.legend)
-			}
-		})
 	}
 }
 
@@ -556,19 +379,6 @@ func TestSweepErrorsInPlace(t *testing.T) {
 				t.Errorf("a failed sweep has a plot")
 			}
 		})
-	}
-}
-
-func TestPhasorErrorsInPlace(t *testing.T) {
-	page, d := picSheet(t, picDoc("```phasors V_a, X_b", "```")...)
-	if len(d.Errors) != 1 {
-		t.Fatalf("errors: %v", d.Errors)
-	}
-	if !strings.Contains(page, `<span class="at">line 11, col 17:</span> unknown name &#34;X_b&#34;`) {
-		t.Errorf("error not shown in place")
-	}
-	if n := len(picSVGs(page)); n != 1 {
-		t.Errorf("%d diagrams, want the one of the values that are defined", n)
 	}
 }
 
