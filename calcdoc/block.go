@@ -1,8 +1,7 @@
 package calcdoc
 
 import (
-	"fmt"
-	"sort"
+	"unicode/utf8"
 
 	"calcdoc/expr"
 
@@ -26,10 +25,14 @@ type Block struct {
 	Result any
 	Errors []*expr.Error
 	// DrawErrors are the errors of Errors that a picture of the block
-	// cannot be drawn (see RegisterDrawCheck).
+	// cannot be drawn (see DrawChecker).
 	DrawErrors []*expr.Error
 	doc        *Document
+	kind       Kind
 }
+
+// KindOf returns the kind that evaluated the block.
+func (b *Block) KindOf() Kind { return b.kind }
 
 // Doc returns the document the block belongs to.
 func (b *Block) Doc() *Document { return b.doc }
@@ -48,39 +51,37 @@ func (b *Block) AddValue(v *NamedValue) { b.doc.Values = append(b.doc.Values, v)
 // AddCheck lists a check among the document's checks.
 func (b *Block) AddCheck(c *CheckRecord) { b.doc.Checks = append(b.doc.Checks, c) }
 
-// Kind evaluates one kind of fenced block. A kind is registered by the
-// word its info string starts with; the renderer registers how each kind
-// is drawn in the same way.
-type Kind interface {
-	Eval(b *Block)
+// SplitTopLevel splits s at the commas outside parentheses and brackets,
+// returning each part with its byte offset in s.
+func SplitTopLevel(s string) (parts []string, offs []int) {
+	depth, start := 0, 0
+	for i := 0; i < len(s); i++ {
+		switch s[i] {
+		case '(', '[':
+			depth++
+		case ')', ']':
+			if depth > 0 {
+				depth--
+			}
+		case ',':
+			if depth == 0 {
+				parts, offs = append(parts, s[start:i]), append(offs, start)
+				start = i + 1
+			}
+		}
+	}
+	return append(parts, s[start:]), append(offs, start)
 }
 
-// KindFunc adapts a function to Kind.
-type KindFunc func(b *Block)
-
-// Eval calls f(b).
-func (f KindFunc) Eval(b *Block) { f(b) }
-
-var kinds = map[string]Kind{}
-
-// RegisterKind makes blocks whose info string starts with word evaluate
-// with k. It panics if word is taken: registration happens in init.
-func RegisterKind(word string, k Kind) {
-	if _, dup := kinds[word]; dup {
-		panic(fmt.Sprintf("calcdoc: block kind %q registered twice", word))
-	}
-	kinds[word] = k
+// ArgAt is the position of byte offset off of the block's argument (the
+// argument lies on the fence line, so only the column moves).
+func (b *Block) ArgAt(off int) expr.Pos {
+	return expr.Pos{Line: b.ArgPos.Line, Col: b.ArgPos.Col + utf8.RuneCountInString(b.Arg[:off])}
 }
 
-// LookupKind returns the kind registered for word, or nil.
-func LookupKind(word string) Kind { return kinds[word] }
-
-// Kinds lists the registered block words, sorted.
-func Kinds() []string {
-	var out []string
-	for k := range kinds {
-		out = append(out, k)
-	}
-	sort.Strings(out)
-	return out
+// Attach makes b a block of d without evaluating it, so that a kind's
+// stages can be run on it alone (the solve kind's benchmarks do).
+func (d *Document) Attach(b *Block) *Block {
+	b.doc = d
+	return b
 }

@@ -39,6 +39,9 @@ type Document struct {
 	Errors   expr.ErrorList // sorted by position
 	Warnings expr.ErrorList // sorted by position
 	Env      *expr.Env
+	// Kinds are the block kinds the document was evaluated with; the
+	// sheet draws each block by its kind.
+	Kinds *Registry
 
 	lines   []int // byte offset of each line start in Text
 	byNode  map[ast.Node]*Block
@@ -124,13 +127,13 @@ func (d *Document) PosAt(off int) expr.Pos {
 	return expr.Pos{Line: i + 1, Col: utf8.RuneCount(d.Text[d.lines[i]:end]) + 1}
 }
 
-// Load reads and evaluates the document at path.
-func Load(path string) (*Document, error) {
+// Load reads and evaluates the document at path with the kinds of reg.
+func Load(path string, reg *Registry) (*Document, error) {
 	src, err := os.ReadFile(path)
 	if err != nil {
 		return nil, err
 	}
-	return Parse(path, src), nil
+	return Parse(path, src, reg), nil
 }
 
 // markdown is the goldmark configuration: CommonMark with GFM tables.
@@ -140,10 +143,12 @@ var markdown = goldmark.New(goldmark.WithExtensions(extension.Table, extension.S
 // that renderers use the same configuration.
 func Markdown() goldmark.Markdown { return markdown }
 
-// Parse evaluates a document from its bytes. It never fails: every problem
-// is in the document's Errors, and evaluation goes on past each one.
-func Parse(path string, src []byte) *Document {
-	d := &Document{Path: path, Source: src, Env: expr.NewEnv(), byNode: map[ast.Node]*Block{}, inlineN: map[ast.Node]*Inline{}}
+// Parse evaluates a document from its bytes, each fenced block whose info
+// string starts with a word of reg by the kind that owns it (other fenced
+// blocks are shown as code). It never fails: every problem is in the
+// document's Errors, and evaluation goes on past each one.
+func Parse(path string, src []byte, reg *Registry) *Document {
+	d := &Document{Path: path, Source: src, Env: expr.NewEnv(), Kinds: reg, byNode: map[ast.Node]*Block{}, inlineN: map[ast.Node]*Inline{}}
 	txt := readerLines(src)
 	var bad []int
 	if !utf8.Valid(txt) {
@@ -269,7 +274,7 @@ func (d *Document) fenced(n *ast.FencedCodeBlock) {
 	}
 	info := string(n.Info.Segment.Value(d.Text))
 	word, rest, _ := strings.Cut(strings.TrimSpace(info), " ")
-	kind := LookupKind(word)
+	kind := d.Kinds.Lookup(word)
 	if kind == nil {
 		return
 	}
@@ -290,8 +295,12 @@ func (d *Document) fenced(n *ast.FencedCodeBlock) {
 	b.doc = d
 	d.Blocks = append(d.Blocks, b)
 	d.byNode[n] = b
+	b.kind = kind
 	kind.Eval(b)
-	b.checkDrawing()
+	if dc, ok := kind.(DrawChecker); ok {
+		b.DrawErrors = dc.DrawCheck(b)
+		b.Errors = append(b.Errors, b.DrawErrors...)
+	}
 	for _, e := range b.Errors {
 		d.Errors = append(d.Errors, e)
 	}

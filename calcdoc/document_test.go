@@ -1,6 +1,7 @@
-package calcdoc
+package calcdoc_test
 
 import (
+	"calcdoc/calcdoc"
 	"math"
 	"math/cmplx"
 	"strings"
@@ -9,12 +10,12 @@ import (
 	"calcdoc/expr"
 )
 
-func parse(t *testing.T, src string) *Document {
+func parse(t *testing.T, src string) *calcdoc.Document {
 	t.Helper()
-	return Parse("test.md", []byte(src))
+	return calcdoc.Parse("test.md", []byte(src), kinds)
 }
 
-func value(t *testing.T, d *Document, name string) *expr.Scalar {
+func value(t *testing.T, d *calcdoc.Document, name string) *expr.Scalar {
 	t.Helper()
 	for _, v := range d.Values {
 		if v.Name == name {
@@ -39,10 +40,10 @@ func TestFrontMatter(t *testing.T) {
 		fm      string
 		wantErr string // substring of the one error, "" for none
 		warn    string
-		check   func(t *testing.T, fm FrontMatter)
+		check   func(t *testing.T, fm calcdoc.FrontMatter)
 	}{
 		{name: "all keys", fm: "title: T\nproject: P\nnumber: N-1\nrevision: B\nprepared: a\nchecked: b\napproved: c\ndate: 2026-11-30\nclient: C\ndigits: 6\nphasors: peak\npaper: letter\nrevisions:\n  - {rev: A, date: 2026-10-01, by: x, note: first}\n",
-			check: func(t *testing.T, fm FrontMatter) {
+			check: func(t *testing.T, fm calcdoc.FrontMatter) {
 				if fm.Title != "T" || fm.Number != "N-1" || fm.Digits != 6 || fm.Phasors != "peak" || fm.Paper != "letter" || len(fm.Revisions) != 1 || fm.Revisions[0].Note != "first" || fm.Client != "C" {
 					t.Errorf("got %+v", fm)
 				}
@@ -118,7 +119,7 @@ func TestUnavailableDoesNotCascade(t *testing.T) {
 		t.Fatalf("want only the root error, got %v", d.Errors)
 	}
 	b := d.Blocks[0]
-	stmts := b.Result.([]*Stmt)
+	stmts := b.Result.([]*calcdoc.Stmt)
 	for _, st := range stmts[1:] {
 		if st.Unavailable == nil {
 			t.Errorf("line %d should be marked not evaluated", st.Stmt.Pos().Line)
@@ -137,7 +138,7 @@ func TestUnavailableDoesNotCascade(t *testing.T) {
 	if len(d.Errors) != 1 || !strings.Contains(d.Errors[0].Msg, "unclosed") {
 		t.Fatalf("want the unclosed parenthesis only, got %v", d.Errors)
 	}
-	if st := d.Blocks[0].Result.([]*Stmt)[1]; st.Unavailable == nil {
+	if st := d.Blocks[0].Result.([]*calcdoc.Stmt)[1]; st.Unavailable == nil {
 		t.Errorf("g should be not evaluated, got %+v", st.Res)
 	}
 }
@@ -157,7 +158,7 @@ func TestErrorsSortedAndEvaluationGoesOn(t *testing.T) {
 }
 
 func TestInvalidUTF8(t *testing.T) {
-	d := Parse("bad.md", []byte("# Title \xff\n\n```calc\nx = 1\n```\n"))
+	d := calcdoc.Parse("bad.md", []byte("# Title \xff\n\n```calc\nx = 1\n```\n"), kinds)
 	if len(d.Errors) != 1 || !strings.Contains(d.Errors[0].Msg, "UTF-8") || d.Errors[0].Pos != (expr.Pos{Line: 1, Col: 9}) {
 		t.Fatalf("got %v", d.Errors)
 	}
@@ -229,19 +230,5 @@ func TestRawHTMLNotExecuted(t *testing.T) {
 	d := parse(t, "<script>alert(1)</script>\n\n```calc\nx = 1\n```\n")
 	if len(d.Errors) > 0 {
 		t.Fatal(d.Errors)
-	}
-}
-
-func TestHasCalc(t *testing.T) {
-	for src, want := range map[string]bool{
-		"```calc\nx=1\n```":       true,
-		"~~~solve x\n~~~":         true,
-		"```calculator\n```":      false,
-		"```python\ncalc\n```":    false,
-		"text\n   ```calc\n```\n": true,
-	} {
-		if HasCalc([]byte(src)) != want {
-			t.Errorf("HasCalc(%q) != %v", src, want)
-		}
 	}
 }

@@ -5,11 +5,13 @@ import (
 	"testing"
 
 	"calcdoc/calcdoc"
+	"calcdoc/calcdoc/kind/phasors"
+	"calcdoc/calcdoc/kind/sweep"
 	"calcdoc/expr"
 )
 
 func docOf(lines ...string) *calcdoc.Document {
-	return calcdoc.Parse("kinds_test.md", []byte(strings.Join(lines, "\n")+"\n"))
+	return calcdoc.Parse("kinds_test.md", []byte(strings.Join(lines, "\n")+"\n"), kinds)
 }
 
 func valueShown(d *calcdoc.Document, name string) (calcdoc.ValueJSON, bool) {
@@ -96,10 +98,10 @@ func TestSweepPowerKinds(t *testing.T) {
 	if len(d.Errors) > 0 {
 		t.Fatal(d.Errors)
 	}
-	var sw *calcdoc.Sweep
+	var sw *sweep.Sweep
 	for _, b := range d.Blocks {
 		if b.Kind == "sweep" {
-			sw = b.Result.(*calcdoc.Sweep)
+			sw = b.Result.(*sweep.Sweep)
 		}
 	}
 	want := map[string]expr.PowerKind{"S_x": expr.PowerApparent, "Q_x": expr.PowerReactive, "P_x": expr.PowerActive, "Q_y": expr.PowerReactive}
@@ -148,7 +150,7 @@ func TestPhasorPowerKinds(t *testing.T) {
 			if b.Kind != "phasors" {
 				continue
 			}
-			for _, it := range b.Result.(*calcdoc.Phasors).Items {
+			for _, it := range b.Result.(*phasors.Phasors).Items {
 				if it.Unit != tc.unit {
 					t.Errorf("phasors %s: %s drawn in %s, want %s", tc.list, it.Text, it.Unit, tc.unit)
 				}

@@ -1,6 +1,7 @@
-package calcdoc
+package calcdoc_test
 
 import (
+	"calcdoc/calcdoc"
 	"strings"
 	"testing"
 
@@ -30,7 +31,7 @@ func TestReaderLineEnds(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			d := Parse("le.md", []byte(c.src))
+			d := calcdoc.Parse("le.md", []byte(c.src), kinds)
 			if d.Front.Digits != 3 || d.Front.Phasors != "peak" {
 				t.Errorf("front matter not read: %+v", d.Front)
 			}
@@ -54,7 +55,7 @@ func TestReaderLineEnds(t *testing.T) {
 // with no front matter), columns count from the first visible character
 // (hand count below).
 func TestBOMFirstLinePositions(t *testing.T) {
-	d := Parse("b.md", []byte("\uFEFFSee `=1 V + 2 A` here.\n"))
+	d := calcdoc.Parse("b.md", []byte("\uFEFFSee `=1 V + 2 A` here.\n"), kinds)
 	if len(d.Errors) != 1 {
 		t.Fatalf("errors %v, want one", d.Errors)
 	}

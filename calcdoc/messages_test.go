@@ -21,7 +21,7 @@ func TestSolveShortHintWording(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
-			d := calcdoc.Parse("short.md", []byte(tc.src))
+			d := calcdoc.Parse("short.md", []byte(tc.src), kinds)
 			if len(d.Errors) != 1 {
 				t.Fatalf("errors %v, want one", d.Errors)
 			}

@@ -15,7 +15,7 @@ import (
 // name (LANGUAGE.md section 3); one whose range is plain numbers may not.
 // Reference: math/cmplx.Rect with the angle in radians.
 func TestSweepVariableHoldsAnAngle(t *testing.T) {
-	d := calcdoc.Parse("sweep_angle.md", []byte("```sweep phi = 0° .. 90° 3\nV = 10 V∠φ\n```\n"))
+	d := calcdoc.Parse("sweep_angle.md", []byte("```sweep phi = 0° .. 90° 3\nV = 10 V∠φ\n```\n"), kinds)
 	if len(d.Errors) != 0 {
 		t.Fatalf("errors: %v", d.Errors)
 	}
@@ -26,7 +26,7 @@ func TestSweepVariableHoldsAnAngle(t *testing.T) {
 			t.Errorf("point %d: V = %v, want %v", i, got, want)
 		}
 	}
-	d = calcdoc.Parse("sweep_plain.md", []byte("```sweep x = 0 .. 1.5 3\nV = 10 V∠x\n```\n"))
+	d = calcdoc.Parse("sweep_plain.md", []byte("```sweep x = 0 .. 1.5 3\nV = 10 V∠x\n```\n"), kinds)
 	if len(d.Errors) == 0 || !strings.Contains(d.Errors[0].Error(), "2:10: the angle after ∠, x, is the plain number") {
 		t.Errorf("errors %v, want the plain-number angle error at 2:10", d.Errors)
 	}
@@ -35,7 +35,7 @@ func TestSweepVariableHoldsAnAngle(t *testing.T) {
 // TestSweepNamesOneSpelling: a line of a sweep block may not define a name
 // under the other spelling of the sweep variable or of a line above.
 func TestSweepNamesOneSpelling(t *testing.T) {
-	d := calcdoc.Parse("sweep_names.md", []byte("```sweep omega = 1 Hz .. 2 Hz 2\nω = 2\nX_phi = 1\nX_φ = 2\n```\n"))
+	d := calcdoc.Parse("sweep_names.md", []byte("```sweep omega = 1 Hz .. 2 Hz 2\nω = 2\nX_phi = 1\nX_φ = 2\n```\n"), kinds)
 	var got []string
 	for _, e := range d.Errors {
 		got = append(got, e.Error())
@@ -51,7 +51,7 @@ func TestSweepNamesOneSpelling(t *testing.T) {
 // TestSolveUnknownOneSpelling: an unknown listed as phi is the φ of the
 // equations. Hand derivation: 2·φ = 1 gives φ = 0.5.
 func TestSolveUnknownOneSpelling(t *testing.T) {
-	d := calcdoc.Parse("solve_names.md", []byte("```solve phi real\n2 * φ = 1\n```\n"))
+	d := calcdoc.Parse("solve_names.md", []byte("```solve phi real\n2 * φ = 1\n```\n"), kinds)
 	if len(d.Errors) != 0 {
 		t.Fatalf("errors: %v", d.Errors)
 	}
@@ -74,7 +74,7 @@ func TestSweepVariableLetters(t *testing.T) {
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
-			d := calcdoc.Parse("sweep_letters.md", []byte("```sweep "+tc.header+"\ny = 2\n```\n"))
+			d := calcdoc.Parse("sweep_letters.md", []byte("```sweep "+tc.header+"\ny = 2\n```\n"), kinds)
 			if len(d.Errors) == 0 || !strings.Contains(d.Errors[0].Error(), tc.msg) {
 				t.Errorf("errors %v, want one containing %q", d.Errors, tc.msg)
 			}
@@ -89,7 +89,7 @@ func TestSweepVariableLetters(t *testing.T) {
 // z = 2·eta is 4, a gap that follows from the gap of η (not an error of
 // its own, and not 2·2 from the point before), −4.
 func TestSweepLineNamesRenewed(t *testing.T) {
-	d := calcdoc.Parse("sweep_eta.md", []byte("```sweep x = 1 .. 3 3\nη = 2 / (2 - x)\nz = 2 * eta\n```\n"))
+	d := calcdoc.Parse("sweep_eta.md", []byte("```sweep x = 1 .. 3 3\nη = 2 / (2 - x)\nz = 2 * eta\n```\n"), kinds)
 	sw := swSweep(t, d)
 	z := sw.Lines[1].Z
 	if real(z[0]) != 4 || !math.IsNaN(real(z[1])) || real(z[2]) != -4 {

@@ -1,6 +1,7 @@
-package calcdoc
+package calcdoc_test
 
 import (
+	"calcdoc/calcdoc"
 	"encoding/json"
 	"strings"
 	"testing"
@@ -71,9 +72,9 @@ func TestFailedDisplayUnitDefinesNothing(t *testing.T) {
 	if len(d.Checks) != 1 || d.Checks[0].Result != nil {
 		t.Errorf("the check on e has a verdict: %+v", d.Checks)
 	}
-	var stmts []*Stmt
+	var stmts []*calcdoc.Stmt
 	for _, b := range d.Blocks {
-		if r, ok := b.Result.([]*Stmt); ok {
+		if r, ok := b.Result.([]*calcdoc.Stmt); ok {
 			stmts = append(stmts, r...)
 		}
 	}

@@ -1,6 +1,7 @@
-package calcdoc
+package calcdoc_test
 
 import (
+	"calcdoc/calcdoc"
 	"fmt"
 	"strings"
 	"testing"
@@ -36,7 +37,7 @@ func TestFrontMatterLineBreaks(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			d := Parse("fm.md", []byte(c.src))
+			d := calcdoc.Parse("fm.md", []byte(c.src), kinds)
 			if len(d.Errors) != 1 {
 				t.Fatalf("errors %v, want one", d.Errors)
 			}
@@ -70,7 +71,7 @@ func TestInlineOverLines(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			d := Parse("inline.md", []byte(c.src))
+			d := calcdoc.Parse("inline.md", []byte(c.src), kinds)
 			if len(d.Inline) != 1 {
 				t.Fatalf("%d inline values, want 1", len(d.Inline))
 			}
@@ -122,8 +123,8 @@ func TestManyErrors(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			var d *Document
-			finishes(t, 2*time.Minute, func() { d = Parse("errors.md", []byte(c.src)) })
+			var d *calcdoc.Document
+			finishes(t, 2*time.Minute, func() { d = calcdoc.Parse("errors.md", []byte(c.src), kinds) })
 			if len(d.Errors) != c.count {
 				t.Fatalf("%d errors, want %d", len(d.Errors), c.count)
 			}
@@ -143,5 +144,22 @@ func TestManyErrors(t *testing.T) {
 				t.Errorf("the error saying the rest are not reported is %v, want one at %v", cut, c.cut)
 			}
 		})
+	}
+}
+
+// finishes runs f and fails the test if it has not returned within
+// limit. The limit is a bound for a hang, far above the time taken, not a
+// timing target (the benchmarks measure that).
+func finishes(t *testing.T, limit time.Duration, f func()) {
+	t.Helper()
+	done := make(chan struct{})
+	go func() {
+		defer close(done)
+		f()
+	}()
+	select {
+	case <-done:
+	case <-time.After(limit):
+		t.Fatalf("did not finish within %v", limit)
 	}
 }

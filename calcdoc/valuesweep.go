@@ -1,10 +1,6 @@
 package calcdoc
 
-import (
-	"strings"
-
-	"calcdoc/expr"
-)
+import "calcdoc/expr"
 
 // SweepJSON is one sweep block in the values JSON (LANGUAGE.md section 8):
 // the line of its opening fence, the sweep variable and its unit, one
@@ -105,10 +101,10 @@ func valueSenseJSON(v expr.Value) *SenseJSON {
 	return nil
 }
 
-// sweepUnit is the unit the values write a sweep quantity in: the coherent
-// SI unit of its dimension (a power by its kind: W, var or VA), and "rad" for a plane angle (the values are in
-// radians).
-func sweepUnit(d expr.Dim, angle bool, kind expr.PowerKind) string {
+// ValuesUnit is the unit the values write a quantity in: the coherent SI
+// unit of its dimension (a power by its kind: W, var or VA), and "rad"
+// for a plane angle (the values are in radians).
+func ValuesUnit(d expr.Dim, angle bool, kind expr.PowerKind) string {
 	if angle && d.IsZero() {
 		return "rad"
 	}
@@ -116,25 +112,11 @@ func sweepUnit(d expr.Dim, angle bool, kind expr.PowerKind) string {
 	return u
 }
 
-// Label is the line's text as the sheet's table heads it: the name it
-// defines, or its expression as written, without its note.
-func (l *SweepLine) Label() string {
-	if l.Name != "" {
-		return l.Name
-	}
-	return strings.TrimSpace(strings.SplitN(l.Text, "#", 2)[0])
-}
-
-// Columns are the lines of the sweep that have a value at some point: the
-// columns of the sheet's table and of the values.
-func (s *Sweep) Columns() []*SweepLine {
-	var cols []*SweepLine
-	for _, l := range s.Lines {
-		if l.OK() {
-			cols = append(cols, l)
-		}
-	}
-	return cols
+// SweepValuer is a block result that lists itself in the values JSON as a
+// sweep (the sweep kind's result).
+type SweepValuer interface {
+	// SweepJSON is the entry of the block whose opening fence is at line.
+	SweepJSON(line int) SweepJSON
 }
 
 // SweepsJSON lists every sweep block of the document with every point. A
@@ -143,29 +125,15 @@ func (s *Sweep) Columns() []*SweepLine {
 func (d *Document) SweepsJSON() []SweepJSON {
 	out := []SweepJSON{}
 	for _, b := range d.Blocks {
-		sw, ok := b.Result.(*Sweep)
-		if b.Kind != "sweep" || !ok {
-			continue
+		if sv, ok := b.Result.(SweepValuer); ok {
+			out = append(out, sv.SweepJSON(b.Pos.Line))
 		}
-		sj := SweepJSON{Line: b.Pos.Line, Variable: sw.Var, Unit: sweepUnit(sw.Dim, sw.Angle, sw.Kind), Columns: []ColumnJSON{}, Points: []PointJSON{}}
-		if sw.X == nil {
-			out = append(out, sj)
-			continue
-		}
-		cols := sw.Columns()
-		for _, l := range cols {
-			sj.Columns = append(sj.Columns, ColumnJSON{Text: l.Label(), Line: l.Stmt.Pos().Line, Unit: sweepUnit(l.Dim, l.Angle, l.Kind)})
-		}
-		for i, x := range sw.X {
-			p := PointJSON{X: jsonNum(x), Values: make([]SweepValJSON, len(cols))}
-			for k, l := range cols {
-				if s := l.At(i); s != nil {
-					p.Values[k] = SweepValJSON{Re: jsonNum(real(s.Z)), Im: jsonNum(imag(s.Z)), SenseJSON: senseJSON(s)}
-				}
-			}
-			sj.Points = append(sj.Points, p)
-		}
-		out = append(out, sj)
 	}
 	return out
 }
+
+// SenseJSONOf is the sense of a scalar, or nil when it is no power factor.
+func SenseJSONOf(s *expr.Scalar) *SenseJSON { return senseJSON(s) }
+
+// JSONNum is a float for JSON: NaN and infinities are null.
+func JSONNum(x float64) any { return jsonNum(x) }

@@ -6,6 +6,7 @@ import (
 	"testing"
 
 	"calcdoc/calcdoc"
+	"calcdoc/calcdoc/kind"
 )
 
 // checkRow returns the numbers (<mn>) of the check row of the given line,
@@ -57,7 +58,7 @@ func TestCheckRowTellsSidesApart(t *testing.T) {
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
 			src := "---\ndigits: " + c.digits + "\n---\n\n```calc\n" + c.check + "\n```\n"
-			doc := calcdoc.Parse("c.md", []byte(src))
+			doc := calcdoc.Parse("c.md", []byte(src), kind.Standard())
 			if len(doc.Errors) > 0 {
 				t.Fatalf("errors: %v", doc.Errors)
 			}

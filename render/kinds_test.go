@@ -9,6 +9,7 @@ import (
 	"testing"
 
 	"calcdoc/calcdoc"
+	"calcdoc/calcdoc/kind"
 	"calcdoc/expr"
 )
 
@@ -29,7 +30,7 @@ func TestExamplesShowPowersByKind(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		doc := calcdoc.Parse(f, src)
+		doc := calcdoc.Parse(f, src, kind.Standard())
 		html, err := Sheet(doc, fixedOptions(src))
 		if err != nil {
 			t.Fatal(err)
@@ -100,7 +101,7 @@ func TestKindNotStatedRow(t *testing.T) {
 		"Q_1 = 3 * 50 kvar",
 		"sqrt(3) * V * 20 A",
 		"```", ""}, "\n"))
-	doc := calcdoc.Parse("kinds.md", src)
+	doc := calcdoc.Parse("kinds.md", src, kind.Standard())
 	html, err := Sheet(doc, fixedOptions(src))
 	if err != nil {
 		t.Fatal(err)
@@ -131,7 +132,7 @@ func TestKindNotStatedSolve(t *testing.T) {
 		want bool
 	}{{"```solve P near 1 kW", true}, {"```solve P[kW] near 1 kW", false}} {
 		src := []byte(tc.head + "\nP / (400 V) = 10 A\n```\n")
-		doc := calcdoc.Parse("kinds.md", src)
+		doc := calcdoc.Parse("kinds.md", src, kind.Standard())
 		if len(doc.Errors) > 0 {
 			t.Fatal(doc.Errors)
 		}

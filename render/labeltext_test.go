@@ -6,7 +6,9 @@ import (
 	"testing"
 
 	"calcdoc/calcdoc"
+	"calcdoc/calcdoc/kind"
 	"calcdoc/expr"
+	"calcdoc/render/markup"
 	"calcdoc/render/svg"
 )
 
@@ -41,7 +43,7 @@ func TestLabelRuns(t *testing.T) {
 			if len(errs) > 0 {
 				t.Fatalf("parse: %v", errs)
 			}
-			got := LabelRuns(n)
+			got := markup.LabelRuns(n)
 			if len(got) != len(c.want) {
 				t.Fatalf("runs %v, want %v", got, c.want)
 			}
@@ -59,7 +61,7 @@ func TestLabelRuns(t *testing.T) {
 // typeset, and its arrow starts where the earlier arrow ends.
 func TestPhasorLabelsOnTheSheet(t *testing.T) {
 	src := "```calc\nV_r = 230 V\nI_L = 40 A∠-30°\nZ_c = (0.5 + j3) Ω\nV_s = V_r + I_L*Z_c\n```\n\n```phasors V_r, I_L*Z_c from V_r, V_s\n```\n"
-	doc := calcdoc.Parse("p.md", []byte(src))
+	doc := calcdoc.Parse("p.md", []byte(src), kind.Standard())
 	if len(doc.Errors) > 0 {
 		t.Fatalf("errors: %v", doc.Errors)
 	}

@@ -12,6 +12,7 @@ import (
 	"testing"
 
 	"calcdoc/calcdoc"
+	"calcdoc/calcdoc/kind"
 	"calcdoc/render/pdf"
 	"calcdoc/render/pdf/pdftest"
 )
@@ -97,7 +98,7 @@ func TestLongRowsBreakInPrint(t *testing.T) {
 	for _, paper := range []string{"a4", "letter"} {
 		t.Run(paper, func(t *testing.T) {
 			src := longRowDoc(paper)
-			doc := calcdoc.Parse("longrow.md", []byte(src))
+			doc := calcdoc.Parse("longrow.md", []byte(src), kind.Standard())
 			if len(doc.Errors) > 0 {
 				t.Fatalf("errors: %v", doc.Errors)
 			}

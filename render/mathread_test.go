@@ -19,6 +19,7 @@ import (
 	"strings"
 
 	"calcdoc/expr"
+	"calcdoc/render/markup"
 )
 
 // mlNode is an element of the MathML read back.
@@ -582,7 +583,7 @@ func stmtCanon(st expr.Stmt) string {
 func canonName(name string) string {
 	parts := strings.Split(name, "_")
 	for i, s := range parts {
-		parts[i] = greekOf(s)
+		parts[i] = markup.GreekOf(s)
 	}
 	return strings.Join(parts, "_")
 }
@@ -613,7 +614,7 @@ func canon(n expr.Node) string {
 	case *expr.Paren:
 		return canon(n.X)
 	case *expr.WithUnit:
-		u := unitSource(unitText(n.Unit.Text))
+		u := unitSource(markup.UnitText(n.Unit.Text))
 		if u == "°" {
 			return "(" + canon(n.X) + ")°"
 		}

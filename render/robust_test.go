@@ -7,6 +7,7 @@ import (
 	"time"
 
 	"calcdoc/calcdoc"
+	"calcdoc/calcdoc/kind"
 	"calcdoc/expr"
 )
 
@@ -22,7 +23,7 @@ func build(t *testing.T, src string, limit time.Duration) (*calcdoc.Document, st
 	done := make(chan struct{})
 	go func() {
 		defer close(done)
-		d = calcdoc.Parse("robust.md", []byte(src))
+		d = calcdoc.Parse("robust.md", []byte(src), kind.Standard())
 		html, err = Sheet(d, Options{Version: "test"})
 	}()
 	select {

@@ -26,6 +26,7 @@ import (
 	"testing"
 
 	"calcdoc/calcdoc"
+	"calcdoc/calcdoc/kind"
 	"calcdoc/expr"
 )
 
@@ -57,7 +58,7 @@ type rtStats struct{ formulas, substs int }
 func roundTrip(t testing.TB, stmts []string) rtStats {
 	t.Helper()
 	src := "---\ndigits: 12\n---\n```calc\n" + strings.Join(preamble, "\n") + "\n" + strings.Join(stmts, "\n") + "\n```\n"
-	doc := calcdoc.Parse("roundtrip.md", []byte(src))
+	doc := calcdoc.Parse("roundtrip.md", []byte(src), kind.Standard())
 	html, err := Sheet(doc, Options{Version: "test"})
 	if err != nil {
 		t.Fatalf("no sheet: %v", err)

@@ -6,6 +6,7 @@ import (
 	"testing"
 
 	"calcdoc/calcdoc"
+	"calcdoc/calcdoc/kind"
 )
 
 // TestPowerFactorSenseOnTheSheet checks that a power factor shows its
@@ -27,7 +28,7 @@ func TestPowerFactorSenseOnTheSheet(t *testing.T) {
 		"```sweep n = 0 .. 2 3\n" + // 12
 		"powerfactor(400 kW + j*(300 kvar - n * 300 kvar))\n" + // 13
 		"```\n"
-	doc := calcdoc.Parse("pf.md", []byte(src))
+	doc := calcdoc.Parse("pf.md", []byte(src), kind.Standard())
 	if len(doc.Errors) > 0 {
 		t.Fatalf("errors: %v", doc.Errors)
 	}

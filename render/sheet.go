@@ -1,18 +1,17 @@
 // Package render writes a calculation sheet: one self-contained HTML file
 // per document, with inline CSS, no outside resource and no script. Prose
 // is rendered by goldmark; evaluated blocks are drawn by the renderer
-// registered for their kind (RegisterBlock), as goldmark renders by node
-// kind.
+// of their kind (markup.Drawer), as goldmark renders by node kind.
 package render
 
 import (
-	"bytes"
 	"fmt"
 	"sort"
 	"strings"
 
 	"calcdoc/calcdoc"
 	"calcdoc/expr"
+	"calcdoc/render/markup"
 
 	"github.com/yuin/goldmark/ast"
 	"github.com/yuin/goldmark/extension"
@@ -40,53 +39,9 @@ type Options struct {
 	HeadExtra string
 }
 
-// BlockRenderer draws one evaluated block into w.
-type BlockRenderer func(w *Writer, b *calcdoc.Block)
-
-var blockRenderers = map[string]BlockRenderer{}
-
-// RegisterBlock makes blocks of a kind draw with fn.
-func RegisterBlock(kind string, fn BlockRenderer) {
-	if _, dup := blockRenderers[kind]; dup {
-		panic("render: block kind " + kind + " registered twice")
-	}
-	blockRenderers[kind] = fn
-}
-
-// Writer is what block renderers write into: the page buffer and the
-// document being drawn.
-type Writer struct {
-	bytes.Buffer
-	Doc *calcdoc.Document
-	// Appendix collects sections drawn at the end of the sheet (large
-	// matrices of a solve block).
-	Appendix bytes.Buffer
-	values   map[valueKey]shownValue
-	// typesetters are the formula and substitution typesetters of calc rows
-	typesetters [2]*ExprML
-}
-
-// Digits is the number of significant figures of the document.
-func (w *Writer) Digits() int { return w.Doc.Digits() }
-
-// Printf writes formatted text.
-func (w *Writer) Printf(format string, args ...any) { fmt.Fprintf(&w.Buffer, format, args...) }
-
-// ErrorRow writes an error in place: its position and message, on screen
-// and in print, marked by words (not colour alone).
-func (w *Writer) ErrorRow(e *expr.Error) {
-	w.Printf("<div class=\"err\" role=\"alert\"><span class=\"tag\">ERROR</span> <span class=\"at\">line %d, col %d:</span> %s</div>\n", e.Pos.Line, e.Pos.Col, esc(e.Msg))
-}
-
-// UnavailableRow writes the note of a line that could not be evaluated
-// because it uses a name whose definition failed.
-func (w *Writer) UnavailableRow(u *expr.UnavailableError) {
-	w.Printf("<div class=\"na\"><span class=\"tag\">NOT EVALUATED</span> uses %s, which has no value: the definition at line %d failed</div>\n", NameHTML(u.Name), u.Def.Line)
-}
-
 // Sheet writes the HTML sheet of a document.
 func Sheet(doc *calcdoc.Document, opt Options) ([]byte, error) {
-	w := newWriter(doc)
+	w := markup.NewWriter(doc)
 	// a sheet is about fifteen times its source: grow once, not by doubling
 	w.Grow(64<<10 + 20*len(doc.Source))
 	w.WriteString("<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n")
@@ -111,7 +66,7 @@ func Sheet(doc *calcdoc.Document, opt Options) ([]byte, error) {
 // sheets (a package) composes it with CSS, PageCSS and HeadTitle, as Sheet
 // does.
 func Body(doc *calcdoc.Document, opt Options) ([]byte, error) {
-	w := newWriter(doc)
+	w := markup.NewWriter(doc)
 	w.Grow(32<<10 + 20*len(doc.Source))
 	if err := body(w, doc, opt); err != nil {
 		return nil, err
@@ -119,11 +74,7 @@ func Body(doc *calcdoc.Document, opt Options) ([]byte, error) {
 	return w.Bytes(), nil
 }
 
-func newWriter(doc *calcdoc.Document) *Writer {
-	return &Writer{Doc: doc, values: map[valueKey]shownValue{}}
-}
-
-func body(w *Writer, doc *calcdoc.Document, opt Options) error {
+func body(w *markup.Writer, doc *calcdoc.Document, opt Options) error {
 	if m := MarkerText(doc, opt); m != "" {
 		w.Printf("<div class=\"marker\" aria-hidden=\"true\"><span>%s</span></div>\n", esc(m))
 		w.Printf("<p class=\"marker-text\">%s</p>\n", esc(m))
@@ -228,14 +179,14 @@ func PageCSS(doc *calcdoc.Document, opt Options) string {
 }
 
 // Field writes one labelled cell of a title block.
-func Field(w *Writer, label, value string) {
+func Field(w *markup.Writer, label, value string) {
 	if value == "" {
 		value = "—"
 	}
 	w.Printf("<td><span class=\"lbl\">%s</span><span class=\"val\">%s</span></td>", esc(label), esc(value))
 }
 
-func titleBlock(w *Writer, fm calcdoc.FrontMatter, title string) {
+func titleBlock(w *markup.Writer, fm calcdoc.FrontMatter, title string) {
 	w.WriteString("<header class=\"tb\">\n<table class=\"tb\">\n")
 	w.WriteString("<tr>")
 	Field(w, "Project", fm.Project)
@@ -261,7 +212,7 @@ func titleBlock(w *Writer, fm calcdoc.FrontMatter, title string) {
 
 // RevisionHistory writes a title block's revision history as a table with
 // caption; nothing when there is none.
-func RevisionHistory(w *Writer, caption string, revs []calcdoc.Revision) {
+func RevisionHistory(w *markup.Writer, caption string, revs []calcdoc.Revision) {
 	if len(revs) == 0 {
 		return
 	}
@@ -274,7 +225,7 @@ func RevisionHistory(w *Writer, caption string, revs []calcdoc.Revision) {
 
 // summary states at the top whether the sheet evaluated, how many checks
 // hold, and lists every error and warning with its position.
-func summary(w *Writer, doc *calcdoc.Document) {
+func summary(w *markup.Writer, doc *calcdoc.Document) {
 	held, failed, notEval := doc.CheckCounts()
 	state := "Evaluated without errors."
 	if len(doc.Errors) > 0 {
@@ -311,19 +262,23 @@ func plural(n int) string {
 
 // prose renders the Markdown body with goldmark, drawing evaluated blocks
 // and inline values through calcdoc's node renderers.
-func prose(w *Writer, doc *calcdoc.Document) error {
+func prose(w *markup.Writer, doc *calcdoc.Document) error {
 	r := renderer.NewRenderer(renderer.WithNodeRenderers(
 		util.Prioritized(ghtml.NewRenderer(), 1000),
 		util.Prioritized(extension.NewTableHTMLRenderer(), 500),
 		util.Prioritized(extension.NewStrikethroughHTMLRenderer(), 500),
 		util.Prioritized(&nodes{w: w}, 100),
 	))
-	return r.Render(&w.Buffer, doc.Text, doc.Markdown)
+	// the node renderers write into the writer goldmark hands them
+	// (SetOutput); after the body the page's own buffer again
+	err := r.Render(&w.Buffer, doc.Text, doc.Markdown)
+	w.SetOutput(nil)
+	return err
 }
 
 // nodes renders the node kinds calcdoc changes: evaluated fenced blocks,
 // inline values, raw HTML (shown as text) and images (not loaded).
-type nodes struct{ w *Writer }
+type nodes struct{ w *markup.Writer }
 
 func (n *nodes) RegisterFuncs(reg renderer.NodeRendererFuncRegisterer) {
 	reg.Register(ast.KindFencedCodeBlock, n.fenced)
@@ -334,15 +289,14 @@ func (n *nodes) RegisterFuncs(reg renderer.NodeRendererFuncRegisterer) {
 }
 
 func (n *nodes) fenced(out util.BufWriter, src []byte, node ast.Node, entering bool) (ast.WalkStatus, error) {
-	// what goldmark has buffered goes first, so the page keeps its order
-	out.Flush()
+	n.w.SetOutput(out)
 	if !entering {
 		return ast.WalkSkipChildren, nil
 	}
 	w := n.w
 	if b := w.Doc.BlockFor(node); b != nil {
-		if fn := blockRenderers[b.Kind]; fn != nil {
-			fn(w, b)
+		if d, ok := b.KindOf().(markup.Drawer); ok {
+			d.Draw(w, b)
 			return ast.WalkSkipChildren, nil
 		}
 	}
@@ -368,8 +322,7 @@ func (n *nodes) fenced(out util.BufWriter, src []byte, node ast.Node, entering b
 }
 
 func (n *nodes) codeSpan(out util.BufWriter, src []byte, node ast.Node, entering bool) (ast.WalkStatus, error) {
-	// what goldmark has buffered goes first, so the page keeps its order
-	out.Flush()
+	n.w.SetOutput(out)
 	if !entering {
 		return ast.WalkSkipChildren, nil
 	}
@@ -383,7 +336,7 @@ func (n *nodes) codeSpan(out util.BufWriter, src []byte, node ast.Node, entering
 			}
 			w.Printf("<span class=\"inl-err\" id=\"L%d\">[ERROR: %s]</span>", in.Pos.Line, esc(msg))
 		default:
-			w.Printf("<span class=\"inl\" title=\"%s\">%s</span>", esc(in.Text), Math(ValueML(in.Value, displayFor(w.Doc, in.Display, in.Text), w.Digits(), false)+senseML(in.Value)))
+			w.Printf("<span class=\"inl\" title=\"%s\">%s</span>", esc(in.Text), markup.Math(markup.ValueML(in.Value, displayFor(w.Doc, in.Display, in.Text), w.Digits(), false)+markup.SenseML(in.Value)))
 		}
 		return ast.WalkSkipChildren, nil
 	}
@@ -410,8 +363,7 @@ func displayFor(doc *calcdoc.Document, d *expr.Display, text string) *expr.Displ
 }
 
 func (n *nodes) rawHTML(out util.BufWriter, src []byte, node ast.Node, entering bool) (ast.WalkStatus, error) {
-	// what goldmark has buffered goes first, so the page keeps its order
-	out.Flush()
+	n.w.SetOutput(out)
 	if entering {
 		raw := node.(*ast.RawHTML)
 		for i := 0; i < raw.Segments.Len(); i++ {
@@ -423,8 +375,7 @@ func (n *nodes) rawHTML(out util.BufWriter, src []byte, node ast.Node, entering 
 }
 
 func (n *nodes) htmlBlock(out util.BufWriter, src []byte, node ast.Node, entering bool) (ast.WalkStatus, error) {
-	// what goldmark has buffered goes first, so the page keeps its order
-	out.Flush()
+	n.w.SetOutput(out)
 	if entering {
 		hb := node.(*ast.HTMLBlock)
 		n.w.WriteString("<pre class=\"rawhtml\">")
@@ -444,8 +395,7 @@ func (n *nodes) htmlBlock(out util.BufWriter, src []byte, node ast.Node, enterin
 // image shows an image reference as text: a sheet loads nothing from
 // outside itself.
 func (n *nodes) image(out util.BufWriter, src []byte, node ast.Node, entering bool) (ast.WalkStatus, error) {
-	// what goldmark has buffered goes first, so the page keeps its order
-	out.Flush()
+	n.w.SetOutput(out)
 	if entering {
 		img := node.(*ast.Image)
 		alt := string(img.Text(src)) //nolint:staticcheck // the alt text

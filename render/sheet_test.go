@@ -13,6 +13,7 @@ import (
 	"testing"
 
 	"calcdoc/calcdoc"
+	"calcdoc/calcdoc/kind"
 	"calcdoc/render/pdf"
 	"calcdoc/render/pdf/pdftest"
 )
@@ -38,7 +39,7 @@ func buildExample(t *testing.T, name string) (*calcdoc.Document, []byte) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	doc := calcdoc.Parse("examples/"+name+".md", src)
+	doc := calcdoc.Parse("examples/"+name+".md", src, kind.Standard())
 	html, err := Sheet(doc, fixedOptions(src))
 	if err != nil {
 		t.Fatal(err)
@@ -186,7 +187,7 @@ func TestMathWellFormed(t *testing.T) {
 
 func TestEscaping(t *testing.T) {
 	src := "---\ntitle: <script>alert('t')</script>\nproject: \"<b>P</b>\"\n---\n\n<script>alert('prose')</script>\n\nText with <em onclick=\"x()\">inline html</em>.\n\n```calc\nx = 2 V   # <script>alert('desc')</script>\n# <script>note</script>\n```\n\n![a picture](http://example.invalid/x.png)\n"
-	doc := calcdoc.Parse("esc.md", []byte(src))
+	doc := calcdoc.Parse("esc.md", []byte(src), kind.Standard())
 	out, err := Sheet(doc, Options{Version: "test"})
 	if err != nil {
 		t.Fatal(err)
@@ -207,7 +208,7 @@ func TestEscaping(t *testing.T) {
 
 func TestErrorsInPlace(t *testing.T) {
 	src := "```calc\na = 1 ohms\nb = a * 2\nc = 3 V + 2 A\n```\n"
-	doc := calcdoc.Parse("e.md", []byte(src))
+	doc := calcdoc.Parse("e.md", []byte(src), kind.Standard())
 	out, _ := Sheet(doc, Options{Version: "test"})
 	s := string(out)
 	for _, want := range []string{
@@ -245,7 +246,7 @@ func TestPrintedPages(t *testing.T) {
 	pdftest.Chromium(t)
 	pdftest.Pdftotext(t)
 	src := []byte(longDoc(120))
-	doc := calcdoc.Parse("print.md", src)
+	doc := calcdoc.Parse("print.md", src, kind.Standard())
 	html, err := Sheet(doc, fixedOptions(src))
 	if err != nil {
 		t.Fatal(err)

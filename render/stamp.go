@@ -2,6 +2,7 @@ package render
 
 import (
 	"bytes"
+	"calcdoc/render/markup"
 	"crypto/sha256"
 	"encoding/base64"
 	"encoding/hex"
@@ -126,7 +127,7 @@ func MarkerText(doc *calcdoc.Document, opt Options) string {
 // source, the commit of the file's last change, the state of the working
 // tree, calcdoc's version, and the revision and date of the front matter.
 // The same facts are data attributes, so verify can read them back.
-func stampSection(w *Writer, doc *calcdoc.Document, opt Options) {
+func stampSection(w *markup.Writer, doc *calcdoc.Document, opt Options) {
 	s := opt.Stamp
 	w.Printf("<section class=\"stamp\" data-sha256=\"%s\" data-commit=\"%s\" data-commit-date=\"%s\" data-state=\"%s\" data-detail=\"%s\" data-version=\"%s\">\n",
 		esc(s.SHA256), esc(s.Commit), esc(s.CommitDate), esc(s.State.String()), esc(s.Detail), esc(opt.Version))
@@ -178,7 +179,7 @@ const SourceID = "calcdoc-source"
 // embedSource carries the document's source in the sheet, inert (a hidden
 // <pre>, never a script) and escaped, so that verify can recover it byte
 // for byte. A source that is not valid UTF-8 is carried as base64.
-func embedSource(w *Writer, doc *calcdoc.Document) {
+func embedSource(w *markup.Writer, doc *calcdoc.Document) {
 	text := utf8.Valid(doc.Source)
 	enc := "text"
 	if !text {

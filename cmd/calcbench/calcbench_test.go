@@ -10,6 +10,8 @@ import (
 	"testing"
 
 	"calcdoc/calcdoc"
+	"calcdoc/calcdoc/kind"
+	"calcdoc/calcdoc/kind/solve"
 	"calcdoc/expr"
 )
 
@@ -86,7 +88,7 @@ func calcStatements(d *calcdoc.Document) (stmts, unknowns, equations int) {
 					stmts++
 				}
 			}
-		case *calcdoc.SolveSet:
+		case *solve.SolveSet:
 			unknowns += len(r.Unknowns)
 			equations += len(r.Equations)
 		}
@@ -121,7 +123,7 @@ func TestGenerate(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			d := calcdoc.Parse("gen.md", []byte(doc))
+			d := calcdoc.Parse("gen.md", []byte(doc), kind.Standard())
 			if len(d.Errors) > 0 {
 				t.Fatalf("%d errors, the first: %v", len(d.Errors), d.Errors[0])
 			}
@@ -233,7 +235,7 @@ func TestFeederArithmetic(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	d := calcdoc.Parse("gen.md", []byte(doc))
+	d := calcdoc.Parse("gen.md", []byte(doc), kind.Standard())
 	vn, zsrc := complex(230, 0), complex(0.02, 0.05)
 	for _, k := range []int{1, 7, 29, 66} {
 		t.Run(fmt.Sprintf("feeder %d", k), func(t *testing.T) {
@@ -267,7 +269,7 @@ func TestLadder(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			d := calcdoc.Parse("ladder.md", []byte(doc))
+			d := calcdoc.Parse("ladder.md", []byte(doc), kind.Standard())
 			if len(d.Errors) > 0 {
 				t.Fatal(d.Errors)
 			}

@@ -4,6 +4,7 @@ import (
 	"testing"
 
 	"calcdoc/calcdoc"
+	"calcdoc/calcdoc/kind"
 	"calcdoc/render"
 )
 
@@ -13,14 +14,14 @@ func BenchmarkParse2000(b *testing.B) {
 	src := []byte(GenerateDoc(2000))
 	b.ReportAllocs()
 	for i := 0; i < b.N; i++ {
-		calcdoc.Parse("big.md", src)
+		calcdoc.Parse("big.md", src, kind.Standard())
 	}
 }
 
 // BenchmarkRender2000 writes the sheet of the evaluated document.
 func BenchmarkRender2000(b *testing.B) {
 	src := []byte(GenerateDoc(2000))
-	doc := calcdoc.Parse("big.md", src)
+	doc := calcdoc.Parse("big.md", src, kind.Standard())
 	b.ReportAllocs()
 	b.ResetTimer()
 	for i := 0; i < b.N; i++ {

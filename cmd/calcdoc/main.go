@@ -13,6 +13,7 @@ import (
 	"runtime/debug"
 
 	"calcdoc/calcdoc"
+	"calcdoc/calcdoc/kind"
 	"calcdoc/cmd/internal/build"
 )
 
@@ -168,7 +169,7 @@ func (c *cli) inputs(fs *flag.FlagSet, args []string) (inputs []build.Input, st 
 	if len(paths) == 0 {
 		return nil, c.usageErr("%s needs at least one PATH", fs.Name())
 	}
-	inputs, err = build.Collect(paths)
+	inputs, err = build.Collect(paths, kind.Standard())
 	if err != nil {
 		return nil, c.usageErr("%v", err)
 	}
@@ -188,7 +189,7 @@ func (c *cli) build(args []string) int {
 	}
 	st := exitOK
 	for _, in := range inputs {
-		doc, err := calcdoc.Load(in.Path)
+		doc, err := calcdoc.Load(in.Path, kind.Standard())
 		if err != nil {
 			fmt.Fprintf(c.stderr, "calcdoc: %v\n", err)
 			st = max(st, exitUsage)
@@ -239,7 +240,7 @@ func (c *cli) check(args []string) int {
 	}
 	st := exitOK
 	for _, in := range inputs {
-		doc, err := calcdoc.Load(in.Path)
+		doc, err := calcdoc.Load(in.Path, kind.Standard())
 		if err != nil {
 			fmt.Fprintf(c.stderr, "calcdoc: %v\n", err)
 			st = max(st, exitUsage)
@@ -280,7 +281,7 @@ func (c *cli) values(args []string) int {
 	if info.IsDir() || filepath.Ext(paths[0]) != ".md" {
 		return c.usageErr("%s: values takes one .md document, not a folder", paths[0])
 	}
-	doc, err := calcdoc.Load(paths[0])
+	doc, err := calcdoc.Load(paths[0], kind.Standard())
 	if err != nil {
 		return c.usageErr("%v", err)
 	}

@@ -11,6 +11,7 @@ import (
 	"slices"
 
 	"calcdoc/calcdoc"
+	"calcdoc/calcdoc/kind"
 	"calcdoc/cmd/internal/build"
 	"calcdoc/render/pack"
 	"calcdoc/render/pdf"
@@ -121,7 +122,7 @@ func (c *cli) pack(args []string) int {
 	default:
 		sheetPaths = paths
 	}
-	inputs, err := build.Collect(sheetPaths)
+	inputs, err := build.Collect(sheetPaths, kind.Standard())
 	if err != nil {
 		return c.usageErr("%v", err)
 	}
@@ -149,7 +150,7 @@ func (c *cli) pack(args []string) int {
 
 	var docs []*calcdoc.Document
 	for _, in := range inputs {
-		doc, err := calcdoc.Load(in.Path)
+		doc, err := calcdoc.Load(in.Path, kind.Standard())
 		if err != nil {
 			fmt.Fprintf(c.stderr, "calcdoc: %v\n", err)
 			return exitUsage

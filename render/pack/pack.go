@@ -15,6 +15,7 @@ import (
 
 	"calcdoc/calcdoc"
 	"calcdoc/render"
+	"calcdoc/render/markup"
 	"calcdoc/render/stamp"
 
 	"github.com/yuin/goldmark/ast"
@@ -256,7 +257,7 @@ func SheetPrefix(k int) string { return fmt.Sprintf("s%d-", k) }
 
 func cover(w *bytes.Buffer, info Info, title string, sheets []Sheet, hashes []string, pkgHash string, marked []string, version string) {
 	fmt.Fprintf(w, "<section class=\"cover\" data-package-sha256=\"%s\" data-sheets=\"%d\" data-version=\"%s\">\n", pkgHash, len(sheets), esc(version))
-	tw := &render.Writer{}
+	tw := &markup.Writer{}
 	tw.WriteString("<header class=\"tb\">\n<table class=\"tb\">\n<tr>")
 	render.Field(tw, "Project", info.Project)
 	render.Field(tw, "Client", info.Client)

@@ -1,6 +1,7 @@
 package pack
 
 import (
+	"calcdoc/calcdoc/kind"
 	"context"
 	"fmt"
 	htmlpkg "html"
@@ -42,7 +43,7 @@ func buildPackage(t *testing.T, dir string, files []pkgFile) ([]byte, []string) 
 		paths = append(paths, p)
 		st := &render.StampInfo{SHA256: stamp.Hash([]byte(f.src)), Commit: "0123456789abcdef0123456789abcdef01234567",
 			CommitDate: "2026-11-05T08:00:00Z", State: stamp.Clean, Detail: "source is as committed"}
-		sheets = append(sheets, Sheet{Doc: calcdoc.Parse(f.name, []byte(f.src)), Options: render.Options{Version: "test", Stamp: st, EmbedSource: true}})
+		sheets = append(sheets, Sheet{Doc: calcdoc.Parse(f.name, []byte(f.src), kind.Standard()), Options: render.Options{Version: "test", Stamp: st, EmbedSource: true}})
 	}
 	page, err := Package(pkgInfo, sheets, "test")
 	if err != nil {
@@ -242,7 +243,7 @@ func TestPackagePDF(t *testing.T) {
 	var sheets []Sheet
 	for _, f := range pkgFiles {
 		st := &render.StampInfo{SHA256: stamp.Hash([]byte(f.src)), State: stamp.Clean}
-		sheets = append(sheets, Sheet{Doc: calcdoc.Parse(f.name, []byte(f.src)), Options: render.Options{Version: "test", Stamp: st, EmbedSource: true}})
+		sheets = append(sheets, Sheet{Doc: calcdoc.Parse(f.name, []byte(f.src), kind.Standard()), Options: render.Options{Version: "test", Stamp: st, EmbedSource: true}})
 	}
 	page2, err := Package(info, sheets, "test")
 	if err != nil {

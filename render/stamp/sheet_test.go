@@ -8,6 +8,7 @@ import (
 	"testing"
 
 	"calcdoc/calcdoc"
+	"calcdoc/calcdoc/kind"
 	"calcdoc/render"
 	"calcdoc/render/internal/sheettest"
 )
@@ -54,7 +55,7 @@ func builtSheet(t *testing.T, path string) string {
 	if err != nil {
 		t.Fatal(err)
 	}
-	doc := calcdoc.Parse(path, src)
+	doc := calcdoc.Parse(path, src, kind.Standard())
 	st := Of(path, src)
 	page, err := render.Sheet(doc, render.Options{Version: "test", Stamp: &st, EmbedSource: true})
 	if err != nil {

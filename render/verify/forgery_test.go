@@ -9,6 +9,7 @@ import (
 	"testing"
 
 	"calcdoc/calcdoc"
+	"calcdoc/calcdoc/kind"
 	"calcdoc/render"
 	"calcdoc/render/internal/sheettest"
 	"calcdoc/render/pack"
@@ -177,7 +178,7 @@ func TestVerifyStateRelabelled(t *testing.T) {
 	if st.State != stamp.Modified || st.Commit != commit {
 		t.Fatalf("stamp %+v", st)
 	}
-	doc := calcdoc.Parse(path, []byte(edited))
+	doc := calcdoc.Parse(path, []byte(edited), kind.Standard())
 	build := func(st render.StampInfo) []byte {
 		p, err := render.Sheet(doc, render.Options{Version: "test", Stamp: &st, EmbedSource: true})
 		if err != nil {
@@ -241,7 +242,7 @@ func TestVerifyShippedExamples(t *testing.T) {
 			t.Fatal(err)
 		}
 		st := stamp.Of(p, src)
-		doc := calcdoc.Parse(p, src)
+		doc := calcdoc.Parse(p, src, kind.Standard())
 		o := render.Options{Version: "test", Stamp: &st, EmbedSource: true}
 		page, err := render.Sheet(doc, o)
 		if err != nil {

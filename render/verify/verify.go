@@ -21,6 +21,7 @@ import (
 	"unicode/utf8"
 
 	"calcdoc/calcdoc"
+	"calcdoc/calcdoc/kind"
 	"calcdoc/render"
 	"calcdoc/render/stamp"
 )
@@ -291,7 +292,7 @@ func (rec *sheetRecord) check(unit []byte, lineBase int, opt Options, rerender f
 			res.Differences = append(res.Differences, Difference{Kind: "git", Message: "git: " + p})
 		}
 	}
-	doc := calcdoc.Parse(rec.path, rec.source)
+	doc := calcdoc.Parse(rec.path, rec.source, kind.Standard())
 	res.doc = doc
 	ropt := rec.opt
 	ropt.Version = opt.Version

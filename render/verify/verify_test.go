@@ -1,6 +1,7 @@
 package verify
 
 import (
+	"calcdoc/calcdoc/kind"
 	"errors"
 	"fmt"
 	"os"
@@ -24,7 +25,7 @@ func verifyStamp(src []byte) *render.StampInfo {
 
 func verifySheet(t *testing.T, path, src, version string) []byte {
 	t.Helper()
-	doc := calcdoc.Parse(path, []byte(src))
+	doc := calcdoc.Parse(path, []byte(src), kind.Standard())
 	page, err := render.Sheet(doc, render.Options{Version: version, Stamp: verifyStamp([]byte(src)), EmbedSource: true})
 	if err != nil {
 		t.Fatal(err)
@@ -239,7 +240,7 @@ func TestVerifyNotASheet(t *testing.T) {
 		{"plain html", "<!DOCTYPE html><html><body><p>hello</p></body></html>"},
 		{"markdown source", string(src)},
 		{"sheet without embedded source", func() string {
-			doc := calcdoc.Parse("a.md", []byte(sheettest.HeaterDoc))
+			doc := calcdoc.Parse("a.md", []byte(sheettest.HeaterDoc), kind.Standard())
 			p, _ := render.Sheet(doc, render.Options{Version: "t", Stamp: verifyStamp([]byte(sheettest.HeaterDoc))})
 			return string(p)
 		}()},
@@ -278,7 +279,7 @@ func FuzzVerify(f *testing.F) {
 	f.Add(verifySheetBytes(strings.Replace(sheettest.HeaterDoc, "heater", "h\xffeater", 1)))
 	var sheets []pack.Sheet
 	for _, src := range []string{sheettest.HeaterDoc, sheettest.DropDoc} {
-		sheets = append(sheets, pack.Sheet{Doc: calcdoc.Parse("p.md", []byte(src)), Options: render.Options{Version: "f", Stamp: verifyStamp([]byte(src)), EmbedSource: true}})
+		sheets = append(sheets, pack.Sheet{Doc: calcdoc.Parse("p.md", []byte(src), kind.Standard()), Options: render.Options{Version: "f", Stamp: verifyStamp([]byte(src)), EmbedSource: true}})
 	}
 	if page, err := pack.Package(pkgInfo, sheets, "f"); err == nil {
 		f.Add(page)
@@ -302,7 +303,7 @@ func FuzzVerify(f *testing.F) {
 }
 
 func verifySheetBytes(src string) []byte {
-	doc := calcdoc.Parse("f.md", []byte(src))
+	doc := calcdoc.Parse("f.md", []byte(src), kind.Standard())
 	page, _ := render.Sheet(doc, render.Options{Version: "f", Stamp: verifyStamp([]byte(src)), EmbedSource: true})
 	return page
 }
@@ -384,7 +385,7 @@ func buildPackage(t *testing.T, files []pkgFile) []byte {
 	for _, f := range files {
 		st := &render.StampInfo{SHA256: stamp.Hash([]byte(f.src)), Commit: "0123456789abcdef0123456789abcdef01234567",
 			CommitDate: "2026-11-05T08:00:00Z", State: stamp.Clean, Detail: "source is as committed"}
-		sheets = append(sheets, pack.Sheet{Doc: calcdoc.Parse(f.name, []byte(f.src)), Options: render.Options{Version: "test", Stamp: st, EmbedSource: true}})
+		sheets = append(sheets, pack.Sheet{Doc: calcdoc.Parse(f.name, []byte(f.src), kind.Standard()), Options: render.Options{Version: "test", Stamp: st, EmbedSource: true}})
 	}
 	page, err := pack.Package(pkgInfo, sheets, "test")
 	if err != nil {

@@ -8,6 +8,7 @@ import (
 	"testing"
 
 	"calcdoc/calcdoc"
+	"calcdoc/calcdoc/kind"
 )
 
 // The rules checked here are the README's ("Commands"): without -o a
@@ -49,7 +50,7 @@ func TestCollectFolderRule(t *testing.T) {
 	write(t, filepath.Join(dir, ".git", "x.md"), calcDoc)
 	write(t, filepath.Join(dir, "node_modules", "y.md"), calcDoc)
 	write(t, filepath.Join(dir, "z.txt"), calcDoc)
-	got, err := Collect([]string{dir})
+	got, err := Collect([]string{dir}, kind.Standard())
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -60,12 +61,12 @@ func TestCollectFolderRule(t *testing.T) {
 	if !reflect.DeepEqual(got, want) {
 		t.Errorf("Collect = %v, want %v", got, want)
 	}
-	if _, err := Collect([]string{filepath.Join(dir, "z.txt")}); err == nil {
+	if _, err := Collect([]string{filepath.Join(dir, "z.txt")}, kind.Standard()); err == nil {
 		t.Error("a file not ending in .md is accepted")
 	}
 	empty := t.TempDir()
 	write(t, filepath.Join(empty, "notes.md"), "# prose only\n")
-	if _, err := Collect([]string{empty}); err == nil {
+	if _, err := Collect([]string{empty}, kind.Standard()); err == nil {
 		t.Error("a folder without documents is accepted")
 	}
 }
@@ -76,7 +77,7 @@ func TestWrite(t *testing.T) {
 	dir := t.TempDir()
 	src := filepath.Join(dir, "a.md")
 	write(t, src, calcDoc)
-	doc, err := calcdoc.Load(src)
+	doc, err := calcdoc.Load(src, kind.Standard())
 	if err != nil {
 		t.Fatal(err)
 	}

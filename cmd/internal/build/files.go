@@ -21,8 +21,9 @@ import (
 func SkipDir(name string) bool { return name == ".git" || name == "node_modules" }
 
 // Holds reports whether a file found below a folder PATH is a document to
-// build: it holds an evaluated block.
-func Holds(src []byte) bool { return calcdoc.HasCalc(src) }
+// build: it holds a block of one of reg's kinds, wherever the block stands
+// in the Markdown (Registry.HasBlock).
+func Holds(reg *calcdoc.Registry, src []byte) bool { return reg.HasBlock(src) }
 
 // IsMarkdown reports whether a file name is a document's (ends in .md).
 func IsMarkdown(name string) bool { return filepath.Ext(name) == ".md" }
@@ -36,9 +37,10 @@ type Input struct {
 
 // Collect expands the PATHs of the command line: a file is taken as it is
 // (it must end in .md), a folder means every .md file below it that holds
-// a calc or solve block, in lexical order. A missing path, a file that is
-// not .md, or a folder without documents is an error.
-func Collect(paths []string) ([]Input, error) {
+// a block of one of reg's kinds (Registry.HasBlock), in lexical order. A
+// missing path, a file that is not .md, or a folder without documents is
+// an error.
+func Collect(paths []string, reg *calcdoc.Registry) ([]Input, error) {
 	var out []Input
 	for _, p := range paths {
 		info, err := os.Stat(p)
@@ -67,7 +69,7 @@ func Collect(paths []string) ([]Input, error) {
 				return nil
 			}
 			src, rerr := os.ReadFile(path)
-			if rerr != nil || !Holds(src) {
+			if rerr != nil || !Holds(reg, src) {
 				return nil
 			}
 			rel, _ := filepath.Rel(p, path)
@@ -78,7 +80,7 @@ func Collect(paths []string) ([]Input, error) {
 			return nil, err
 		}
 		if len(found) == 0 {
-			return nil, fmt.Errorf("%s: no document with a calc or solve block in this folder", p)
+			return nil, fmt.Errorf("%s: no document with a %s block in this folder", p, orList(reg.Words()))
 		}
 		sort.Slice(found, func(i, j int) bool { return found[i].Path < found[j].Path })
 		out = append(out, found...)
@@ -169,4 +171,12 @@ func Target(out, file, rel string) string {
 		return out
 	}
 	return filepath.Join(out, strings.TrimSuffix(rel, ".md")+".html")
+}
+
+// orList joins words as "a, b or c".
+func orList(words []string) string {
+	if len(words) < 2 {
+		return strings.Join(words, "")
+	}
+	return strings.Join(words[:len(words)-1], ", ") + " or " + words[len(words)-1]
 }

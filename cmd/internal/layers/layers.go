@@ -23,14 +23,9 @@ type Layer struct {
 	Patterns []string
 }
 
-// Layers are calcdoc's layers, bottom to top. Packages listed here that do
-// not exist yet (expr/linalg, render/markup, calcdoc/kind/...) are where
-// the block kinds and the numeric core are going.
+// Layers are calcdoc's layers, bottom to top.
 var Layers = []Layer{
-	{0, "numeric", []string{"calcdoc/expr/linalg/...",
-		// the numeric core of solve blocks, until it moves under
-		// calcdoc/kind/solve/numeric (layer 4)
-		"calcdoc/calcdoc/solve/..."}},
+	{0, "numeric", []string{"calcdoc/expr/linalg/..."}},
 	{1, "engine", []string{"calcdoc/expr"}},
 	{2, "document", []string{"calcdoc/calcdoc"}},
 	{3, "drawing primitives", []string{"calcdoc/render/markup/...", "calcdoc/render/svg/..."}},

@@ -11,6 +11,7 @@ import (
 	"time"
 
 	"calcdoc/calcdoc"
+	"calcdoc/calcdoc/kind"
 	"calcdoc/cmd/internal/build"
 )
 
@@ -50,7 +51,7 @@ func bigDoc(k int) string {
 // TestBigDoc checks the benchmark's document: 1,000 statements (one
 // value or check each), no error.
 func TestBigDoc(t *testing.T) {
-	doc := calcdoc.Parse("big.md", []byte(bigDoc(1)))
+	doc := calcdoc.Parse("big.md", []byte(bigDoc(1)), kind.Standard())
 	if len(doc.Errors) > 0 {
 		t.Fatalf("the benchmark document has errors: %v", doc.Errors[0])
 	}
@@ -125,7 +126,7 @@ func BenchmarkSaveToPage(b *testing.B) {
 func BenchmarkEvaluate1000(b *testing.B) {
 	src := []byte(bigDoc(1))
 	for i := 0; i < b.N; i++ {
-		doc := calcdoc.Parse("big.md", src)
+		doc := calcdoc.Parse("big.md", src, kind.Standard())
 		if _, err := build.Sheet(doc, build.Options{Version: "bench", HeadExtra: liveHead("/big.html", "1")}); err != nil {
 			b.Fatal(err)
 		}

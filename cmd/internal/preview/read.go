@@ -8,6 +8,7 @@ import (
 	"os"
 	"path/filepath"
 
+	blockkind "calcdoc/calcdoc/kind"
 	"calcdoc/cmd/internal/build"
 )
 
@@ -60,7 +61,7 @@ func (w *Watcher) read(r *root, file string) ([]byte, readKind, string) {
 	if int64(len(src)) > maxSize {
 		return nil, readFailed, fmt.Sprintf("the file is larger than the %d bytes a document may have", maxSize)
 	}
-	if r.file == "" && !build.Holds(src) {
+	if r.file == "" && !build.Holds(blockkind.Standard(), src) {
 		return nil, readAbsent, "holds no calc or solve block"
 	}
 	return src, readOK, ""

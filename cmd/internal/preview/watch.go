@@ -35,6 +35,7 @@ import (
 	"time"
 
 	"calcdoc/calcdoc"
+	blockkind "calcdoc/calcdoc/kind"
 	"calcdoc/cmd/internal/build"
 
 	"github.com/fsnotify/fsnotify"
@@ -656,7 +657,7 @@ func (w *Watcher) rebuild(file string) bool {
 	if cur != nil && cur.src != nil && bytes.Equal(cur.src, src) {
 		return false // saved without a change
 	}
-	doc := calcdoc.Parse(display, src)
+	doc := calcdoc.Parse(display, src, blockkind.Standard())
 	p := &page{key: key, file: file, display: display, src: src, status: 200, version: w.nextVersion(), at: start,
 		values: len(doc.Values), checks: len(doc.Checks), failed: doc.FailedChecks(),
 		errors: len(doc.Errors), warning: len(doc.Warnings)}

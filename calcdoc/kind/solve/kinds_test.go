@@ -1,0 +1,11 @@
+package solve
+
+import (
+	"calcdoc/calcdoc"
+	"calcdoc/calcdoc/kind/calc"
+	"calcdoc/calcdoc/kind/phasors"
+	"calcdoc/calcdoc/kind/sweep"
+)
+
+// testKinds are the kinds this package's documents use.
+var testKinds = calcdoc.NewRegistry(calc.Kind, Kind, phasors.Kind, sweep.Kind)

@@ -1,0 +1,166 @@
+package calcdoc
+
+import (
+	"sort"
+	"strings"
+	"unicode/utf8"
+
+	"calcdoc/expr"
+)
+
+// Stmt is one evaluated statement of a calc block.
+type Stmt struct {
+	Stmt expr.Stmt
+	Res  *expr.Result
+	// Errs are the statement's own errors (parse and evaluation).
+	Errs []*expr.Error
+	// Unavailable is set when the statement could not be evaluated because
+	// it uses a name whose definition failed; it is not a new error.
+	Unavailable *expr.UnavailableError
+	Text        string // the statement's source text
+}
+
+// Display is the display bracket of the statement, or nil.
+func (s *Stmt) Display() *expr.Display {
+	switch st := s.Stmt.(type) {
+	case *expr.Assign:
+		return st.Display
+	case *expr.ExprStmt:
+		return st.Display
+	}
+	return nil
+}
+
+// Text returns the source between two positions of the block.
+func (b *Block) Text(from, to expr.Pos) string {
+	var parts []string
+	// LinePos is in document order: start at the first line of the span
+	// and stop after its last, so that each statement costs its own lines
+	// only (a block of n statements costs n, not n²).
+	first := sort.Search(len(b.LinePos), func(i int) bool { return b.LinePos[i].Line >= from.Line })
+	for i := first; i < len(b.LinePos); i++ {
+		p := b.LinePos[i]
+		if p.Line > to.Line {
+			break
+		}
+		line := b.Lines[i]
+		startCol, endCol := 0, utf8.RuneCountInString(line)
+		if p.Line == from.Line {
+			startCol = from.Col - p.Col
+		}
+		if p.Line == to.Line {
+			endCol = to.Col - p.Col
+		}
+		parts = append(parts, runeSlice(line, startCol, endCol))
+	}
+	return strings.Join(parts, "\n")
+}
+
+// runeSlice is s[a:b] counted in characters, not bytes.
+func runeSlice(s string, a, b int) string {
+	if a < 0 {
+		a = 0
+	}
+	if b < a {
+		b = a
+	}
+	i, n := 0, 0
+	start, end := len(s), len(s)
+	for i <= len(s) {
+		if n == a {
+			start = i
+		}
+		if n == b {
+			end = i
+			break
+		}
+		if i == len(s) {
+			break
+		}
+		_, w := utf8.DecodeRuneInString(s[i:])
+		i += w
+		n++
+	}
+	if start > end {
+		start = end
+	}
+	return s[start:end]
+}
+
+// EvalStatements runs parsed statements of a block in its environment and
+// records values, checks and errors. Parse errors in errs are attached to
+// the statements they fall in.
+func EvalStatements(b *Block, stmts []expr.Stmt, errs expr.ErrorList) []*Stmt {
+	var out []*Stmt
+	per, rest := ErrorsOf(stmts, errs)
+	for k, s := range stmts {
+		st := &Stmt{Stmt: s, Text: b.Text(s.Pos(), s.End()), Errs: per[k]}
+		st.Res = b.Env().Exec(s)
+		if err := st.Res.Err; err != nil {
+			switch e := err.(type) {
+			case *expr.UnavailableError:
+				st.Unavailable = e
+			case *expr.Error:
+				st.Errs = append(st.Errs, e)
+			}
+		}
+		switch s := s.(type) {
+		case *expr.Assign:
+			if st.Res.Value != nil {
+				if len(s.Names) == 1 {
+					disp := s.Display
+					if bd := b.Env().Lookup(s.Names[0].Name); bd != nil && bd.Value == st.Res.Value {
+						disp = bd.Display // includes the unit a literal is written in
+					}
+					b.AddValue(&NamedValue{Name: s.Names[0].Name, Pos: s.Names[0].Pos(), Value: st.Res.Value, Display: disp})
+				} else if m, ok := st.Res.Value.(*expr.Matrix); ok && len(m.E) == len(s.Names) {
+					for i, id := range s.Names {
+						e := m.E[i]
+						b.AddValue(&NamedValue{Name: id.Name, Pos: id.Pos(), Value: &e, Display: s.Display})
+					}
+				}
+			}
+		case *expr.Check:
+			b.AddCheck(&CheckRecord{Pos: s.Pos(), Text: b.Text(s.Cmp.Pos(), s.Cmp.End()), Result: st.Res.Check})
+		}
+		b.Errors = append(b.Errors, st.Errs...)
+		out = append(out, st)
+	}
+	b.Errors = append(b.Errors, rest...)
+	return out
+}
+
+// ErrorsOf hands each error of errs to the first statement whose lines
+// hold it: per[k] are the errors of stmts[k], in the order of errs, and
+// rest those on no statement's lines. The errors are found by line, so n
+// statements and m errors cost O((n + m)·log m), not n·m.
+func ErrorsOf(stmts []expr.Stmt, errs expr.ErrorList) (per [][]*expr.Error, rest []*expr.Error) {
+	byLine := make([]int, len(errs))
+	for i := range byLine {
+		byLine[i] = i
+	}
+	sort.SliceStable(byLine, func(i, j int) bool { return errs[byLine[i]].Pos.Line < errs[byLine[j]].Pos.Line })
+	attached := make([]bool, len(errs))
+	per = make([][]*expr.Error, len(stmts))
+	var mine []int
+	for k, s := range stmts {
+		mine = mine[:0]
+		j := sort.Search(len(byLine), func(j int) bool { return errs[byLine[j]].Pos.Line >= s.Pos().Line })
+		for ; j < len(byLine) && errs[byLine[j]].Pos.Line <= s.End().Line; j++ {
+			if !attached[byLine[j]] {
+				mine = append(mine, byLine[j])
+			}
+		}
+		sort.Ints(mine)
+		for _, i := range mine {
+			per[k] = append(per[k], errs[i])
+			attached[i] = true
+		}
+	}
+	for i, e := range errs {
+		if !attached[i] {
+			rest = append(rest, e)
+		}
+	}
+	return per, rest
+}

@@ -1,0 +1,556 @@
+package markup
+
+import (
+	"strings"
+	"unicode/utf8"
+
+	"calcdoc/expr"
+)
+
+// ExprML typesets expression trees, either as written (the formula) or with
+// every name replaced by its value (the substitution).
+//
+// Brackets are the typesetter's own: the parentheses written in the source
+// are dropped, and an operand is bracketed exactly where the precedence of
+// LANGUAGE.md section 3 needs it (and where two signs would meet, as in
+// a·(−b)). A fraction's line and a superscript group by themselves.
+type ExprML struct {
+	Subst  bool
+	Trace  *expr.Trace
+	Digits int
+	// DisplayOf returns how a name's value is shown (its definition's
+	// display bracket), or nil.
+	DisplayOf func(name string) *expr.Display
+	// IsFunc reports whether a name is a user function (not a matrix value).
+	IsFunc func(name string) bool
+	// cache holds values already typeset on this sheet (a name's value is
+	// shown on every line that uses it).
+	cache map[valueKey]shownValue
+}
+
+type valueKey struct {
+	v      expr.Value
+	d      *expr.Display
+	digits int
+}
+
+// shownValue is a value's MathML, without brackets, and its level.
+type shownValue struct {
+	ml string
+	f  form
+}
+
+// The typesetting levels, loosest first: the operators of LANGUAGE.md
+// section 3, then the forms that enclose themselves. An operand whose
+// typeset form is of a lower level than its place needs is bracketed.
+const (
+	lvCmp     = iota // a < b (check only)
+	lvAdd            // a + b, a − b
+	lvPar            // a ∥ b
+	lvMul            // a · b
+	lvUnary          // −a
+	lvAngle          // a∠b
+	lvPow            // a^b
+	lvPostfix        // a unit, °, the conjugate star, the transpose mark
+	lvSci            // a fraction, a number in powers of ten: grouped, but not a base for a mark
+	lvAtom           // a name, a plain number, a call, |x|, a matrix, a bracketed group
+)
+
+// form is the level of an operand's typeset form. signed: it is a sign or
+// a negative value (see leadSign for the rest); after: the level of what
+// follows that sign.
+type form struct {
+	lv     int
+	signed bool
+	after  int
+}
+
+// stringWriter is what typesetting writes into: a strings.Builder or the
+// page's bytes.Buffer.
+type StringWriter interface {
+	WriteString(s string) (int, error)
+}
+
+// WriteNode typesets n straight into b. paren asks for brackets when n
+// does not stand as a single operand (inside a product, a power, ...).
+func (m *ExprML) WriteNode(b StringWriter, n expr.Node, paren bool) {
+	if paren {
+		m.operand(b, n, lvAngle, true)
+		return
+	}
+	m.write(b, n)
+}
+
+// value typesets a value through the sheet's cache.
+func (m *ExprML) value(v expr.Value, d *expr.Display) shownValue {
+	k := valueKey{v, d, m.Digits}
+	if m.cache != nil {
+		if s, ok := m.cache[k]; ok {
+			return s
+		}
+	}
+	var s shownValue
+	switch x := v.(type) {
+	case *expr.Scalar:
+		sh := expr.FormatScalar(x, d, m.Digits)
+		s = shownValue{shownML(sh), shownForm(sh)}
+	default:
+		s = shownValue{ValueML(v, d, m.Digits, false), form{lv: lvAtom, after: lvAtom}}
+	}
+	if m.cache != nil {
+		m.cache[k] = s
+	}
+	return s
+}
+
+// valueML is a value's MathML, bracketed when paren asks and it is not a
+// single operand.
+func (m *ExprML) valueML(v expr.Value, d *expr.Display, paren bool) string {
+	s := m.value(v, d)
+	if paren && (s.f.lv < lvPostfix || s.f.signed) {
+		return "<mrow><mo>(</mo>" + s.ml + "<mo>)</mo></mrow>"
+	}
+	return "<mrow>" + s.ml + "</mrow>"
+}
+
+var OpML = map[expr.Kind]string{
+	expr.ADD: "+", expr.SUB: "−", expr.MUL: "·", expr.PAR: "∥", expr.ANGLE: "∠",
+	expr.LT: "&lt;", expr.LE: "≤", expr.GT: "&gt;", expr.GE: "≥", expr.EQ: "=", expr.NE: "≠",
+}
+
+// Node typesets n (see WriteNode).
+func (m *ExprML) Node(n expr.Node, paren bool) string {
+	var b strings.Builder
+	b.Grow(256)
+	m.WriteNode(&b, n, paren)
+	return b.String()
+}
+
+// substituted returns the value shown in place of n on a substitution row.
+func (m *ExprML) substituted(n expr.Node) (shownValue, bool) {
+	if !m.Subst {
+		return shownValue{}, false
+	}
+	switch n := n.(type) {
+	case *expr.Ident:
+		if v, ok := m.Trace.Value(n); ok && !IsConstant(n.Name) {
+			var d *expr.Display
+			if m.DisplayOf != nil {
+				d = m.DisplayOf(n.Name)
+			}
+			return m.value(v, d), true
+		}
+	case *expr.Call:
+		if !expr.IsBuiltin(n.Fun.Name) && (m.IsFunc == nil || !m.IsFunc(n.Fun.Name)) {
+			// an entry of a matrix value M(i, j) shows the picked value
+			if v, ok := m.Trace.Value(n); ok {
+				return m.value(v, nil), true
+			}
+		}
+	}
+	return shownValue{}, false
+}
+
+// form returns the level of n's typeset form.
+func (m *ExprML) form(n expr.Node) form {
+	n = unparen(n)
+	if s, ok := m.substituted(n); ok {
+		return s.f
+	}
+	atom := form{lv: lvAtom, after: lvAtom}
+	switch n := n.(type) {
+	case *expr.Number:
+		if strings.ContainsAny(n.Text, "eE") {
+			return form{lv: lvSci, after: lvSci}
+		}
+		return atom
+	case *expr.WithUnit:
+		if _, ok := liftedAngle(n); ok {
+			return form{lv: lvAngle, after: lvAngle}
+		}
+		return form{lv: lvPostfix, after: lvPostfix}
+	case *expr.Unary:
+		after := m.form(n.X).lv
+		if after < lvUnary || m.leadSign(n.X) {
+			after = lvAtom // the operand is bracketed
+		}
+		return form{lv: lvUnary, signed: true, after: after}
+	case *expr.Binary:
+		lv := binLevel(n.Op)
+		return form{lv: lv, after: lv}
+	case *expr.Call:
+		if len(n.Args) == 1 && (n.Fun.Name == "conj" || n.Fun.Name == "transpose") {
+			return form{lv: lvPostfix, after: lvPostfix}
+		}
+		return atom
+	case *expr.Compare:
+		return form{lv: lvCmp}
+	}
+	return atom
+}
+
+func binLevel(op expr.Kind) int {
+	switch op {
+	case expr.ADD, expr.SUB:
+		return lvAdd
+	case expr.PAR:
+		return lvPar
+	case expr.MUL:
+		return lvMul
+	case expr.ANGLE:
+		return lvAngle
+	case expr.POW:
+		return lvPow
+	}
+	return lvSci // DIV: a fraction
+}
+
+// leadSign reports whether n's typeset form starts with a sign: a sign,
+// a negative value, or an operation whose unbracketed left operand does.
+// (Form leaves this out for operations, so that typesetting a long chain
+// stays linear: only a place that refuses a sign asks.)
+func (m *ExprML) leadSign(n expr.Node) bool {
+	for {
+		n = unparen(n)
+		if s, ok := m.substituted(n); ok {
+			return s.f.signed
+		}
+		switch x := n.(type) {
+		case *expr.Unary:
+			return true
+		case *expr.WithUnit:
+			a, ok := liftedAngle(x)
+			if !ok {
+				return false
+			}
+			n = a
+		case *expr.Binary:
+			if binLevel(x.Op) > lvAngle || m.form(x.X).lv < m.leftNeed(x.Op) {
+				return false // a power's base, a fraction, a bracketed left operand
+			}
+			n = x.X
+		default:
+			return false
+		}
+	}
+}
+
+// leftNeed is the level the left operand of op needs.
+func (m *ExprML) leftNeed(op expr.Kind) int {
+	switch op {
+	case expr.ADD, expr.SUB:
+		return lvAdd
+	case expr.PAR:
+		return lvPar
+	case expr.MUL:
+		return lvMul
+	case expr.ANGLE:
+		return lvAngle
+	}
+	return lvAtom
+}
+
+// rightNeed is the level the right operand of op needs; a sign there is
+// bracketed (a · (−b)) except right of ∠, where a signed power may stand.
+func rightNeed(op expr.Kind) int {
+	switch op {
+	case expr.ADD, expr.SUB:
+		return lvPar
+	case expr.PAR:
+		return lvMul
+	case expr.MUL:
+		return lvUnary
+	}
+	return lvPow
+}
+
+// operand writes n where a form of level need stands, bracketed when its
+// own form is looser, or when it starts with a sign and noSign is set.
+func (m *ExprML) operand(b StringWriter, n expr.Node, need int, noSign bool) {
+	f := m.form(n)
+	if f.lv < need || noSign && m.leadSign(n) {
+		b.WriteString("<mrow><mo>(</mo>")
+		m.write(b, n)
+		b.WriteString("<mo>)</mo></mrow>")
+		return
+	}
+	m.write(b, n)
+}
+
+// signedOperand writes the right operand of ∠, which may carry one sign
+// before a power (230 V∠−120°).
+func (m *ExprML) signedOperand(b StringWriter, n expr.Node) {
+	if unitAfterAngleUnit(n) {
+		// a∠(3° A): without brackets the unit would be the phasor's
+		m.operand(b, n, lvAtom, true)
+		return
+	}
+	f := m.form(n)
+	if f.signed && f.lv == lvUnary && f.after >= lvPow {
+		m.write(b, n)
+		return
+	}
+	m.operand(b, n, lvPow, true)
+}
+
+// liftedAngle reports whether a unit stands after a phasor "m∠a° A" as the
+// parser reads it: the angle's right operand, under its signs, ends with an
+// angle unit, so that the unit may be written after it without brackets.
+func liftedAngle(n *expr.WithUnit) (expr.Node, bool) {
+	if n.Unit.Angle {
+		return nil, false
+	}
+	a, ok := unparen(n.X).(*expr.Binary)
+	if !ok || a.Op != expr.ANGLE {
+		return nil, false
+	}
+	y := unparen(a.Y)
+	for {
+		u, ok := y.(*expr.Unary)
+		if !ok {
+			break
+		}
+		y = unparen(u.X)
+	}
+	if w, ok := y.(*expr.WithUnit); ok && w.Unit.Angle {
+		return a, true
+	}
+	return nil, false
+}
+
+// unitAfterAngleUnit reports whether n, under its signs, is a unit after
+// an angle unit (3° A), which right of ∠ the parser would read as the
+// phasor's unit.
+func unitAfterAngleUnit(n expr.Node) bool {
+	n = unparen(n)
+	for {
+		u, ok := n.(*expr.Unary)
+		if !ok {
+			break
+		}
+		n = unparen(u.X)
+	}
+	w, ok := n.(*expr.WithUnit)
+	if !ok || w.Unit.Angle {
+		return false
+	}
+	in, ok := unparen(w.X).(*expr.WithUnit)
+	return ok && in.Unit.Angle
+}
+
+// write typesets n without brackets around it.
+func (m *ExprML) write(b StringWriter, n expr.Node) {
+	n = unparen(n)
+	if s, ok := m.substituted(n); ok {
+		b.WriteString("<mrow>")
+		b.WriteString(s.ml)
+		b.WriteString("</mrow>")
+		return
+	}
+	switch n := n.(type) {
+	case *expr.Number:
+		if n.Imag {
+			b.WriteString("<mrow><mi>j</mi>")
+			b.WriteString(numLiteral(strings.TrimPrefix(n.Text, "j")))
+			b.WriteString("</mrow>")
+			return
+		}
+		b.WriteString(numLiteral(n.Text))
+	case *expr.Ident:
+		if n.Name == "pi" {
+			b.WriteString("<mi>π</mi>")
+			return
+		}
+		b.WriteString(NameML(n.Name))
+	case *expr.WithUnit:
+		b.WriteString("<mrow>")
+		if a, ok := liftedAngle(n); ok {
+			m.write(b, a)
+		} else {
+			m.operand(b, n.X, lvPow, true)
+		}
+		b.WriteString(UnitML(n.Unit.Text))
+		b.WriteString("</mrow>")
+	case *expr.Unary:
+		if n.Op == expr.ADD {
+			b.WriteString("<mrow><mo>+</mo>")
+		} else {
+			b.WriteString("<mrow><mo>−</mo>")
+		}
+		m.operand(b, n.X, lvUnary, true)
+		b.WriteString("</mrow>")
+	case *expr.Abs:
+		b.WriteString("<mrow><mo>|</mo>")
+		m.write(b, n.X)
+		b.WriteString("<mo>|</mo></mrow>")
+	case *expr.Binary:
+		switch n.Op {
+		case expr.DIV:
+			b.WriteString("<mfrac><mrow>")
+			m.write(b, n.X)
+			b.WriteString("</mrow><mrow>")
+			m.write(b, n.Y)
+			b.WriteString("</mrow></mfrac>")
+			return
+		case expr.POW:
+			b.WriteString("<msup>")
+			m.operand(b, n.X, lvAtom, true)
+			b.WriteString("<mrow>")
+			m.write(b, n.Y)
+			b.WriteString("</mrow></msup>")
+			return
+		}
+		b.WriteString("<mrow>")
+		m.operand(b, n.X, m.leftNeed(n.Op), false)
+		b.WriteString("<mo>")
+		b.WriteString(OpML[n.Op])
+		b.WriteString("</mo>")
+		if n.Op == expr.ANGLE {
+			m.signedOperand(b, n.Y)
+		} else {
+			m.operand(b, n.Y, rightNeed(n.Op), true)
+		}
+		b.WriteString("</mrow>")
+	case *expr.Call:
+		m.call(b, n)
+	case *expr.MatrixLit:
+		b.WriteString("<mrow><mo>[</mo><mtable>")
+		for _, row := range n.Rows {
+			b.WriteString("<mtr>")
+			for _, e := range row {
+				b.WriteString("<mtd>")
+				m.write(b, e)
+				b.WriteString("</mtd>")
+			}
+			b.WriteString("</mtr>")
+		}
+		b.WriteString("</mtable><mo>]</mo></mrow>")
+	case *expr.Compare:
+		b.WriteString("<mrow>")
+		for i, x := range n.X {
+			if i > 0 {
+				b.WriteString("<mo>")
+				b.WriteString(OpML[n.Ops[i-1]])
+				b.WriteString("</mo>")
+			}
+			m.write(b, x)
+		}
+		b.WriteString("</mrow>")
+	default:
+		b.WriteString("<merror><mtext>?</mtext></merror>")
+	}
+}
+
+// Splits reports whether n is typeset in more than one piece by
+// WritePieces: its top is a sum, a difference or a product.
+func (m *ExprML) Splits(n expr.Node) bool {
+	n = unparen(n)
+	if _, subst := m.substituted(n); subst {
+		return false
+	}
+	bin, ok := n.(*expr.Binary)
+	return ok && (bin.Op == expr.ADD || bin.Op == expr.SUB || bin.Op == expr.MUL)
+}
+
+// WritePieces typesets n into b as the pieces a long row may break
+// between: its top-level terms, each after its + or −, and within each
+// term its factors, each after its ·. Between two pieces it calls cut,
+// with newTerm set before a + or −. Joined, the pieces are n's MathML.
+func (m *ExprML) WritePieces(b StringWriter, n expr.Node, cut func(newTerm bool)) {
+	// factors of a term that stands unbracketed at level need
+	var factors func(n expr.Node, need int, noSign bool)
+	factors = func(n expr.Node, need int, noSign bool) {
+		f := m.form(n)
+		bin, isBin := unparen(n).(*expr.Binary)
+		_, subst := m.substituted(unparen(n))
+		if f.lv < need || !isBin || subst || bin.Op != expr.MUL || noSign && m.leadSign(n) {
+			m.operand(b, n, need, noSign)
+			return
+		}
+		factors(bin.X, lvMul, false)
+		cut(false)
+		b.WriteString("<mo form=\"infix\">·</mo>")
+		m.operand(b, bin.Y, lvUnary, true)
+	}
+	var terms func(n expr.Node)
+	terms = func(n expr.Node) {
+		bin, isBin := unparen(n).(*expr.Binary)
+		_, subst := m.substituted(unparen(n))
+		if !isBin || subst || bin.Op != expr.ADD && bin.Op != expr.SUB {
+			factors(n, lvAdd, false)
+			return
+		}
+		terms(bin.X)
+		cut(true)
+		b.WriteString("<mo form=\"infix\">")
+		b.WriteString(OpML[bin.Op])
+		b.WriteString("</mo>")
+		factors(bin.Y, lvPar, true)
+	}
+	terms(n)
+}
+
+func IsConstant(name string) bool { return name == "pi" || name == "π" || name == "j" }
+
+func unparen(n expr.Node) expr.Node {
+	for {
+		p, ok := n.(*expr.Paren)
+		if !ok {
+			return n
+		}
+		n = p.X
+	}
+}
+
+func numLiteral(text string) string {
+	if m, e, ok := strings.Cut(strings.ToLower(text), "e"); ok {
+		e = strings.TrimPrefix(e, "+")
+		e = strings.Replace(e, "-", "−", 1)
+		return "<mrow><mn>" + Esc(m) + "</mn><mo>×</mo><msup><mn>10</mn><mn>" + Esc(e) + "</mn></msup></mrow>"
+	}
+	return "<mn>" + Esc(text) + "</mn>"
+}
+
+func (m *ExprML) call(b StringWriter, n *expr.Call) {
+	if len(n.Args) == 1 {
+		switch n.Fun.Name {
+		case "sqrt":
+			b.WriteString("<msqrt>")
+			m.write(b, n.Args[0])
+			b.WriteString("</msqrt>")
+			return
+		case "conj", "transpose":
+			// a postfix mark: the conjugate star, the transpose T
+			b.WriteString("<msup>")
+			m.operand(b, n.Args[0], lvAtom, true)
+			if n.Fun.Name == "conj" {
+				b.WriteString("<mo>*</mo></msup>")
+			} else {
+				b.WriteString("<mi mathvariant=\"normal\">T</mi></msup>")
+			}
+			return
+		case "abs":
+			b.WriteString("<mrow><mo>|</mo>")
+			m.write(b, n.Args[0])
+			b.WriteString("<mo>|</mo></mrow>")
+			return
+		}
+	}
+	b.WriteString("<mrow>")
+	name := n.Fun.Name
+	if strings.Contains(name, "_") || utf8.RuneCountInString(name) == 1 {
+		b.WriteString(NameML(name))
+	} else {
+		b.WriteString("<mi>")
+		b.WriteString(Esc(GreekOf(name)))
+		b.WriteString("</mi>")
+	}
+	b.WriteString("<mo>(</mo>")
+	for i, a := range n.Args {
+		if i > 0 {
+			b.WriteString("<mo>,</mo>")
+		}
+		m.write(b, a)
+	}
+	b.WriteString("<mo>)</mo></mrow>")
+}

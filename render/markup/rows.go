@@ -1,0 +1,322 @@
+package markup
+
+import (
+	"strconv"
+	"strings"
+
+	"calcdoc/calcdoc"
+	"calcdoc/expr"
+)
+
+// exprML returns a typesetter for a formula (subst false) or its
+// substitution (subst true) in the document's names.
+func (w *Writer) ExprMLFor(subst bool, trace *expr.Trace) *ExprML {
+	if w.typesetters[0] == nil {
+		env := w.Doc.Env
+		displayOf := func(name string) *expr.Display {
+			if b := env.Lookup(name); b != nil {
+				return b.Display
+			}
+			return nil
+		}
+		isFunc := func(name string) bool { return env.LookupFunc(name) != nil }
+		for i := range w.typesetters {
+			w.typesetters[i] = &ExprML{Subst: i == 1, Digits: w.Digits(), DisplayOf: displayOf, IsFunc: isFunc, cache: w.values}
+		}
+	}
+	// one typesetter of each kind per sheet, pointed at this trace
+	m := w.typesetters[0]
+	if subst {
+		m = w.typesetters[1]
+	}
+	m.Trace = trace
+	return m
+}
+
+// mathDiv writes <div class="CLASS" ATTRS><math>…</math></div> around what
+// body writes, straight into the page.
+func (w *Writer) MathDiv(class, attrs string, body func()) {
+	w.WriteString("<div class=\"")
+	w.WriteString(class)
+	w.WriteString("\"")
+	w.WriteString(attrs)
+	w.WriteString("><math display=\"inline\"><mrow>")
+	body()
+	w.WriteString("</mrow></math></div>")
+}
+
+// mathRow writes a formula or substitution row: prefix (the "name =")
+// and x. A row whose x has top-level terms or factors is written as one
+// <math> per piece, factors grouped by term, in wrapping containers (class
+// "brk"): a row too long for the column breaks before a top-level + or −,
+// a term too long for a line before its ·, and the continuation is
+// indented (style.go). Browsers do not break MathML by themselves.
+func (w *Writer) MathRow(class, prefix string, m *ExprML, x expr.Node) {
+	w.MathRowTail(class, prefix, m, x, "")
+}
+
+// mathRowTail is mathRow with HTML written after the formula (a tag).
+func (w *Writer) MathRowTail(class, prefix string, m *ExprML, x expr.Node, tail string) {
+	if !m.Splits(x) {
+		w.WriteString("<div class=\"" + class + "\"><math display=\"inline\"><mrow>")
+		w.WriteString(prefix)
+		m.WriteNode(w, x, false)
+		w.WriteString("</mrow></math>" + tail + "</div>")
+		return
+	}
+	cut, end := w.StartPieces(class, "")
+	w.WriteString(prefix)
+	m.WritePieces(w, x, cut)
+	end(tail)
+}
+
+// checkRow writes a check's formula: the chain's sides, each in its
+// pieces, a side after its comparison.
+func (w *Writer) CheckRow(m *ExprML, c *expr.Compare) {
+	cut, end := w.StartPieces("f", "<span class=\"kindtag\">check</span> ")
+	for i, x := range c.X {
+		if i > 0 {
+			cut(true)
+			w.WriteString("<mo>" + OpML[c.Ops[i-1]] + "</mo>")
+		}
+		m.WritePieces(w, x, cut)
+	}
+	end("")
+}
+
+// startPieces opens a row written in pieces: one <math> per piece in the
+// wrapping container (class "brk"), the first term's factors in the row
+// itself and each later term in a box of its own, so that a line breaks
+// before a + or − and, inside a term, before a · only when the term is
+// longer than a line (style.go). It returns the cut between pieces and the
+// end of the row (with HTML after the formula).
+func (w *Writer) StartPieces(class, head string) (cut func(newTerm bool), end func(tail string)) {
+	w.WriteString("<div class=\"")
+	w.WriteString(class)
+	w.WriteString(" brk\">")
+	w.WriteString(head)
+	w.WriteString("<math display=\"inline\"><mrow>")
+	inTerm := false
+	cut = func(newTerm bool) {
+		w.WriteString("</mrow></math>")
+		if newTerm {
+			if inTerm {
+				w.WriteString("</span>")
+			}
+			w.WriteString("<span class=\"t\">")
+			inTerm = true
+		}
+		w.WriteString("<math display=\"inline\"><mrow>")
+	}
+	end = func(tail string) {
+		w.WriteString("</mrow></math>")
+		if inTerm {
+			w.WriteString("</span>")
+		}
+		w.WriteString(tail)
+		w.WriteString("</div>")
+	}
+	return cut, end
+}
+
+func resultAttrs(name string, line int) string {
+	return " data-value=\"" + Esc(name) + "\" data-line=\"" + strconv.Itoa(line) + "\""
+}
+
+// hasNames reports whether an expression uses any name other than a
+// constant, so that its substitution says something new.
+func hasNames(n expr.Node) bool {
+	found := false
+	expr.Walk(n, func(n expr.Node) bool {
+		switch n := n.(type) {
+		case *expr.Ident:
+			if !IsConstant(n.Name) {
+				found = true
+			}
+		case *expr.Call:
+			found = true
+		}
+		return !found
+	})
+	return found
+}
+
+// Stmt writes one statement row: the gutter with its source line, the
+// formula, the substitution and the result, and the description.
+func (w *Writer) Stmt(st *calcdoc.Stmt) {
+	line := st.Stmt.Pos().Line
+	if n, ok := st.Stmt.(*expr.Note); ok {
+		w.Printf("<div class=\"row note\" id=\"L%d\"><div class=\"ln\">%d</div><div class=\"txt\">%s</div></div>\n", line, line, Esc(n.Text))
+		return
+	}
+	res := st.Res
+	class := "row"
+	if wideRow(res) {
+		class = "row wide" // matrices: the description goes below the working
+	}
+	ls := strconv.Itoa(line)
+	w.WriteString("<div class=\"" + class + "\" id=\"L" + ls + "\"><div class=\"ln\">" + ls + "</div><div class=\"math\">")
+	ok := len(st.Errs) == 0 && st.Unavailable == nil
+	f := w.ExprMLFor(false, nil)
+	s := w.ExprMLFor(true, res.Trace)
+	switch x := st.Stmt.(type) {
+	case *expr.Assign:
+		var lhs []string
+		for _, id := range x.Names {
+			lhs = append(lhs, NameML(id.Name))
+		}
+		l := strings.Join(lhs, "<mo>,</mo>")
+		w.MathRow("f", l+"<mo>=</mo>", f, x.X)
+		if ok && res.Value != nil {
+			if hasNames(x.X) {
+				w.MathRow("s", "<mo>=</mo>", s, x.X)
+			}
+			if len(x.Names) > 1 {
+				w.Printf("<div class=\"r\" data-value=\"%s\" data-line=\"%d\">%s</div>", Esc(joinNames(x.Names)), line, Math("<mo>=</mo>"+ValueML(res.Value, x.Display, w.Digits(), false)))
+				if m, isM := res.Value.(*expr.Matrix); isM {
+					for i, id := range x.Names {
+						e := m.E[i]
+						w.Printf("<div class=\"r\" data-value=\"%s\" data-line=\"%d\">%s</div>", Esc(id.Name), line, Math(NameML(id.Name)+"<mo>=</mo>"+ValueML(&e, x.Display, w.Digits(), false)+SenseML(&e)))
+					}
+				}
+			} else {
+				disp := x.Display
+				if bd := w.Doc.Env.Lookup(x.Names[0].Name); bd != nil && bd.Value == res.Value {
+					disp = bd.Display
+				}
+				w.MathDiv("r", resultAttrs(x.Names[0].Name, line), func() {
+					w.WriteString("<mo>=</mo>")
+					w.WriteString(s.valueML(res.Value, disp, false))
+					w.WriteString(SenseML(res.Value))
+				})
+				w.KindNote(res.Value)
+			}
+		}
+	case *expr.FuncDef:
+		var ps []string
+		for _, p := range x.Params {
+			ps = append(ps, NameML(p.Name))
+		}
+		head := "<mi>" + Esc(GreekOf(x.Name.Name)) + "</mi>"
+		if len([]rune(x.Name.Name)) == 1 || strings.Contains(x.Name.Name, "_") {
+			head = NameML(x.Name.Name)
+		}
+		w.MathRowTail("f", head+"<mo>(</mo>"+strings.Join(ps, "<mo>,</mo>")+"<mo>)</mo><mo>=</mo>", f, x.Body, "<span class=\"kindtag\">function</span>")
+	case *expr.Check:
+		w.CheckRow(f, x.Cmp)
+		if ok && res.Check != nil {
+			c := res.Check
+			disp := checkDisplay(w, x.Cmp)
+			dg := CheckRowDigits(c.Values, x.Cmp.Ops, disp, w.Digits())
+			var parts []string
+			for i, v := range c.Values {
+				if i > 0 {
+					parts = append(parts, "<mo>"+OpML[x.Cmp.Ops[i-1]]+"</mo>")
+				}
+				if dg != w.Digits() {
+					parts = append(parts, ValueML(v, disp, dg, false))
+					continue
+				}
+				parts = append(parts, s.valueML(v, disp, false))
+			}
+			parts = WithSense(parts, c.Values)
+			verdict := "<span class=\"verdict pass\">satisfied</span>"
+			if !c.Pass {
+				verdict = "<span class=\"verdict fail\">NOT SATISFIED</span>"
+			}
+			util := ""
+			if c.HasUtil {
+				util = "<span class=\"util\">utilisation " + Esc(percent(c.Utilisation)) + " of the limit</span>"
+			}
+			tol := ""
+			for _, op := range x.Cmp.Ops {
+				if op == expr.EQ || op == expr.NE {
+					tol = " <span class=\"tol\">(equal within a relative tolerance of 1e-9)</span>"
+				}
+			}
+			w.Printf("<div class=\"s\" data-check=\"%d\">%s%s%s%s</div>", line, Math(strings.Join(parts, "")), verdict, util, tol)
+		}
+	case *expr.ExprStmt:
+		w.MathRow("f", "", f, x.X)
+		if ok && res.Value != nil {
+			if hasNames(x.X) {
+				w.MathRow("s", "<mo>=</mo>", s, x.X)
+			}
+			w.Printf("<div class=\"r\" data-value=\"\" data-line=\"%d\">%s</div>", line, Math("<mo>=</mo>"+ValueML(res.Value, res.Display, w.Digits(), false)+SenseML(res.Value)))
+			w.KindNote(res.Value)
+		}
+	case *expr.BadStmt:
+		w.Printf("<div class=\"f\"><code>%s</code></div>", Esc(st.Text))
+	}
+	for _, e := range st.Errs {
+		w.ErrorRow(e)
+	}
+	if st.Unavailable != nil {
+		w.UnavailableRow(st.Unavailable)
+	}
+	w.WriteString("</div><div class=\"desc\">")
+	w.WriteString(Esc(st.Stmt.Desc()))
+	w.WriteString("</div></div>\n")
+}
+
+func joinNames(ids []*expr.Ident) string {
+	var s []string
+	for _, id := range ids {
+		s = append(s, id.Name)
+	}
+	return strings.Join(s, ",")
+}
+
+// percent writes a utilisation as "87.0 %" ("below 0.1 %" for less).
+func percent(u float64) string {
+	if u < 0.001 {
+		return "below 0.1 %"
+	}
+	sh := expr.FormatScalar(expr.Real(u*100), nil, 3)
+	return sh.A + " %"
+}
+
+// wideRow reports whether a statement's working holds a matrix, which
+// needs the full width of the page.
+func wideRow(res *expr.Result) bool {
+	if res == nil {
+		return false
+	}
+	if _, ok := res.Value.(*expr.Matrix); ok {
+		return true
+	}
+	for _, v := range res.Trace.Values() {
+		if m, ok := v.(*expr.Matrix); ok && len(m.E) > 1 {
+			return true
+		}
+	}
+	return false
+}
+
+// checkDisplay is the unit both sides of a check are shown in: that of the
+// first side written as a literal with a unit ("3 %", "6 kA"), else that of
+// the first bare name with a display of its own; nil for the defaults.
+func checkDisplay(w *Writer, c *expr.Compare) *expr.Display {
+	for _, x := range c.X {
+		if u := expr.LiteralUnit(x); u != nil {
+			return &expr.Display{Text: u.Text, Unit: u}
+		}
+	}
+	for _, x := range c.X {
+		if id, ok := x.(*expr.Ident); ok {
+			if b := w.Doc.Env.Lookup(id.Name); b != nil && b.Display != nil && b.Display.Unit != nil {
+				return &expr.Display{Text: b.Display.Unit.Text, Unit: b.Display.Unit}
+			}
+		}
+	}
+	return nil
+}
+
+// kindNote writes the words "kind not stated" under the result of a real
+// power of no kind (IEEE 1459 kinds, LANGUAGE.md section 4): it is shown
+// in W until its line names W, var or VA.
+func (w *Writer) KindNote(v expr.Value) {
+	if sc, ok := v.(*expr.Scalar); ok && sc != nil && sc.KindNotStated() {
+		w.WriteString("<div class=\"s kn\"><em>kind not stated</em> (shown in W; name W, var or VA in the line)</div>")
+	}
+}

@@ -1,0 +1,102 @@
+package markup
+
+import (
+	"bytes"
+	"fmt"
+	"io"
+
+	"calcdoc/calcdoc"
+	"calcdoc/expr"
+)
+
+// Writer is what block renderers write into: the page and the document
+// being drawn. While goldmark renders the body, the page writer points the
+// Writer at the writer goldmark hands its node renderers (SetOutput), so a
+// block is written in its place among goldmark's own output, with no
+// flush and no second buffer; otherwise it writes into its own buffer.
+type Writer struct {
+	bytes.Buffer
+	out bufWriter
+	Doc *calcdoc.Document
+	// Appendix collects sections drawn at the end of the sheet (large
+	// matrices of a solve block).
+	Appendix bytes.Buffer
+	values   map[valueKey]shownValue
+	// typesetters are the formula and substitution typesetters of calc rows
+	typesetters [2]*ExprML
+}
+
+// Digits is the number of significant figures of the document.
+func (w *Writer) Digits() int { return w.Doc.Digits() }
+
+// bufWriter is the writer goldmark hands node renderers (util.BufWriter).
+type bufWriter interface {
+	io.Writer
+	io.StringWriter
+	io.ByteWriter
+	WriteRune(r rune) (int, error)
+}
+
+// SetOutput makes the writer write into out (goldmark's writer, while it
+// renders the body), or into its own buffer when out is nil.
+func (w *Writer) SetOutput(out bufWriter) { w.out = out }
+
+// Write writes p.
+func (w *Writer) Write(p []byte) (int, error) {
+	if w.out != nil {
+		return w.out.Write(p)
+	}
+	return w.Buffer.Write(p)
+}
+
+// WriteString writes s.
+func (w *Writer) WriteString(s string) (int, error) {
+	if w.out != nil {
+		return w.out.WriteString(s)
+	}
+	return w.Buffer.WriteString(s)
+}
+
+// WriteByte writes c.
+func (w *Writer) WriteByte(c byte) error {
+	if w.out != nil {
+		return w.out.WriteByte(c)
+	}
+	return w.Buffer.WriteByte(c)
+}
+
+// WriteRune writes r.
+func (w *Writer) WriteRune(r rune) (int, error) {
+	if w.out != nil {
+		return w.out.WriteRune(r)
+	}
+	return w.Buffer.WriteRune(r)
+}
+
+// Printf writes formatted text.
+func (w *Writer) Printf(format string, args ...any) { fmt.Fprintf(w, format, args...) }
+
+// ErrorRow writes an error in place: its position and message, on screen
+// and in print, marked by words (not colour alone).
+func (w *Writer) ErrorRow(e *expr.Error) {
+	w.Printf("<div class=\"err\" role=\"alert\"><span class=\"tag\">ERROR</span> <span class=\"at\">line %d, col %d:</span> %s</div>\n", e.Pos.Line, e.Pos.Col, Esc(e.Msg))
+}
+
+// UnavailableRow writes the note of a line that could not be evaluated
+// because it uses a name whose definition failed.
+func (w *Writer) UnavailableRow(u *expr.UnavailableError) {
+	w.Printf("<div class=\"na\"><span class=\"tag\">NOT EVALUATED</span> uses %s, which has no value: the definition at line %d failed</div>\n", NameHTML(u.Name), u.Def.Line)
+}
+
+// NewWriter returns a writer for the sheet of doc.
+func NewWriter(doc *calcdoc.Document) *Writer {
+	return &Writer{Doc: doc, values: map[valueKey]shownValue{}}
+}
+
+// Plural is "s" unless n is one.
+func Plural(n int) string {
+	if n == 1 {
+		return ""
+	}
+	return "s"
+}
