@@ -88,7 +88,7 @@ func TestCheckFinds(t *testing.T) {
 
 func TestOf(t *testing.T) {
 	for path, want := range map[string]int{
-		"calcdoc/expr": 1, "calcdoc/expr/linalg": 0, "calcdoc/calcdoc": 2, "calcdoc/calcdoc/kind/solve/numeric": 4,
+		"calcdoc/expr": 1, "calcdoc/expr/linalg": 0, "calcdoc/calcdoc": 2, "calcdoc/expr/linalg/sparse": 0,
 		"calcdoc/calcdoc/kind/solve/numeric": 4, "calcdoc/render": 5, "calcdoc/render/svg": 3,
 		"calcdoc/render/pdf/pdftest": 6, "calcdoc/cmd/internal/preview": 8,
 	} {
