@@ -57,16 +57,30 @@ func renderSolve(w *markup.Writer, b *calcdoc.Block) {
 			w.Printf("<div class=\"row note\" id=\"L%d\"><div class=\"ln\">%d</div><div class=\"txt\">%s</div></div>\n", ln, ln, markup.Esc(s.Text))
 			continue
 		case *expr.Equation:
-			w.Printf("<div class=\"row eq\" id=\"L%d\"><div class=\"ln\">%d</div><div class=\"math\"><div class=\"f\">", ln, ln)
+			w.Printf("<div class=\"row eq\" id=\"L%d\"><div class=\"ln\">%d</div><div class=\"math\">", ln, ln)
+			label := ""
 			if s.Label != nil {
-				w.Printf("<b class=\"eqlabel\">%s:</b> ", markup.Esc(s.Label.Name))
+				label = "<b class=\"eqlabel\">" + markup.Esc(s.Label.Name) + ":</b> "
+			}
+			tail := ""
+			if l.Equation != nil && l.Equation.RealValued {
+				tail = " <span class=\"tol\">(real-valued: counts as one real equation)</span>"
 			}
 			f := w.ExprMLFor(false, nil)
-			w.WriteString(markup.Math(f.Node(s.LHS, false) + "<mo>=</mo>" + f.Node(s.RHS, false)))
-			if l.Equation != nil && l.Equation.RealValued {
-				w.WriteString(" <span class=\"tol\">(real-valued: counts as one real equation)</span>")
+			if f.Splits(s.LHS) || f.Splits(s.RHS) {
+				// a long equation breaks like a long formula row: before a
+				// top-level + or − of either side, and before its =
+				cut, end := w.StartPieces("f", label)
+				f.WritePieces(w, s.LHS, cut)
+				cut(true)
+				w.WriteString("<mo>=</mo>")
+				f.WritePieces(w, s.RHS, cut)
+				end(tail)
+			} else {
+				w.WriteString("<div class=\"f\">" + label)
+				w.WriteString(markup.Math(f.Node(s.LHS, false) + "<mo>=</mo>" + f.Node(s.RHS, false)))
+				w.WriteString(tail + "</div>")
 			}
-			w.WriteString("</div>")
 		default:
 			w.Printf("<div class=\"row eq\" id=\"L%d\"><div class=\"ln\">%d</div><div class=\"math\"><div class=\"f\"><code>%s</code></div>", ln, ln, markup.Esc(l.Text))
 		}

@@ -289,3 +289,33 @@ func wellFormedMath(t *testing.T, page string) {
 		}
 	}
 }
+
+// A long equation breaks like a long formula row (issue: rows that run off
+// the printed page): its row is written in pieces, one <math> per term,
+// in a wrapping container, with every term of both sides present. A short
+// equation has one box for its right side. The terms are the source's own, so the
+// reference is the equation as written.
+func TestSolveLongEquationBreaks(t *testing.T) {
+	src := "```calc\nZ_1 = 1 Ω\nZ_2 = 2 Ω\nZ_3 = 3 Ω\nZ_4 = 4 Ω\nZ_5 = 5 Ω\nZ_6 = 6 Ω\n```\n" +
+		"```solve I[A]\nlong: 100 V = I*Z_1 + I*Z_2 + I*Z_3 + I*Z_4 + I*Z_5 + I*Z_6\n```\n" +
+		"```solve J[A]\nshort: 10 V = J*Z_1\n```\n"
+	_, page := solveSheet(t, src)
+	long := blockHTML(t, page, 9)
+	if !strings.Contains(long, `<div class="f brk"><b class="eqlabel">long:</b> `) {
+		t.Errorf("the long equation is not written in pieces:\n%s", long)
+	}
+	if n := strings.Count(long, `<span class="t">`); n < 6 {
+		t.Errorf("the long equation has %d term boxes, want at least 6 (one for = and each later term)", n)
+	}
+	for k := 1; k <= 6; k++ {
+		if !strings.Contains(long, fmt.Sprintf("<msub><mi>Z</mi><mi>%d</mi></msub>", k)) {
+			t.Errorf("term Z_%d is missing from the long equation", k)
+		}
+	}
+	// an equation of one term a side is one piece a side
+	short := blockHTML(t, page, 12)
+	if n := strings.Count(short, `<span class="t">`); n != 1 {
+		t.Errorf("the short equation has %d term boxes, want 1 (its right side)", n)
+	}
+	wellFormedMath(t, page)
+}
