@@ -290,11 +290,31 @@ func (d *Document) fenced(n *ast.FencedCodeBlock) {
 	b.doc = d
 	d.Blocks = append(d.Blocks, b)
 	d.byNode[n] = b
+	d.Env.Budget.Begin(b.InfoPos, word+" block")
+	wasOver := d.Env.Budget.Over() != nil
 	kind.Eval(b)
+	d.budgetSpentIn(wasOver, &b.Errors)
 	b.checkDrawing()
 	for _, e := range b.Errors {
 		d.Errors = append(d.Errors, e)
 	}
+}
+
+// budgetSpentIn makes sure that the error of a work budget spent during a
+// block or an inline value is among its errors (errs), whatever the kind
+// did with it: a sweep, say, keeps a point's error as a gap. wasOver says
+// whether the budget was spent before it began.
+func (d *Document) budgetSpentIn(wasOver bool, errs *[]*expr.Error) {
+	over := d.Env.Budget.Over()
+	if over == nil || wasOver {
+		return
+	}
+	for _, e := range *errs {
+		if e == over {
+			return
+		}
+	}
+	*errs = append(*errs, over)
 }
 
 // Source returns the block's lines as an expr.Source, positions included.
@@ -348,6 +368,7 @@ func (d *Document) codeSpan(n *ast.CodeSpan) {
 		in.Err = errs[0]
 		d.Errors = append(d.Errors, errs...)
 	} else {
+		d.Env.Budget.Begin(in.Pos, "inline value")
 		v, err := d.Env.Eval(x, nil)
 		if err == nil {
 			if derr := expr.CheckDisplay(v, disp); derr != nil {

@@ -907,7 +907,7 @@ func (r *solveRun) prepare() bool {
 	for i, eq := range r.eqs {
 		q := 0.0
 		for _, t := range terms(eq.Eq.RHS, terms(eq.Eq.LHS, nil)) {
-			v, err := r.env.EvalWith(t, r.loc, nil)
+			v, err := r.env.EvalKeyed(t, r.loc, nil)
 			if s, isS := v.(*expr.Scalar); err == nil && isS && s.IsFinite() {
 				q = math.Max(q, cmplx.Abs(s.Z))
 			}
@@ -1143,7 +1143,7 @@ func (r *solveRun) setX(x []float64) {
 func (r *solveRun) sides(i int) (l, rr expr.Scalar, err error) {
 	eq := r.eqs[i].Eq
 	side := func(n expr.Node, what string) (expr.Scalar, error) {
-		v, err := r.env.EvalWith(n, r.loc, nil)
+		v, err := r.env.EvalKeyed(n, r.loc, nil)
 		if err != nil {
 			return expr.Scalar{}, err
 		}

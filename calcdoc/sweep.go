@@ -599,7 +599,7 @@ func runSweep(b *Block, sw *Sweep) {
 				l.Gaps++
 				continue
 			}
-			v, err := env.EvalWith(l.X, locals, nil)
+			v, err := env.EvalKeyed(l.X, locals, nil)
 			var s *expr.Scalar
 			if err == nil {
 				var ok bool

@@ -40,8 +40,8 @@ const pingEvery = 25 * time.Second
 // Everything is served from memory: no request reads a file, so no path
 // can reach one. Any other path, and every path with an empty, "." or ".."
 // segment, a backslash or a NUL, gets 404. Only GET and HEAD are answered
-// (others get 405); nothing writes. Unless AnyHost is set, a request whose
-// Host is not localhost or a loopback address gets 403.
+// (others get 405); nothing writes. A request whose Host is not
+// localhost, a loopback address or one of Config.AllowHosts gets 403.
 func (w *Watcher) Handler() http.Handler { return http.HandlerFunc(w.serveHTTP) }
 
 func (w *Watcher) serveHTTP(rw http.ResponseWriter, r *http.Request) {
@@ -54,8 +54,8 @@ func (w *Watcher) serveHTTP(rw http.ResponseWriter, r *http.Request) {
 		http.Error(rw, "405 method not allowed: the preview only answers GET and HEAD", http.StatusMethodNotAllowed)
 		return
 	}
-	if !w.cfg.AnyHost && !loopbackHost(r.Host) {
-		http.Error(rw, "403 forbidden: the preview answers only requests for localhost or a loopback address", http.StatusForbidden)
+	if !loopbackHost(r.Host) && !allowedHost(r.Host, w.cfg.AllowHosts) {
+		http.Error(rw, "403 forbidden: the preview answers only requests for localhost, a loopback address or a name given with --allow-host", http.StatusForbidden)
 		return
 	}
 	switch p := r.URL.Path; p {
@@ -100,6 +100,35 @@ func loopbackHost(host string) bool {
 	}
 	ip := net.ParseIP(host)
 	return ip != nil && ip.IsLoopback()
+}
+
+// hostOnly is the host of a Host header, without its port and brackets.
+func hostOnly(host string) string {
+	if h, _, err := net.SplitHostPort(host); err == nil {
+		host = h
+	}
+	return strings.TrimSuffix(strings.TrimPrefix(host, "["), "]")
+}
+
+// allowedHost reports whether a Host header names one of allow (compared
+// without port and brackets, names without regard to case, addresses by
+// value).
+func allowedHost(host string, allow []string) bool {
+	h := hostOnly(host)
+	if h == "" {
+		return false
+	}
+	ip := net.ParseIP(h)
+	for _, a := range allow {
+		a = hostOnly(a)
+		if strings.EqualFold(strings.TrimSuffix(a, "."), strings.TrimSuffix(h, ".")) {
+			return true
+		}
+		if aip := net.ParseIP(a); ip != nil && aip != nil && aip.Equal(ip) {
+			return true
+		}
+	}
+	return false
 }
 
 // IsLoopback reports whether a listener's address is on the loopback

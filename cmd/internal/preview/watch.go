@@ -81,12 +81,13 @@ type Config struct {
 	Built func(doc *calcdoc.Document) build.Options
 	// Log receives one line per rebuild; nil discards them.
 	Log io.Writer
-	// AnyHost accepts requests whatever host name they give. Leave it
-	// false when serving on loopback: then only requests for localhost or
-	// a loopback address are answered, which keeps a web page from reading
-	// the sheets through a host name that it points at 127.0.0.1 (DNS
-	// rebinding).
-	AnyHost bool
+	// AllowHosts are the host names (or addresses) a request may name in
+	// its Host header besides localhost and the loopback addresses, which
+	// are always answered: the bound address when it is not loopback, and
+	// each --allow-host. Any other name gets 403, which keeps a web page
+	// from reading the sheets through a host name that it points at this
+	// machine (DNS rebinding), on loopback and on the network alike.
+	AllowHosts []string
 }
 
 // ConfigError is a bad Config: a missing PATH, a file that is not .md, an
