@@ -156,7 +156,12 @@ func writeHTML(rw http.ResponseWriter, status int, body []byte) {
 func (w *Watcher) serveDoc(rw http.ResponseWriter, key string) {
 	w.mu.RLock()
 	p := w.docs[key]
+	since, busy := w.evaluating(key)
 	w.mu.RUnlock()
+	if p != nil && busy {
+		writeHTML(rw, p.status, withBanner(p.body, p.version, since))
+		return
+	}
 	if p == nil {
 		// The page waits for the document to appear (deleted, then
 		// written again).
@@ -215,8 +220,12 @@ func (p *page) stateText() string {
 func (w *Watcher) serveListing(rw http.ResponseWriter) {
 	w.mu.RLock()
 	pages := make([]*page, 0, len(w.docs))
+	busy := map[string]time.Time{}
 	for _, p := range w.docs {
 		pages = append(pages, p)
+		if since, ok := w.evaluating(p.key); ok {
+			busy[p.key] = since
+		}
 	}
 	version := w.listVer
 	w.mu.RUnlock()
@@ -241,8 +250,12 @@ func (w *Watcher) serveListing(rw http.ResponseWriter) {
 			"<th>Not satisfied</th><th>Errors</th><th>Evaluated</th></tr></thead>\n<tbody>\n")
 		for _, p := range pages {
 			u := (&url.URL{Path: "/" + p.key}).EscapedPath()
+			state := p.stateText()
+			if since, ok := busy[p.key]; ok {
+				state = "evaluating a newer save (" + since.Format("15:04:05") + "); shown: " + state
+			}
 			fmt.Fprintf(&b, "<tr><td><a href=\"%s\">%s</a></td><td>%s</td>", html.EscapeString(u),
-				html.EscapeString(p.display), html.EscapeString(p.stateText()))
+				html.EscapeString(p.display), html.EscapeString(state))
 			if p.state == stUnreadable {
 				b.WriteString("<td></td><td></td><td></td><td></td>")
 			} else {
@@ -285,6 +298,9 @@ func (w *Watcher) version(key string) string {
 		return w.listVer
 	}
 	if p := w.docs[key]; p != nil {
+		if _, busy := w.evaluating(key); busy {
+			return pendingVersion(p.version)
+		}
 		return p.version
 	}
 	return absentVersion
