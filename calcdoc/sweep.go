@@ -222,7 +222,7 @@ func evalSweep(b *Block) {
 	if onlyNotes && len(errs) == 0 {
 		b.Errorf(b.InfoPos, "the sweep block has no line to evaluate: write one expression or assignment a line, e.g. Z = R + j*2*pi*%s*L", sw.Var)
 	}
-	if headerOK {
+	if headerOK && sweepWork(b, sw) { // the work budget (sweepwork.go)
 		runSweep(b, sw)
 	}
 	for _, l := range sw.Lines {
