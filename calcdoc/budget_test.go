@@ -90,6 +90,11 @@ func TestWorkBudget(t *testing.T) {
 					t.Errorf("message %q lacks %q", over.Msg, want)
 				}
 			}
+			for _, e := range d.Errors {
+				if strings.Contains(e.Msg, "work budget") && strings.Contains(e.Msg, "starting values") {
+					t.Errorf("a spent budget is reported as a failure to evaluate at a point: %v", e)
+				}
+			}
 			lines := strings.Split(c.doc, "\n")
 			if l := over.Pos.Line; l < 1 || l > len(lines) || !strings.Contains(lines[l-1], c.line) {
 				t.Errorf("the error is at line %d, want a line with %q", over.Pos.Line, c.line)

@@ -3,6 +3,7 @@ package expr
 import (
 	"fmt"
 	"strconv"
+	"strings"
 )
 
 // DefaultBudget is the work one document may spend on evaluation, in work
@@ -75,7 +76,7 @@ func (b *Budget) Charge(n int64, pos Pos) *Error {
 		return nil
 	}
 	if b.over != nil {
-		return Errorf(pos, "not evaluated: the document's work budget was spent at line %d (see the error there)", b.over.Pos.Line)
+		return Errorf(pos, notEvaluated+"at line %d (see the error there)", b.over.Pos.Line)
 	}
 	if n < 0 || b.spent+n > b.Limit || b.spent+n < b.spent {
 		line, what := b.spent-b.markAt, b.markWhat
@@ -93,6 +94,22 @@ func (b *Budget) Charge(n int64, pos Pos) *Error {
 	}
 	b.spent += n
 	return nil
+}
+
+// notEvaluated starts the error of every evaluation after the budget ran
+// out.
+const notEvaluated = "not evaluated: the document's work budget was spent "
+
+// Owns reports whether err is the budget's error: the one where it ran out
+// or one of the "not evaluated" errors after it. A block kind reports such
+// an error as it is, not as a failure of its own (a solve block does not
+// ask for other starting values).
+func (b *Budget) Owns(err error) bool {
+	e, ok := err.(*Error)
+	if !ok || b == nil || b.over == nil {
+		return false
+	}
+	return e == b.over || strings.HasPrefix(e.Msg, notEvaluated)
 }
 
 // TryCharge spends n units if the budget holds them and reports whether it
