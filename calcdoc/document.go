@@ -143,7 +143,14 @@ func Markdown() goldmark.Markdown { return markdown }
 // Parse evaluates a document from its bytes. It never fails: every problem
 // is in the document's Errors, and evaluation goes on past each one.
 func Parse(path string, src []byte) *Document {
+	return ParseBudget(path, src, expr.NewBudget(expr.DefaultBudget))
+}
+
+// ParseBudget is Parse with the work budget the evaluation spends, which
+// the caller may stop (expr.Budget.Stop) from another goroutine.
+func ParseBudget(path string, src []byte, budget *expr.Budget) *Document {
 	d := &Document{Path: path, Source: src, Env: expr.NewEnv(), byNode: map[ast.Node]*Block{}, inlineN: map[ast.Node]*Inline{}}
+	d.Env.Budget = budget
 	txt := readerLines(src)
 	var bad []int
 	if !utf8.Valid(txt) {

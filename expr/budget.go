@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"strconv"
 	"strings"
+	"sync/atomic"
 )
 
 // DefaultBudget is the work one document may spend on evaluation, in work
@@ -35,7 +36,22 @@ type Budget struct {
 	markPos  Pos
 	markWhat string
 	markAt   int64
+
+	stopped atomic.Bool // set by Stop, from any goroutine
 }
+
+// Stop makes every later charge fail with a "not evaluated: the
+// evaluation was stopped" error, so that an evaluation no longer wanted (a
+// preview whose document was saved again) ends within a few steps. It may
+// be called from any goroutine.
+func (b *Budget) Stop() {
+	if b != nil {
+		b.stopped.Store(true)
+	}
+}
+
+// Stopped reports whether Stop was called.
+func (b *Budget) Stopped() bool { return b != nil && b.stopped.Load() }
 
 // NewBudget returns a budget of limit units.
 func NewBudget(limit int64) *Budget { return &Budget{Limit: limit} }
@@ -77,6 +93,9 @@ func (b *Budget) Charge(n int64, pos Pos) *Error {
 	}
 	if b.over != nil {
 		return Errorf(pos, notEvaluated+"at line %d (see the error there)", b.over.Pos.Line)
+	}
+	if b.stopped.Load() {
+		return Errorf(pos, "not evaluated: the evaluation was stopped")
 	}
 	if n < 0 || b.spent+n > b.Limit || b.spent+n < b.spent {
 		line, what := b.spent-b.markAt, b.markWhat

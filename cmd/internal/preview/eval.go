@@ -8,6 +8,7 @@ import (
 
 	"calcdoc/calcdoc"
 	"calcdoc/cmd/internal/build"
+	"calcdoc/expr"
 )
 
 // Each document is evaluated on a worker of its own, so that one whose
@@ -32,10 +33,11 @@ type evalJob struct {
 
 // evalState is a document that is being evaluated; w.mu guards it.
 type evalState struct {
-	next    *evalJob  // the newest save waiting, or nil
-	latest  []byte    // the source of the newest save asked for
-	since   time.Time // when the newest save was asked for
-	dropped bool      // the document went away: drop the result
+	next    *evalJob     // the newest save waiting, or nil
+	latest  []byte       // the source of the newest save asked for
+	since   time.Time    // when the newest save was asked for
+	dropped bool         // the document went away: drop the result
+	budget  *expr.Budget // the running evaluation's, stopped by a newer save
 	// the file evaluated for the address, and its path as shown
 	file, display string
 }
@@ -60,6 +62,7 @@ func (w *Watcher) startEval(j *evalJob) {
 	if st != nil {
 		st.next, st.latest, st.since, st.dropped = j, j.src, j.at, false
 		st.file, st.display = j.file, j.display
+		st.budget.Stop() // the running evaluation is no longer wanted
 		return
 	}
 	st = &evalState{next: j, latest: j.src, since: j.at, file: j.file, display: j.display}
@@ -73,6 +76,7 @@ func (w *Watcher) startEval(j *evalJob) {
 func (w *Watcher) dropEval(key string) {
 	if st := w.evals[key]; st != nil {
 		st.next, st.dropped = nil, true
+		st.budget.Stop()
 	}
 }
 
@@ -100,14 +104,18 @@ func (w *Watcher) evalWorker(key string, st *evalState) {
 			return
 		}
 		w.wakeLocked() // the banner comes
+		budget := expr.NewBudget(expr.DefaultBudget)
+		st.budget = budget
 		w.mu.Unlock()
 
-		p, line := w.evaluate(j)
+		p, line := w.evaluate(j, budget)
 
 		w.mu.Lock()
 		switch {
 		case st.dropped:
 			line = ""
+		case st.next != nil && budget.Stopped():
+			line = fmt.Sprintf("%s: evaluation stopped after %s: a newer save is being evaluated", j.display, ms(p.took))
 		case st.next != nil:
 			line = fmt.Sprintf("%s: evaluated in %s, but not shown: a newer save is being evaluated", j.display, ms(p.took))
 		default:
@@ -124,11 +132,11 @@ func (w *Watcher) evalWorker(key string, st *evalState) {
 
 // evaluate evaluates and draws one save, writes the sheet when Out is set,
 // and returns its page and the log line.
-func (w *Watcher) evaluate(j *evalJob) (*page, string) {
+func (w *Watcher) evaluate(j *evalJob, budget *expr.Budget) (*page, string) {
 	if f := beforeEval.Load(); f != nil {
 		(*f)(j)
 	}
-	doc := calcdoc.Parse(j.display, j.src)
+	doc := calcdoc.ParseBudget(j.display, j.src, budget)
 	p := &page{key: j.key, file: j.file, display: j.display, src: j.src, status: 200, version: w.nextVersion(), at: j.at,
 		values: len(doc.Values), checks: len(doc.Checks), failed: doc.FailedChecks(),
 		errors: len(doc.Errors), warning: len(doc.Warnings)}
