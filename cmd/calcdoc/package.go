@@ -224,6 +224,10 @@ func (c *cli) pack(args []string) int {
 // Without a browser the HTML is written alone when there is no PDF it
 // would then disagree with. It returns the exit status.
 func (c *cli) packagePair(info pack.Info, sheets []pack.Sheet, page []byte, target, pdfPath string) int {
+	// signals are caught from before the temporary files are made, so
+	// that an interrupted run removes them
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+	defer stop()
 	pair, recovered, err := build.NewPair(target, pdfPath)
 	if recovered {
 		fmt.Fprintf(c.stderr, "calcdoc: note: an earlier run was stopped between putting %s and %s in place; that pair is now completed\n", target, pdfPath)
@@ -237,8 +241,6 @@ func (c *cli) packagePair(info pack.Info, sheets []pack.Sheet, page []byte, targ
 		fmt.Fprintf(c.stderr, "calcdoc: cannot write %s: %v\n", target, err)
 		return exitError
 	}
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
-	defer stop()
 	err = c.printPackage(ctx, info, sheets, pair.TmpHTML, pair.TmpPDF, pdfPath)
 	switch {
 	case ctx.Err() != nil:
