@@ -148,7 +148,14 @@ func Markdown() goldmark.Markdown { return markdown }
 // blocks are shown as code). It never fails: every problem is in the
 // document's Errors, and evaluation goes on past each one.
 func Parse(path string, src []byte, reg *Registry) *Document {
+	return ParseBudget(path, src, reg, expr.NewBudget(expr.DefaultBudget))
+}
+
+// ParseBudget is Parse with the work budget the evaluation spends, which
+// the caller may stop (expr.Budget.Stop) from another goroutine.
+func ParseBudget(path string, src []byte, reg *Registry, budget *expr.Budget) *Document {
 	d := &Document{Path: path, Source: src, Env: expr.NewEnv(), Kinds: reg, byNode: map[ast.Node]*Block{}, inlineN: map[ast.Node]*Inline{}}
+	d.Env.Budget = budget
 	txt := readerLines(src)
 	var bad []int
 	if !utf8.Valid(txt) {
@@ -296,7 +303,10 @@ func (d *Document) fenced(n *ast.FencedCodeBlock) {
 	d.Blocks = append(d.Blocks, b)
 	d.byNode[n] = b
 	b.kind = kind
+	d.Env.Budget.Begin(b.InfoPos, word+" block")
+	wasOver := d.Env.Budget.Over() != nil
 	kind.Eval(b)
+	d.budgetSpentIn(wasOver, &b.Errors)
 	if dc, ok := kind.(DrawChecker); ok {
 		b.DrawErrors = dc.DrawCheck(b)
 		b.Errors = append(b.Errors, b.DrawErrors...)
@@ -304,6 +314,23 @@ func (d *Document) fenced(n *ast.FencedCodeBlock) {
 	for _, e := range b.Errors {
 		d.Errors = append(d.Errors, e)
 	}
+}
+
+// budgetSpentIn makes sure that the error of a work budget spent during a
+// block or an inline value is among its errors (errs), whatever the kind
+// did with it: a sweep, say, keeps a point's error as a gap. wasOver says
+// whether the budget was spent before it began.
+func (d *Document) budgetSpentIn(wasOver bool, errs *[]*expr.Error) {
+	over := d.Env.Budget.Over()
+	if over == nil || wasOver {
+		return
+	}
+	for _, e := range *errs {
+		if e == over {
+			return
+		}
+	}
+	*errs = append(*errs, over)
 }
 
 // Source returns the block's lines as an expr.Source, positions included.
@@ -357,6 +384,7 @@ func (d *Document) codeSpan(n *ast.CodeSpan) {
 		in.Err = errs[0]
 		d.Errors = append(d.Errors, errs...)
 	} else {
+		d.Env.Budget.Begin(in.Pos, "inline value")
 		v, err := d.Env.Eval(x, nil)
 		if err == nil {
 			if derr := expr.CheckDisplay(v, disp); derr != nil {

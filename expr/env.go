@@ -44,11 +44,14 @@ type Env struct {
 	tables map[string]*tableBinding
 	// Preferred is the document's preferred display units, or nil.
 	Preferred *Preferred
+	// Budget is the evaluation work the document may still spend, shared
+	// by every evaluation in the environment; nil is no limit.
+	Budget *Budget
 }
 
-// NewEnv returns an empty environment.
+// NewEnv returns an empty environment with a budget of DefaultBudget.
 func NewEnv() *Env {
-	return &Env{vars: map[string]*Binding{}, funcs: map[string]*Func{}}
+	return &Env{vars: map[string]*Binding{}, funcs: map[string]*Func{}, Budget: NewBudget(DefaultBudget)}
 }
 
 // Lookup returns the binding of a name, or nil.

@@ -66,17 +66,22 @@ func (t *Trace) record(n Node, v Value) {
 // MaxCallDepth bounds nested user-function calls.
 const MaxCallDepth = 64
 
-// MaxEvalSteps bounds the nodes evaluated for one expression, counting
-// every node of every user-function body each time it runs: without it,
-// functions that each call the one above twice would take 2^n steps.
-const MaxEvalSteps = 1000000
-
 type evaluator struct {
 	env    *Env
 	trace  *Trace
 	locals map[string]Value
 	depth  int
-	steps  *int // nodes evaluated so far, shared with user-function calls
+}
+
+// charge spends n units of the document's budget for work at pos (see
+// Budget): every node of every user-function body each time it runs,
+// every matrix entry, every multiply-add. Without it, functions that
+// each call the one above twice would take 2^n steps.
+func (ev *evaluator) charge(n int64, pos Pos) error {
+	if err := ev.env.Budget.Charge(n, pos); err != nil {
+		return err
+	}
+	return nil
 }
 
 // Eval evaluates an expression in env. When trace is not nil, the values of
@@ -84,28 +89,49 @@ type evaluator struct {
 // user-function bodies are not).
 // The error is an *Error or an *UnavailableError.
 func (e *Env) Eval(n Node, trace *Trace) (Value, error) {
-	steps := 0
-	ev := &evaluator{env: e, trace: trace, steps: &steps}
+	ev := &evaluator{env: e, trace: trace}
 	return ev.eval(n)
 }
 
 // EvalWith evaluates n with extra local names (the parameters of a user
 // function, a sweep variable) that hide nothing but are seen first.
 func (e *Env) EvalWith(n Node, locals map[string]Value, trace *Trace) (Value, error) {
-	steps := 0
-	ev := &evaluator{env: e, trace: trace, locals: keyedLocals(locals), steps: &steps}
+	// every local name is looked at once (keyedLocals): a sweep point or
+	// a solve residual pays for the names it hands over
+	if err := e.Budget.Charge(LocalWork*int64(len(locals)), n.Pos()); err != nil {
+		return nil, err
+	}
+	ev := &evaluator{env: e, trace: trace, locals: keyedLocals(locals)}
+	return ev.eval(n)
+}
+
+// EvalKeyed is EvalWith for locals already keyed by NameKey, as a sweep
+// and a solve block key them: it does not look at every local name, so a
+// sweep point or a solve residual costs its expression, not its names.
+//
+// Each call costs KeyedWork besides its expression: the caller's handling
+// of the point (setting the names, taking the value back), which a sweep
+// of many short lines repeats at every point.
+func (e *Env) EvalKeyed(n Node, locals map[string]Value, trace *Trace) (Value, error) {
+	if err := e.Budget.Charge(KeyedWork, n.Pos()); err != nil {
+		return nil, err
+	}
+	ev := &evaluator{env: e, trace: trace, locals: locals}
 	return ev.eval(n)
 }
 
 func (ev *evaluator) eval(n Node) (Value, error) {
-	if ev.steps == nil {
-		ev.steps = new(int)
-	}
-	if *ev.steps++; *ev.steps > MaxEvalSteps {
-		return nil, Errorf(n.Pos(), "this expression takes more than %d steps to evaluate (user functions calling each other many times?)", MaxEvalSteps)
+	if err := ev.charge(NodeWork, n.Pos()); err != nil {
+		return nil, err
 	}
 	v, err := ev.eval1(n)
 	if err == nil {
+		// the checks below look at every entry of a matrix value
+		if k := entries(v); k > 1 {
+			if err := ev.charge(EntryWork*k, n.Pos()); err != nil {
+				return nil, err
+			}
+		}
 		if err := nonFinite(n, v); err != nil {
 			return nil, err
 		}
@@ -222,6 +248,11 @@ func (ev *evaluator) eval1(n Node) (Value, error) {
 			// or parallel combination in K (temperature.go)
 			x, y = ev.inKelvin(n.X, x), ev.inKelvin(n.Y, y)
 		}
+		if w := productWork(n, x, y); w > 0 {
+			if err := ev.charge(w, n.OpPos); err != nil {
+				return nil, err
+			}
+		}
 		return binaryOp(n, x, y)
 	case *Call:
 		return ev.call(n)
@@ -292,6 +323,11 @@ func (ev *evaluator) ident(n *Ident) (Value, error) {
 
 func (ev *evaluator) suggestName(name string) string {
 	best, bestD := "", 3
+	// a suggestion compares the name with every name: optional work, left
+	// out when the budget cannot hold it
+	if !ev.env.Budget.TryCharge(suggestWork * int64(len(ev.env.order)+len(ev.locals))) {
+		return ""
+	}
 	for _, k := range ev.env.order {
 		if d := editDistance(name, k); d < bestD && d <= len(name)/2 {
 			best, bestD = k, d
@@ -554,9 +590,18 @@ func (ev *evaluator) call(n *Call) (Value, error) {
 		for i, p := range f.keys {
 			locals[p] = args[i]
 		}
-		sub := &evaluator{env: ev.env, locals: locals, depth: ev.depth + 1, steps: ev.steps}
+		if err := ev.charge(CallWork+int64(len(args)), n.P); err != nil {
+			return nil, err
+		}
+		sub := &evaluator{env: ev.env, locals: locals, depth: ev.depth + 1}
 		v, err := sub.eval(f.Body)
 		if err != nil {
+			if e, ok := err.(*Error); ok && e == ev.env.Budget.Over() {
+				// the work is the calling line's: the error moves out to
+				// the outermost call, on that line
+				e.Pos = n.P
+				return nil, e
+			}
 			if e, ok := err.(*Error); ok {
 				return nil, Errorf(n.P, "in %s (defined at line %d): %s", name, f.Pos.Line, e.Msg)
 			}
@@ -590,6 +635,9 @@ func (ev *evaluator) call(n *Call) (Value, error) {
 			}
 		}
 	}
+	if err := ev.charge(builtinWork(key, args), n.P); err != nil {
+		return nil, err
+	}
 	v, err := bf.fn(args)
 	if err != nil {
 		return nil, Errorf(n.P, "%s: %s", name, err.Error())
@@ -599,6 +647,9 @@ func (ev *evaluator) call(n *Call) (Value, error) {
 
 func (ev *evaluator) suggestFunc(name string) string {
 	best, bestD := "", 3
+	if !ev.env.Budget.TryCharge(suggestWork * int64(len(builtins)+len(ev.env.funcs))) {
+		return ""
+	}
 	for k := range builtins {
 		if d := editDistance(name, k); d < bestD && d <= len(name)/2 {
 			best, bestD = k, d

@@ -25,8 +25,7 @@ const EqualTolerance = 1e-9
 
 // EvalCheck evaluates a comparison chain.
 func (e *Env) EvalCheck(c *Compare, trace *Trace) (*CheckResult, error) {
-	steps := 0
-	ev := &evaluator{env: e, trace: trace, steps: &steps}
+	ev := &evaluator{env: e, trace: trace}
 	res := &CheckResult{Pass: true}
 	for _, x := range c.X {
 		v, err := ev.eval(x)
@@ -118,6 +117,7 @@ type Result struct {
 // use it say so once instead of repeating the error.
 func (e *Env) Exec(s Stmt) *Result {
 	r := &Result{Stmt: s, Trace: &Trace{}}
+	e.Budget.Begin(s.Pos(), "line")
 	switch s := s.(type) {
 	case *Note:
 	case *BadStmt:

@@ -9,7 +9,7 @@ import (
 // FuzzEngine scans, parses and evaluates arbitrary text as a calc block,
 // as a solve block and as an inline value. Whatever the input, the engine
 // must not panic, must finish (every loop and recursion is bounded:
-// MaxNumberLen, MaxDepth, MaxCallDepth, MaxEvalSteps, MaxMatrixEntries),
+// MaxNumberLen, MaxDepth, MaxCallDepth, the work budget, MaxMatrixEntries),
 // and every position it reports (errors and node spans) must lie in the
 // input: a line of the block, and a column from 1 to one past the end of
 // that line.

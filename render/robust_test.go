@@ -79,14 +79,17 @@ func TestLongLine(t *testing.T) {
 					t.Errorf("the sheet has no row for line 2")
 				}
 			}},
-		{"an expression of 1 MiB without spaces: over expr.MaxEvalSteps",
+		{"an expression of 1 MiB without spaces: within the work budget",
 			"```calc\nx = 1" + strings.Repeat("+1", dense-1) + "\n```\n",
 			func(t *testing.T, d *calcdoc.Document, html string) {
-				// its 524,287 numbers and 524,286 sums are more nodes than
-				// the steps allowed for one expression
-				if len(d.Errors) != 1 || d.Errors[0].Pos.Line != 2 ||
-					!strings.Contains(d.Errors[0].Msg, fmt.Sprintf("more than %d steps", expr.MaxEvalSteps)) {
-					t.Errorf("errors %v, want one on line 2 naming the limit of %d steps", d.Errors, expr.MaxEvalSteps)
+				// its 524,287 numbers and 524,286 sums cost 10 units each
+				// (expr.NodeWork), about a tenth of the document's budget
+				noDocErrors(t, d)
+				if s := scalarOf(t, d, "x"); s.Z != complex(float64(dense), 0) {
+					t.Errorf("x = %v, want %d", s.Z, dense)
+				}
+				if spent := d.Env.Budget.Spent(); spent != expr.NodeWork*int64(2*dense-1) {
+					t.Errorf("spent %d units, want %d (10 for each of %d nodes)", spent, expr.NodeWork*int64(2*dense-1), 2*dense-1)
 				}
 			}},
 		{"a description of 1 MiB", "```calc\nx = 2 V   # " + strings.Repeat("a", mib) + "\n```\n",

@@ -7,8 +7,10 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"os/signal"
 	"path/filepath"
 	"slices"
+	"syscall"
 
 	"calcdoc/calcdoc"
 	"calcdoc/calcdoc/kind"
@@ -195,43 +197,93 @@ func (c *cli) pack(args []string) int {
 		fmt.Fprintf(c.stderr, "calcdoc: %v\n", err)
 		return exitError
 	}
-	if err := build.WriteFileAtomic(target, page); err != nil {
-		fmt.Fprintf(c.stderr, "calcdoc: cannot write %s: %v\n", target, err)
-		return exitError
-	}
 	hashes := make([]string, len(sheets))
 	for i, s := range sheets {
 		hashes[i] = s.Options.Stamp.SHA256
 	}
-	fmt.Fprintf(c.stdout, "package -> %s: %d sheets, package sha256 %s\n", target, len(sheets), pack.Hash(hashes))
-
-	if *pdfOut != "" {
-		err := c.printPackage(info, sheets, target, *pdfOut)
-		switch {
-		case errors.Is(err, pdf.ErrNoChromium):
-			fmt.Fprintf(c.stderr, "calcdoc: no PDF written: %v; the HTML package is in %s\n", err, target)
-			return max(st, exitUsage)
-		case err != nil:
-			fmt.Fprintf(c.stderr, "calcdoc: no PDF written: %v\n", err)
+	if *pdfOut == "" {
+		if err := build.WriteFileAtomic(target, page); err != nil {
+			fmt.Fprintf(c.stderr, "calcdoc: cannot write %s: %v\n", target, err)
 			return exitError
 		}
-		fmt.Fprintf(c.stdout, "%s -> %s\n", target, *pdfOut)
+		fmt.Fprintf(c.stdout, "package -> %s: %d sheets, package sha256 %s\n", target, len(sheets), pack.Hash(hashes))
+		return st
 	}
+	if pst := c.packagePair(info, sheets, page, target, *pdfOut); pst != exitOK {
+		return max(st, pst)
+	}
+	fmt.Fprintf(c.stdout, "package -> %s: %d sheets, package sha256 %s\n", target, len(sheets), pack.Hash(hashes))
+	fmt.Fprintf(c.stdout, "%s -> %s\n", target, *pdfOut)
 	return st
 }
 
-// printPackage prints the package's HTML file target to pdfPath. Where
+// packagePair writes the package's HTML and its PDF as one pair
+// (build.Pair): both are made as temporary files and renamed into place
+// together at the end, so the HTML and the PDF beside it are always of
+// one run. On SIGINT or SIGTERM the browser's process group is killed and
+// both old files are left as they were, as they are when printing fails.
+// Without a browser the HTML is written alone when there is no PDF it
+// would then disagree with. It returns the exit status.
+func (c *cli) packagePair(info pack.Info, sheets []pack.Sheet, page []byte, target, pdfPath string) int {
+	// signals are caught from before the temporary files are made, so
+	// that an interrupted run removes them
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+	defer stop()
+	pair, recovered, err := build.NewPair(target, pdfPath)
+	if recovered {
+		fmt.Fprintf(c.stderr, "calcdoc: note: an earlier run was stopped between putting %s and %s in place; that pair is now completed\n", target, pdfPath)
+	}
+	if err != nil {
+		fmt.Fprintf(c.stderr, "calcdoc: cannot write %s and %s: %v\n", target, pdfPath, err)
+		return exitError
+	}
+	defer pair.Abort() // a no-op once committed: the temporary files are gone
+	if err := os.WriteFile(pair.TmpHTML, page, 0o600); err != nil {
+		fmt.Fprintf(c.stderr, "calcdoc: cannot write %s: %v\n", target, err)
+		return exitError
+	}
+	err = c.printPackage(ctx, info, sheets, pair.TmpHTML, pair.TmpPDF, pdfPath)
+	switch {
+	case ctx.Err() != nil:
+		fmt.Fprintf(c.stderr, "calcdoc: interrupted while printing: nothing written, %s and %s are left as they were\n", target, pdfPath)
+		return exitError
+	case errors.Is(err, pdf.ErrNoChromium):
+		if _, serr := os.Stat(pdfPath); serr == nil {
+			fmt.Fprintf(c.stderr, "calcdoc: no PDF written: %v; nothing written, so that %s and %s stay a pair\n", err, target, pdfPath)
+			return exitUsage
+		}
+		if rerr := os.Rename(pair.TmpHTML, pair.HTML); rerr != nil {
+			fmt.Fprintf(c.stderr, "calcdoc: cannot write %s: %v\n", target, rerr)
+			return exitError
+		}
+		fmt.Fprintf(c.stderr, "calcdoc: no PDF written: %v; the HTML package is in %s\n", err, target)
+		return exitUsage
+	case err != nil:
+		fmt.Fprintf(c.stderr, "calcdoc: no PDF written: %v; %s and %s are left as they were\n", err, target, pdfPath)
+		return exitError
+	}
+	if err := pair.Commit(); err != nil {
+		fmt.Fprintf(c.stderr, "calcdoc: cannot put %s and %s in place: %v\n", target, pdfPath, err)
+		return exitError
+	}
+	return exitOK
+}
+
+// printPackage prints the package's HTML file htmlPath to pdfPath. Where
 // pdftotext can read the PDF back, it finds the page on which each sheet
 // starts, writes the package again with those pages in its contents and
 // prints it once more (the contents keep room for the numbers, so no page
 // moves); otherwise the contents go without page numbers, and it says so.
-func (c *cli) printPackage(info pack.Info, sheets []pack.Sheet, target, pdfPath string) error {
-	ctx := context.Background()
-	if err := printPDF(ctx, target, pdfPath); err != nil {
+// shownPDF is the PDF's name in messages.
+func (c *cli) printPackage(ctx context.Context, info pack.Info, sheets []pack.Sheet, htmlPath, pdfPath, shownPDF string) error {
+	if err := printPDF(ctx, htmlPath, pdfPath); err != nil {
 		return err
 	}
 	pages, err := readPDF(ctx, pdfPath)
 	if err != nil {
+		if ctx.Err() != nil {
+			return ctx.Err()
+		}
 		fmt.Fprintf(c.stderr, "calcdoc: note: the contents have no page numbers: %v\n", err)
 		return nil
 	}
@@ -245,18 +297,18 @@ func (c *cli) printPackage(info pack.Info, sheets []pack.Sheet, target, pdfPath 
 	if err != nil {
 		return err
 	}
-	if err := build.WriteFileAtomic(target, page); err != nil {
-		return fmt.Errorf("cannot write %s: %v", target, err)
+	if err := os.WriteFile(htmlPath, page, 0o600); err != nil {
+		return fmt.Errorf("cannot write %s: %v", htmlPath, err)
 	}
-	if err := printPDF(ctx, target, pdfPath); err != nil {
+	if err := printPDF(ctx, htmlPath, pdfPath); err != nil {
 		return err
 	}
 	if pages, err := readPDF(ctx, pdfPath); err == nil {
 		if again, ok := pack.SheetStartPages(pages, len(sheets)); !ok || !slices.Equal(again, starts) {
-			fmt.Fprintf(c.stderr, "calcdoc: warning: the sheets moved when the contents got their page numbers: check the contents of %s\n", pdfPath)
+			fmt.Fprintf(c.stderr, "calcdoc: warning: the sheets moved when the contents got their page numbers: check the contents of %s\n", shownPDF)
 		}
 	}
-	return nil
+	return ctx.Err()
 }
 
 // pick returns the first of the values that is not "".

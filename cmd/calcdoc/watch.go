@@ -7,6 +7,7 @@ import (
 	"net"
 	"os"
 	"os/signal"
+	"strings"
 	"syscall"
 
 	"calcdoc/cmd/internal/preview"
@@ -23,6 +24,8 @@ func (c *cli) watch(args []string) int {
 	fs := c.flagSet("watch")
 	addr := fs.String("addr", preview.DefaultAddr, "HOST:PORT to serve the preview on; an address other than loopback shows the sheets to the network")
 	out := fs.String("o", "", "also write each sheet on every save: into this folder, or into this .html file for one document")
+	var allow hostList
+	fs.Var(&allow, "allow-host", "a host name (or address) requests may name besides localhost and the loopback addresses; repeat for more (the --addr host is allowed when it is not loopback)")
 	paths, err := parseFlags(fs, args)
 	if err != nil {
 		return exitUsage
@@ -39,13 +42,17 @@ func (c *cli) watch(args []string) int {
 		return exitError
 	}
 	public := !preview.IsLoopback(ln.Addr())
+	if public {
+		host, _, _ := net.SplitHostPort(*addr)
+		allow = append(allow, host)
+	}
 	w, err := preview.New(preview.Config{
-		Paths:   paths,
-		Out:     *out,
-		Version: version,
-		Built:   sheetOptions,
-		Log:     c.stdout,
-		AnyHost: public,
+		Paths:      paths,
+		Out:        *out,
+		Version:    version,
+		Built:      sheetOptions,
+		Log:        c.stdout,
+		AllowHosts: allow,
 	})
 	if err != nil {
 		ln.Close()
@@ -57,7 +64,9 @@ func (c *cli) watch(args []string) int {
 		return exitError
 	}
 	if public {
-		fmt.Fprintf(c.stderr, "calcdoc: warning: %s is not a loopback address: anyone who can reach this machine on the network can read these sheets\n", ln.Addr())
+		fmt.Fprintf(c.stderr, "calcdoc: warning: %s is not a loopback address: anyone who can reach this machine on the network can read these sheets. "+
+			"Requests are answered only for localhost, the loopback addresses and %s, so that a web page cannot read the sheets by pointing a name of its own at this machine (DNS rebinding); "+
+			"give the name others use to reach it with --allow-host NAME\n", ln.Addr(), strings.Join(allow, ", "))
 	}
 	fmt.Fprintf(c.stdout, "serving the preview at http://%s/ (stop with Ctrl-C)\n", ln.Addr())
 	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
@@ -68,4 +77,18 @@ func (c *cli) watch(args []string) int {
 	}
 	fmt.Fprintln(c.stdout, "stopped")
 	return exitOK
+}
+
+// hostList is a repeatable flag of host names.
+type hostList []string
+
+func (h *hostList) String() string { return strings.Join(*h, ",") }
+
+func (h *hostList) Set(v string) error {
+	v = strings.TrimSpace(v)
+	if v == "" || strings.ContainsAny(v, "/ \t") {
+		return fmt.Errorf("give a host name or address, such as sheets.example or 192.168.1.20, not %q", v)
+	}
+	*h = append(*h, v)
+	return nil
 }

@@ -37,11 +37,23 @@ const TextTimeout = time.Minute
 // executable regular file; a bare name is looked up in PATH.
 var chromiumCandidates = []string{"/usr/bin/chromium", "chromium", "chromium-browser", "google-chrome"}
 
-// FindChromium returns the path of the Chromium to print with: Debian's
-// /usr/bin/chromium if it is there, else the first of chromium,
-// chromium-browser and google-chrome found in PATH. When none is found the
-// error is ErrNoChromium.
+// ChromiumEnv names the environment variable that, when set, gives the
+// browser to print with (an absolute path to an executable), before the
+// usual places: for a browser installed elsewhere, and for the tests,
+// which print with a stand-in.
+const ChromiumEnv = "CALCDOC_CHROMIUM"
+
+// FindChromium returns the path of the Chromium to print with: the one
+// named by $CALCDOC_CHROMIUM if set, else Debian's /usr/bin/chromium if it
+// is there, else the first of chromium, chromium-browser and google-chrome
+// found in PATH. When none is found the error is ErrNoChromium.
 func FindChromium() (string, error) {
+	if p := os.Getenv(ChromiumEnv); p != "" {
+		if !filepath.IsAbs(p) {
+			return "", fmt.Errorf("%s=%s: give an absolute path to the browser", ChromiumEnv, p)
+		}
+		return findExecutable([]string{p}, fmt.Errorf("%s=%s is not an executable file: %w", ChromiumEnv, p, ErrNoChromium))
+	}
 	return findExecutable(chromiumCandidates, ErrNoChromium)
 }
 

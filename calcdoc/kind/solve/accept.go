@@ -75,6 +75,9 @@ func (r *solveRun) solveSet() bool {
 	if linear {
 		set.Linear, set.lin, set.MaxDeviation = true, lin, lin.MaxDeviation
 		set.ComplexLU = lin.ComplexLinear()
+		if !r.denseWork(1) { // the work budget (solvework.go)
+			return false
+		}
 		xs, cond, err := numeric.SolveLinear(lin)
 		set.Cond = cond
 		if err != nil {
@@ -83,6 +86,9 @@ func (r *solveRun) solveSet() bool {
 		x = xs
 	} else {
 		nr, err := numeric.Newton(p, numeric.Options{})
+		if !r.newtonWork(newtonIterations(nr, err)) { // the work budget (solvework.go)
+			return false
+		}
 		if err != nil {
 			return r.coreFailed(err)
 		}
@@ -112,6 +118,9 @@ func (r *solveRun) solveSet() bool {
 		// difference step is as large as the distance to the root, and
 		// the derivative it gives stalls the iteration
 		nr, err := numeric.Newton(r.problem(x, q), numeric.Options{Central: true})
+		if !r.newtonWork(newtonIterations(nr, err)) { // the work budget (solvework.go)
+			return false
+		}
 		if err != nil {
 			if round == 0 {
 				return r.coreFailed(err)
@@ -454,7 +463,7 @@ func (r *solveRun) termSize(i int) float64 {
 	eq := r.eqs[i].Eq
 	t := 0.0
 	for _, n := range terms(eq.RHS, terms(eq.LHS, nil)) {
-		v, err := r.env.EvalWith(n, r.loc, nil)
+		v, err := r.env.EvalKeyed(n, r.loc, nil)
 		s, isS := v.(*expr.Scalar)
 		if err != nil || !isS || !s.IsFinite() {
 			return 0

@@ -207,7 +207,10 @@ func (r *solveRun) coreFailed(err error) bool {
 			return false
 		}
 		var xe *expr.Error
-		if errors.As(ee.Err, &xe) {
+		if errors.As(ee.Err, &xe) && r.env.Budget.Owns(xe) { // the work budget is spent: said as it is
+			r.set.SetErrs = append(r.set.SetErrs, xe)
+			r.b.Errors = append(r.b.Errors, xe)
+		} else if errors.As(ee.Err, &xe) {
 			r.setErr(xe.Pos, "the equations cannot be evaluated at %s: %s; give the unknowns starting values with near", r.pointWords(ee.X), xe.Msg)
 		} else {
 			r.setErr(r.setPos(), "the equations cannot be evaluated at %s: %v", r.pointWords(ee.X), ee.Err)

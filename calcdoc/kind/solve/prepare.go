@@ -390,7 +390,7 @@ func (r *solveRun) residualScales(generic []float64) {
 	for i, eq := range r.eqs {
 		q := 0.0
 		for _, t := range terms(eq.Eq.RHS, terms(eq.Eq.LHS, nil)) {
-			v, err := r.env.EvalWith(t, r.loc, nil)
+			v, err := r.env.EvalKeyed(t, r.loc, nil)
 			if s, isS := v.(*expr.Scalar); err == nil && isS && s.IsFinite() {
 				q = math.Max(q, cmplx.Abs(s.Z))
 			}

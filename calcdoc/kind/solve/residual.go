@@ -24,7 +24,7 @@ func (r *solveRun) setX(x []float64) {
 func (r *solveRun) sides(i int) (l, rr expr.Scalar, err error) {
 	eq := r.eqs[i].Eq
 	side := func(n expr.Node, what string) (expr.Scalar, error) {
-		v, err := r.env.EvalWith(n, r.loc, nil)
+		v, err := r.env.EvalKeyed(n, r.loc, nil)
 		if err != nil {
 			return expr.Scalar{}, err
 		}

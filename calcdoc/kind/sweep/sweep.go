@@ -219,7 +219,7 @@ func evalSweep(b *calcdoc.Block) {
 	if onlyNotes && len(errs) == 0 {
 		b.Errorf(b.InfoPos, "the sweep block has no line to evaluate: write one expression or assignment a line, e.g. Z = R + j*2*pi*%s*L", sw.Var)
 	}
-	if headerOK {
+	if headerOK && sweepWork(b, sw) { // the work budget (sweepwork.go)
 		runSweep(b, sw)
 	}
 	for _, l := range sw.Lines {
@@ -596,7 +596,7 @@ func runSweep(b *calcdoc.Block, sw *Sweep) {
 				l.Gaps++
 				continue
 			}
-			v, err := env.EvalWith(l.X, locals, nil)
+			v, err := env.EvalKeyed(l.X, locals, nil)
 			var s *expr.Scalar
 			if err == nil {
 				var ok bool

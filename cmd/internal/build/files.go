@@ -92,7 +92,9 @@ func Collect(paths []string, reg *calcdoc.Registry) ([]Input, error) {
 // flushes it to the disk and renames it into place, so that a reader sees
 // the old file or the new one, never a part. On any error (a full disk
 // makes Write, Sync or Close fail with ENOSPC) the temporary file is
-// removed and the old file is left as it was.
+// removed and the old file is left as it was. Temporary files that
+// earlier, interrupted writes of path left are removed first
+// (RemoveStale).
 func WriteFileAtomic(path string, data []byte) error {
 	return WriteFileAtomicWith(path, data, createTemp)
 }
@@ -108,7 +110,8 @@ type TempFile interface {
 // WriteFileAtomicWith is WriteFileAtomic with the temporary file made by
 // create (os.CreateTemp; tests pass one whose disk fills up).
 func WriteFileAtomicWith(path string, data []byte, create func(dir, pattern string) (TempFile, error)) error {
-	tmp, err := create(filepath.Dir(path), "."+filepath.Base(path)+".tmp-*")
+	RemoveStale(path)
+	tmp, err := create(filepath.Dir(path), tempPattern(path))
 	if err != nil {
 		return err
 	}

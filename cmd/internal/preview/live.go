@@ -78,9 +78,10 @@ const liveScript = `(function () {
 })();`
 
 // liveStyle styles the disconnection notice; it is never printed.
-const liveStyle = `.calcdoc-live-off { position: sticky; top: 0; z-index: 9; background: #fff; border: 1.5pt solid #111;
+const liveStyle = `.calcdoc-live-off, .calcdoc-pending { position: sticky; top: 0; z-index: 9; background: #fff; border: 1.5pt solid #111;
   padding: 3pt 6pt; margin: 0 0 3mm; font-weight: bold; }
-@media print { .calcdoc-live-off { display: none; } }`
+.calcdoc-pending { border-style: dashed; }
+@media print { .calcdoc-live-off, .calcdoc-pending { display: none; } }`
 
 // csp is the Content-Security-Policy of every page served: nothing from
 // elsewhere, inline styles, the live script by its SHA-256 (CSP Level 3,

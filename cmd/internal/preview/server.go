@@ -40,8 +40,8 @@ const pingEvery = 25 * time.Second
 // Everything is served from memory: no request reads a file, so no path
 // can reach one. Any other path, and every path with an empty, "." or ".."
 // segment, a backslash or a NUL, gets 404. Only GET and HEAD are answered
-// (others get 405); nothing writes. Unless AnyHost is set, a request whose
-// Host is not localhost or a loopback address gets 403.
+// (others get 405); nothing writes. A request whose Host is not
+// localhost, a loopback address or one of Config.AllowHosts gets 403.
 func (w *Watcher) Handler() http.Handler { return http.HandlerFunc(w.serveHTTP) }
 
 func (w *Watcher) serveHTTP(rw http.ResponseWriter, r *http.Request) {
@@ -54,8 +54,8 @@ func (w *Watcher) serveHTTP(rw http.ResponseWriter, r *http.Request) {
 		http.Error(rw, "405 method not allowed: the preview only answers GET and HEAD", http.StatusMethodNotAllowed)
 		return
 	}
-	if !w.cfg.AnyHost && !loopbackHost(r.Host) {
-		http.Error(rw, "403 forbidden: the preview answers only requests for localhost or a loopback address", http.StatusForbidden)
+	if !loopbackHost(r.Host) && !allowedHost(r.Host, w.cfg.AllowHosts) {
+		http.Error(rw, "403 forbidden: the preview answers only requests for localhost, a loopback address or a name given with --allow-host", http.StatusForbidden)
 		return
 	}
 	switch p := r.URL.Path; p {
@@ -102,6 +102,35 @@ func loopbackHost(host string) bool {
 	return ip != nil && ip.IsLoopback()
 }
 
+// hostOnly is the host of a Host header, without its port and brackets.
+func hostOnly(host string) string {
+	if h, _, err := net.SplitHostPort(host); err == nil {
+		host = h
+	}
+	return strings.TrimSuffix(strings.TrimPrefix(host, "["), "]")
+}
+
+// allowedHost reports whether a Host header names one of allow (compared
+// without port and brackets, names without regard to case, addresses by
+// value).
+func allowedHost(host string, allow []string) bool {
+	h := hostOnly(host)
+	if h == "" {
+		return false
+	}
+	ip := net.ParseIP(h)
+	for _, a := range allow {
+		a = hostOnly(a)
+		if strings.EqualFold(strings.TrimSuffix(a, "."), strings.TrimSuffix(h, ".")) {
+			return true
+		}
+		if aip := net.ParseIP(a); ip != nil && aip != nil && aip.Equal(ip) {
+			return true
+		}
+	}
+	return false
+}
+
 // IsLoopback reports whether a listener's address is on the loopback
 // interface only.
 func IsLoopback(a net.Addr) bool {
@@ -127,7 +156,12 @@ func writeHTML(rw http.ResponseWriter, status int, body []byte) {
 func (w *Watcher) serveDoc(rw http.ResponseWriter, key string) {
 	w.mu.RLock()
 	p := w.docs[key]
+	since, busy := w.evaluating(key)
 	w.mu.RUnlock()
+	if p != nil && busy {
+		writeHTML(rw, p.status, withBanner(p.body, p.version, since))
+		return
+	}
 	if p == nil {
 		// The page waits for the document to appear (deleted, then
 		// written again).
@@ -186,8 +220,12 @@ func (p *page) stateText() string {
 func (w *Watcher) serveListing(rw http.ResponseWriter) {
 	w.mu.RLock()
 	pages := make([]*page, 0, len(w.docs))
+	busy := map[string]time.Time{}
 	for _, p := range w.docs {
 		pages = append(pages, p)
+		if since, ok := w.evaluating(p.key); ok {
+			busy[p.key] = since
+		}
 	}
 	version := w.listVer
 	w.mu.RUnlock()
@@ -212,8 +250,12 @@ func (w *Watcher) serveListing(rw http.ResponseWriter) {
 			"<th>Not satisfied</th><th>Errors</th><th>Evaluated</th></tr></thead>\n<tbody>\n")
 		for _, p := range pages {
 			u := (&url.URL{Path: "/" + p.key}).EscapedPath()
+			state := p.stateText()
+			if since, ok := busy[p.key]; ok {
+				state = "evaluating a newer save (" + since.Format("15:04:05") + "); shown: " + state
+			}
 			fmt.Fprintf(&b, "<tr><td><a href=\"%s\">%s</a></td><td>%s</td>", html.EscapeString(u),
-				html.EscapeString(p.display), html.EscapeString(p.stateText()))
+				html.EscapeString(p.display), html.EscapeString(state))
 			if p.state == stUnreadable {
 				b.WriteString("<td></td><td></td><td></td><td></td>")
 			} else {
@@ -256,6 +298,9 @@ func (w *Watcher) version(key string) string {
 		return w.listVer
 	}
 	if p := w.docs[key]; p != nil {
+		if _, busy := w.evaluating(key); busy {
+			return pendingVersion(p.version)
+		}
 		return p.version
 	}
 	return absentVersion

@@ -134,31 +134,38 @@ func TestMethods(t *testing.T) {
 	}
 }
 
-// TestHost: on loopback only requests naming this machine are answered
-// (a page elsewhere cannot read the sheets by pointing a name at
-// 127.0.0.1); AnyHost answers every name.
+// TestHost: only requests naming this machine by a loopback name or
+// address, or by a name in AllowHosts, are answered (a page elsewhere
+// cannot read the sheets by pointing a name at this machine: DNS
+// rebinding), whatever address the preview is bound to.
 func TestHost(t *testing.T) {
 	dir := t.TempDir()
 	write(t, filepath.Join(dir, "a.md"), docSrc(1))
 	cases := []struct {
-		name    string
-		anyHost bool
-		host    string
-		status  int
+		name   string
+		allow  []string
+		host   string
+		status int
 	}{
-		{"the address", false, "", 200},
-		{"localhost", false, "localhost:8080", 200},
-		{"LOCALHOST", false, "LOCALHOST", 200},
-		{"IPv6 loopback", false, "[::1]:8080", 200},
-		{"another loopback address", false, "127.0.0.2", 200},
-		{"another name", false, "sheets.example:8080", 403},
-		{"a name ending in localhost", false, "evil-localhost", 403},
-		{"a private address", false, "192.168.1.20:8080", 403},
-		{"another name, any host", true, "sheets.example:8080", 200},
+		{"the address", nil, "", 200},
+		{"localhost", nil, "localhost:8080", 200},
+		{"LOCALHOST", nil, "LOCALHOST", 200},
+		{"IPv6 loopback", nil, "[::1]:8080", 200},
+		{"another loopback address", nil, "127.0.0.2", 200},
+		{"another name", nil, "sheets.example:8080", 403},
+		{"a name ending in localhost", nil, "evil-localhost", 403},
+		{"a private address", nil, "192.168.1.20:8080", 403},
+		{"an allowed name", []string{"sheets.example"}, "sheets.example:8080", 200},
+		{"an allowed name, other case, final dot", []string{"sheets.example"}, "Sheets.Example.", 200},
+		{"an allowed address", []string{"192.168.1.20"}, "192.168.1.20:8080", 200},
+		{"an allowed IPv6 address", []string{"[fd00::20]"}, "[fd00::20]:8080", 200},
+		{"a name not allowed beside an allowed one", []string{"sheets.example"}, "rebind.example", 403},
+		{"a name that contains an allowed one", []string{"sheets.example"}, "sheets.example.evil", 403},
+		{"loopback still answered with an allow list", []string{"0.0.0.0"}, "127.0.0.1:8080", 200},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
-			h := start(t, Config{Paths: []string{dir}, AnyHost: c.anyHost})
+			h := start(t, Config{Paths: []string{dir}, AllowHosts: c.allow})
 			st, body, _ := h.raw("GET", "/a.html", c.host)
 			if st != c.status {
 				t.Errorf("Host %q: status %d, want %d", c.host, st, c.status)
@@ -230,6 +237,17 @@ func next(t *testing.T, ch <-chan string, what string) string {
 	return ""
 }
 
+// settled returns the next change event that is not the one that puts up
+// the banner of a save being evaluated (eval.go).
+func settled(t *testing.T, ch <-chan string, what string) string {
+	t.Helper()
+	for {
+		if v := next(t, ch, what); !strings.HasSuffix(v, "-evaluating") {
+			return v
+		}
+	}
+}
+
 // TestEvents: a stream tells a page that its document changed, at once if
 // it changed before the stream was opened.
 func TestEvents(t *testing.T) {
@@ -252,7 +270,7 @@ func TestEvents(t *testing.T) {
 	case <-time.After(3 * MaxDelay):
 	}
 	saveRenameOver(t, p, docSrc(2))
-	v2 := next(t, ch, "after the save")
+	v2 := settled(t, ch, "after the save")
 	_, body = h.get("/a.html")
 	if got, _ := pageVersion(t, body); got != v2 || v2 == v1 {
 		t.Errorf("the event said %s, the page is %s (was %s)", v2, got, v1)
@@ -264,7 +282,7 @@ func TestEvents(t *testing.T) {
 	// A page that missed a save hears of it as soon as it connects.
 	late, stopLate := h.stream("/a.html", v1)
 	defer stopLate()
-	if v := next(t, late, "a stream opened with an old version"); v != v2 {
+	if v := settled(t, late, "a stream opened with an old version"); v != v2 {
 		t.Errorf("the late stream says %s, want %s", v, v2)
 	}
 

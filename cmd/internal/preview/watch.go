@@ -20,7 +20,6 @@
 package preview
 
 import (
-	"bytes"
 	"context"
 	"errors"
 	"fmt"
@@ -32,10 +31,10 @@ import (
 	"strconv"
 	"strings"
 	"sync"
+	"sync/atomic"
 	"time"
 
 	"calcdoc/calcdoc"
-	blockkind "calcdoc/calcdoc/kind"
 	"calcdoc/cmd/internal/build"
 
 	"github.com/fsnotify/fsnotify"
@@ -82,12 +81,13 @@ type Config struct {
 	Built func(doc *calcdoc.Document) build.Options
 	// Log receives one line per rebuild; nil discards them.
 	Log io.Writer
-	// AnyHost accepts requests whatever host name they give. Leave it
-	// false when serving on loopback: then only requests for localhost or
-	// a loopback address are answered, which keeps a web page from reading
-	// the sheets through a host name that it points at 127.0.0.1 (DNS
-	// rebinding).
-	AnyHost bool
+	// AllowHosts are the host names (or addresses) a request may name in
+	// its Host header besides localhost and the loopback addresses, which
+	// are always answered: the bound address when it is not loopback, and
+	// each --allow-host. Any other name gets 403, which keeps a web page
+	// from reading the sheets through a host name that it points at this
+	// machine (DNS rebinding), on loopback and on the network alike.
+	AllowHosts []string
 }
 
 // ConfigError is a bad Config: a missing PATH, a file that is not .md, an
@@ -124,14 +124,16 @@ type Watcher struct {
 	newDirs  map[string]bool            // folders to start watching at the next rebuild
 	shadow   map[string]map[string]bool // address → files kept from it by another file
 	shadowed bool                       // shadow changed since the last publish
-	seq      int64
+	seq      atomic.Int64               // the last version number given
 
 	mu         sync.RWMutex
-	docs       map[string]*page    // by address (the path after "/")
-	shadowList map[string][]string // a copy of shadow, for the listing
-	listVer    string              // version of the listing
-	tick       chan struct{}       // closed and replaced on every change
-	done       chan struct{}       // closed by Close
+	docs       map[string]*page      // by address (the path after "/")
+	evals      map[string]*evalState // by address: a document being evaluated
+	workers    sync.WaitGroup        // the evaluation workers running
+	shadowList map[string][]string   // a copy of shadow, for the listing
+	listVer    string                // version of the listing
+	tick       chan struct{}         // closed and replaced on every change
+	done       chan struct{}         // closed by Close
 	once       sync.Once
 }
 
@@ -179,6 +181,7 @@ func New(cfg Config) (*Watcher, error) {
 		newDirs: map[string]bool{},
 		shadow:  map[string]map[string]bool{},
 		docs:    map[string]*page{},
+		evals:   map[string]*evalState{},
 		tick:    make(chan struct{}),
 		done:    make(chan struct{}),
 	}
@@ -240,6 +243,7 @@ func New(cfg Config) (*Watcher, error) {
 		r.lost = !w.watched[r.dir] // gone meanwhile, or cannot be watched: tried again every Retry
 	}
 	w.flush()
+	w.workers.Wait() // the first evaluation of every document is done
 	return w, nil
 }
 
@@ -250,6 +254,7 @@ func (w *Watcher) Close() error {
 	w.once.Do(func() {
 		close(w.done)
 		err = w.fsw.Close()
+		w.workers.Wait()
 	})
 	return err
 }
@@ -596,6 +601,10 @@ func (w *Watcher) rebuild(file string) bool {
 	}
 	w.mu.RLock()
 	cur := w.docs[key]
+	if st := w.evals[key]; cur == nil && st != nil && !st.dropped {
+		// its first evaluation is running: the address is that file's
+		cur = &page{key: key, file: st.file, display: st.display}
+	}
 	w.mu.RUnlock()
 	start := time.Now()
 	src, kind, why := w.read(r, file)
@@ -637,6 +646,7 @@ func (w *Watcher) rebuild(file string) bool {
 		}
 		w.mu.Lock()
 		delete(w.docs, key)
+		w.dropEval(key)
 		w.mu.Unlock()
 		w.logf("%s: %s; no longer served", display, why)
 		w.promote(key)
@@ -650,42 +660,19 @@ func (w *Watcher) rebuild(file string) bool {
 		p.body = problemPage(key, p.version, "Cannot read "+display,
 			"calcdoc watch cannot read this document's file, so there is no current sheet to show: "+why+".")
 		p.took = time.Since(start)
-		w.store(p)
+		w.mu.Lock()
+		w.dropEval(key)
+		w.docs[key] = p
+		w.mu.Unlock()
 		w.logf("%s: cannot be read: %s", display, why)
 		return true
 	}
-	if cur != nil && cur.src != nil && bytes.Equal(cur.src, src) {
+	if w.sameAsLatest(key, cur, src) {
 		return false // saved without a change
 	}
-	doc := calcdoc.Parse(display, src, blockkind.Standard())
-	p := &page{key: key, file: file, display: display, src: src, status: 200, version: w.nextVersion(), at: start,
-		values: len(doc.Values), checks: len(doc.Checks), failed: doc.FailedChecks(),
-		errors: len(doc.Errors), warning: len(doc.Warnings)}
-	switch {
-	case p.errors > 0:
-		p.state = stErrors
-	case p.failed > 0:
-		p.state = stFail
-	}
-	body, err := build.Sheet(doc, build.Options{Version: w.cfg.Version, HeadExtra: liveHead("/"+key, p.version)})
-	if err != nil {
-		p.state, p.problem, p.status = stUndrawn, err.Error(), 500
-		body = problemPage(key, p.version, "Cannot draw "+display,
-			"The document was evaluated, but its sheet could not be drawn: "+err.Error()+".")
-	}
-	p.body = body
-	p.took = time.Since(start)
-	w.store(p)
-	line := fmt.Sprintf("%s: evaluated in %s; %d of %d checks not satisfied, %d error%s",
-		display, ms(p.took), p.failed, p.checks, p.errors, plural(p.errors))
-	if p.warning > 0 {
-		line += fmt.Sprintf(", %d warning%s", p.warning, plural(p.warning))
-	}
-	if p.state == stUndrawn {
-		line += "; cannot draw the sheet: " + p.problem
-	}
-	line += w.writeOut(doc, file, rel)
-	w.logf("%s", line)
+	// evaluated on the document's own worker, so that a slow document
+	// never holds the others back (eval.go)
+	w.startEval(&evalJob{key: key, file: file, rel: rel, display: display, src: src, at: start})
 	return true
 }
 
@@ -741,19 +728,11 @@ type tempFile = build.TempFile
 var createTemp = func(dir, pattern string) (tempFile, error) { return os.CreateTemp(dir, pattern) }
 
 func (w *Watcher) nextVersion() string {
-	w.seq++
-	return w.boot + "-" + strconv.FormatInt(w.seq, 10)
-}
-
-func (w *Watcher) store(p *page) {
-	w.mu.Lock()
-	w.docs[p.key] = p
-	w.mu.Unlock()
+	return w.boot + "-" + strconv.FormatInt(w.seq.Add(1), 10)
 }
 
 // publish makes a new listing version and wakes every event stream.
 func (w *Watcher) publish() {
-	v := w.nextVersion()
 	list := map[string][]string{}
 	for key, fs := range w.shadow {
 		list[key] = sortedKeys(fs)
@@ -761,10 +740,16 @@ func (w *Watcher) publish() {
 	w.shadowed = false
 	w.mu.Lock()
 	w.shadowList = list
-	w.listVer = v
+	w.wakeLocked()
+	w.mu.Unlock()
+}
+
+// wakeLocked makes a new listing version and wakes every event stream;
+// w.mu is held.
+func (w *Watcher) wakeLocked() {
+	w.listVer = w.nextVersion()
 	close(w.tick)
 	w.tick = make(chan struct{})
-	w.mu.Unlock()
 }
 
 func (w *Watcher) logf(format string, args ...any) {
