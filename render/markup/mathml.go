@@ -9,18 +9,11 @@ import (
 	"calcdoc/expr"
 )
 
-// greek maps spelled Greek names to their letters.
-var greek = map[string]string{
-	"alpha": "α", "beta": "β", "gamma": "γ", "delta": "δ", "epsilon": "ε", "zeta": "ζ",
-	"eta": "η", "theta": "θ", "iota": "ι", "kappa": "κ", "lambda": "λ", "mu": "μ",
-	"nu": "ν", "xi": "ξ", "pi": "π", "rho": "ρ", "sigma": "σ", "tau": "τ",
-	"upsilon": "υ", "phi": "φ", "chi": "χ", "psi": "ψ", "omega": "ω",
-	"Gamma": "Γ", "Delta": "Δ", "Theta": "Θ", "Lambda": "Λ", "Xi": "Ξ", "Pi": "Π",
-	"Sigma": "Σ", "Phi": "Φ", "Psi": "Ψ", "Omega": "Ω",
-}
-
+// GreekOf returns the letter of a spelled Greek name ("phi": "φ"), or s
+// itself: the engine's table (expr.GreekLetter), by which names are also
+// compared, so the sheet and the comparison cannot disagree.
 func GreekOf(s string) string {
-	if g, ok := greek[s]; ok {
+	if g, ok := expr.GreekLetter(s); ok {
 		return g
 	}
 	return s
