@@ -432,3 +432,35 @@ func TestStateString(t *testing.T) {
 		})
 	}
 }
+
+// TestRelInTree: the path handed to git is relative to the work tree and
+// written with "/" on every system (git names tree entries with "/"); a
+// file outside the tree, or the tree itself, has none. The inputs are
+// joined with this system's separator, so the test checks the conversion
+// on Windows as on Linux.
+func TestRelInTree(t *testing.T) {
+	top := filepath.Join(t.TempDir(), "repo")
+	for _, tc := range []struct {
+		file string
+		want string // "" for not in the tree
+	}{
+		{filepath.Join(top, "a.md"), "a.md"},
+		{filepath.Join(top, "calc", "sub", "a.md"), "calc/sub/a.md"},
+		{filepath.Join(top, "..x.md"), "..x.md"}, // a name that begins with two dots is in the tree
+		{filepath.Join(top, "..", "other", "a.md"), ""},
+		{top, ""},
+		{filepath.Dir(top), ""},
+	} {
+		got, ok := relInTree(top, tc.file)
+		if ok != (tc.want != "") || got != tc.want {
+			t.Errorf("relInTree(%q, %q) = %q, %v; want %q", top, tc.file, got, ok, tc.want)
+		}
+	}
+	if runtime.GOOS == "windows" {
+		// Git for Windows prints the top folder with "/": C:/Users/...
+		got, ok := relInTree(filepath.ToSlash(top), filepath.Join(top, "sub", "a.md"))
+		if !ok || got != "sub/a.md" {
+			t.Errorf("with a /-written top folder: %q, %v", got, ok)
+		}
+	}
+}
