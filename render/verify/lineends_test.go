@@ -123,3 +123,23 @@ func clip(s string) string {
 	}
 	return s
 }
+
+// TestSourceCandidates: a sheet records its source path as it was given
+// on the system that built it; on a system whose separator is "/", a path
+// written with Windows' "\" is also looked for with "/".
+func TestSourceCandidates(t *testing.T) {
+	sheet := filepath.Join("out", "a.html")
+	got := sourceCandidates(`calc\a.md`, sheet, '/')
+	want := []string{`calc\a.md`, filepath.Join("out", `calc\a.md`), filepath.Join("out", filepath.Base(`calc\a.md`)),
+		"calc/a.md", filepath.Join("out", "calc", "a.md"), filepath.Join("out", "a.md")}
+	if fmt.Sprint(got) != fmt.Sprint(want) {
+		t.Errorf("separator /:\n got %q\nwant %q", got, want)
+	}
+	// Where "\" is the separator (Windows), the recorded path is tried as it is.
+	if got := sourceCandidates(`calc\a.md`, "", '\\'); len(got) != 1 || got[0] != `calc\a.md` {
+		t.Errorf("separator \\: %q", got)
+	}
+	if got := sourceCandidates("calc/a.md", "", '/'); len(got) != 1 {
+		t.Errorf("a /-written path gets no other spelling: %q", got)
+	}
+}
