@@ -7,6 +7,7 @@ import (
 	"os"
 	"os/exec"
 	"path/filepath"
+	"runtime"
 	"strings"
 	"testing"
 )
@@ -199,6 +200,9 @@ func TestBuildOutputs(t *testing.T) {
 func BenchmarkBuildProcess(b *testing.B) {
 	dir := b.TempDir()
 	bin := filepath.Join(dir, "calcdoc")
+	if runtime.GOOS == "windows" {
+		bin += ".exe" // exec finds a program by its extension there
+	}
 	if out, err := exec.Command("go", "build", "-o", bin, ".").CombinedOutput(); err != nil {
 		b.Fatalf("%v\n%s", err, out)
 	}

@@ -131,7 +131,7 @@ func TestPackageWithoutChromium(t *testing.T) {
 	if st != exitUsage || !printed {
 		t.Fatalf("status %d (want %d), printed %v\n%s%s", st, exitUsage, printed, out, errs)
 	}
-	if !strings.Contains(errs, "no PDF written: chromium is not installed") || !strings.Contains(errs, "the HTML package is in package.html") {
+	if !strings.Contains(errs, "no PDF written: "+pdf.ErrNoChromium.Error()) || !strings.Contains(errs, "the HTML package is in package.html") {
 		t.Errorf("stderr: %s", errs)
 	}
 	if _, err := os.Stat("package.html"); err != nil {

@@ -21,62 +21,11 @@ import (
 	"time"
 )
 
-// ErrNoChromium is returned when no Chromium executable is found.
-var ErrNoChromium = errors.New("chromium is not installed; on Debian: apt-get install chromium")
-
-// ErrNoPdftotext is returned when pdftotext is not found.
-var ErrNoPdftotext = errors.New("pdftotext is not installed; on Debian: apt-get install poppler-utils")
-
 // PrintTimeout bounds one Print; a caller's earlier deadline wins.
 const PrintTimeout = 2 * time.Minute
 
 // TextTimeout bounds one PDFText; a caller's earlier deadline wins.
 const TextTimeout = time.Minute
-
-// chromiumCandidates are tried in order: an absolute path must be an
-// executable regular file; a bare name is looked up in PATH.
-var chromiumCandidates = []string{"/usr/bin/chromium", "chromium", "chromium-browser", "google-chrome"}
-
-// ChromiumEnv names the environment variable that, when set, gives the
-// browser to print with (an absolute path to an executable), before the
-// usual places: for a browser installed elsewhere, and for the tests,
-// which print with a stand-in.
-const ChromiumEnv = "CALCDOC_CHROMIUM"
-
-// FindChromium returns the path of the Chromium to print with: the one
-// named by $CALCDOC_CHROMIUM if set, else Debian's /usr/bin/chromium if it
-// is there, else the first of chromium, chromium-browser and google-chrome
-// found in PATH. When none is found the error is ErrNoChromium.
-func FindChromium() (string, error) {
-	if p := os.Getenv(ChromiumEnv); p != "" {
-		if !filepath.IsAbs(p) {
-			return "", fmt.Errorf("%s=%s: give an absolute path to the browser", ChromiumEnv, p)
-		}
-		return findExecutable([]string{p}, fmt.Errorf("%s=%s is not an executable file: %w", ChromiumEnv, p, ErrNoChromium))
-	}
-	return findExecutable(chromiumCandidates, ErrNoChromium)
-}
-
-// FindPdftotext returns the path of pdftotext found in PATH, or
-// ErrNoPdftotext.
-func FindPdftotext() (string, error) {
-	return findExecutable([]string{"pdftotext"}, ErrNoPdftotext)
-}
-
-func findExecutable(candidates []string, missing error) (string, error) {
-	for _, c := range candidates {
-		if filepath.IsAbs(c) {
-			if fi, err := os.Stat(c); err == nil && fi.Mode().IsRegular() && fi.Mode().Perm()&0o111 != 0 {
-				return c, nil
-			}
-			continue
-		}
-		if p, err := exec.LookPath(c); err == nil {
-			return p, nil
-		}
-	}
-	return "", missing
-}
 
 // Print prints the HTML file htmlPath to the PDF file pdfPath with
 // headless Chromium, loading the page from its file:// URL so that its

@@ -59,11 +59,11 @@ func Check(st Stamp, src []byte, candidates ...string) GitCheck {
 		if t, err := filepath.EvalSymlinks(topDir); err == nil {
 			topDir = t
 		}
-		rel, err := filepath.Rel(topDir, file)
-		if err != nil || strings.HasPrefix(rel, "..") {
+		rel, ok := relInTree(topDir, file)
+		if !ok {
 			continue
 		}
-		c = GitCheck{Applies: true, Repo: topDir, Rel: filepath.ToSlash(rel)}
+		c = GitCheck{Applies: true, Repo: topDir, Rel: rel}
 		break
 	}
 	if !c.Applies {

@@ -104,13 +104,12 @@ func Of(path string, src []byte) Stamp {
 	if t, err := filepath.EvalSymlinks(topDir); err == nil {
 		topDir = t
 	}
-	rel, err := filepath.Rel(topDir, file)
-	if err != nil || rel == "." || rel == ".." || strings.HasPrefix(rel, ".."+string(filepath.Separator)) {
+	rel, ok := relInTree(topDir, file)
+	if !ok {
 		st.State = Unknown
 		st.Detail = fmt.Sprintf("git places the file outside its work tree %s; no commit recorded", topDir)
 		return st
 	}
-	rel = filepath.ToSlash(rel)
 
 	// The blob of the file at HEAD, if HEAD exists and holds the file.
 	headBlob, kind, err := g.headEntry(topDir, rel)
@@ -186,6 +185,19 @@ func unknown(st Stamp, err error) Stamp {
 	st.State = Unknown
 	st.Detail = fmt.Sprintf("git could not tell the source's commit (%v); no commit recorded", err)
 	return st
+}
+
+// relInTree returns the path of file relative to the work tree topDir as
+// git names it: with "/" as separator on every system (git's pathspecs and
+// tree entries use "/", Windows' "\" included); ok is false when file is
+// not below topDir. topDir may be written with "/" where the system uses
+// "\" (Git for Windows prints C:/...): filepath.Rel cleans both.
+func relInTree(topDir, file string) (rel string, ok bool) {
+	r, err := filepath.Rel(topDir, file)
+	if err != nil || r == "." || r == ".." || strings.HasPrefix(r, ".."+string(filepath.Separator)) || filepath.IsAbs(r) {
+		return "", false
+	}
+	return filepath.ToSlash(r), true
 }
 
 // short abbreviates a commit hash to 12 characters for Detail.

@@ -4,6 +4,7 @@ import (
 	"os"
 	"os/exec"
 	"path/filepath"
+	"runtime"
 	"strings"
 	"testing"
 	"time"
@@ -385,6 +386,9 @@ func fakeGit(t *testing.T, script string) {
 }
 
 func TestOfGitFails(t *testing.T) {
+	if runtime.GOOS == "windows" {
+		t.Skip("the stand-in git is a shell script, which Windows does not run as git.exe")
+	}
 	if _, err := exec.LookPath("sh"); err != nil {
 		t.Skip("no sh to run a stand-in git")
 	}
@@ -426,5 +430,37 @@ func TestStateString(t *testing.T) {
 				t.Errorf("String() = %q, want %q", got, tc.want)
 			}
 		})
+	}
+}
+
+// TestRelInTree: the path handed to git is relative to the work tree and
+// written with "/" on every system (git names tree entries with "/"); a
+// file outside the tree, or the tree itself, has none. The inputs are
+// joined with this system's separator, so the test checks the conversion
+// on Windows as on Linux.
+func TestRelInTree(t *testing.T) {
+	top := filepath.Join(t.TempDir(), "repo")
+	for _, tc := range []struct {
+		file string
+		want string // "" for not in the tree
+	}{
+		{filepath.Join(top, "a.md"), "a.md"},
+		{filepath.Join(top, "calc", "sub", "a.md"), "calc/sub/a.md"},
+		{filepath.Join(top, "..x.md"), "..x.md"}, // a name that begins with two dots is in the tree
+		{filepath.Join(top, "..", "other", "a.md"), ""},
+		{top, ""},
+		{filepath.Dir(top), ""},
+	} {
+		got, ok := relInTree(top, tc.file)
+		if ok != (tc.want != "") || got != tc.want {
+			t.Errorf("relInTree(%q, %q) = %q, %v; want %q", top, tc.file, got, ok, tc.want)
+		}
+	}
+	if runtime.GOOS == "windows" {
+		// Git for Windows prints the top folder with "/": C:/Users/...
+		got, ok := relInTree(filepath.ToSlash(top), filepath.Join(top, "sub", "a.md"))
+		if !ok || got != "sub/a.md" {
+			t.Errorf("with a /-written top folder: %q, %v", got, ok)
+		}
 	}
 }

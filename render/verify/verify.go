@@ -312,12 +312,30 @@ func (rec *sheetRecord) check(unit []byte, lineBase int, opt Options, rerender f
 // gitCheck holds the recorded stamp against git, looking for the source
 // at its recorded path from the current folder and from the sheet's.
 func (rec *sheetRecord) gitCheck(opt Options) *stamp.GitCheck {
-	cands := []string{rec.path}
-	if opt.SheetPath != "" && !filepath.IsAbs(rec.path) {
-		cands = append(cands, filepath.Join(filepath.Dir(opt.SheetPath), rec.path), filepath.Join(filepath.Dir(opt.SheetPath), filepath.Base(rec.path)))
-	}
-	c := stamp.Check(*rec.opt.Stamp, rec.source, cands...)
+	c := stamp.Check(*rec.opt.Stamp, rec.source, sourceCandidates(rec.path, opt.SheetPath, filepath.Separator)...)
 	return &c
+}
+
+// sourceCandidates are the paths at which verify looks for the source a
+// sheet records, on a system whose separator is sep: the recorded path
+// from the current folder, then from the sheet's folder, then its base
+// name in the sheet's folder. A path recorded on Windows (calc\a.md) is
+// also tried with "/" where "/" is the separator, so that a sheet built on
+// Windows can be checked on Linux or macOS; Windows reads "/" itself.
+func sourceCandidates(recorded, sheetPath string, sep byte) []string {
+	paths := []string{recorded}
+	if sep == '/' && strings.Contains(recorded, `\`) {
+		paths = append(paths, strings.ReplaceAll(recorded, `\`, "/"))
+	}
+	var cands []string
+	for _, p := range paths {
+		cands = append(cands, p)
+		if sheetPath != "" && !filepath.IsAbs(p) {
+			dir := filepath.Dir(sheetPath)
+			cands = append(cands, filepath.Join(dir, p), filepath.Join(dir, filepath.Base(p)))
+		}
+	}
+	return cands
 }
 
 // item is one result or check row of a page.

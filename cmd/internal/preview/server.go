@@ -9,6 +9,7 @@ import (
 	"net"
 	"net/http"
 	"net/url"
+	"path/filepath"
 	"sort"
 	"strings"
 	"time"
@@ -71,6 +72,19 @@ func (w *Watcher) serveHTTP(rw http.ResponseWriter, r *http.Request) {
 		}
 		w.serveDoc(rw, key)
 	}
+}
+
+// keyOf is the address of a document: its path relative to the PATH it
+// was found under, with .md replaced by .html and the system's separator
+// by "/" (a URL's), so that on Windows sub\a.md is served as sub/a.html.
+func keyOf(rel string) string { return keyWith(rel, filepath.Separator) }
+
+// keyWith is keyOf on a system whose path separator is sep.
+func keyWith(rel string, sep byte) string {
+	if sep != '/' {
+		rel = strings.ReplaceAll(rel, string(sep), "/")
+	}
+	return strings.TrimSuffix(rel, ".md") + ".html"
 }
 
 // docKey returns the address of a document path, or false when the path

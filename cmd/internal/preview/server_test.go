@@ -377,3 +377,32 @@ func TestIsLoopback(t *testing.T) {
 		})
 	}
 }
+
+// TestKeyWith: a document's address uses "/" whatever the system's
+// separator (a URL path's separator, RFC 3986 section 3.3), and an address
+// made on any system is one that docKey accepts.
+func TestKeyWith(t *testing.T) {
+	for _, tc := range []struct {
+		rel  string
+		sep  byte
+		want string
+	}{
+		{`sub\a.md`, '\\', "sub/a.html"},
+		{`a\b\c.md`, '\\', "a/b/c.html"},
+		{`top.md`, '\\', "top.html"},
+		{"sub/a.md", '/', "sub/a.html"},
+		{"top.md", '/', "top.html"},
+	} {
+		got := keyWith(tc.rel, tc.sep)
+		if got != tc.want {
+			t.Errorf("keyWith(%q, %q) = %q, want %q", tc.rel, tc.sep, got, tc.want)
+		}
+		if k, ok := docKey("/" + got); !ok || k != got {
+			t.Errorf("docKey refuses the address %q made from %q", got, tc.rel)
+		}
+	}
+	// On this system: a path joined with its own separator.
+	if got := keyOf(filepath.Join("sub", "deeper", "a.md")); got != "sub/deeper/a.html" {
+		t.Errorf("keyOf = %q, want sub/deeper/a.html", got)
+	}
+}

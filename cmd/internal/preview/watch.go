@@ -448,12 +448,6 @@ func (w *Watcher) claim(file string) (*root, string, bool) {
 	return nil, "", false
 }
 
-// keyOf is the address of a document: its relative path with .md
-// replaced by .html, with forward slashes.
-func keyOf(rel string) string {
-	return filepath.ToSlash(strings.TrimSuffix(rel, ".md")) + ".html"
-}
-
 func (w *Watcher) addWatch(dir string) {
 	if w.watched[dir] {
 		return
