@@ -14,7 +14,7 @@ import (
 // The rules checked here are the README's ("Commands"): without -o a
 // sheet NAME.html goes beside NAME.md; -o DIR keeps the paths relative to
 // the PATH given; -o FILE.html names the file; a folder PATH means every
-// .md below it that holds a calc or solve block, .git folders skipped
+// .md below it that holds an evaluated block, .git folders skipped
 // (node_modules too: the rule the command has always applied).
 
 func TestTarget(t *testing.T) {
@@ -23,6 +23,9 @@ func TestTarget(t *testing.T) {
 		{"site", filepath.Join("calc", "sub", "feeder.md"), filepath.Join("sub", "feeder.md"), filepath.Join("site", "sub", "feeder.html")},
 		{"one.html", filepath.Join("calc", "feeder.md"), "feeder.md", "one.html"},
 		{"ONE.HTML", "feeder.md", "feeder.md", "ONE.HTML"},
+		// a Windows editor may save the document as NAME.MD
+		{"", filepath.Join("calc", "FEEDER.MD"), "FEEDER.MD", filepath.Join("calc", "FEEDER.html")},
+		{"site", filepath.Join("calc", "Feeder.Md"), "Feeder.Md", filepath.Join("site", "Feeder.html")},
 	} {
 		if got := Target(c.out, c.file, c.rel); got != c.want {
 			t.Errorf("Target(%q, %q, %q) = %q, want %q", c.out, c.file, c.rel, got, c.want)

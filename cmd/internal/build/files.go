@@ -25,8 +25,9 @@ func SkipDir(name string) bool { return name == ".git" || name == "node_modules"
 // in the Markdown (Registry.HasBlock).
 func Holds(reg *calcdoc.Registry, src []byte) bool { return reg.HasBlock(src) }
 
-// IsMarkdown reports whether a file name is a document's (ends in .md).
-func IsMarkdown(name string) bool { return filepath.Ext(name) == ".md" }
+// IsMarkdown reports whether a file name is a document's: it ends in .md,
+// in any case (a Windows editor may save NAME.MD).
+func IsMarkdown(name string) bool { return strings.EqualFold(filepath.Ext(name), ".md") }
 
 // Input is one document to process and the path of the output relative to
 // the PATH it was found under.
@@ -169,11 +170,11 @@ func OutIsFile(out string) bool { return strings.HasSuffix(strings.ToLower(out),
 func Target(out, file, rel string) string {
 	switch {
 	case out == "":
-		return strings.TrimSuffix(file, ".md") + ".html"
+		return TrimExt(file) + ".html"
 	case OutIsFile(out):
 		return out
 	}
-	return filepath.Join(out, strings.TrimSuffix(rel, ".md")+".html")
+	return filepath.Join(out, TrimExt(rel)+".html")
 }
 
 // orList joins words as "a, b or c".
@@ -182,4 +183,12 @@ func orList(words []string) string {
 		return strings.Join(words, "")
 	}
 	return strings.Join(words[:len(words)-1], ", ") + " or " + words[len(words)-1]
+}
+
+// TrimExt drops a document's .md ending, in whatever case it is written.
+func TrimExt(p string) string {
+	if IsMarkdown(p) {
+		return p[:len(p)-len(".md")]
+	}
+	return p
 }

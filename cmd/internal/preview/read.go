@@ -62,7 +62,7 @@ func (w *Watcher) read(r *root, file string) ([]byte, readKind, string) {
 		return nil, readFailed, fmt.Sprintf("the file is larger than the %d bytes a document may have", maxSize)
 	}
 	if r.file == "" && !build.Holds(blockkind.Standard(), src) {
-		return nil, readAbsent, "holds no calc or solve block"
+		return nil, readAbsent, "holds no evaluated block (calc, solve, phasors, sweep, ...)"
 	}
 	return src, readOK, ""
 }

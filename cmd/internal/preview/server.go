@@ -1,6 +1,7 @@
 package preview
 
 import (
+	"calcdoc/cmd/internal/build"
 	"context"
 	"fmt"
 	"html"
@@ -84,7 +85,7 @@ func keyWith(rel string, sep byte) string {
 	if sep != '/' {
 		rel = strings.ReplaceAll(rel, string(sep), "/")
 	}
-	return strings.TrimSuffix(rel, ".md") + ".html"
+	return build.TrimExt(rel) + ".html"
 }
 
 // docKey returns the address of a document path, or false when the path
@@ -181,7 +182,7 @@ func (w *Watcher) serveDoc(rw http.ResponseWriter, key string) {
 		// written again).
 		writeHTML(rw, http.StatusNotFound, problemPage(key, absentVersion, "No document at /"+key,
 			"There is no document at this address. Its file may have been deleted or renamed, "+
-				"or it may hold no calc or solve block. This page reloads by itself when one appears."))
+				"or it may hold no evaluated block (calc, solve, ...). This page reloads by itself when one appears."))
 		return
 	}
 	writeHTML(rw, p.status, p.body)
@@ -258,7 +259,7 @@ func (w *Watcher) serveListing(rw http.ResponseWriter) {
 	}
 	b.WriteString(". Each sheet is evaluated again when its file is saved; an open page reloads by itself.</p>\n")
 	if len(pages) == 0 {
-		b.WriteString("<p>No document yet. A .md file with a calc or solve block appears here once it is saved.</p>\n")
+		b.WriteString("<p>No document yet. A .md file with an evaluated block (calc, solve, ...) appears here once it is saved.</p>\n")
 	} else {
 		b.WriteString("<table>\n<thead><tr><th>Document</th><th>State</th><th>Values</th><th>Checks</th>" +
 			"<th>Not satisfied</th><th>Errors</th><th>Evaluated</th></tr></thead>\n<tbody>\n")

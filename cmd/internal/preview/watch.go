@@ -66,7 +66,7 @@ var maxSize int64 = MaxSize
 // Config says what to watch and where the sheets go.
 type Config struct {
 	// Paths are the PATHs of the command line: a folder means every .md
-	// file below it holding a calc or solve block, now or later; a file
+	// file below it holding an evaluated block (a word of the kind registry), now or later; a file
 	// (which must end in .md) is served whatever it holds.
 	Paths []string
 	// Out, when not "", is where each sheet is also written on every

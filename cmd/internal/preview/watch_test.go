@@ -132,7 +132,7 @@ func TestSaves(t *testing.T) {
 			h.wait("/", listed("/a.html", "checks hold"))
 		}},
 		{"no longer a document", func(t *testing.T, h *harness, dir string) {
-			// A folder's .md file without a calc or solve block is not a
+			// A folder's .md file without an evaluated block is not a
 			// document.
 			saveInPlace(t, filepath.Join(dir, "a.md"), "# Feeder check\n\nNothing evaluated here.\n")
 			h.wait("/a.html", isGone)
