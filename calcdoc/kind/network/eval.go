@@ -3,6 +3,7 @@ package network
 import (
 	"calcdoc/calcdoc"
 	"calcdoc/calcdoc/kind/network/mna"
+	"calcdoc/calcdoc/kind/network/netlist"
 	"calcdoc/expr"
 )
 
@@ -33,7 +34,7 @@ func evalNetwork(b *calcdoc.Block) {
 	res := &Result{Result: r, Errs: errs, Display: map[string]*expr.Display{}}
 	b.Result = res
 	b.Errors = append(b.Errors, errs...)
-	for _, d := range r.Defs() {
+	for _, d := range append(r.Defs(), unreadNodes(r)...) {
 		if d.Value == nil {
 			if env.CanDefine(d.Name, d.Pos) == nil {
 				env.Define(&expr.Binding{Name: d.Name, Pos: d.Pos, Unavailable: true})
@@ -49,4 +50,36 @@ func evalNetwork(b *calcdoc.Block) {
 		}
 		b.AddValue(&calcdoc.NamedValue{Name: d.Name, Pos: d.Pos, Value: d.Value, Display: disp})
 	}
+}
+
+// unreadNodes lists V_NODE for the nodes the branches name when the lines
+// did not pass the topology checks (Defs then lists only the branches'
+// names): each is defined as unavailable, so that a later line that uses
+// one is not evaluated rather than reporting an unknown name.
+func unreadNodes(r *mna.Result) []mna.Def {
+	if r.Net == nil || r.Topo != nil {
+		return nil
+	}
+	ground := map[string]bool{}
+	for _, g := range r.Net.Grounds {
+		ground[g.Node.Key] = true
+	}
+	seen := map[string]bool{}
+	var out []mna.Def
+	add := func(nd netlist.Node) {
+		if nd.Key == "" || ground[nd.Key] || seen[nd.Key] {
+			return
+		}
+		seen[nd.Key] = true
+		out = append(out, mna.Def{Name: r.Net.VoltageName(nd.Name), Kind: mna.DefVoltage, Pos: nd.Pos})
+	}
+	for _, b := range r.Net.Branches {
+		add(b.From)
+		add(b.To)
+		if b.Element == netlist.Ratio {
+			add(b.From2)
+			add(b.To2)
+		}
+	}
+	return out
 }
