@@ -144,7 +144,7 @@ func branchTable(w *markup.Writer, res *Result) {
 		return markup.Math(markup.ValueML(&expr.Scalar{Z: z, Dim: d}, nil, digits, false))
 	}
 	partOpen(w)
-	w.WriteString("<p>The branches, each current taken from FROM to TO (LANGUAGE.md section 11); the element's symbol is how it is written in the equations below.</p>\n")
+	w.WriteString("<p>The branches, each current taken from FROM to TO (LANGUAGE.md section 11); the element's symbol (Z, Y; E for a source's voltage, J for a current source's current, r for a transformer's ratio) is how it is written in the equations below.</p>\n")
 	w.WriteString("<div class=\"grid\"><table class=\"data branches\" style=\"white-space: nowrap;\">\n<tr><th>branch</th><th>from</th><th>to</th><th>element</th><th>as written</th><th>value</th></tr>\n")
 	for _, item := range n.Lines {
 		switch x := item.(type) {
@@ -152,7 +152,7 @@ func branchTable(w *markup.Writer, res *Result) {
 			w.Printf("<tr id=\"L%d\"><td colspan=\"6\">%s</td></tr>\n", x.Pos.Line, markup.Esc(x.Text))
 		case *netlist.Ground:
 			w.Printf("<tr id=\"L%d\"><td></td><td colspan=\"2\">%s</td><td>ground</td><td></td><td>%s</td></tr>\n",
-				x.Pos.Line, markup.Esc(x.Node.Name), markup.Math(markup.NameML("V_"+x.Node.Name+n.Suffix())+"<mo>=</mo><mn>0</mn><mi mathvariant=\"normal\">V</mi>"))
+				x.Pos.Line, markup.Esc(x.Node.Name), markup.Math(markup.NameML("V_"+x.Node.Name+n.Suffix())+"<mo>=</mo>"+markup.ValueML(&expr.Scalar{Dim: expr.DimVoltage}, nil, digits, false)))
 		case *netlist.Couple:
 			value := ""
 			if nw != nil {
@@ -164,13 +164,12 @@ func branchTable(w *markup.Writer, res *Result) {
 					}
 				}
 			}
-			w.Printf("<tr id=\"L%d\"><td>%s, %s</td><td></td><td></td><td>mutual impedance %s</td><td>%s</td><td>%s</td></tr>\n",
+			w.Printf("<tr id=\"L%d\"><td>%s, %s</td><td></td><td></td><td>couple %s</td><td>%s</td><td>%s</td></tr>\n",
 				x.Pos.Line, markup.Esc(x.A), markup.Esc(x.B), markup.Math(markup.NameML("Z_"+x.A+"_"+x.B)), markup.Math(f.Node(x.Value, false)), value)
 		case *netlist.Branch:
 			i := idx[x]
 			written := markup.Math(f.Node(x.Value, false))
 			value := ""
-			elem := x.Element.Noun()
 			if nw != nil {
 				e := nw.Elem[i]
 				switch x.Element {
@@ -194,25 +193,22 @@ func branchTable(w *markup.Writer, res *Result) {
 					value = val(e.Ratio, expr.Dim{})
 				}
 				if x.Element == netlist.Source && x.SeriesZ != nil {
-					value += "; " + markup.Math(markup.NameML("Z_"+x.Name)+"<mo>=</mo>"+markup.ValueML(&expr.Scalar{Z: e.SeriesZ, Dim: expr.DimImpedance}, nil, digits, false))
+					value += "<br>" + markup.Math(markup.NameML("Z_"+x.Name)+"<mo>=</mo>"+markup.ValueML(&expr.Scalar{Z: e.SeriesZ, Dim: expr.DimImpedance}, nil, digits, false))
 				}
 			}
+			elemML := markup.Esc(x.Element.Word()) + " " + markup.Math(markup.NameML(symbol(x)))
 			if x.Element == netlist.Source && x.SeriesZ != nil {
-				written += ", in series " + markup.Math(f.Node(x.SeriesZ, false))
-				elem = "voltage source (series Z)"
+				written += ", Z " + markup.Math(f.Node(x.SeriesZ, false))
+				elemML += ", Z " + markup.Math(markup.NameML("Z_"+x.Name))
 			}
 			if x.Element == netlist.Ratio {
 				written += " to " + markup.Esc(x.From2.Name) + " → " + markup.Esc(x.To2.Name)
-				if nw != nil && nw.Elem[i].Coupled {
-					elem += ", coupled"
-				}
 			}
 			if x.Element == netlist.Impedance && nw != nil && nw.Elem[i].Coupled {
-				elem += ", coupled"
+				elemML += ", coupled"
 			}
-			w.Printf("<tr id=\"L%d\"><td>%s</td><td>%s</td><td>%s</td><td>%s %s</td><td>%s</td><td>%s</td></tr>\n",
-				x.Pos.Line, markup.Esc(x.Name), markup.Esc(x.From.Name), markup.Esc(x.To.Name), markup.Esc(elem),
-				markup.Math(markup.NameML(symbol(x))), written, value)
+			w.Printf("<tr id=\"L%d\" title=\"%s\"><td>%s</td><td>%s</td><td>%s</td><td>%s</td><td>%s</td><td>%s</td></tr>\n",
+				x.Pos.Line, markup.Esc(x.Element.Noun()), markup.Esc(x.Name), markup.Esc(x.From.Name), markup.Esc(x.To.Name), elemML, written, value)
 		}
 	}
 	w.WriteString("</table></div>\n")
