@@ -131,6 +131,13 @@ func TestDocumentDivider(t *testing.T) {
 			t.Errorf("values JSON %s: unit, kind %v, want %v", name, units[name], want)
 		}
 	}
+	// the inline value `=abs(V_B)`: 70 V (hand derivation above)
+	if len(d.Inline) != 1 || d.Inline[0].Err != nil {
+		t.Fatalf("inline values: %+v", d.Inline)
+	}
+	if s, ok := d.Inline[0].Value.(*expr.Scalar); !ok || cmplx.Abs(s.Z-70) > 1e-12 {
+		t.Errorf("inline abs(V_B) = %v, want 70 V", d.Inline[0].Value)
+	}
 	page := sheet(t, d)
 	if !strings.Contains(page, "The middle sits at") || !strings.Contains(page, "<svg") {
 		t.Errorf("the sheet lacks the inline value's paragraph or the phasor diagram")
