@@ -137,7 +137,7 @@ func branchEquations(w *markup.Writer, nw *mna.Network) {
 		e := nw.Elem[eq.Branch]
 		value := sym(b)
 		if controlledValue(e) {
-			value = "<mrow>" + f.Node(b.Value, true) + "</mrow>"
+			value = "<mrow>" + f.Node(b.Value, false) + "</mrow>"
 		}
 		var ml, desc string
 		switch eq.Kind {

@@ -214,6 +214,9 @@ func TestDocumentNumPy(t *testing.T) {
 func TestSheetStructure(t *testing.T) {
 	d := parse(t, divider...)
 	page := sheet(t, d)
+	if again := sheet(t, parse(t, divider...)); again != page {
+		t.Errorf("two builds of the same document differ")
+	}
 	for _, want := range []string{
 		"<table class=\"data branches\"",
 		"KCL at node A", "KCL at node B",
