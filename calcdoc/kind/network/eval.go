@@ -31,6 +31,13 @@ func evalNetwork(b *calcdoc.Block) {
 	}
 	mb := mna.Block{Lines: b.Lines, LinePos: b.LinePos, Tag: b.Arg, TagPos: b.ArgPos, Pos: at}
 	r, errs := mna.Run(mb, env, nil)
+	for k, e := range errs {
+		if !e.Pos.IsValid() { // an error of the block as a whole (no branches, say): at its opening line
+			c := *e
+			c.Pos = at
+			errs[k] = &c
+		}
+	}
 	res := &Result{Result: r, Errs: errs, Display: map[string]*expr.Display{}}
 	b.Result = res
 	b.Errors = append(b.Errors, errs...)
