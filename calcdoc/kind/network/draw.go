@@ -39,9 +39,25 @@ func drawNetwork(w *markup.Writer, b *calcdoc.Block) {
 	w.WriteString(markup.Esc(countText(res)))
 	w.WriteString("</div></div>\n")
 
-	if len(b.Errors) > 0 || res.Unavailable != nil {
-		partOpen(w)
+	// the errors of a line stand under its row of the branch table; the
+	// others (of the block as a whole, or when no table is drawn) after it
+	shown := map[*expr.Error]bool{}
+	if res.Net != nil {
+		byLine := map[int][]*expr.Error{}
 		for _, e := range b.Errors {
+			byLine[e.Pos.Line] = append(byLine[e.Pos.Line], e)
+		}
+		branchTable(w, res, byLine, shown)
+	}
+	var rest []*expr.Error
+	for _, e := range b.Errors {
+		if !shown[e] {
+			rest = append(rest, e)
+		}
+	}
+	if len(rest) > 0 || res.Unavailable != nil {
+		partOpen(w)
+		for _, e := range rest {
 			w.ErrorRow(e)
 		}
 		if res.Unavailable != nil {
@@ -49,15 +65,12 @@ func drawNetwork(w *markup.Writer, b *calcdoc.Block) {
 		}
 		partClose(w)
 	}
-	if res.Net != nil {
-		branchTable(w, res)
-	}
 	if nw := res.Network; nw != nil && nw.A != nil {
 		kclRows(w, nw)
 		branchEquations(w, nw)
 	}
 	if res.Solution == nil {
-		if defs := res.Defs(); len(defs) > 0 {
+		if defs := append(res.Defs(), unreadNodes(res.Result)...); len(defs) > 0 {
 			partOpen(w)
 			w.Printf("<p>Not solved: the %d names this block defines (%s) have no value below it.</p>", len(defs), defsText(defs))
 			partClose(w)
@@ -132,7 +145,7 @@ func controlledValue(e mna.Element) bool { return e.Value != nil && len(e.Value.
 // branchTable lists every line of the block: the branches with from, to,
 // the element, its value as written and as evaluated; the couplings and
 // grounds; the notes.
-func branchTable(w *markup.Writer, res *Result) {
+func branchTable(w *markup.Writer, res *Result, errs map[int][]*expr.Error, shown map[*expr.Error]bool) {
 	n, nw := res.Net, res.Network
 	f := w.ExprMLFor(false, nil)
 	digits := w.Digits()
@@ -210,6 +223,24 @@ func branchTable(w *markup.Writer, res *Result) {
 			w.Printf("<tr id=\"L%d\" title=\"%s\"><td>%s</td><td>%s</td><td>%s</td><td>%s</td><td>%s</td><td>%s</td></tr>\n",
 				x.Pos.Line, markup.Esc(x.Element.Noun()), markup.Esc(x.Name), markup.Esc(x.From.Name), markup.Esc(x.To.Name), elemML, written, value)
 		}
+		line := 0
+		switch x := item.(type) {
+		case *netlist.Note:
+			line = x.Pos.Line
+		case *netlist.Ground:
+			line = x.Pos.Line
+		case *netlist.Couple:
+			line = x.Pos.Line
+		case *netlist.Branch:
+			line = x.Pos.Line
+		}
+		for _, e := range errs[line] {
+			w.WriteString("<tr><td colspan=\"6\" style=\"white-space: normal; text-align: left;\">")
+			w.ErrorRow(e)
+			w.WriteString("</td></tr>\n")
+			shown[e] = true
+		}
+		delete(errs, line)
 	}
 	w.WriteString("</table></div>\n")
 	partClose(w)

@@ -7,6 +7,7 @@ import (
 	"os"
 	"path/filepath"
 	"regexp"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -289,6 +290,15 @@ func TestErrorsThroughDocument(t *testing.T) {
 		if strings.Count(page, "role=\"alert\"") != 1 {
 			t.Errorf("%s: the error is shown %d times in the sheet, want once", c.name, strings.Count(page, "role=\"alert\""))
 		}
+		// in place: under the row of its line in the branch table
+		row := strings.Index(page, "<tr id=\"L"+itoa(e.Pos.Line)+"\"")
+		next := len(page)
+		if k := strings.Index(page[row+1:], "<tr id="); k >= 0 {
+			next = row + 1 + k
+		}
+		if alert := strings.Index(page, "role=\"alert\""); c.line > 0 && (row < 0 || alert < row || alert > next) {
+			t.Errorf("%s: the error is not under the row of line %d", c.name, e.Pos.Line)
+		}
 	}
 	// a name that already exists: named at the node that would define it
 	d := parse(t, append([]string{"```calc", "V_A = 1 V", "```"}, append(head[2:], tail[:1]...)...)...)
@@ -300,3 +310,5 @@ func TestErrorsThroughDocument(t *testing.T) {
 	noErrors(t, d)
 	wantC(t, "V_A_b", value(t, d, "V_A_b").Z, 5, 1e-14) // hand derivation: 10 V over 1 Ω + 1 Ω
 }
+
+func itoa(n int) string { return strconv.Itoa(n) }
