@@ -178,10 +178,13 @@ func branchTable(w *markup.Writer, res *Result, errs map[int][]*expr.Error, show
 				}
 			}
 			w.Printf("<tr id=\"L%d\"><td>%s, %s</td><td></td><td></td><td>couple %s</td><td>%s</td><td>%s</td></tr>\n",
-				x.Pos.Line, markup.Esc(x.A), markup.Esc(x.B), markup.Math(markup.NameML("Z_"+x.A+"_"+x.B)), markup.Math(f.Node(x.Value, false)), value)
+				x.Pos.Line, markup.Esc(x.A), markup.Esc(x.B), markup.Math(markup.NameML("Z_"+x.A+"_"+x.B)), markup.Math(f.Node(x.Value, false))+substitution(w, x.Value), value)
 		case *netlist.Branch:
 			i := idx[x]
 			written := markup.Math(f.Node(x.Value, false))
+			if nw == nil || !controlledValue(nw.Elem[i]) {
+				written += substitution(w, x.Value)
+			}
 			value := ""
 			if nw != nil {
 				e := nw.Elem[i]
@@ -211,7 +214,7 @@ func branchTable(w *markup.Writer, res *Result, errs map[int][]*expr.Error, show
 			}
 			elemML := markup.Esc(x.Element.Word()) + " " + markup.Math(markup.NameML(symbol(x)))
 			if x.Element == netlist.Source && x.SeriesZ != nil {
-				written += ", Z " + markup.Math(f.Node(x.SeriesZ, false))
+				written += ", Z " + markup.Math(f.Node(x.SeriesZ, false)) + substitution(w, x.SeriesZ)
 				elemML += ", Z " + markup.Math(markup.NameML("Z_"+x.Name))
 			}
 			if x.Element == netlist.Ratio {
@@ -257,4 +260,42 @@ func sci(x float64) string {
 		return "—"
 	}
 	return strings.NewReplacer("e-0", "e-", "e+0", "e", "e+", "e").Replace(fmt.Sprintf("%.3g", x))
+}
+
+// substitution is an element's expression with every name replaced by its
+// value, as a calc row's substitution is written, after "= " on a line of
+// its own; "" when the expression is a bare name or uses none (the value
+// column then says all), or cannot be evaluated.
+func substitution(w *markup.Writer, x expr.Node) string {
+	if x == nil {
+		return ""
+	}
+	if _, bare := unparen(x).(*expr.Ident); bare {
+		return ""
+	}
+	names := false
+	expr.Walk(x, func(n expr.Node) bool {
+		if id, ok := n.(*expr.Ident); ok && !markup.IsConstant(id.Name) {
+			names = true
+		}
+		return !names
+	})
+	if !names {
+		return ""
+	}
+	tr := &expr.Trace{}
+	if _, err := w.Doc.Env.Eval(x, tr); err != nil {
+		return ""
+	}
+	return "<br>= " + markup.Math(w.ExprMLFor(true, tr).Node(x, false))
+}
+
+func unparen(n expr.Node) expr.Node {
+	for {
+		p, ok := n.(*expr.Paren)
+		if !ok {
+			return n
+		}
+		n = p.X
+	}
 }

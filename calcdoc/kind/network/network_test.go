@@ -312,3 +312,19 @@ func TestErrorsThroughDocument(t *testing.T) {
 }
 
 func itoa(n int) string { return strconv.Itoa(n) }
+
+// TestSubstitution: an element written with names shows, under its
+// formula, the formula with each name replaced by its value (as a calc
+// row's substitution) and, in the value column, the value: hand
+// derivation, 0.25 Ω/km · 4 km = 1 Ω.
+func TestSubstitution(t *testing.T) {
+	d := parse(t, "```calc", "z_l = 0.25 Ω/km", "```", "", "```network", "ground 0", "g: 0 -> A source 10 V, Z 1 Ω", "r: A -> 0 Z z_l * 4 km", "```")
+	noErrors(t, d)
+	page := sheet(t, d)
+	row := page[strings.Index(page, "<tr id=\"L8\""):]
+	row = row[:strings.Index(row, "</tr>")]
+	if !strings.Contains(row, "<br>= ") || !strings.Contains(row, "<mn>0.2500</mn>") || !strings.Contains(row, "<mn>1.000</mn>") {
+		t.Errorf("the row of r lacks the substitution or its value:\n%s", row)
+	}
+	wantC(t, "V_A", value(t, d, "V_A").Z, 5, 1e-14) // 10 V across 1 Ω + 1 Ω
+}
