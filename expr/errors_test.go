@@ -130,7 +130,8 @@ func TestErrors(t *testing.T) {
 
 // posInside reports whether p lies in text: a line of the text, and a
 // column from 1 to one past the line's last character.
-func posInside(text string, p Pos) bool {
+func posInside(text string, pos Pos) bool {
+	p := pos.Position()
 	lines := strings.Split(text, "\n")
 	if p.Line < 1 || p.Line > len(lines) {
 		return false
@@ -189,7 +190,7 @@ func TestNestingErrorPointsAtAParenthesis(t *testing.T) {
 	if err == nil {
 		t.Fatal("no error")
 	}
-	p := errPos(err)
+	p := errPos(err).Position()
 	if p.Line != 1 || p.Col < 1 || p.Col > 300 {
 		t.Errorf("error at %s, want on one of the 300 parentheses", p)
 	}
@@ -230,7 +231,7 @@ func TestBadNumberIsNotEvaluated(t *testing.T) {
 		}
 	}
 	var errs ErrorList
-	x, _ := ParseExpr(NewSource("1e999 V", Pos{Line: 1, Col: 1}), &errs)
+	x, _ := ParseExpr(NewSource("1e999 V", Pos{}), &errs)
 	if _, ok := x.(*BadExpr); !ok || len(errs) != 1 {
 		t.Errorf("ParseExpr: %s, errors %v; want a BadExpr and one error", sexpr(x), errs)
 	}
@@ -238,7 +239,8 @@ func TestBadNumberIsNotEvaluated(t *testing.T) {
 
 func TestErrorListSort(t *testing.T) {
 	// pos.go: Sort orders by position, Error writes line:col: message.
-	l := ErrorList{{Pos{3, 1}, "c"}, {Pos{1, 5}, "b"}, {Pos{1, 2}, "a"}}
+	f := NewFile("", " a  b\n\nc") // a at 1:2, b at 1:5, c at 3:1
+	l := ErrorList{{f.Pos(7), "c"}, {f.Pos(4), "b"}, {f.Pos(1), "a"}}
 	l.Sort()
 	if got := l.Error(); got != "1:2: a\n1:5: b\n3:1: c" {
 		t.Errorf("got %q", got)

@@ -84,7 +84,7 @@ func TestLongLine(t *testing.T) {
 			func(t *testing.T, d *calcdoc.Document, html string) {
 				// its 524,287 numbers and 524,286 sums are more nodes than
 				// the steps allowed for one expression
-				if len(d.Errors) != 1 || d.Errors[0].Pos.Line != 2 ||
+				if len(d.Errors) != 1 || d.Errors[0].Pos.Line() != 2 ||
 					!strings.Contains(d.Errors[0].Msg, fmt.Sprintf("more than %d steps", expr.MaxEvalSteps)) {
 					t.Errorf("errors %v, want one on line 2 naming the limit of %d steps", d.Errors, expr.MaxEvalSteps)
 				}
@@ -135,7 +135,7 @@ func TestLongLine(t *testing.T) {
 					t.Errorf("%d errors, want %d and one saying that the rest are not reported", len(d.Errors), expr.MaxErrors)
 				}
 				for _, e := range d.Errors {
-					if e.Pos.Line != 2 {
+					if e.Pos.Line() != 2 {
 						t.Fatalf("error %v not on line 2", e)
 					}
 				}
@@ -149,7 +149,7 @@ func TestLongLine(t *testing.T) {
 			func(t *testing.T, d *calcdoc.Document, html string) {
 				found := false
 				for _, e := range d.Errors {
-					if e.Pos.Line != 2 {
+					if e.Pos.Line() != 2 {
 						t.Fatalf("error %v not on line 2", e)
 					}
 					found = found || strings.Contains(e.Msg, "too many tokens")

@@ -148,10 +148,10 @@ func status(doc *calcdoc.Document, st int) int {
 // printErrors writes each error as file:line:col: message.
 func (c *cli) printErrors(doc *calcdoc.Document) {
 	for _, e := range doc.Errors {
-		fmt.Fprintf(c.stderr, "%s:%d:%d: %s\n", doc.Path, e.Pos.Line, e.Pos.Col, e.Msg)
+		fmt.Fprintf(c.stderr, "%s:%d:%d: %s\n", doc.Path, e.Pos.Line(), e.Pos.Col(), e.Msg)
 	}
 	for _, e := range doc.Warnings {
-		fmt.Fprintf(c.stderr, "%s:%d:%d: warning: %s\n", doc.Path, e.Pos.Line, e.Pos.Col, e.Msg)
+		fmt.Fprintf(c.stderr, "%s:%d:%d: warning: %s\n", doc.Path, e.Pos.Line(), e.Pos.Col(), e.Msg)
 	}
 }
 
@@ -249,14 +249,14 @@ func (c *cli) check(args []string) int {
 		fmt.Fprintf(c.stdout, "%s: %s\n", doc.Path, summaryLine(doc))
 		for _, ch := range doc.Checks {
 			if ch.Result != nil && !ch.Result.Pass {
-				fmt.Fprintf(c.stdout, "%s:%d: check not satisfied: %s\n", doc.Path, ch.Pos.Line, ch.Text)
+				fmt.Fprintf(c.stdout, "%s:%d: check not satisfied: %s\n", doc.Path, ch.Pos.Line(), ch.Text)
 			}
 		}
 		for _, e := range doc.Errors {
-			fmt.Fprintf(c.stdout, "%s:%d:%d: %s\n", doc.Path, e.Pos.Line, e.Pos.Col, e.Msg)
+			fmt.Fprintf(c.stdout, "%s:%d:%d: %s\n", doc.Path, e.Pos.Line(), e.Pos.Col(), e.Msg)
 		}
 		for _, e := range doc.Warnings {
-			fmt.Fprintf(c.stdout, "%s:%d:%d: warning: %s\n", doc.Path, e.Pos.Line, e.Pos.Col, e.Msg)
+			fmt.Fprintf(c.stdout, "%s:%d:%d: warning: %s\n", doc.Path, e.Pos.Line(), e.Pos.Col(), e.Msg)
 		}
 		st = status(doc, st)
 	}
