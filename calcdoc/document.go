@@ -317,6 +317,9 @@ func (d *Document) evalBlock(b *Block) {
 		b.Errors = append(b.Errors, b.DrawErrors...)
 	}
 	for _, e := range b.Errors {
+		if !e.Pos.IsValid() {
+			e.Pos = b.Pos // an error of the block as a whole: its opening line
+		}
 		d.Errors = append(d.Errors, e)
 	}
 }

@@ -129,7 +129,8 @@ func (d *Document) ValuesJSON() *ValuesJSON {
 		out.Checks = append(out.Checks, cj)
 	}
 	for _, e := range d.Errors {
-		out.Errors = append(out.Errors, ErrorJSON{Line: e.Pos.Line(), Col: e.Pos.Col(), Message: e.Msg})
+		p := e.Pos.Position()
+		out.Errors = append(out.Errors, ErrorJSON{Line: p.Line, Col: p.Col, Message: e.Msg})
 	}
 	out.Sweeps = d.SweepsJSON()
 	return out

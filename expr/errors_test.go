@@ -249,3 +249,24 @@ func TestErrorListSort(t *testing.T) {
 		t.Error("empty list is not nil error")
 	}
 }
+
+// TestErrorReport: an error is written "file:line:col: message" (the
+// line and column counted by hand in the text: "b" is the 3rd character
+// of line 2, "é" counting as one), a label before the message, without
+// the file when it has none, and the message alone without a position.
+func TestErrorReport(t *testing.T) {
+	f := NewFile("feeder.md", "x\né b")
+	e := &Error{Pos: f.Pos(5), Msg: "m"}
+	for got, want := range map[string]string{
+		e.Error():                            "feeder.md:2:3: m",
+		e.Report("warning"):                  "feeder.md:2:3: warning: m",
+		e.InFile():                           "2:3: m",
+		e.Pos.String():                       "2:3",
+		(&Error{Msg: "m"}).Report("warning"): "warning: m",
+		(&Error{Pos: PlaceAt("b", 2, 3), Msg: "m"}).Error(): "2:3: m",
+	} {
+		if got != want {
+			t.Errorf("got %q, want %q", got, want)
+		}
+	}
+}

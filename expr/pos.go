@@ -264,11 +264,19 @@ type Error struct {
 
 // Error is "file:line:col: message" (without the file when it has no name,
 // and the message alone without a position).
-func (e *Error) Error() string {
-	if e.Pos.IsValid() {
-		return e.Pos.Position().String() + ": " + e.Msg
+func (e *Error) Error() string { return e.Report("") }
+
+// Report is the error as the command writes it, with a label before the
+// message when label is not "": "file:line:col: warning: message".
+func (e *Error) Report(label string) string {
+	msg := e.Msg
+	if label != "" {
+		msg = label + ": " + msg
 	}
-	return e.Msg
+	if e.Pos.IsValid() {
+		return e.Pos.Position().String() + ": " + msg
+	}
+	return msg
 }
 
 // InFile is the error as the sheet of its own file shows it:

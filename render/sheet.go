@@ -239,7 +239,8 @@ func summary(w *markup.Writer, doc *calcdoc.Document) {
 	if len(doc.Errors) > 0 {
 		w.WriteString("<ol class=\"errlist\">\n")
 		for _, e := range doc.Errors {
-			w.Printf("<li><a href=\"#L%d\">line %d, col %d</a>: %s</li>\n", e.Pos.Line(), e.Pos.Line(), e.Pos.Col(), esc(e.Msg))
+			p := e.Pos.Position()
+			w.Printf("<li><a href=\"#L%d\">line %d, col %d</a>: %s</li>\n", p.Line, p.Line, p.Col, esc(e.Msg))
 		}
 		w.WriteString("</ol>\n")
 	}
