@@ -1,6 +1,7 @@
 package expr
 
 import (
+	"fmt"
 	"io/fs"
 	"math/rand"
 	"os"
@@ -97,5 +98,36 @@ func TestOneConverter(t *testing.T) {
 	}
 	if files < 100 {
 		t.Fatalf("only %d source files read: is the test run from expr/?", files)
+	}
+}
+
+// TestPositionConcurrent: a File answers positions from several
+// goroutines at once (a sheet drawn while the preview serves another
+// request of the same document), each the naive count ("\n" lines,
+// characters as columns) whatever the order the others ask in.
+func TestPositionConcurrent(t *testing.T) {
+	text := strings.Repeat("é\tΩ ∠ x = 1 V\r\n日本\n", 200)
+	f := NewFile("c.md", text)
+	done := make(chan string)
+	for g := 0; g < 4; g++ {
+		go func(g int) {
+			for o := g; o < len(text); o += 1 + g {
+				if !utf8.RuneStart(text[o]) {
+					continue
+				}
+				line := 1 + strings.Count(text[:o], "\n")
+				col := 1 + utf8.RuneCountInString(text[strings.LastIndex(text[:o], "\n")+1:o])
+				if p := f.Position(o); p.Line != line || p.Col != col {
+					done <- fmt.Sprintf("offset %d: %v, counted %d:%d", o, p, line, col)
+					return
+				}
+			}
+			done <- ""
+		}(g)
+	}
+	for g := 0; g < 4; g++ {
+		if msg := <-done; msg != "" {
+			t.Error(msg)
+		}
 	}
 }
