@@ -1,8 +1,6 @@
 package calcdoc
 
 import (
-	"unicode/utf8"
-
 	"calcdoc/expr"
 
 	"github.com/yuin/goldmark/ast"
@@ -74,10 +72,8 @@ func SplitTopLevel(s string) (parts []string, offs []int) {
 }
 
 // ArgAt is the position of byte offset off of the block's argument (the
-// argument lies on the fence line, so only the column moves).
-func (b *Block) ArgAt(off int) expr.Pos {
-	return expr.Pos{Line: b.ArgPos.Line, Col: b.ArgPos.Col + utf8.RuneCountInString(b.Arg[:off])}
-}
+// argument stands verbatim in the file at ArgPos).
+func (b *Block) ArgAt(off int) expr.Pos { return b.ArgPos.Add(off) }
 
 // Attach makes b a block of d without evaluating it, so that a kind's
 // stages can be run on it alone (the solve kind's benchmarks do).

@@ -97,8 +97,8 @@ func TestWorkBudget(t *testing.T) {
 				}
 			}
 			lines := strings.Split(c.doc, "\n")
-			if l := over.Pos.Line; l < 1 || l > len(lines) || !strings.Contains(lines[l-1], c.line) {
-				t.Errorf("the error is at line %d, want a line with %q", over.Pos.Line, c.line)
+			if l := over.Pos.Line(); l < 1 || l > len(lines) || !strings.Contains(lines[l-1], c.line) {
+				t.Errorf("the error is at line %d, want a line with %q", over.Pos.Line(), c.line)
 			}
 		})
 	}
@@ -114,14 +114,14 @@ func TestWorkBudgetRest(t *testing.T) {
 	if over == nil {
 		t.Fatal("the budget was not spent")
 	}
-	if over.Pos.Line != 43 {
-		t.Errorf("budget error at line %d, want 43 (y = f_40(1))", over.Pos.Line)
+	if over.Pos.Line() != 43 {
+		t.Errorf("budget error at line %d, want 43 (y = f_40(1))", over.Pos.Line())
 	}
 	var rest int
 	for _, e := range d.Errors {
-		if e.Pos.Line > over.Pos.Line {
+		if e.Pos.Line() > over.Pos.Line() {
 			rest++
-			if want := fmt.Sprintf("not evaluated: the document's work budget was spent at line %d", over.Pos.Line); !strings.Contains(e.Msg, want) {
+			if want := fmt.Sprintf("not evaluated: the document's work budget was spent at line %d", over.Pos.Line()); !strings.Contains(e.Msg, want) {
 				t.Errorf("later error %v, want %q", e, want)
 			}
 		}

@@ -8,7 +8,6 @@ package calcdoc
 import (
 	"bytes"
 	"os"
-	"sort"
 	"strings"
 	"unicode/utf8"
 
@@ -43,9 +42,16 @@ type Document struct {
 	// sheet draws each block by its kind.
 	Kinds *Registry
 
-	lines   []int // byte offset of each line start in Text
-	byNode  map[ast.Node]*Block
-	inlineN map[ast.Node]*Inline
+	// Files is the set of files the document is read from; File is the
+	// document's own (named Path, holding Text before the front matter is
+	// blanked out): every position of the document is an offset in it.
+	Files *expr.FileSet
+	File  *expr.File
+
+	byNode    map[ast.Node]*Block
+	inlineN   map[ast.Node]*Inline
+	order     []any // the blocks and inline values in document order
+	evaluated bool
 }
 
 // NamedValue is a defined name with its value, as the values JSON and the
@@ -72,6 +78,7 @@ type Inline struct {
 	Value   expr.Value
 	Display *expr.Display
 	Err     error
+	src     *expr.Source // the span's text, line by line, with positions
 }
 
 // Digits is the number of significant figures the sheet shows.
@@ -117,15 +124,8 @@ func (d *Document) HeldChecks() int {
 	return held
 }
 
-// PosAt converts a byte offset of the file into a line and column.
-func (d *Document) PosAt(off int) expr.Pos {
-	i := sort.Search(len(d.lines), func(i int) bool { return d.lines[i] > off }) - 1
-	if i < 0 {
-		i = 0
-	}
-	end := min(off, len(d.Text))
-	return expr.Pos{Line: i + 1, Col: utf8.RuneCount(d.Text[d.lines[i]:end]) + 1}
-}
+// PosAt is the position of a byte offset of Text.
+func (d *Document) PosAt(off int) expr.Pos { return d.File.Pos(off) }
 
 // Load reads and evaluates the document at path with the kinds of reg.
 func Load(path string, reg *Registry) (*Document, error) {
@@ -143,10 +143,11 @@ var markdown = goldmark.New(goldmark.WithExtensions(extension.Table, extension.S
 // that renderers use the same configuration.
 func Markdown() goldmark.Markdown { return markdown }
 
-// Parse evaluates a document from its bytes, each fenced block whose info
-// string starts with a word of reg by the kind that owns it (other fenced
-// blocks are shown as code). It never fails: every problem is in the
-// document's Errors, and evaluation goes on past each one.
+// Parse reads a document from its bytes and evaluates it, each fenced
+// block whose info string starts with a word of reg by the kind that owns
+// it (other fenced blocks are shown as code): ParseOnly, then Evaluate.
+// It never fails: every problem is in the document's Errors, and
+// evaluation goes on past each one.
 func Parse(path string, src []byte, reg *Registry) *Document {
 	return ParseBudget(path, src, reg, expr.NewBudget(expr.DefaultBudget))
 }
@@ -154,30 +155,41 @@ func Parse(path string, src []byte, reg *Registry) *Document {
 // ParseBudget is Parse with the work budget the evaluation spends, which
 // the caller may stop (expr.Budget.Stop) from another goroutine.
 func ParseBudget(path string, src []byte, reg *Registry, budget *expr.Budget) *Document {
-	d := &Document{Path: path, Source: src, Env: expr.NewEnv(), Kinds: reg, byNode: map[ast.Node]*Block{}, inlineN: map[ast.Node]*Inline{}}
+	d := ParseOnly(path, src, reg)
 	d.Env.Budget = budget
+	d.Evaluate()
+	return d
+}
+
+// ParseOnly reads a document from its bytes without evaluating it: the
+// front matter, the Markdown tree, and the blocks of the kinds of reg and
+// the inline values, in document order with their positions (no results
+// yet). Evaluate evaluates them, with the default work budget unless the
+// caller sets Env.Budget first.
+func ParseOnly(path string, src []byte, reg *Registry) *Document {
+	d := &Document{Path: path, Source: src, Env: expr.NewEnv(), Kinds: reg, Files: &expr.FileSet{}, byNode: map[ast.Node]*Block{}, inlineN: map[ast.Node]*Inline{}}
+	d.Env.Budget = expr.NewBudget(expr.DefaultBudget)
 	txt := readerLines(src)
 	var bad []int
 	if !utf8.Valid(txt) {
 		txt, bad = sanitizeUTF8(txt)
 	}
 	d.Text = txt
-	d.index()
+	d.File = d.Files.AddFile(path, string(txt))
 	for _, off := range bad {
 		d.Errors.Add(d.PosAt(off), "invalid UTF-8 in the file: save it as UTF-8 (the byte is shown as �)")
 	}
-	body := txt
 	if y, n, ok := splitFrontMatter(txt); n > 0 {
 		if !ok {
-			d.Errors.Add(expr.Pos{Line: 1, Col: 1}, "front matter starts with --- but is never closed: add a line --- after it")
+			d.Errors.Add(d.PosAt(0), "front matter starts with --- but is never closed: add a line --- after it")
 		} else {
-			parseFrontMatter(y, &d.Front, &d.Errors, &d.Warnings)
+			parseFrontMatter(y, d.File.LineStart(2), &d.Front, &d.Errors, &d.Warnings)
 			d.Env.Preferred = d.Front.Units
 			// blank the front matter out, keeping every offset
-			body = append([]byte(nil), txt...)
-			end := d.lines[min(n, len(d.lines)-1)]
-			if n >= len(d.lines) {
-				end = len(txt)
+			body := append([]byte(nil), txt...)
+			end := len(txt)
+			if n < d.File.LineCount() {
+				end = d.File.LineStart(n + 1).Off
 			}
 			for i := 0; i < end; i++ {
 				if body[i] != '\n' {
@@ -188,10 +200,31 @@ func ParseBudget(path string, src []byte, reg *Registry, budget *expr.Budget) *D
 		}
 	}
 	d.Markdown = markdown.Parser().Parse(text.NewReader(d.Text))
-	d.evaluate()
+	d.collect()
 	d.Errors.Sort()
 	d.Warnings.Sort()
 	return d
+}
+
+// Evaluate evaluates the document's blocks and inline values top to
+// bottom in one set of names, each block by its kind, so each sees only
+// what is above it; the errors end sorted by position. A document is
+// evaluated once: a second call does nothing.
+func (d *Document) Evaluate() {
+	if d.evaluated {
+		return
+	}
+	d.evaluated = true
+	for _, it := range d.order {
+		switch it := it.(type) {
+		case *Block:
+			d.evalBlock(it)
+		case *Inline:
+			d.evalInline(it)
+		}
+	}
+	d.Errors.Sort()
+	d.Warnings.Sort()
 }
 
 // readerLines returns the file's text as a reader sees it, so that the
@@ -234,31 +267,9 @@ func sanitizeUTF8(src []byte) ([]byte, []int) {
 	return out.Bytes(), bad
 }
 
-func (d *Document) index() {
-	d.lines = []int{0}
-	for i, c := range d.Text {
-		if c == '\n' {
-			d.lines = append(d.lines, i+1)
-		}
-	}
-}
-
-// lineText returns line n (from 1) of the file without its line break.
-func (d *Document) lineText(n int) string {
-	if n < 1 || n > len(d.lines) {
-		return ""
-	}
-	start := d.lines[n-1]
-	end := len(d.Text)
-	if n < len(d.lines) {
-		end = d.lines[n] - 1
-	}
-	return strings.TrimRight(string(d.Text[start:end]), "\r")
-}
-
-// evaluate walks the Markdown tree in document order, evaluating each
-// block and inline value as it comes, so each sees only what is above it.
-func (d *Document) evaluate() {
+// collect walks the Markdown tree in document order and gathers the
+// blocks of the registered kinds and the inline values, unevaluated.
+func (d *Document) collect() {
 	ast.Walk(d.Markdown, func(n ast.Node, entering bool) (ast.WalkStatus, error) {
 		if !entering {
 			return ast.WalkContinue, nil
@@ -298,12 +309,19 @@ func (d *Document) fenced(n *ast.FencedCodeBlock) {
 		b.Lines = append(b.Lines, t)
 		b.LinePos = append(b.LinePos, d.PosAt(seg.Start))
 	}
-	b.Pos = expr.Pos{Line: b.InfoPos.Line, Col: 1}
+	b.Pos = b.InfoPos.LineStart()
 	b.doc = d
 	d.Blocks = append(d.Blocks, b)
 	d.byNode[n] = b
 	b.kind = kind
-	d.Env.Budget.Begin(b.InfoPos, word+" block")
+	d.order = append(d.order, b)
+}
+
+// evalBlock evaluates a block by its kind, charging its work to the
+// document's budget.
+func (d *Document) evalBlock(b *Block) {
+	kind := b.kind
+	d.Env.Budget.Begin(b.InfoPos, b.Kind+" block")
 	wasOver := d.Env.Budget.Over() != nil
 	kind.Eval(b)
 	d.budgetSpentIn(wasOver, &b.Errors)
@@ -312,6 +330,9 @@ func (d *Document) fenced(n *ast.FencedCodeBlock) {
 		b.Errors = append(b.Errors, b.DrawErrors...)
 	}
 	for _, e := range b.Errors {
+		if !e.Pos.IsValid() {
+			e.Pos = b.Pos // an error of the block as a whole: its opening line
+		}
 		d.Errors = append(d.Errors, e)
 	}
 }
@@ -377,9 +398,16 @@ func (d *Document) codeSpan(n *ast.CodeSpan) {
 		}
 		lines, at = append(lines, line), append(at, d.PosAt(from))
 	}
-	src := expr.NewSourceLines(lines, at)
+	in.src = expr.NewSourceLines(lines, at)
+	d.Inline = append(d.Inline, in)
+	d.inlineN[n] = in
+	d.order = append(d.order, in)
+}
+
+// evalInline parses and evaluates an inline value.
+func (d *Document) evalInline(in *Inline) {
 	var errs expr.ErrorList
-	x, disp := expr.ParseExpr(src, &errs)
+	x, disp := expr.ParseExpr(in.src, &errs)
 	if len(errs) > 0 {
 		in.Err = errs[0]
 		d.Errors = append(d.Errors, errs...)
@@ -400,6 +428,4 @@ func (d *Document) codeSpan(n *ast.CodeSpan) {
 			d.Errors = append(d.Errors, e)
 		}
 	}
-	d.Inline = append(d.Inline, in)
-	d.inlineN[n] = in
 }

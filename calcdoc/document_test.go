@@ -67,8 +67,8 @@ func TestFrontMatter(t *testing.T) {
 				if len(d.Errors) != 1 || !strings.Contains(d.Errors[0].Msg, c.wantErr) {
 					t.Fatalf("want one error with %q, got %v", c.wantErr, d.Errors)
 				}
-				if d.Errors[0].Pos.Line < 2 {
-					t.Errorf("error line %d should be inside the front matter", d.Errors[0].Pos.Line)
+				if d.Errors[0].Pos.Line() < 2 {
+					t.Errorf("error line %d should be inside the front matter", d.Errors[0].Pos.Line())
 				}
 			}
 			if c.warn != "" && (len(d.Warnings) != 1 || !strings.Contains(d.Warnings[0].Msg, c.warn)) {
@@ -88,14 +88,14 @@ func TestLineNumbersAreFileLines(t *testing.T) {
 		t.Fatalf("want 2 errors, got %v", d.Errors)
 	}
 	// b = a + 2 A is line 9; the "+" is at column 7
-	if e := d.Errors[0]; e.Pos != (expr.Pos{Line: 9, Col: 7}) || !strings.Contains(e.Msg, "cannot add 1 V and 2 A") {
+	if e := d.Errors[0]; e.Pos.Position().InFile() != (expr.Position{Line: 9, Col: 7}) || !strings.Contains(e.Msg, "cannot add 1 V and 2 A") {
 		t.Errorf("first error %v", e)
 	}
 	// `=zz` on line 12: zz starts at column 8
-	if e := d.Errors[1]; e.Pos != (expr.Pos{Line: 12, Col: 8}) || !strings.Contains(e.Msg, `unknown name "zz"`) {
+	if e := d.Errors[1]; e.Pos.Position().InFile() != (expr.Position{Line: 12, Col: 8}) || !strings.Contains(e.Msg, `unknown name "zz"`) {
 		t.Errorf("second error %v", e)
 	}
-	if v := d.Values[0]; v.Name != "a" || v.Pos.Line != 8 {
+	if v := d.Values[0]; v.Name != "a" || v.Pos.Line() != 8 {
 		t.Errorf("value a at %v", v.Pos)
 	}
 }
@@ -122,9 +122,9 @@ func TestUnavailableDoesNotCascade(t *testing.T) {
 	stmts := b.Result.([]*calcdoc.Stmt)
 	for _, st := range stmts[1:] {
 		if st.Unavailable == nil {
-			t.Errorf("line %d should be marked not evaluated", st.Stmt.Pos().Line)
-		} else if st.Unavailable.Def.Line != 2 {
-			t.Errorf("line %d points at line %d, want 2", st.Stmt.Pos().Line, st.Unavailable.Def.Line)
+			t.Errorf("line %d should be marked not evaluated", st.Stmt.Pos().Line())
+		} else if st.Unavailable.Def.Line() != 2 {
+			t.Errorf("line %d points at line %d, want 2", st.Stmt.Pos().Line(), st.Unavailable.Def.Line())
 		}
 	}
 	if d.Checks[0].Result != nil {
@@ -159,7 +159,7 @@ func TestErrorsSortedAndEvaluationGoesOn(t *testing.T) {
 
 func TestInvalidUTF8(t *testing.T) {
 	d := calcdoc.Parse("bad.md", []byte("# Title \xff\n\n```calc\nx = 1\n```\n"), kinds)
-	if len(d.Errors) != 1 || !strings.Contains(d.Errors[0].Msg, "UTF-8") || d.Errors[0].Pos != (expr.Pos{Line: 1, Col: 9}) {
+	if len(d.Errors) != 1 || !strings.Contains(d.Errors[0].Msg, "UTF-8") || d.Errors[0].Pos.Position().InFile() != (expr.Position{Line: 1, Col: 9}) {
 		t.Fatalf("got %v", d.Errors)
 	}
 	if strings.Contains(string(d.Text), "\xff") {

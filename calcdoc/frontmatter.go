@@ -89,9 +89,9 @@ func splitFrontMatter(src []byte) (yamlText []byte, lines int, ok bool) {
 // yamlPos converts a position of the YAML parser in the front matter's
 // text (line and column from 1; a YAML line ends at \r\n, \r, \n, NEL, LS
 // or PS, and a column counts characters) into the position in the .md
-// file, whose lines end at \n only; the text starts on line 2. A column
-// past the end of its line is taken as the end of the line.
-func yamlPos(text []byte, line, col int) expr.Pos {
+// file (whose lines end at \n only), where the text starts at base. A
+// column past the end of its line is taken as the end of the line.
+func yamlPos(text []byte, base expr.Pos, line, col int) expr.Pos {
 	off := 0
 	for l := 1; l < line && off < len(text); {
 		if n := yamlBreak(text, off); n > 0 {
@@ -106,8 +106,7 @@ func yamlPos(text []byte, line, col int) expr.Pos {
 		_, w := utf8.DecodeRune(text[off:])
 		off += w
 	}
-	start := bytes.LastIndexByte(text[:off], '\n') + 1
-	return expr.Pos{Line: 2 + bytes.Count(text[:off], []byte{'\n'}), Col: utf8.RuneCount(text[start:off]) + 1}
+	return base.Add(off)
 }
 
 // yamlBreak returns the length in bytes of the YAML line break at text[i],
@@ -126,13 +125,14 @@ func yamlBreak(text []byte, i int) int {
 	return 0
 }
 
-// parseFrontMatter reads the YAML of the front matter. Line numbers in its
-// errors are lines of the .md file (the YAML starts on line 2).
-func parseFrontMatter(text []byte, fm *FrontMatter, errs, warns *expr.ErrorList) {
+// parseFrontMatter reads the YAML of the front matter, which stands in the
+// .md file at base (the start of line 2); its errors are at positions of
+// the file.
+func parseFrontMatter(text []byte, base expr.Pos, fm *FrontMatter, errs, warns *expr.ErrorList) {
 	fm.Present = true
 	var root yaml.Node
 	if err := yaml.Unmarshal(text, &root); err != nil {
-		errs.Add(expr.Pos{Line: 2, Col: 1}, "front matter is not valid YAML: "+err.Error())
+		errs.Add(base, "front matter is not valid YAML: "+err.Error())
 		return
 	}
 	if len(root.Content) == 0 {
@@ -140,10 +140,10 @@ func parseFrontMatter(text []byte, fm *FrontMatter, errs, warns *expr.ErrorList)
 	}
 	m := root.Content[0]
 	if m.Kind != yaml.MappingNode {
-		errs.Add(yamlPos(text, m.Line, m.Column), "front matter must be a list of key: value lines")
+		errs.Add(yamlPos(text, base, m.Line, m.Column), "front matter must be a list of key: value lines")
 		return
 	}
-	pos := func(n *yaml.Node) expr.Pos { return yamlPos(text, n.Line, n.Column) }
+	pos := func(n *yaml.Node) expr.Pos { return yamlPos(text, base, n.Line, n.Column) }
 	str := func(k, v *yaml.Node) string {
 		if v.Kind != yaml.ScalarNode {
 			errs.Add(pos(v), fmt.Sprintf("front matter key %q needs a single value", k.Value))

@@ -78,7 +78,7 @@ func TestPreferredUnitsErrors(t *testing.T) {
 	}
 	for _, tc := range tests {
 		d := docOf("---", tc.fm, "---", "", "text")
-		if len(d.Errors) != 1 || !strings.Contains(d.Errors[0].Msg, tc.msg) || d.Errors[0].Pos.Line != 2 {
+		if len(d.Errors) != 1 || !strings.Contains(d.Errors[0].Msg, tc.msg) || d.Errors[0].Pos.Line() != 2 {
 			t.Errorf("%s: %v, want one error on line 2 with %q", tc.fm, d.Errors, tc.msg)
 		}
 	}

@@ -41,10 +41,10 @@ func TestReaderLineEnds(t *testing.T) {
 			if len(d.Errors) != 1 {
 				t.Fatalf("errors %v, want one", d.Errors)
 			}
-			if e := d.Errors[0]; e.Pos != (expr.Pos{Line: 8, Col: 7}) || !strings.Contains(e.Msg, "cannot add") {
+			if e := d.Errors[0]; e.Pos.Position().InFile() != (expr.Position{Line: 8, Col: 7}) || !strings.Contains(e.Msg, "cannot add") {
 				t.Errorf("error at %v: %s; want le.md:8:7, cannot add", e.Pos, e.Msg)
 			}
-			if len(d.Values) != 1 || d.Values[0].Name != "x" || d.Values[0].Pos != (expr.Pos{Line: 7, Col: 1}) {
+			if len(d.Values) != 1 || d.Values[0].Name != "x" || d.Values[0].Pos.Position().InFile() != (expr.Position{Line: 7, Col: 1}) {
 				t.Errorf("values %+v, want x at 7:1", d.Values)
 			}
 		})
@@ -61,7 +61,7 @@ func TestBOMFirstLinePositions(t *testing.T) {
 	}
 	// "See `=" is 6 characters, so the expression starts at column 7 and
 	// its "+" ("1 V + ...") is 4 characters on, at column 11.
-	if e := d.Errors[0]; e.Pos != (expr.Pos{Line: 1, Col: 11}) {
+	if e := d.Errors[0]; e.Pos.Position().InFile() != (expr.Position{Line: 1, Col: 11}) {
 		t.Errorf("error at %v: %s; want 1:11", e.Pos, e.Msg)
 	}
 }

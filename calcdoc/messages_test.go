@@ -16,8 +16,8 @@ func TestSolveShortHintWording(t *testing.T) {
 	tests := []struct {
 		name, src, pos, msg string
 	}{
-		{"two short", "```solve x, y\nx + y = 1\n```\n", "1:10", "or mark 2 complex unknowns real (write real after their names) if they are real quantities)"},
-		{"one short", "```solve a, b real\na + b = 1\n```\n", "1:10", "or mark one complex unknown real (write real after its name) if it is a real quantity)"},
+		{"two short", "```solve x, y\nx + y = 1\n```\n", "short.md:1:10", "or mark 2 complex unknowns real (write real after their names) if they are real quantities)"},
+		{"one short", "```solve a, b real\na + b = 1\n```\n", "short.md:1:10", "or mark one complex unknown real (write real after its name) if it is a real quantity)"},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {

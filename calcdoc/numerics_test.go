@@ -31,7 +31,7 @@ func TestOverflowNeverPasses(t *testing.T) {
 			if len(d.Errors) != 1 {
 				t.Fatalf("errors %v, want one", d.Errors)
 			}
-			if e := d.Errors[0]; e.Pos.Line != c.line || e.Pos.Col != c.col || !strings.Contains(e.Msg, c.msg) {
+			if e := d.Errors[0]; e.Pos.Line() != c.line || e.Pos.Col() != c.col || !strings.Contains(e.Msg, c.msg) {
 				t.Errorf("error %v, want at %d:%d containing %q", e, c.line, c.col, c.msg)
 			}
 			var vj struct {
@@ -61,7 +61,7 @@ func TestOverflowNeverPasses(t *testing.T) {
 func TestFailedDisplayUnitDefinesNothing(t *testing.T) {
 	// 230 V / 10 A = 23 Ω (hand derivation), not a current
 	d := parse(t, "# t\n\n```calc\ne[A] = 230 V / 10 A\nf = 2 * e\ncheck e > 1 Ω\n```\n")
-	if len(d.Errors) != 1 || d.Errors[0].Pos.Line != 4 || !strings.Contains(d.Errors[0].Msg, "the unit A is a current") {
+	if len(d.Errors) != 1 || d.Errors[0].Pos.Line() != 4 || !strings.Contains(d.Errors[0].Msg, "the unit A is a current") {
 		t.Fatalf("errors %v, want one at line 4 about the unit", d.Errors)
 	}
 	for _, v := range d.Values {

@@ -20,20 +20,20 @@ func TestFrontMatterLineBreaks(t *testing.T) {
 	cases := []struct {
 		name string
 		src  string
-		at   expr.Pos
+		at   expr.Position
 		msg  string
 	}{
-		{"LF", "---\ntitle: a\ntitle: b\n---\n", expr.Pos{Line: 3, Col: 1}, `key "title" is given twice`},
-		{"CR LF", "---\r\ntitle: a\r\ntitle: b\r\n---\r\n", expr.Pos{Line: 3, Col: 1}, `key "title" is given twice`},
+		{"LF", "---\ntitle: a\ntitle: b\n---\n", expr.Position{Line: 3, Col: 1}, `key "title" is given twice`},
+		{"CR LF", "---\r\ntitle: a\r\ntitle: b\r\n---\r\n", expr.Position{Line: 3, Col: 1}, `key "title" is given twice`},
 		// "\rdigits: 99": a lone CR ends line 2 (as a reader sees the file),
 		// so "digits: 99" is line 3 and the value starts after "digits: "
-		{"a lone CR", "---\n\rdigits: 99\n---\n", expr.Pos{Line: 3, Col: 9}, `"99" is not a whole number`},
+		{"a lone CR", "---\n\rdigits: 99\n---\n", expr.Position{Line: 3, Col: 9}, `"99" is not a whole number`},
 		// "digits: 2" is 9 characters, NEL the 10th
-		{"NEL", "---\ndigits: 2\u0085digits: 3\n---\n", expr.Pos{Line: 2, Col: 11}, `key "digits" is given twice`},
-		{"LS", "---\ndigits: 2\u2028digits: 3\n---\n", expr.Pos{Line: 2, Col: 11}, `key "digits" is given twice`},
+		{"NEL", "---\ndigits: 2\u0085digits: 3\n---\n", expr.Position{Line: 2, Col: 11}, `key "digits" is given twice`},
+		{"LS", "---\ndigits: 2\u2028digits: 3\n---\n", expr.Position{Line: 2, Col: 11}, `key "digits" is given twice`},
 		// the fuzzer's input: "\r{0, 0}"; the CR ends line 2, and on line 3
 		// the second key is the 5th character
-		{"a flow mapping after a CR", "---\n\r{0, 0}\n---", expr.Pos{Line: 3, Col: 5}, `key "0" is given twice`},
+		{"a flow mapping after a CR", "---\n\r{0, 0}\n---", expr.Position{Line: 3, Col: 5}, `key "0" is given twice`},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -42,7 +42,7 @@ func TestFrontMatterLineBreaks(t *testing.T) {
 				t.Fatalf("errors %v, want one", d.Errors)
 			}
 			e := d.Errors[0]
-			if e.Pos != c.at || !strings.Contains(e.Msg, c.msg) {
+			if e.Pos.Position().InFile() != c.at || !strings.Contains(e.Msg, c.msg) {
 				t.Errorf("error %v: %s; want it at %v, saying %q", e.Pos, e.Msg, c.at, c.msg)
 			}
 		})
@@ -57,17 +57,17 @@ func TestInlineOverLines(t *testing.T) {
 	cases := []struct {
 		name  string
 		src   string
-		value complex128 // when no error
-		at    expr.Pos   // of the error
+		value complex128    // when no error
+		at    expr.Position // of the error
 		msg   string
 	}{
-		{"a value over two lines", "Power `=2 *\n3` W\n", 6, expr.Pos{}, ""},
+		{"a value over two lines", "Power `=2 *\n3` W\n", 6, expr.Position{}, ""},
 		// "2))": the second ")" is the 3rd character of line 2
-		{"an error on the second line", "Text `=(1 +\n2))` end.\n", 0, expr.Pos{Line: 2, Col: 3}, `unexpected ")"`},
+		{"an error on the second line", "Text `=(1 +\n2))` end.\n", 0, expr.Position{Line: 2, Col: 3}, `unexpected ")"`},
 		// "> 2))": the quote marker and its space come first
-		{"in a block quote", "> Quoted `=(1 +\n> 2))` end.\n", 0, expr.Pos{Line: 2, Col: 5}, `unexpected ")"`},
+		{"in a block quote", "> Quoted `=(1 +\n> 2))` end.\n", 0, expr.Position{Line: 2, Col: 5}, `unexpected ")"`},
 		// the fuzzer's input: "(" alone on line 2, the value missing after it
-		{"an open parenthesis on the second line", "``=\n( ``", 0, expr.Pos{Line: 2, Col: 2}, "ends too soon"},
+		{"an open parenthesis on the second line", "``=\n( ``", 0, expr.Position{Line: 2, Col: 2}, "ends too soon"},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -86,7 +86,7 @@ func TestInlineOverLines(t *testing.T) {
 			if len(d.Errors) != 1 {
 				t.Fatalf("errors %v, want one", d.Errors)
 			}
-			if e := d.Errors[0]; e.Pos != c.at || !strings.Contains(e.Msg, c.msg) {
+			if e := d.Errors[0]; e.Pos.Position().InFile() != c.at || !strings.Contains(e.Msg, c.msg) {
 				t.Errorf("error %v: %s; want it at %v, saying %q", e.Pos, e.Msg, c.at, c.msg)
 			}
 		})
@@ -106,20 +106,20 @@ func TestManyErrors(t *testing.T) {
 	cases := []struct {
 		name  string
 		src   string
-		first expr.Pos // the first error
-		cut   expr.Pos // the error saying the rest are not reported (none when zero)
-		count int      // errors in all
+		first expr.Position // the first error
+		cut   expr.Position // the error saying the rest are not reported (none when zero)
+		count int           // errors in all
 	}{
 		// "x = " is 4 characters, so the k-th '$' is at column 4+k
 		{"a calc line of 1 MiB of '$'", "```calc\nx = " + strings.Repeat("$", n) + "\n```\n",
-			expr.Pos{Line: 2, Col: 5}, expr.Pos{Line: 2, Col: 105}, 101},
+			expr.Position{Line: 2, Col: 5}, expr.Position{Line: 2, Col: 105}, 101},
 		{"an inline value of 1 MiB of '$'", "Text `=" + strings.Repeat("$", n) + "` end.\n",
-			expr.Pos{Line: 1, Col: 8}, expr.Pos{Line: 1, Col: 108}, 101},
+			expr.Position{Line: 1, Col: 8}, expr.Position{Line: 1, Col: 108}, 101},
 		// "```solve q, " is 12 characters; each further "q, " is 3
 		{"a solve header listing q 349,526 times", "```solve q, " + strings.Repeat("q, ", n/3) + "\nq = 1\n```\n",
-			expr.Pos{Line: 1, Col: 13}, expr.Pos{Line: 1, Col: 13 + 3*100}, 101},
+			expr.Position{Line: 1, Col: 13}, expr.Position{Line: 1, Col: 13 + 3*100}, 101},
 		{"100,000 statements that each fail", "```calc\n" + strings.Repeat("y = q\n", 100000) + "```\n",
-			expr.Pos{Line: 2, Col: 5}, expr.Pos{}, 100000},
+			expr.Position{Line: 2, Col: 5}, expr.Position{}, 100000},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -128,7 +128,7 @@ func TestManyErrors(t *testing.T) {
 			if len(d.Errors) != c.count {
 				t.Fatalf("%d errors, want %d", len(d.Errors), c.count)
 			}
-			if d.Errors[0].Pos != c.first {
+			if d.Errors[0].Pos.Position().InFile() != c.first {
 				t.Errorf("the first error is at %v, want %v", d.Errors[0].Pos, c.first)
 			}
 			var cut *expr.Error
@@ -138,9 +138,9 @@ func TestManyErrors(t *testing.T) {
 				}
 			}
 			switch {
-			case c.cut == expr.Pos{} && cut != nil:
+			case c.cut == expr.Position{} && cut != nil:
 				t.Errorf("an error says the rest are not reported, but every one should be: %v", cut)
-			case c.cut != expr.Pos{} && (cut == nil || cut.Pos != c.cut):
+			case c.cut != expr.Position{} && (cut == nil || cut.Pos.Position().InFile() != c.cut):
 				t.Errorf("the error saying the rest are not reported is %v, want one at %v", cut, c.cut)
 			}
 		})

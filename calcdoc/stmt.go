@@ -3,7 +3,6 @@ package calcdoc
 import (
 	"sort"
 	"strings"
-	"unicode/utf8"
 
 	"calcdoc/expr"
 )
@@ -37,54 +36,17 @@ func (b *Block) Text(from, to expr.Pos) string {
 	// LinePos is in document order: start at the first line of the span
 	// and stop after its last, so that each statement costs its own lines
 	// only (a block of n statements costs n, not n²).
-	first := sort.Search(len(b.LinePos), func(i int) bool { return b.LinePos[i].Line >= from.Line })
+	first := sort.Search(len(b.LinePos), func(i int) bool { return b.LinePos[i].Off+len(b.Lines[i]) >= from.Off })
 	for i := first; i < len(b.LinePos); i++ {
-		p := b.LinePos[i]
-		if p.Line > to.Line {
+		start, line := b.LinePos[i].Off, b.Lines[i]
+		if start > to.Off {
 			break
 		}
-		line := b.Lines[i]
-		startCol, endCol := 0, utf8.RuneCountInString(line)
-		if p.Line == from.Line {
-			startCol = from.Col - p.Col
-		}
-		if p.Line == to.Line {
-			endCol = to.Col - p.Col
-		}
-		parts = append(parts, runeSlice(line, startCol, endCol))
+		lo := max(0, min(from.Off-start, len(line)))
+		hi := max(lo, min(to.Off-start, len(line)))
+		parts = append(parts, line[lo:hi])
 	}
 	return strings.Join(parts, "\n")
-}
-
-// runeSlice is s[a:b] counted in characters, not bytes.
-func runeSlice(s string, a, b int) string {
-	if a < 0 {
-		a = 0
-	}
-	if b < a {
-		b = a
-	}
-	i, n := 0, 0
-	start, end := len(s), len(s)
-	for i <= len(s) {
-		if n == a {
-			start = i
-		}
-		if n == b {
-			end = i
-			break
-		}
-		if i == len(s) {
-			break
-		}
-		_, w := utf8.DecodeRuneInString(s[i:])
-		i += w
-		n++
-	}
-	if start > end {
-		start = end
-	}
-	return s[start:end]
 }
 
 // EvalStatements runs parsed statements of a block in its environment and
@@ -139,14 +101,14 @@ func ErrorsOf(stmts []expr.Stmt, errs expr.ErrorList) (per [][]*expr.Error, rest
 	for i := range byLine {
 		byLine[i] = i
 	}
-	sort.SliceStable(byLine, func(i, j int) bool { return errs[byLine[i]].Pos.Line < errs[byLine[j]].Pos.Line })
+	sort.SliceStable(byLine, func(i, j int) bool { return errs[byLine[i]].Pos.Line() < errs[byLine[j]].Pos.Line() })
 	attached := make([]bool, len(errs))
 	per = make([][]*expr.Error, len(stmts))
 	var mine []int
 	for k, s := range stmts {
 		mine = mine[:0]
-		j := sort.Search(len(byLine), func(j int) bool { return errs[byLine[j]].Pos.Line >= s.Pos().Line })
-		for ; j < len(byLine) && errs[byLine[j]].Pos.Line <= s.End().Line; j++ {
+		j := sort.Search(len(byLine), func(j int) bool { return errs[byLine[j]].Pos.Line() >= s.Pos().Line() })
+		for ; j < len(byLine) && errs[byLine[j]].Pos.Line() <= s.End().Line(); j++ {
 			if !attached[byLine[j]] {
 				mine = append(mine, byLine[j])
 			}

@@ -98,7 +98,7 @@ func scalarUnit(s *expr.Scalar) (string, any) {
 func (d *Document) ValuesJSON() *ValuesJSON {
 	out := &ValuesJSON{File: d.Path, Values: []ValueJSON{}, Checks: []CheckJSON{}, Errors: []ErrorJSON{}}
 	for _, v := range d.Values {
-		vj := ValueJSON{Name: v.Name, Line: v.Pos.Line, Shown: expr.FormatValue(v.Value, v.Display, d.Digits())}
+		vj := ValueJSON{Name: v.Name, Line: v.Pos.Line(), Shown: expr.FormatValue(v.Value, v.Display, d.Digits())}
 		switch x := v.Value.(type) {
 		case *expr.Scalar:
 			vj.Re, vj.Im = jsonNum(real(x.Z)), jsonNum(imag(x.Z))
@@ -121,7 +121,7 @@ func (d *Document) ValuesJSON() *ValuesJSON {
 		out.Values = append(out.Values, vj)
 	}
 	for _, c := range d.Checks {
-		cj := CheckJSON{Line: c.Pos.Line, Text: c.Text}
+		cj := CheckJSON{Line: c.Pos.Line(), Text: c.Text}
 		if c.Result != nil && finiteCheck(c.Result) {
 			p := c.Result.Pass
 			cj.Pass = &p
@@ -129,7 +129,8 @@ func (d *Document) ValuesJSON() *ValuesJSON {
 		out.Checks = append(out.Checks, cj)
 	}
 	for _, e := range d.Errors {
-		out.Errors = append(out.Errors, ErrorJSON{Line: e.Pos.Line, Col: e.Pos.Col, Message: e.Msg})
+		p := e.Pos.Position()
+		out.Errors = append(out.Errors, ErrorJSON{Line: p.Line, Col: p.Col, Message: e.Msg})
 	}
 	out.Sweeps = d.SweepsJSON()
 	return out

@@ -39,7 +39,7 @@ func (d *Document) WriteValuesCSV(w io.Writer) error {
 	cw := newCSV(w)
 	cw.Write(ValuesCSVHeader)
 	for _, v := range d.Values {
-		line := strconv.Itoa(v.Pos.Line)
+		line := strconv.Itoa(v.Pos.Line())
 		switch x := v.Value.(type) {
 		case *expr.Scalar:
 			cw.Write([]string{v.Name, line, csvNum(real(x.Z)), csvNum(imag(x.Z)), csvUnit(x), expr.FormatValue(x, v.Display, d.Digits())})

@@ -126,7 +126,7 @@ func (d *Document) SweepsJSON() []SweepJSON {
 	out := []SweepJSON{}
 	for _, b := range d.Blocks {
 		if sv, ok := b.Result.(SweepValuer); ok {
-			out = append(out, sv.SweepJSON(b.Pos.Line))
+			out = append(out, sv.SweepJSON(b.Pos.Line()))
 		}
 	}
 	return out

@@ -37,7 +37,7 @@ func BenchmarkStatements(b *testing.B) {
 	// the block must be clean, or the benchmark measures error paths
 	{
 		var errs ErrorList
-		stmts := ParseBlock(NewSource(text, Pos{Line: 1, Col: 1}), CalcMode, &errs)
+		stmts := ParseBlock(NewSource(text, Pos{}), CalcMode, &errs)
 		if len(errs) > 0 || len(stmts) != n {
 			b.Fatalf("%d statements, errors %v", len(stmts), errs)
 		}
@@ -55,7 +55,7 @@ func BenchmarkStatements(b *testing.B) {
 	b.ResetTimer()
 	for i := 0; i < b.N; i++ {
 		var errs ErrorList
-		stmts := ParseBlock(NewSource(text, Pos{Line: 1, Col: 1}), CalcMode, &errs)
+		stmts := ParseBlock(NewSource(text, Pos{}), CalcMode, &errs)
 		env := NewEnv()
 		for _, s := range stmts {
 			env.Exec(s)

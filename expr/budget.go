@@ -92,7 +92,7 @@ func (b *Budget) Charge(n int64, pos Pos) *Error {
 		return nil
 	}
 	if b.over != nil {
-		return Errorf(pos, notEvaluated+"at line %d (see the error there)", b.over.Pos.Line)
+		return Errorf(pos, notEvaluated+"at line %d (see the error there)", b.over.Pos.Line())
 	}
 	if b.stopped.Load() {
 		return Errorf(pos, "not evaluated: the evaluation was stopped")
@@ -103,8 +103,8 @@ func (b *Budget) Charge(n int64, pos Pos) *Error {
 			what = "line"
 		}
 		at := ""
-		if b.markPos.IsValid() && b.markPos.Line != pos.Line {
-			at = fmt.Sprintf(" (from line %d)", b.markPos.Line)
+		if b.markPos.IsValid() && b.markPos.Line() != pos.Line() {
+			at = fmt.Sprintf(" (from line %d)", b.markPos.Line())
 		}
 		b.over = Errorf(pos, "the document's work budget of %s units is spent here: this %s%s had used %s units and asked for %s more; the lines above it used %s. "+
 			"Split the work: put heavy sweeps, solves or matrix products in documents of their own (one document can use the values of another), or use fewer sweep points, smaller matrices or fewer nested function calls",

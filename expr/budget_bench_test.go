@@ -71,7 +71,7 @@ func BenchmarkWorkUnit(b *testing.B) {
 				env := NewEnv()
 				env.Budget = NewBudget(1 << 40)
 				var errs ErrorList
-				stmts := ParseBlock(NewSource(c.text, Pos{Line: 1, Col: 1}), CalcMode, &errs)
+				stmts := ParseBlock(NewSource(c.text, Pos{}), CalcMode, &errs)
 				start := time.Now()
 				for _, s := range stmts {
 					env.Exec(s)

@@ -26,7 +26,7 @@ func TestBudgetCharges(t *testing.T) {
 	}
 	prod := func(env *Env) (Value, error) {
 		var errs ErrorList
-		x, _ := ParseExpr(NewSource("A*B", Pos{Line: 7, Col: 1}), &errs)
+		x, _ := ParseExpr(NewSource("A*B", PlaceAt("A*B", 7, 1)), &errs)
 		return env.Eval(x, nil)
 	}
 	env := setup(138)
@@ -36,7 +36,7 @@ func TestBudgetCharges(t *testing.T) {
 	env = setup(119)
 	_, err := prod(env)
 	e, ok := err.(*Error)
-	if !ok || e != env.Budget.Over() || e.Pos != (Pos{Line: 7, Col: 2}) {
+	if !ok || e != env.Budget.Over() || e.Pos.Position().InFile() != (Position{Line: 7, Col: 2}) {
 		t.Fatalf("budget 119: error %v at %v, want the budget's error at 7:2 (the operator)", err, errPos(err))
 	}
 	for _, want := range []string{"work budget of 119 units is spent here", "asked for 54 more", "Split the work"} {
@@ -59,7 +59,7 @@ func TestBudgetStop(t *testing.T) {
 	b := runBlock("x = 2")
 	b.env.Budget.Stop()
 	var errs ErrorList
-	x, _ := ParseExpr(NewSource("x + 1", Pos{Line: 3, Col: 1}), &errs)
+	x, _ := ParseExpr(NewSource("x + 1", PlaceAt("x + 1", 3, 1)), &errs)
 	if _, err := b.env.Eval(x, nil); !strings.Contains(errMsg(err), "the evaluation was stopped") {
 		t.Errorf("after Stop: %v", err)
 	}

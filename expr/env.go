@@ -102,13 +102,13 @@ func (e *Env) CanDefine(name string, pos Pos) *Error {
 		return Errorf(pos, "%q is a %s and cannot be redefined: choose another name", name, what)
 	}
 	if b := e.vars[key]; b != nil {
-		return Errorf(pos, "%q is already defined at line %d%s: each name is defined once (choose another name, e.g. %s_2)", name, b.Pos.Line, sameNameNote(name, b.Name), name)
+		return Errorf(pos, "%q is already defined at line %d%s: each name is defined once (choose another name, e.g. %s_2)", name, b.Pos.Line(), sameNameNote(name, b.Name), name)
 	}
 	if f := e.funcs[key]; f != nil {
-		return Errorf(pos, "%q is already defined as a function at line %d%s: each name is defined once", name, f.Pos.Line, sameNameNote(name, f.Name))
+		return Errorf(pos, "%q is already defined as a function at line %d%s: each name is defined once", name, f.Pos.Line(), sameNameNote(name, f.Name))
 	}
 	if t := e.tables[key]; t != nil {
-		return Errorf(pos, "%q is already defined as a table at line %d%s: each name is defined once", name, t.pos.Line, sameNameNote(name, t.name))
+		return Errorf(pos, "%q is already defined as a table at line %d%s: each name is defined once", name, t.pos.Line(), sameNameNote(name, t.name))
 	}
 	return nil
 }
@@ -157,5 +157,5 @@ type UnavailableError struct {
 }
 
 func (u *UnavailableError) Error() string {
-	return fmt.Sprintf("%s: %q has no value because its definition at line %d failed", u.Pos, u.Name, u.Def.Line)
+	return fmt.Sprintf("%s: %q has no value because its definition at line %d failed", u.Pos, u.Name, u.Def.Line())
 }

@@ -130,7 +130,8 @@ func TestErrors(t *testing.T) {
 
 // posInside reports whether p lies in text: a line of the text, and a
 // column from 1 to one past the line's last character.
-func posInside(text string, p Pos) bool {
+func posInside(text string, pos Pos) bool {
+	p := pos.Position()
 	lines := strings.Split(text, "\n")
 	if p.Line < 1 || p.Line > len(lines) {
 		return false
@@ -189,7 +190,7 @@ func TestNestingErrorPointsAtAParenthesis(t *testing.T) {
 	if err == nil {
 		t.Fatal("no error")
 	}
-	p := errPos(err)
+	p := errPos(err).Position()
 	if p.Line != 1 || p.Col < 1 || p.Col > 300 {
 		t.Errorf("error at %s, want on one of the 300 parentheses", p)
 	}
@@ -230,7 +231,7 @@ func TestBadNumberIsNotEvaluated(t *testing.T) {
 		}
 	}
 	var errs ErrorList
-	x, _ := ParseExpr(NewSource("1e999 V", Pos{Line: 1, Col: 1}), &errs)
+	x, _ := ParseExpr(NewSource("1e999 V", Pos{}), &errs)
 	if _, ok := x.(*BadExpr); !ok || len(errs) != 1 {
 		t.Errorf("ParseExpr: %s, errors %v; want a BadExpr and one error", sexpr(x), errs)
 	}
@@ -238,12 +239,34 @@ func TestBadNumberIsNotEvaluated(t *testing.T) {
 
 func TestErrorListSort(t *testing.T) {
 	// pos.go: Sort orders by position, Error writes line:col: message.
-	l := ErrorList{{Pos{3, 1}, "c"}, {Pos{1, 5}, "b"}, {Pos{1, 2}, "a"}}
+	f := NewFile("", " a  b\n\nc") // a at 1:2, b at 1:5, c at 3:1
+	l := ErrorList{{f.Pos(7), "c"}, {f.Pos(4), "b"}, {f.Pos(1), "a"}}
 	l.Sort()
 	if got := l.Error(); got != "1:2: a\n1:5: b\n3:1: c" {
 		t.Errorf("got %q", got)
 	}
 	if (ErrorList{}).Err() != nil {
 		t.Error("empty list is not nil error")
+	}
+}
+
+// TestErrorReport: an error is written "file:line:col: message" (the
+// line and column counted by hand in the text: "b" is the 3rd character
+// of line 2, "é" counting as one), a label before the message, without
+// the file when it has none, and the message alone without a position.
+func TestErrorReport(t *testing.T) {
+	f := NewFile("feeder.md", "x\né b")
+	e := &Error{Pos: f.Pos(5), Msg: "m"}
+	for got, want := range map[string]string{
+		e.Error():                            "feeder.md:2:3: m",
+		e.Report("warning"):                  "feeder.md:2:3: warning: m",
+		e.InFile():                           "2:3: m",
+		e.Pos.String():                       "2:3",
+		(&Error{Msg: "m"}).Report("warning"): "warning: m",
+		(&Error{Pos: PlaceAt("b", 2, 3), Msg: "m"}).Error(): "2:3: m",
+	} {
+		if got != want {
+			t.Errorf("got %q, want %q", got, want)
+		}
 	}
 }

@@ -316,7 +316,7 @@ func (ev *evaluator) ident(n *Ident) (Value, error) {
 		return nil, Errorf(n.P, "%q is a function: call it with parentheses, e.g. %s(x)", n.Name, n.Name)
 	}
 	if f := ev.env.funcs[key]; f != nil {
-		return nil, Errorf(n.P, "%q is a function defined at line %d: call it with parentheses", n.Name, f.Pos.Line)
+		return nil, Errorf(n.P, "%q is a function defined at line %d: call it with parentheses", n.Name, f.Pos.Line())
 	}
 	return nil, Errorf(n.P, "unknown name %q%s", n.Name, ev.suggestName(n.Name))
 }
@@ -581,7 +581,7 @@ func (ev *evaluator) call(n *Call) (Value, error) {
 	}
 	if f := ev.env.funcs[key]; f != nil {
 		if len(args) != len(f.Params) {
-			return nil, Errorf(n.P, "%s takes %d argument%s (defined at line %d), not %d", name, len(f.Params), plural(len(f.Params)), f.Pos.Line, len(args))
+			return nil, Errorf(n.P, "%s takes %d argument%s (defined at line %d), not %d", name, len(f.Params), plural(len(f.Params)), f.Pos.Line(), len(args))
 		}
 		if ev.depth >= MaxCallDepth {
 			return nil, Errorf(n.P, "functions call each other too deeply (more than %d levels)", MaxCallDepth)
@@ -603,7 +603,7 @@ func (ev *evaluator) call(n *Call) (Value, error) {
 				return nil, e
 			}
 			if e, ok := err.(*Error); ok {
-				return nil, Errorf(n.P, "in %s (defined at line %d): %s", name, f.Pos.Line, e.Msg)
+				return nil, Errorf(n.P, "in %s (defined at line %d): %s", name, f.Pos.Line(), e.Msg)
 			}
 			return nil, err
 		}

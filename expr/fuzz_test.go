@@ -44,7 +44,8 @@ func checkEngine(t *testing.T, src string) {
 	for i, l := range lines {
 		runes[i] = utf8.RuneCountInString(l)
 	}
-	inside := func(what string, p Pos, end bool) {
+	inside := func(what string, pos Pos, end bool) {
+		p := pos.Position()
 		if !p.IsValid() {
 			if !end {
 				t.Fatalf("%s: no position (input %q)", what, src)
@@ -98,7 +99,7 @@ func checkEngine(t *testing.T, src string) {
 
 	// as a calc block
 	var errs ErrorList
-	stmts := ParseBlock(NewSource(src, Pos{Line: 1, Col: 1}), CalcMode, &errs)
+	stmts := ParseBlock(NewSource(src, Pos{}), CalcMode, &errs)
 	for _, e := range errs {
 		checkErr(e)
 	}
@@ -137,7 +138,7 @@ func checkEngine(t *testing.T, src string) {
 
 	// as a solve block: parsed, and each side evaluated in the calc block's names
 	var eerrs ErrorList
-	for _, s := range ParseBlock(NewSource(src, Pos{Line: 1, Col: 1}), EquationMode, &eerrs) {
+	for _, s := range ParseBlock(NewSource(src, Pos{}), EquationMode, &eerrs) {
 		if eq, ok := s.(*Equation); ok {
 			checkNode(eq.LHS)
 			checkNode(eq.RHS)
@@ -152,7 +153,7 @@ func checkEngine(t *testing.T, src string) {
 
 	// as an inline value
 	var ierrs ErrorList
-	x, d := ParseExpr(NewSource(src, Pos{Line: 1, Col: 1}), &ierrs)
+	x, d := ParseExpr(NewSource(src, Pos{}), &ierrs)
 	for _, e := range ierrs {
 		checkErr(e)
 	}

@@ -14,7 +14,7 @@ import (
 func parseOne(t *testing.T, src string) (Stmt, ErrorList) {
 	t.Helper()
 	var errs ErrorList
-	stmts := ParseBlock(NewSource(src, Pos{Line: 1, Col: 1}), CalcMode, &errs)
+	stmts := ParseBlock(NewSource(src, Pos{}), CalcMode, &errs)
 	if len(stmts) != 1 {
 		var got []string
 		for _, s := range stmts {
@@ -160,7 +160,7 @@ func TestTwoSpacesEndTheUnit(t *testing.T) {
 	if _, bad := s.(*BadStmt); !bad {
 		t.Errorf("got %s, want a bad statement", stmtString(s))
 	}
-	if len(errs) != 1 || errs[0].Pos != (Pos{1, 4}) || !strings.Contains(errs[0].Msg, `"V" is read as a name here`) {
+	if len(errs) != 1 || errs[0].Pos.Position().InFile() != (Position{Line: 1, Col: 4}) || !strings.Contains(errs[0].Msg, `"V" is read as a name here`) {
 		t.Errorf("errors %v, want one at 1:4 about the name V", errs)
 	}
 }
@@ -238,7 +238,7 @@ func TestStatementsOfABlock(t *testing.T) {
 		"check |I_ef| <= 6 kA            # breaking capacity of the protective device\n" +
 		"V_n / 2                         # a bare expression: shown, not named\n"
 	var errs ErrorList
-	stmts := ParseBlock(NewSource(src, Pos{Line: 1, Col: 1}), CalcMode, &errs)
+	stmts := ParseBlock(NewSource(src, Pos{}), CalcMode, &errs)
 	if len(errs) > 0 {
 		t.Fatal(errs)
 	}
@@ -250,8 +250,8 @@ func TestStatementsOfABlock(t *testing.T) {
 		t.Fatalf("got %d statements, want %d", len(stmts), len(want))
 	}
 	for i, s := range stmts {
-		if got := strings.TrimSpace(typeName(s)); got != want[i].kind || s.Pos().Line != want[i].line {
-			t.Errorf("statement %d: %s at line %d, want %s at line %d", i, got, s.Pos().Line, want[i].kind, want[i].line)
+		if got := strings.TrimSpace(typeName(s)); got != want[i].kind || s.Pos().Line() != want[i].line {
+			t.Errorf("statement %d: %s at line %d, want %s at line %d", i, got, s.Pos().Line(), want[i].kind, want[i].line)
 		}
 	}
 	// and it evaluates: 230 V / (0.12 + j0.08) Ω, |I| = 230/|0.12+j0.08| = 1595 A
@@ -330,7 +330,7 @@ func TestPositions(t *testing.T) {
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
 			var errs ErrorList
-			stmts := ParseBlock(NewSource(tc.src, Pos{Line: 1, Col: 1}), CalcMode, &errs)
+			stmts := ParseBlock(NewSource(tc.src, Pos{}), CalcMode, &errs)
 			if len(errs) > 0 {
 				t.Fatal(errs)
 			}
@@ -357,32 +357,32 @@ func TestPositions(t *testing.T) {
 func TestSourcePositions(t *testing.T) {
 	t.Run("block starting at line 10", func(t *testing.T) {
 		var errs ErrorList
-		stmts := ParseBlock(NewSource("a = 1\nb = zz", Pos{Line: 10, Col: 1}), CalcMode, &errs)
+		stmts := ParseBlock(NewSource("a = 1\nb = zz", PlaceAt("a = 1\nb = zz", 10, 1)), CalcMode, &errs)
 		env := NewEnv()
 		env.Exec(stmts[0])
 		r := env.Exec(stmts[1])
-		if errPos(r.Err) != (Pos{11, 5}) {
+		if errPos(r.Err).Position().InFile() != (Position{Line: 11, Col: 5}) {
 			t.Errorf("error at %v, want 11:5: %v", errPos(r.Err), r.Err)
 		}
 	})
 	t.Run("inline value inside a line of prose", func(t *testing.T) {
 		// the text after "=" of `=I_ef[A]` starting at column 12 of line 7
 		var errs ErrorList
-		x, d := ParseExpr(NewSourceLines([]string{"I_x + zz[A]"}, []Pos{{Line: 7, Col: 12}}), &errs)
+		x, d := ParseExpr(NewSourceLines([]string{"I_x + zz[A]"}, Place([]string{"I_x + zz[A]"}, []Position{{Line: 7, Col: 12}})), &errs)
 		if len(errs) > 0 || d == nil || d.Unit.Text != "A" {
 			t.Fatalf("errs %v display %v", errs, d)
 		}
 		env := NewEnv()
-		env.Define(&Binding{Name: "I_x", Value: Quantity(1, DimCurrent), Pos: Pos{1, 1}})
+		env.Define(&Binding{Name: "I_x", Value: Quantity(1, DimCurrent), Pos: PlaceAt("", 1, 1)})
 		_, err := env.Eval(x, nil)
-		if errPos(err) != (Pos{7, 18}) || !strings.Contains(errMsg(err), `unknown name "zz"`) {
+		if errPos(err).Position().InFile() != (Position{Line: 7, Col: 18}) || !strings.Contains(errMsg(err), `unknown name "zz"`) {
 			t.Errorf("got %v, want unknown name zz at 7:18", err)
 		}
 	})
 	t.Run("columns count characters not bytes", func(t *testing.T) {
 		// Ω, ∥ and µ are several bytes each in UTF-8
 		err := firstError("y = 1 Ω ∥ 2 µΩ ∥ zz")
-		if errPos(err) != (Pos{1, 18}) {
+		if errPos(err).Position().InFile() != (Position{Line: 1, Col: 18}) {
 			t.Errorf("error at %v, want 1:18: %v", errPos(err), err)
 		}
 	})
@@ -397,7 +397,7 @@ func TestEquationMode(t *testing.T) {
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
 			var errs ErrorList
-			stmts := ParseBlock(NewSource(tc.src, Pos{Line: 1, Col: 1}), EquationMode, &errs)
+			stmts := ParseBlock(NewSource(tc.src, Pos{}), EquationMode, &errs)
 			if len(errs) > 0 || len(stmts) != 1 {
 				t.Fatalf("errs %v, %d statements", errs, len(stmts))
 			}
@@ -408,25 +408,29 @@ func TestEquationMode(t *testing.T) {
 	}
 }
 
-// TestPosMemo: the positions the scanner and parser compute incrementally
-// (posMemo) are those of Source.PosAt, which counts the characters from the
-// start of the line, for offsets asked in any order.
-func TestPosMemo(t *testing.T) {
-	src := NewSourceLines([]string{"V = 230 V∠-120°", "", "Z = 3 Ω ∥ (1 + j2) Ω", "µ"}, []Pos{{4, 3}, {5, 1}, {6, 1}, {9, 1}})
+// TestPositionMemo: File.Position counts on from the last position it
+// computed; positions asked in any order (along a line, backwards, across
+// lines) are those of a naive count from the start of the file: lines
+// counted by "\n", columns by characters.
+func TestPositionMemo(t *testing.T) {
+	text := "V = 230 V∠-120°\r\n\n\tZ = 3 Ω ∥ (1 + j2) Ω\nµ"
+	f := NewFile("memo.md", text)
 	var offs []int
-	for o := 0; o <= len(src.Text)+2; o++ {
+	for o := 0; o <= len(text)+2; o++ {
 		offs = append(offs, o)
 	}
-	for o := len(src.Text); o >= -1; o -= 3 {
+	for o := len(text); o >= -1; o -= 3 {
 		offs = append(offs, o, o+1, o-2)
 	}
-	var m posMemo
 	for _, o := range offs {
-		if o > 0 && o < len(src.Text) && !utf8.RuneStart(src.Text[o]) {
+		if o > 0 && o < len(text) && !utf8.RuneStart(text[o]) {
 			continue // token offsets stand on character boundaries
 		}
-		if got, want := m.at(src, o), src.PosAt(o); got != want {
-			t.Fatalf("offset %d: %v, PosAt %v", o, got, want)
+		c := max(0, min(o, len(text)))
+		line := 1 + strings.Count(text[:c], "\n")
+		col := 1 + utf8.RuneCountInString(text[strings.LastIndex(text[:c], "\n")+1:c])
+		if got, want := f.Position(o), (Position{Filename: "memo.md", Line: line, Col: col}); got != want {
+			t.Fatalf("offset %d: %v, counted %v", o, got, want)
 		}
 	}
 }

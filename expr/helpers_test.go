@@ -24,7 +24,7 @@ type block struct {
 // file, and executes every statement in order in a new Env.
 func runBlock(text string) *block {
 	b := &block{env: NewEnv()}
-	b.stmts = ParseBlock(NewSource(text, Pos{Line: 1, Col: 1}), CalcMode, &b.parse)
+	b.stmts = ParseBlock(NewSource(text, Pos{}), CalcMode, &b.parse)
 	for _, s := range b.stmts {
 		b.results = append(b.results, b.env.Exec(s))
 	}

@@ -17,7 +17,7 @@ func shownAs(t *testing.T, src string, prefs []string, digits int) (*Scalar, str
 		}
 		b.env.Preferred = p
 	}
-	b.stmts = ParseBlock(NewSource(src, Pos{Line: 1, Col: 1}), CalcMode, &b.parse)
+	b.stmts = ParseBlock(NewSource(src, Pos{}), CalcMode, &b.parse)
 	for _, s := range b.stmts {
 		b.results = append(b.results, b.env.Exec(s))
 	}

@@ -64,7 +64,7 @@ func TestNonFiniteIsAnErrorAtItsOperator(t *testing.T) {
 			if err == nil {
 				t.Fatalf("%s: no error, want %q", c.src, c.msg)
 			}
-			if p := errPos(err); p.Line != 1 || p.Col != c.col || !strings.Contains(errMsg(err), c.msg) {
+			if p := errPos(err).Position(); p.Line != 1 || p.Col != c.col || !strings.Contains(errMsg(err), c.msg) {
 				t.Errorf("%s: error at %v %q, want at column %d containing %q", c.src, p, errMsg(err), c.col, c.msg)
 			}
 		})
@@ -349,7 +349,7 @@ func TestCheckUtilisationNeverInfinite(t *testing.T) {
 // section 7.4) from an invalid operation (NaN, section 7.2: 0·∞, ∞ − ∞,
 // 0/0), for a scalar and for any entry of a matrix.
 func TestNonFiniteKinds(t *testing.T) {
-	at := Pos{Line: 3, Col: 7}
+	at := PlaceAt("", 3, 7)
 	bin := &Binary{Op: SUB, OpPos: at}
 	nan := complex(math.NaN(), 0)
 	inf := complex(0, math.Inf(-1))

@@ -522,7 +522,7 @@ func TestUnavailableName(t *testing.T) {
 	if !ok {
 		t.Fatalf("second error %T %v, want *UnavailableError", b.results[1].Err, b.results[1].Err)
 	}
-	if u.Pos != (Pos{2, 5}) || u.Def != (Pos{1, 1}) || u.Name != "a" {
+	if u.Pos.Position().InFile() != (Position{Line: 2, Col: 5}) || u.Def.Position().InFile() != (Position{Line: 1, Col: 1}) || u.Name != "a" {
 		t.Errorf("got %+v", u)
 	}
 }

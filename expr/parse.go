@@ -74,12 +74,11 @@ type parser struct {
 	depth int
 	bad   bool
 	opPos Pos
-	pm    posMemo
 }
 
 type bail struct{}
 
-func (p *parser) pos(off int) Pos { return p.pm.at(p.src, off) }
+func (p *parser) pos(off int) Pos { return p.src.PosAt(off) }
 
 func (p *parser) fail(off int, format string, args ...any) {
 	p.errs.Add(p.pos(off), fmt.Sprintf(format, args...))

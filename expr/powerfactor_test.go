@@ -155,7 +155,7 @@ func TestPowerFactorErrors(t *testing.T) {
 		if !strings.Contains(errMsg(err), c.want) {
 			t.Errorf("%q: error %q, want it to say %q", c.text, errMsg(err), c.want)
 		}
-		if p := errPos(err); p.Line == 0 || p.Col == 0 {
+		if p := errPos(err).Position(); p.Line == 0 || p.Col == 0 {
 			t.Errorf("%q: error without a position: %v", c.text, err)
 		}
 	}

@@ -10,34 +10,39 @@ import (
 )
 
 // Source is the text of one block (or one line) and where each of its lines
-// stands in the document, so that every position is a position in the .md
-// file.
+// stands in its file, so that every position is a position in the .md
+// file. Each line of Text stands verbatim in the file at its position.
 type Source struct {
 	Text   string
 	Lines  []Pos // position in the file of the first character of each line of Text
 	starts []int
 }
 
-// NewSource builds a Source whose first line starts at first in the file
-// and whose later lines start at column 1 of the following file lines.
+// NewSource builds a Source whose text stands in the file at first (its
+// later lines at the start of the lines that follow). When first is not
+// valid, the text is a file of its own (named "").
 func NewSource(text string, first Pos) *Source {
+	if !first.IsValid() {
+		first = NewFile("", text).Pos(0)
+	}
 	s := &Source{Text: text}
 	s.index()
 	s.Lines = make([]Pos, len(s.starts))
-	for i := range s.starts {
-		if i == 0 {
-			s.Lines[i] = first
-		} else {
-			s.Lines[i] = Pos{Line: first.Line + i, Col: 1}
-		}
+	for i, st := range s.starts {
+		s.Lines[i] = first.Add(st)
 	}
 	return s
 }
 
 // NewSourceLines builds a Source from lines already split, each with its
-// position in the file.
+// position in the file (where the line stands verbatim). Without a
+// position for every line, the lines are a file of their own.
 func NewSourceLines(lines []string, pos []Pos) *Source {
-	s := &Source{Text: strings.Join(lines, "\n"), Lines: append([]Pos(nil), pos...)}
+	text := strings.Join(lines, "\n")
+	if len(pos) < len(lines) {
+		return NewSource(text, Pos{})
+	}
+	s := &Source{Text: text, Lines: append([]Pos(nil), pos[:len(lines)]...)}
 	s.index()
 	return s
 }
@@ -53,54 +58,12 @@ func (s *Source) index() {
 
 // PosAt converts a byte offset into Text to a position in the file.
 func (s *Source) PosAt(off int) Pos {
-	if off < 0 {
-		off = 0
-	}
-	if off > len(s.Text) {
-		off = len(s.Text)
-	}
-	i := sort.Search(len(s.starts), func(i int) bool { return s.starts[i] > off }) - 1
-	if i < 0 {
-		i = 0
-	}
-	base := Pos{Line: 1, Col: 1}
-	if i < len(s.Lines) {
-		base = s.Lines[i]
-	}
-	return Pos{Line: base.Line, Col: base.Col + utf8.RuneCountInString(s.Text[s.starts[i]:off])}
-}
-
-// posMemo is s.PosAt with a memory of the last position computed. The
-// scanner and the parser ask for positions mostly in increasing order
-// along a line; those are counted from the last one instead of from the
-// start of the line, so that a long line costs linear time, not quadratic.
-// Offsets stand on character boundaries, as every token's do.
-type posMemo struct {
-	off, line int
-	pos       Pos
-}
-
-func (m *posMemo) at(s *Source, off int) Pos {
 	off = max(0, min(off, len(s.Text)))
-	if m.pos.IsValid() && off >= s.starts[m.line] && (m.line+1 >= len(s.starts) || off < s.starts[m.line+1]) {
-		// on the line of the last position: count from it, or from the
-		// start of the line when off lies before it
-		from, col := m.off, m.pos.Col
-		if off < m.off {
-			from, col = s.starts[m.line], s.Lines[m.line].Col
-		}
-		m.pos.Col = col + utf8.RuneCountInString(s.Text[from:off])
-		m.off = off
-		return m.pos
+	i := max(0, sort.Search(len(s.starts), func(i int) bool { return s.starts[i] > off })-1)
+	if i >= len(s.Lines) {
+		return Pos{}
 	}
-	i := sort.Search(len(s.starts), func(i int) bool { return s.starts[i] > off }) - 1
-	if i < 0 || i >= len(s.Lines) {
-		return s.PosAt(off)
-	}
-	// as PosAt: the line's position in the file plus the characters before off
-	m.off, m.line = off, i
-	m.pos = Pos{Line: s.Lines[i].Line, Col: s.Lines[i].Col + utf8.RuneCountInString(s.Text[s.starts[i]:off])}
-	return m.pos
+	return s.Lines[i].Add(off - s.starts[i])
 }
 
 // Kind is the kind of a token.
@@ -186,10 +149,9 @@ type scanner struct {
 	off  int
 	errs *ErrorList
 	toks []Token
-	pm   posMemo
 }
 
-func (s *scanner) errAt(off int, msg string) { s.errs.Add(s.pm.at(s.src, off), msg) }
+func (s *scanner) errAt(off int, msg string) { s.errs.Add(s.src.PosAt(off), msg) }
 
 func (s *scanner) peekRune(off int) (rune, int) {
 	if off >= len(s.text) {

@@ -93,7 +93,7 @@ func (ev *evaluator) tableRef(n *Ident) error {
 		return Errorf(n.P, "%s is the column %s of the table %s: look a value up with %s(x), or interp(%s, x) between rows", n.Name, col, tab, n.Name, n.Name)
 	}
 	if b := ev.env.tables[n.key()]; b != nil {
-		return Errorf(n.P, "%s is a table (defined at line %d): look a value up with %s.COLUMN(x), interp(%s.COLUMN, x), up(%s, x) or down(%s, x)", n.Name, b.pos.Line, n.Name, n.Name, n.Name, n.Name)
+		return Errorf(n.P, "%s is a table (defined at line %d): look a value up with %s.COLUMN(x), interp(%s.COLUMN, x), up(%s, x) or down(%s, x)", n.Name, b.pos.Line(), n.Name, n.Name, n.Name, n.Name)
 	}
 	return nil
 }

@@ -76,10 +76,10 @@ func runWithTable(text string) (*block, *testTable) {
 		keys: []float64{1.5e-6, 2.5e-6, 4e-6}, col: []float64{12.1e-3, 7.41e-3, 4.61e-3},
 	}
 	b := &block{env: NewEnv()}
-	if err := b.env.DefineTable("cu", Pos{Line: 1, Col: 1}, tt); err != nil {
+	if err := b.env.DefineTable("cu", PlaceAt("", 1, 1), tt); err != nil {
 		panic(err)
 	}
-	b.stmts = ParseBlock(NewSource(text, Pos{Line: 10, Col: 1}), CalcMode, &b.parse)
+	b.stmts = ParseBlock(NewSource(text, PlaceAt(text, 10, 1)), CalcMode, &b.parse)
 	for _, s := range b.stmts {
 		b.results = append(b.results, b.env.Exec(s))
 	}
@@ -90,7 +90,7 @@ func runWithTable(text string) (*block, *testTable) {
 // "interp(cu.R, x)" as a call whose first argument is that name.
 func TestTableGrammar(t *testing.T) {
 	var errs ErrorList
-	n, _ := ParseExpr(NewSource("cu.R_20(2.5 mm²) + interp(cu.R_20, x)", Pos{Line: 1, Col: 1}), &errs)
+	n, _ := ParseExpr(NewSource("cu.R_20(2.5 mm²) + interp(cu.R_20, x)", Pos{}), &errs)
 	if len(errs) > 0 {
 		t.Fatal(errs)
 	}
@@ -104,7 +104,7 @@ func TestTableGrammar(t *testing.T) {
 		t.Errorf("interp's first argument read as %q (dot %d)", id.Name, id.Dot)
 	}
 	// the keys of the parts are each a name's key: "θ.φ" and "theta.phi" are one
-	n2, _ := ParseExpr(NewSource("theta.phi(1)", Pos{Line: 1, Col: 1}), &errs)
+	n2, _ := ParseExpr(NewSource("theta.phi(1)", Pos{}), &errs)
 	if k := n2.(*Call).Fun.Key; k != "θ.φ" {
 		t.Errorf("key %q, want θ.φ", k)
 	}

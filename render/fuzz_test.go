@@ -42,7 +42,7 @@ func FuzzDocument(f *testing.F) {
 		doc := calcdoc.Parse("fuzz.md", src, kind.Standard())
 		lines := strings.Split(string(doc.Text), "\n")
 		for _, e := range append(append(expr.ErrorList{}, doc.Errors...), doc.Warnings...) {
-			l, c := e.Pos.Line, e.Pos.Col
+			l, c := e.Pos.Line(), e.Pos.Col()
 			if l < 1 || l > len(lines) {
 				t.Fatalf("error line %d outside 1..%d: %s", l, len(lines), e.Msg)
 			}

@@ -59,7 +59,7 @@ func TestExamplesShowPowersByKind(t *testing.T) {
 				t.Errorf("%s: %s (%v power) is shown %q, not in %s", f, v.Name, s.Kind, shown, want)
 			}
 			for _, vj := range vals.Values {
-				if vj.Name == v.Name && vj.Line == v.Pos.Line {
+				if vj.Name == v.Name && vj.Line == v.Pos.Line() {
 					if vj.Unit != want {
 						t.Errorf("%s: values JSON gives %s the unit %v, want %s", f, v.Name, vj.Unit, want)
 					}
@@ -69,7 +69,7 @@ func TestExamplesShowPowersByKind(t *testing.T) {
 				}
 			}
 			// the sheet's result row for the name
-			re := regexp.MustCompile(`<div class="r" data-value="` + regexp.QuoteMeta(v.Name) + `" data-line="` + itoa(v.Pos.Line) + `">(.*?)</div>`)
+			re := regexp.MustCompile(`<div class="r" data-value="` + regexp.QuoteMeta(v.Name) + `" data-line="` + itoa(v.Pos.Line()) + `">(.*?)</div>`)
 			m := re.FindSubmatch(html)
 			if m == nil {
 				continue // a solve unknown or a value in prose: checked through the values JSON

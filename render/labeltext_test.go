@@ -39,7 +39,7 @@ func TestLabelRuns(t *testing.T) {
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
 			var errs expr.ErrorList
-			n, _ := expr.ParseExpr(expr.NewSource(c.src, expr.Pos{Line: 1, Col: 1}), &errs)
+			n, _ := expr.ParseExpr(expr.NewSource(c.src, expr.Pos{}), &errs)
 			if len(errs) > 0 {
 				t.Fatalf("parse: %v", errs)
 			}

@@ -138,7 +138,7 @@ func TestLongLine(t *testing.T) {
 					t.Errorf("%d errors, want %d and one saying that the rest are not reported", len(d.Errors), expr.MaxErrors)
 				}
 				for _, e := range d.Errors {
-					if e.Pos.Line != 2 {
+					if e.Pos.Line() != 2 {
 						t.Fatalf("error %v not on line 2", e)
 					}
 				}
@@ -152,7 +152,7 @@ func TestLongLine(t *testing.T) {
 			func(t *testing.T, d *calcdoc.Document, html string) {
 				found := false
 				for _, e := range d.Errors {
-					if e.Pos.Line != 2 {
+					if e.Pos.Line() != 2 {
 						t.Fatalf("error %v not on line 2", e)
 					}
 					found = found || strings.Contains(e.Msg, "too many tokens")

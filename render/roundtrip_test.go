@@ -76,7 +76,7 @@ func roundTrip(t testing.TB, stmts []string) rtStats {
 			case *expr.Note, *expr.BadStmt:
 				continue
 			}
-			line := s.Stmt.Pos().Line
+			line := s.Stmt.Pos().Line()
 			row, ok := rows[line]
 			if !ok {
 				t.Errorf("line %d %q: no row on the sheet", line, s.Text)
@@ -227,7 +227,7 @@ func checkSubstRow(t testing.TB, doc *calcdoc.Document, s *calcdoc.Stmt, row str
 	}
 	text := canon(x)
 	var errs expr.ErrorList
-	n, _ := expr.ParseExpr(expr.NewSource(text, expr.Pos{Line: 1, Col: 1}), &errs)
+	n, _ := expr.ParseExpr(expr.NewSource(text, expr.Pos{}), &errs)
 	if len(errs) > 0 {
 		t.Errorf("%q: the substitution read as %q does not parse: %v", s.Text, text, errs)
 		return false

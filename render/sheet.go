@@ -239,14 +239,15 @@ func summary(w *markup.Writer, doc *calcdoc.Document) {
 	if len(doc.Errors) > 0 {
 		w.WriteString("<ol class=\"errlist\">\n")
 		for _, e := range doc.Errors {
-			w.Printf("<li><a href=\"#L%d\">line %d, col %d</a>: %s</li>\n", e.Pos.Line, e.Pos.Line, e.Pos.Col, esc(e.Msg))
+			p := e.Pos.Position()
+			w.Printf("<li><a href=\"#L%d\">line %d, col %d</a>: %s</li>\n", p.Line, p.Line, p.Col, esc(e.Msg))
 		}
 		w.WriteString("</ol>\n")
 	}
 	if len(doc.Warnings) > 0 {
 		w.WriteString("<ul class=\"warnlist\">\n")
 		for _, e := range doc.Warnings {
-			w.Printf("<li>warning, line %d: %s</li>\n", e.Pos.Line, esc(e.Msg))
+			w.Printf("<li>warning, line %d: %s</li>\n", e.Pos.Line(), esc(e.Msg))
 		}
 		w.WriteString("</ul>\n")
 	}
@@ -331,10 +332,13 @@ func (n *nodes) codeSpan(out util.BufWriter, src []byte, node ast.Node, entering
 		switch {
 		case in.Err != nil:
 			msg := in.Err.Error()
-			if u, ok := in.Err.(*expr.UnavailableError); ok {
-				msg = fmt.Sprintf("%s has no value (its definition at line %d failed)", u.Name, u.Def.Line)
+			if e, ok := in.Err.(*expr.Error); ok {
+				msg = e.InFile() // the sheet is of the one file: line:col
 			}
-			w.Printf("<span class=\"inl-err\" id=\"L%d\">[ERROR: %s]</span>", in.Pos.Line, esc(msg))
+			if u, ok := in.Err.(*expr.UnavailableError); ok {
+				msg = fmt.Sprintf("%s has no value (its definition at line %d failed)", u.Name, u.Def.Line())
+			}
+			w.Printf("<span class=\"inl-err\" id=\"L%d\">[ERROR: %s]</span>", in.Pos.Line(), esc(msg))
 		default:
 			w.Printf("<span class=\"inl\" title=\"%s\">%s</span>", esc(in.Text), markup.Math(markup.ValueML(in.Value, displayFor(w.Doc, in.Display, in.Text), w.Digits(), false)+markup.SenseML(in.Value)))
 		}

@@ -143,9 +143,9 @@ func TestStructure(t *testing.T) {
 			}
 			// every named value has its result row at its source line
 			for _, v := range doc.Values {
-				want := fmt.Sprintf(`data-value="%s" data-line="%d"`, v.Name, v.Pos.Line)
+				want := fmt.Sprintf(`data-value="%s" data-line="%d"`, v.Name, v.Pos.Line())
 				if !strings.Contains(s, want) {
-					t.Errorf("no result row for %s at line %d", v.Name, v.Pos.Line)
+					t.Errorf("no result row for %s at line %d", v.Name, v.Pos.Line())
 				}
 			}
 			// the caution, the stamp, the embedded source, no script, no outside resource

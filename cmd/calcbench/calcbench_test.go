@@ -142,7 +142,7 @@ func TestGenerate(t *testing.T) {
 			}
 			for _, ch := range d.Checks {
 				if ch.Result == nil || !ch.Result.Pass {
-					t.Errorf("line %d: check %s does not hold", ch.Pos.Line, ch.Text)
+					t.Errorf("line %d: check %s does not hold", ch.Pos.Line(), ch.Text)
 				}
 			}
 			// the script's values in order: a show() per assignment, and the

@@ -148,10 +148,10 @@ func status(doc *calcdoc.Document, st int) int {
 // printErrors writes each error as file:line:col: message.
 func (c *cli) printErrors(doc *calcdoc.Document) {
 	for _, e := range doc.Errors {
-		fmt.Fprintf(c.stderr, "%s:%d:%d: %s\n", doc.Path, e.Pos.Line, e.Pos.Col, e.Msg)
+		fmt.Fprintln(c.stderr, e.Report(""))
 	}
 	for _, e := range doc.Warnings {
-		fmt.Fprintf(c.stderr, "%s:%d:%d: warning: %s\n", doc.Path, e.Pos.Line, e.Pos.Col, e.Msg)
+		fmt.Fprintln(c.stderr, e.Report("warning"))
 	}
 }
 
@@ -249,14 +249,15 @@ func (c *cli) check(args []string) int {
 		fmt.Fprintf(c.stdout, "%s: %s\n", doc.Path, summaryLine(doc))
 		for _, ch := range doc.Checks {
 			if ch.Result != nil && !ch.Result.Pass {
-				fmt.Fprintf(c.stdout, "%s:%d: check not satisfied: %s\n", doc.Path, ch.Pos.Line, ch.Text)
+				p := ch.Pos.Position() // file and line: a check is a whole line
+				fmt.Fprintf(c.stdout, "%s:%d: check not satisfied: %s\n", p.Filename, p.Line, ch.Text)
 			}
 		}
 		for _, e := range doc.Errors {
-			fmt.Fprintf(c.stdout, "%s:%d:%d: %s\n", doc.Path, e.Pos.Line, e.Pos.Col, e.Msg)
+			fmt.Fprintln(c.stdout, e.Report(""))
 		}
 		for _, e := range doc.Warnings {
-			fmt.Fprintf(c.stdout, "%s:%d:%d: warning: %s\n", doc.Path, e.Pos.Line, e.Pos.Col, e.Msg)
+			fmt.Fprintln(c.stdout, e.Report("warning"))
 		}
 		st = status(doc, st)
 	}

@@ -144,7 +144,7 @@ func hasNames(n expr.Node) bool {
 // Stmt writes one statement row: the gutter with its source line, the
 // formula, the substitution and the result, and the description.
 func (w *Writer) Stmt(st *calcdoc.Stmt) {
-	line := st.Stmt.Pos().Line
+	line := st.Stmt.Pos().Line()
 	if n, ok := st.Stmt.(*expr.Note); ok {
 		w.Printf("<div class=\"row note\" id=\"L%d\"><div class=\"ln\">%d</div><div class=\"txt\">%s</div></div>\n", line, line, Esc(n.Text))
 		return

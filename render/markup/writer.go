@@ -79,13 +79,14 @@ func (w *Writer) Printf(format string, args ...any) { fmt.Fprintf(w, format, arg
 // ErrorRow writes an error in place: its position and message, on screen
 // and in print, marked by words (not colour alone).
 func (w *Writer) ErrorRow(e *expr.Error) {
-	w.Printf("<div class=\"err\" role=\"alert\"><span class=\"tag\">ERROR</span> <span class=\"at\">line %d, col %d:</span> %s</div>\n", e.Pos.Line, e.Pos.Col, Esc(e.Msg))
+	p := e.Pos.Position()
+	w.Printf("<div class=\"err\" role=\"alert\"><span class=\"tag\">ERROR</span> <span class=\"at\">line %d, col %d:</span> %s</div>\n", p.Line, p.Col, Esc(e.Msg))
 }
 
 // UnavailableRow writes the note of a line that could not be evaluated
 // because it uses a name whose definition failed.
 func (w *Writer) UnavailableRow(u *expr.UnavailableError) {
-	w.Printf("<div class=\"na\"><span class=\"tag\">NOT EVALUATED</span> uses %s, which has no value: the definition at line %d failed</div>\n", NameHTML(u.Name), u.Def.Line)
+	w.Printf("<div class=\"na\"><span class=\"tag\">NOT EVALUATED</span> uses %s, which has no value: the definition at line %d failed</div>\n", NameHTML(u.Name), u.Def.Line())
 }
 
 // NewWriter returns a writer for the sheet of doc.

@@ -136,9 +136,18 @@ func Print(ctx context.Context, htmlPath, pdfPath string) (err error) {
 	// above; Linux allows 108). Where the socket path
 	// "PROFILE/org.chromium.Chromium.XXXXXX/SingletonSocket" fits, TMPDIR
 	// points into the profile too, so that even a killed Chromium leaves
-	// nothing behind; else Chromium keeps the system's TMPDIR.
-	if len(profile)+len("/org.chromium.Chromium.XXXXXX/SingletonSocket") < 104 {
+	// nothing behind. Where the profile's path is too long for that (a
+	// long TMPDIR), a scratch folder of its own is made in /tmp, whose
+	// paths are short, and removed with the profile; only where neither
+	// fits does Chromium keep the system's TMPDIR.
+	const socket = len("/org.chromium.Chromium.XXXXXX/SingletonSocket")
+	if len(profile)+socket < 104 {
 		cmd.Env = append(cmd.Env, "TMPDIR="+profile)
+	} else if scratch, err := os.MkdirTemp("/tmp", "calcdoc-"); err == nil {
+		defer removeAll(scratch)
+		if len(scratch)+socket < 104 {
+			cmd.Env = append(cmd.Env, "TMPDIR="+scratch)
+		}
 	}
 	cmd.WaitDelay = 5 * time.Second
 	ownProcessGroup(cmd)

@@ -78,17 +78,17 @@ func sheetOf(t *testing.T, doc *calcdoc.Document) []byte {
 func facts(d *calcdoc.Document) string {
 	var b strings.Builder
 	for _, v := range d.Values {
-		fmt.Fprintf(&b, "value %s %d:%d %v\n", v.Name, v.Pos.Line, v.Pos.Col, v.Value)
+		fmt.Fprintf(&b, "value %s %d:%d %v\n", v.Name, v.Pos.Line(), v.Pos.Col(), v.Value)
 	}
 	for _, c := range d.Checks {
 		pass := "unevaluated"
 		if c.Result != nil {
 			pass = fmt.Sprint(c.Result.Pass)
 		}
-		fmt.Fprintf(&b, "check %d:%d %s %s\n", c.Pos.Line, c.Pos.Col, c.Text, pass)
+		fmt.Fprintf(&b, "check %d:%d %s %s\n", c.Pos.Line(), c.Pos.Col(), c.Text, pass)
 	}
 	for _, e := range d.Errors {
-		fmt.Fprintf(&b, "error %d:%d %s\n", e.Pos.Line, e.Pos.Col, e.Msg)
+		fmt.Fprintf(&b, "error %d:%d %s\n", e.Pos.Line(), e.Pos.Col(), e.Msg)
 	}
 	return b.String()
 }

@@ -7,7 +7,7 @@ import (
 )
 
 func renderCalc(w *markup.Writer, b *calcdoc.Block) {
-	w.Printf("<div class=\"block calc\" id=\"B%d\">\n", b.Pos.Line)
+	w.Printf("<div class=\"block calc\" id=\"B%d\">\n", b.Pos.Line())
 	stmts, _ := b.Result.([]*calcdoc.Stmt)
 	for _, st := range stmts {
 		w.Stmt(st)

@@ -28,9 +28,9 @@ func drawNetwork(w *markup.Writer, b *calcdoc.Block) {
 	if res == nil {
 		res = &Result{Result: &mna.Result{}}
 	}
-	w.Printf("<div class=\"block network\" id=\"B%d\">\n", b.Pos.Line)
+	w.Printf("<div class=\"block network\" id=\"B%d\">\n", b.Pos.Line())
 	w.WriteString("<div class=\"bhead\">network</div>\n")
-	line := b.InfoPos.Line
+	line := b.InfoPos.Line()
 	w.Printf("<div class=\"row unk\" id=\"L%d\"><div class=\"ln\">%d</div><div class=\"math\"><div class=\"f\"><span class=\"kindtag\">network</span>", line, line)
 	if b.Arg != "" {
 		w.WriteString(" <code>" + markup.Esc(b.Arg) + "</code>")
@@ -45,7 +45,7 @@ func drawNetwork(w *markup.Writer, b *calcdoc.Block) {
 	if res.Net != nil {
 		byLine := map[int][]*expr.Error{}
 		for _, e := range b.Errors {
-			byLine[e.Pos.Line] = append(byLine[e.Pos.Line], e)
+			byLine[e.Pos.Line()] = append(byLine[e.Pos.Line()], e)
 		}
 		branchTable(w, res, byLine, shown)
 	}
@@ -162,10 +162,10 @@ func branchTable(w *markup.Writer, res *Result, errs map[int][]*expr.Error, show
 	for _, item := range n.Lines {
 		switch x := item.(type) {
 		case *netlist.Note:
-			w.Printf("<tr id=\"L%d\"><td colspan=\"6\">%s</td></tr>\n", x.Pos.Line, markup.Esc(x.Text))
+			w.Printf("<tr id=\"L%d\"><td colspan=\"6\">%s</td></tr>\n", x.Pos.Line(), markup.Esc(x.Text))
 		case *netlist.Ground:
 			w.Printf("<tr id=\"L%d\"><td></td><td colspan=\"2\">%s</td><td>ground</td><td></td><td>%s</td></tr>\n",
-				x.Pos.Line, markup.Esc(x.Node.Name), markup.Math(markup.NameML("V_"+x.Node.Name+n.Suffix())+"<mo>=</mo>"+markup.ValueML(&expr.Scalar{Dim: expr.DimVoltage}, nil, digits, false)))
+				x.Pos.Line(), markup.Esc(x.Node.Name), markup.Math(markup.NameML("V_"+x.Node.Name+n.Suffix())+"<mo>=</mo>"+markup.ValueML(&expr.Scalar{Dim: expr.DimVoltage}, nil, digits, false)))
 		case *netlist.Couple:
 			value := ""
 			if nw != nil {
@@ -178,7 +178,7 @@ func branchTable(w *markup.Writer, res *Result, errs map[int][]*expr.Error, show
 				}
 			}
 			w.Printf("<tr id=\"L%d\"><td>%s, %s</td><td></td><td></td><td>couple %s</td><td>%s</td><td>%s</td></tr>\n",
-				x.Pos.Line, markup.Esc(x.A), markup.Esc(x.B), markup.Math(markup.NameML("Z_"+x.A+"_"+x.B)), markup.Math(f.Node(x.Value, false))+substitution(w, x.Value), value)
+				x.Pos.Line(), markup.Esc(x.A), markup.Esc(x.B), markup.Math(markup.NameML("Z_"+x.A+"_"+x.B)), markup.Math(f.Node(x.Value, false))+substitution(w, x.Value), value)
 		case *netlist.Branch:
 			i := idx[x]
 			written := markup.Math(f.Node(x.Value, false))
@@ -224,18 +224,18 @@ func branchTable(w *markup.Writer, res *Result, errs map[int][]*expr.Error, show
 				elemML += ", coupled"
 			}
 			w.Printf("<tr id=\"L%d\" title=\"%s\"><td>%s</td><td>%s</td><td>%s</td><td>%s</td><td>%s</td><td>%s</td></tr>\n",
-				x.Pos.Line, markup.Esc(x.Element.Noun()), markup.Esc(x.Name), markup.Esc(x.From.Name), markup.Esc(x.To.Name), elemML, written, value)
+				x.Pos.Line(), markup.Esc(x.Element.Noun()), markup.Esc(x.Name), markup.Esc(x.From.Name), markup.Esc(x.To.Name), elemML, written, value)
 		}
 		line := 0
 		switch x := item.(type) {
 		case *netlist.Note:
-			line = x.Pos.Line
+			line = x.Pos.Line()
 		case *netlist.Ground:
-			line = x.Pos.Line
+			line = x.Pos.Line()
 		case *netlist.Couple:
-			line = x.Pos.Line
+			line = x.Pos.Line()
 		case *netlist.Branch:
-			line = x.Pos.Line
+			line = x.Pos.Line()
 		}
 		for _, e := range errs[line] {
 			w.WriteString("<tr><td colspan=\"6\" style=\"white-space: normal; text-align: left;\">")

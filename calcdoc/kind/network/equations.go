@@ -120,7 +120,7 @@ func kclRows(w *markup.Writer, nw *mna.Network) {
 		for k, t := range ts {
 			negs[k], terms[k] = q.term(nd, t)
 		}
-		eqRow(w, nd.Pos.Line, sum(terms, negs)+"<mo>=</mo><mn>0</mn>", "KCL at node "+nd.Name)
+		eqRow(w, nd.Pos.Line(), sum(terms, negs)+"<mo>=</mo><mn>0</mn>", "KCL at node "+nd.Name)
 	}
 }
 
@@ -165,7 +165,7 @@ func branchEquations(w *markup.Writer, nw *mna.Network) {
 			}
 			desc = "the coupled branch " + b.Name
 		}
-		eqRow(w, b.Pos.Line, ml, desc)
+		eqRow(w, b.Pos.Line(), ml, desc)
 	}
 }
 

@@ -280,8 +280,8 @@ func TestErrorsThroughDocument(t *testing.T) {
 			continue
 		}
 		e := d.Errors[0]
-		if !strings.Contains(e.Msg, c.msg) || (c.line > 0 && (e.Pos.Line != c.line || e.Pos.Col != c.col)) {
-			t.Errorf("%s: error at %d:%d %q, want %d:%d %q", c.name, e.Pos.Line, e.Pos.Col, e.Msg, c.line, c.col, c.msg)
+		if !strings.Contains(e.Msg, c.msg) || (c.line > 0 && (e.Pos.Line() != c.line || e.Pos.Col() != c.col)) {
+			t.Errorf("%s: error at %d:%d %q, want %d:%d %q", c.name, e.Pos.Line(), e.Pos.Col(), e.Msg, c.line, c.col, c.msg)
 		}
 		if b := d.Env.Lookup("x"); b == nil || !b.Unavailable {
 			t.Errorf("%s: x = V_A * 2 is not unavailable", c.name)
@@ -291,13 +291,13 @@ func TestErrorsThroughDocument(t *testing.T) {
 			t.Errorf("%s: the error is shown %d times in the sheet, want once", c.name, strings.Count(page, "role=\"alert\""))
 		}
 		// in place: under the row of its line in the branch table
-		row := strings.Index(page, "<tr id=\"L"+itoa(e.Pos.Line)+"\"")
+		row := strings.Index(page, "<tr id=\"L"+itoa(e.Pos.Line())+"\"")
 		next := len(page)
 		if k := strings.Index(page[row+1:], "<tr id="); k >= 0 {
 			next = row + 1 + k
 		}
 		if alert := strings.Index(page, "role=\"alert\""); c.line > 0 && (row < 0 || alert < row || alert > next) {
-			t.Errorf("%s: the error is not under the row of line %d", c.name, e.Pos.Line)
+			t.Errorf("%s: the error is not under the row of line %d", c.name, e.Pos.Line())
 		}
 	}
 	// a name that already exists: named at the node that would define it

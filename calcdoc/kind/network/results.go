@@ -32,7 +32,7 @@ func colDim(u mna.Unknown) expr.Dim {
 // InlineSystemLimit unknowns, else its non-zero entries in the appendix.
 func matrixPart(w *markup.Writer, b *calcdoc.Block, nw *mna.Network, s *mna.Solution) {
 	n := len(nw.Unknowns)
-	line := b.InfoPos.Line
+	line := b.InfoPos.Line()
 	anchor := fmt.Sprintf("N%d", line)
 	digits := w.Digits()
 	intro := fmt.Sprintf("As a linear system A·x = b (complex form; A is %d×%d with %d non-zero entries; a row per equation above, in their order, a column per unknown; the entries carry their units):", n, n, s.NNZ)
@@ -124,7 +124,7 @@ func fillRatio(s *mna.Solution) string {
 func defLines(res *Result) map[string]int {
 	m := map[string]int{}
 	for _, d := range res.Defs() {
-		m[d.Name] = d.Pos.Line
+		m[d.Name] = d.Pos.Line()
 	}
 	return m
 }
@@ -143,7 +143,7 @@ func valueML(w *markup.Writer, name string, v *expr.Scalar) string {
 func solutionRow(w *markup.Writer, b *calcdoc.Block, res *Result) {
 	lines := defLines(res)
 	s, t, n := res.Solution, res.Topo, res.Net
-	w.Printf("<div class=\"row sol\"><div class=\"ln\">%d</div><div class=\"math\">", b.InfoPos.Line)
+	w.Printf("<div class=\"row sol\"><div class=\"ln\">%d</div><div class=\"math\">", b.InfoPos.Line())
 	for i, nd := range t.Nodes {
 		if t.Ground[i] {
 			continue

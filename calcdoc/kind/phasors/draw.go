@@ -14,8 +14,8 @@ import (
 // of every arrow, then the block's errors.
 func renderPhasors(w *markup.Writer, b *calcdoc.Block) {
 	res, _ := b.Result.(*Phasors)
-	w.Printf("<div class=\"block phasors\" id=\"B%d\">\n", b.Pos.Line)
-	w.Printf("<figure class=\"phasors\" id=\"L%d\">\n", b.InfoPos.Line)
+	w.Printf("<div class=\"block phasors\" id=\"B%d\">\n", b.Pos.Line())
+	w.Printf("<figure class=\"phasors\" id=\"L%d\">\n", b.InfoPos.Line())
 	var arrows []svg.Arrow
 	var vals []string
 	if res != nil {

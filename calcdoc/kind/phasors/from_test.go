@@ -33,7 +33,7 @@ func TestPhasorsTipToTail(t *testing.T) {
 	d := phDoc(append(append([]string{}, phFromCalc...),
 		"```phasors V_r, I_L*Z_c from V_r, V_s", // line 9
 		"```")...)
-	if len(d.Errors) != 1 || d.Errors[0].Pos.Line != 6 {
+	if len(d.Errors) != 1 || d.Errors[0].Pos.Line() != 6 {
 		t.Fatalf("want only the error of line 6, got %v", d.Errors)
 	}
 	res := phBlock(t, d, "phasors").Result.(*phasors.Phasors)
@@ -55,7 +55,7 @@ func TestPhasorsTipToTail(t *testing.T) {
 		t.Errorf("entry %q from %q (%p), want I_L*Z_c from V_r", it.Text, it.FromName, it.From)
 	}
 	// "```phasors V_r, I_L*Z_c from V_r": I_L at column 17, its V_r at 30
-	if it.Pos != (expr.Pos{Line: 9, Col: 17}) || it.FromPos != (expr.Pos{Line: 9, Col: 30}) {
+	if it.Pos.Position().InFile() != (expr.Position{Line: 9, Col: 17}) || it.FromPos.Position().InFile() != (expr.Position{Line: 9, Col: 30}) {
 		t.Errorf("positions %v and %v, want 9:17 and 9:30", it.Pos, it.FromPos)
 	}
 	tail := complex(it.X0, it.Y0)
@@ -115,7 +115,7 @@ func TestPhasorsFromErrors(t *testing.T) {
 				t.Fatalf("want one error, got %v", b.Errors)
 			}
 			e := b.Errors[0]
-			if e.Pos != (expr.Pos{Line: 9, Col: c.col}) || !strings.Contains(e.Msg, c.msg) {
+			if e.Pos.Position().InFile() != (expr.Position{Line: 9, Col: c.col}) || !strings.Contains(e.Msg, c.msg) {
 				t.Errorf("error %v, want at 9:%d containing %q", e, c.col, c.msg)
 			}
 		})
@@ -126,7 +126,7 @@ func TestPhasorsFromErrors(t *testing.T) {
 // name's definition failed), an entry is not evaluated, not a new error.
 func TestPhasorsFromUnavailable(t *testing.T) {
 	d := phDoc(append(append([]string{}, phFromCalc...), "```phasors bad, V_r from bad", "```")...)
-	if len(d.Errors) != 1 || d.Errors[0].Pos.Line != 6 {
+	if len(d.Errors) != 1 || d.Errors[0].Pos.Line() != 6 {
 		t.Fatalf("want only the error of line 6, got %v", d.Errors)
 	}
 	res := phBlock(t, d, "phasors").Result.(*phasors.Phasors)

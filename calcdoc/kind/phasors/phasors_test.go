@@ -50,7 +50,7 @@ func TestPhasorsValuesAndScales(t *testing.T) {
 		"",
 		"  phase a.",
 		"```")...)
-	if len(d.Errors) != 1 || d.Errors[0].Pos.Line != 8 {
+	if len(d.Errors) != 1 || d.Errors[0].Pos.Line() != 8 {
 		t.Fatalf("want only the error of line 8, got %v", d.Errors)
 	}
 	b := phBlock(t, d, "phasors")
@@ -86,7 +86,7 @@ func TestPhasorsValuesAndScales(t *testing.T) {
 			if !it.OK() {
 				t.Fatalf("item not drawn: err %v", it.Err)
 			}
-			if it.Text != c.text || it.Pos != (expr.Pos{Line: 11, Col: c.col}) {
+			if it.Text != c.text || it.Pos.Position().InFile() != (expr.Position{Line: 11, Col: c.col}) {
 				t.Errorf("text %q at %v, want %q at 11:%d", it.Text, it.Pos, c.text, c.col)
 			}
 			if it.Unit != c.unit || it.Factor != c.factor {
@@ -127,7 +127,7 @@ func TestPhasorsErrors(t *testing.T) {
 				t.Fatalf("want one error, got %v", b.Errors)
 			}
 			e := b.Errors[0]
-			if e.Pos != (expr.Pos{Line: 11, Col: c.col}) || !strings.Contains(e.Msg, c.msg) {
+			if e.Pos.Position().InFile() != (expr.Position{Line: 11, Col: c.col}) || !strings.Contains(e.Msg, c.msg) {
 				t.Errorf("error %v, want at 11:%d containing %q", e, c.col, c.msg)
 			}
 			found := false
@@ -149,7 +149,7 @@ func TestPhasorsUnavailableName(t *testing.T) {
 		t.Fatalf("unexpected errors %v", b.Errors)
 	}
 	res := b.Result.(*phasors.Phasors)
-	if u := res.Items[0].Unavailable; u == nil || u.Name != "bad" || u.Def.Line != 8 {
+	if u := res.Items[0].Unavailable; u == nil || u.Name != "bad" || u.Def.Line() != 8 {
 		t.Errorf("item 0 unavailable = %+v, want bad defined at line 8", u)
 	}
 	if !res.Items[1].OK() {

@@ -277,8 +277,8 @@ func TestSolveContradiction(t *testing.T) {
 				t.Fatalf("want one error, got %v", d.Errors)
 			}
 			e := d.Errors[0]
-			if e.Pos.Line != c.line || e.Pos.Col != c.col {
-				t.Errorf("error at %d:%d, want %d:%d", e.Pos.Line, e.Pos.Col, c.line, c.col)
+			if e.Pos.Line() != c.line || e.Pos.Col() != c.col {
+				t.Errorf("error at %d:%d, want %d:%d", e.Pos.Line(), e.Pos.Col(), c.line, c.col)
 			}
 			for _, w := range c.want {
 				if !strings.Contains(e.Msg, w) {

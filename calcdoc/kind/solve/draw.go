@@ -25,11 +25,11 @@ func renderSolve(w *markup.Writer, b *calcdoc.Block) {
 		set = &SolveSet{}
 	}
 	shown := map[*expr.Error]bool{}
-	w.Printf("<div class=\"block solve\" id=\"B%d\">\n", b.Pos.Line)
+	w.Printf("<div class=\"block solve\" id=\"B%d\">\n", b.Pos.Line())
 	w.WriteString("<div class=\"bhead\">equation set</div>\n")
 
 	// the unknowns
-	line := b.InfoPos.Line
+	line := b.InfoPos.Line()
 	w.Printf("<div class=\"row unk\" id=\"L%d\"><div class=\"ln\">%d</div><div class=\"math\"><div class=\"f\">", line, line)
 	if len(set.Unknowns) == 0 {
 		w.WriteString("<span class=\"kindtag\">solve</span> <code>" + markup.Esc(b.Arg) + "</code>")
@@ -51,7 +51,7 @@ func renderSolve(w *markup.Writer, b *calcdoc.Block) {
 
 	// the equations, as written
 	for _, l := range set.Lines {
-		ln := l.Stmt.Pos().Line
+		ln := l.Stmt.Pos().Line()
 		switch s := l.Stmt.(type) {
 		case *expr.Note:
 			w.Printf("<div class=\"row note\" id=\"L%d\"><div class=\"ln\">%d</div><div class=\"txt\">%s</div></div>\n", ln, ln, markup.Esc(s.Text))
@@ -196,7 +196,7 @@ func sci(x float64) string {
 }
 
 func solvedParts(w *markup.Writer, b *calcdoc.Block, set *SolveSet) {
-	line := b.InfoPos.Line
+	line := b.InfoPos.Line()
 	anchor := fmt.Sprintf("S%d", line)
 
 	// the method
@@ -266,7 +266,7 @@ func solvedParts(w *markup.Writer, b *calcdoc.Block, set *SolveSet) {
 		if b := w.Doc.Env.Lookup(u.Name); b != nil && b.Value == expr.Value(u.Value) {
 			disp = b.Display // the chosen display: the bracket, else the preferred unit
 		}
-		w.Printf("<div class=\"r\" data-value=\"%s\" data-line=\"%d\">%s</div>", markup.Esc(u.Name), u.Pos.Line, markup.Math(markup.NameML(u.Name)+"<mo>=</mo>"+markup.ValueML(u.Value, disp, w.Digits(), false)))
+		w.Printf("<div class=\"r\" data-value=\"%s\" data-line=\"%d\">%s</div>", markup.Esc(u.Name), u.Pos.Line(), markup.Math(markup.NameML(u.Name)+"<mo>=</mo>"+markup.ValueML(u.Value, disp, w.Digits(), false)))
 		w.KindNote(u.Value)
 	}
 	w.WriteString("</div><div class=\"desc\">solution</div></div>\n")

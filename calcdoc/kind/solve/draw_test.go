@@ -244,9 +244,9 @@ func TestSolveSheetExamples(t *testing.T) {
 				}
 				sets++
 				if !s.Solved {
-					t.Errorf("the set at line %d is not solved", b.Pos.Line)
+					t.Errorf("the set at line %d is not solved", b.Pos.Line())
 				}
-				blk := blockHTML(t, page, b.Pos.Line)
+				blk := blockHTML(t, page, b.Pos.Line())
 				for _, e := range s.Equations {
 					if !strings.Contains(blk, fmt.Sprintf("(line %d)</span></td>", e.Line)) && !strings.Contains(blk, fmt.Sprintf("<td>line %d</td><td>", e.Line)) {
 						t.Errorf("no verification row for line %d", e.Line)
@@ -261,8 +261,8 @@ func TestSolveSheetExamples(t *testing.T) {
 				t.Error("the example has no solve block")
 			}
 			for _, v := range doc.Values {
-				if !strings.Contains(page, fmt.Sprintf(`data-value="%s" data-line="%d"`, v.Name, v.Pos.Line)) {
-					t.Errorf("no result row for %s at line %d", v.Name, v.Pos.Line)
+				if !strings.Contains(page, fmt.Sprintf(`data-value="%s" data-line="%d"`, v.Name, v.Pos.Line())) {
+					t.Errorf("no result row for %s at line %d", v.Name, v.Pos.Line())
 				}
 			}
 			wellFormedMath(t, page)

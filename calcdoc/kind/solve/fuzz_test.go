@@ -28,12 +28,12 @@ func FuzzSolveHeader(f *testing.F) {
 		if !utf8.ValidString(arg) || strings.ContainsAny(arg, "\n\r") {
 			return // an info string is one line of valid UTF-8 (calcdoc.Parse replaces invalid bytes)
 		}
-		pos := expr.Pos{Line: 3, Col: 10}
+		pos := expr.PlaceAt(arg, 3, 10)
 		n := utf8.RuneCountInString(arg)
 		us, errs := ParseSolveHeader(arg, pos)
 		for _, e := range errs {
-			if e.Pos.Line != pos.Line || e.Pos.Col < pos.Col || e.Pos.Col > pos.Col+n {
-				t.Errorf("error at %v outside the header (col %d to %d): %s", e.Pos, pos.Col, pos.Col+n, e.Msg)
+			if e.Pos.Line() != pos.Line() || e.Pos.Col() < pos.Col() || e.Pos.Col() > pos.Col()+n {
+				t.Errorf("error at %v outside the header (col %d to %d): %s", e.Pos, pos.Col(), pos.Col()+n, e.Msg)
 			}
 			if e.Msg == "" {
 				t.Error("an error without a message")
@@ -46,8 +46,8 @@ func FuzzSolveHeader(f *testing.F) {
 				t.Errorf("%s listed twice", u.Name)
 			}
 			seen[u.Name] = true
-			off := u.Pos.Col - pos.Col
-			if u.Pos.Line != pos.Line || off < 0 || off+utf8.RuneCountInString(u.Name) > len(rs) || string(rs[off:off+utf8.RuneCountInString(u.Name)]) != u.Name {
+			off := u.Pos.Col() - pos.Col()
+			if u.Pos.Line() != pos.Line() || off < 0 || off+utf8.RuneCountInString(u.Name) > len(rs) || string(rs[off:off+utf8.RuneCountInString(u.Name)]) != u.Name {
 				t.Errorf("unknown %q is not written at %v", u.Name, u.Pos)
 			}
 			for i, r := range u.Name {

@@ -27,7 +27,13 @@ import (
 func ParseSolveHeader(arg string, pos expr.Pos) ([]*Unknown, expr.ErrorList) {
 	var errs expr.ErrorList
 	rs := []rune(arg)
-	at := func(i int) expr.Pos { return expr.Pos{Line: pos.Line, Col: pos.Col + i} }
+	// the byte offset in arg of each character (and of the end)
+	boff := make([]int, 0, len(rs)+1)
+	for o := range arg {
+		boff = append(boff, o)
+	}
+	boff = append(boff, len(arg))
+	at := func(i int) expr.Pos { return pos.Add(boff[max(0, min(i, len(rs)))]) }
 	if strings.TrimSpace(arg) == "" {
 		errs.Add(pos, "a solve block lists its unknowns after the word solve, separated by commas, e.g. solve I_a[A], I_b[A]")
 		return nil, errs
@@ -55,7 +61,7 @@ func ParseSolveHeader(arg string, pos expr.Pos) ([]*Unknown, expr.ErrorList) {
 			continue
 		}
 		if prev := seen[expr.NameKey(u.Name)]; prev != nil {
-			errs.Add(u.Pos, fmt.Sprintf("%s is listed twice among the unknowns (first at column %d)", u.Name, prev.Pos.Col))
+			errs.Add(u.Pos, fmt.Sprintf("%s is listed twice among the unknowns (first at column %d)", u.Name, prev.Pos.Col()))
 			continue
 		}
 		seen[expr.NameKey(u.Name)] = u

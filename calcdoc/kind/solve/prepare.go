@@ -6,7 +6,6 @@ import (
 	"math/cmplx"
 	"math/rand/v2"
 	"strings"
-	"unicode/utf8"
 
 	"calcdoc/calcdoc"
 	"calcdoc/expr"
@@ -38,7 +37,7 @@ func (r *solveRun) readHeader() (unk []*Unknown, ok bool) {
 	b, set := r.b, r.set
 	pos := b.ArgPos
 	if !pos.IsValid() {
-		pos = expr.Pos{Line: b.InfoPos.Line, Col: b.InfoPos.Col + utf8.RuneCountInString("solve")}
+		pos = b.InfoPos.Add(len("solve"))
 	}
 	unk, herrs := ParseSolveHeader(b.Arg, pos)
 	set.Unknowns = unk
@@ -69,7 +68,7 @@ func (r *solveRun) readEquations(ok bool) (sound, goOn bool) {
 		}
 		switch s := s.(type) {
 		case *expr.Equation:
-			eq := &SolveEquation{Eq: s, Line: s.Pos().Line, Name: fmt.Sprintf("line %d", s.Pos().Line)}
+			eq := &SolveEquation{Eq: s, Line: s.Pos().Line(), Name: fmt.Sprintf("line %d", s.Pos().Line())}
 			if s.Label != nil {
 				eq.Name = fmt.Sprintf("%s (line %d)", s.Label.Name, eq.Line)
 				if prev := labels[s.Label.Name]; prev != nil {
@@ -105,7 +104,7 @@ func (r *solveRun) checkUnknowns(unk []*Unknown, ok bool) bool {
 	set := r.set
 	for _, u := range unk {
 		if bd := r.env.Lookup(u.Name); bd != nil {
-			r.headerErr(expr.Errorf(u.Pos, "%s is already defined at line %d: the unknowns of a solve block must be new names (choose another name, e.g. %s_2)", u.Name, bd.Pos.Line, u.Name))
+			r.headerErr(expr.Errorf(u.Pos, "%s is already defined at line %d: the unknowns of a solve block must be new names (choose another name, e.g. %s_2)", u.Name, bd.Pos.Line(), u.Name))
 			ok = false
 			continue
 		}

@@ -140,12 +140,12 @@ func TestSolveSizeLimit(t *testing.T) {
 			}
 			// the list of unknowns: after "```solve " on the fence's line
 			line := 1 + strings.Count(c.src[:strings.Index(c.src, "```solve ")], "\n")
-			at := expr.Pos{Line: line, Col: len("```solve ") + 1}
+			at := expr.Position{Line: line, Col: len("```solve ") + 1}
 			if len(d.Errors) != 1 {
 				t.Fatalf("%d errors, want the one of the size: %v", len(d.Errors), firstErrors(d.Errors))
 			}
 			e := d.Errors[0]
-			if e.Pos != at {
+			if e.Pos.Position().InFile() != at {
 				t.Errorf("error at %v, want %v (the list of unknowns)", e.Pos, at)
 			}
 			for _, want := range []string{

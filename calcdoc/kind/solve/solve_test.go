@@ -623,8 +623,8 @@ func TestSolveBadInput(t *testing.T) {
 				t.Fatalf("want exactly one error, got %d: %v", len(d.Errors), d.Errors)
 			}
 			e := d.Errors[0]
-			if e.Pos.Line != c.line || e.Pos.Col != c.col {
-				t.Errorf("error at %d:%d, want %d:%d (%s)", e.Pos.Line, e.Pos.Col, c.line, c.col, e.Msg)
+			if e.Pos.Line() != c.line || e.Pos.Col() != c.col {
+				t.Errorf("error at %d:%d, want %d:%d (%s)", e.Pos.Line(), e.Pos.Col(), c.line, c.col, e.Msg)
 			}
 			for _, w := range c.want {
 				if !strings.Contains(e.Msg, w) {
@@ -655,7 +655,7 @@ func TestSolveBadInput(t *testing.T) {
 // not solved and adds no error of its own; its unknowns are unavailable.
 func TestSolveUnavailable(t *testing.T) {
 	d := solveDoc(t, "```calc\nZ = 1 / 0 Ω\n```\n\n```solve I[A]\nI*Z = 10 V\n```\n\n```calc\nP = I * 2 V\n```\n")
-	if len(d.Errors) != 1 || d.Errors[0].Pos.Line != 2 {
+	if len(d.Errors) != 1 || d.Errors[0].Pos.Line() != 2 {
 		t.Fatalf("want only the error of line 2, got %v", d.Errors)
 	}
 	s := solveSets(d)[0]
@@ -793,7 +793,7 @@ func TestSolveHeader(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.arg, func(t *testing.T) {
-			us, errs := ParseSolveHeader(c.arg, expr.Pos{Line: 4, Col: 11})
+			us, errs := ParseSolveHeader(c.arg, expr.PlaceAt(c.arg, 4, 11))
 			if len(errs) > 0 {
 				t.Fatalf("errors: %v", errs)
 			}
@@ -805,7 +805,7 @@ func TestSolveHeader(t *testing.T) {
 				if u.HasUnit() {
 					unit = u.Display.Unit.Text
 				}
-				if u.Name != c.names[i] || unit != c.units[i] || u.Real != c.real[i] || u.NearText != c.near[i] || u.Pos != (expr.Pos{Line: 4, Col: c.cols[i]}) {
+				if u.Name != c.names[i] || unit != c.units[i] || u.Real != c.real[i] || u.NearText != c.near[i] || u.Pos.Position().InFile() != (expr.Position{Line: 4, Col: c.cols[i]}) {
 					t.Errorf("unknown %d: %s [%s] real=%v near=%q at %v; want %s [%s] real=%v near=%q at col %d",
 						i, u.Name, unit, u.Real, u.NearText, u.Pos, c.names[i], c.units[i], c.real[i], c.near[i], c.cols[i])
 				}
@@ -838,12 +838,12 @@ func TestSolveHeaderErrors(t *testing.T) {
 	}
 	for _, c := range cases {
 		t.Run(c.arg, func(t *testing.T) {
-			_, errs := ParseSolveHeader(c.arg, expr.Pos{Line: 7, Col: 1})
+			_, errs := ParseSolveHeader(c.arg, expr.PlaceAt(c.arg, 7, 1))
 			if len(errs) == 0 {
 				t.Fatal("no error")
 			}
 			e := errs[0]
-			if e.Pos.Line != 7 || e.Pos.Col != c.col {
+			if e.Pos.Line() != 7 || e.Pos.Col() != c.col {
 				t.Errorf("error at %v, want 7:%d (%s)", e.Pos, c.col, e.Msg)
 			}
 			if !strings.Contains(e.Msg, c.want) {

@@ -23,12 +23,12 @@ const logDecades = 100
 // (magnitude, and angle for a complex line).
 func renderSweep(w *markup.Writer, b *calcdoc.Block) {
 	sw, _ := b.Result.(*Sweep)
-	w.Printf("<div class=\"block sweep\" id=\"B%d\">\n", b.Pos.Line)
+	w.Printf("<div class=\"block sweep\" id=\"B%d\">\n", b.Pos.Line())
 	if sw == nil {
 		w.WriteString("</div>\n")
 		return
 	}
-	w.Printf("<div class=\"sweephead\" id=\"L%d\">%s</div>\n", b.InfoPos.Line, sweepHead(w, sw))
+	w.Printf("<div class=\"sweephead\" id=\"L%d\">%s</div>\n", b.InfoPos.Line(), sweepHead(w, sw))
 	inLine := map[*expr.Error]bool{}
 	for _, e := range b.DrawErrors { // shown in place of their figure
 		inLine[e] = true
@@ -81,7 +81,7 @@ func sweepHead(w *markup.Writer, sw *Sweep) string {
 
 // sweepLineRow writes one line of the block: gutter, formula, its errors.
 func sweepLineRow(w *markup.Writer, l *SweepLine) {
-	line := l.Stmt.Pos().Line
+	line := l.Stmt.Pos().Line()
 	if n, ok := l.Stmt.(*expr.Note); ok {
 		w.Printf("<div class=\"row note\" id=\"L%d\"><div class=\"ln\">%d</div><div class=\"txt\">%s</div></div>\n", line, line, markup.Esc(n.Text))
 		return
@@ -292,7 +292,7 @@ func sweepFigs(sw *Sweep, l *SweepLine) []sweepFig {
 	col := plotColumnsOf(x, sw.Log, plotColumns)
 	unit, scale := plotUnit(l)
 	name := lineLabel(l)
-	line := l.Stmt.Pos().Line
+	line := l.Stmt.Pos().Line()
 	y := make([]float64, n)
 	for i := range y {
 		y[i] = l.Plot(i) / scale

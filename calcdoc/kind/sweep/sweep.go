@@ -492,7 +492,7 @@ func prepareSweepLines(b *calcdoc.Block, sw *Sweep, stmts []expr.Stmt, errs expr
 			case headerOK && id.Key == expr.NameKey(sw.Var):
 				l.Errs = append(l.Errs, expr.Errorf(id.Pos(), "%q is the sweep variable: choose another name", id.Name))
 			case local[id.Key] > 0:
-				l.Errs = append(l.Errs, expr.Errorf(id.Pos(), "%q is already defined in this block at line %d: each name is defined once", id.Name, sw.Lines[local[id.Key]-1].Stmt.Pos().Line))
+				l.Errs = append(l.Errs, expr.Errorf(id.Pos(), "%q is already defined in this block at line %d: each name is defined once", id.Name, sw.Lines[local[id.Key]-1].Stmt.Pos().Line()))
 			default:
 				if err := b.Env().CanDefine(id.Name, id.Pos()); err != nil {
 					l.Errs = append(l.Errs, err)

@@ -162,7 +162,7 @@ func TestSweepNamesStayLocal(t *testing.T) {
 	if len(d.Errors) != 0 {
 		t.Fatalf("errors: %v", d.Errors)
 	}
-	if b := d.Env.Lookup("X"); b == nil || b.Pos.Line != 14 {
+	if b := d.Env.Lookup("X"); b == nil || b.Pos.Line() != 14 {
 		t.Fatalf("X should be defined by the calc block at line 14, got %+v", b)
 	}
 }
@@ -240,14 +240,14 @@ func TestSweepHeaderErrors(t *testing.T) {
 			d := swDoc(c.line, "y = 2", "```")
 			var errs []*expr.Error
 			for _, e := range d.Errors {
-				if e.Pos.Line >= 8 {
+				if e.Pos.Line() >= 8 {
 					errs = append(errs, e)
 				}
 			}
 			if len(errs) != 1 {
 				t.Fatalf("want one error, got %v", errs)
 			}
-			if e := errs[0]; e.Pos != (expr.Pos{Line: 8, Col: c.col}) || !strings.Contains(e.Msg, c.msg) {
+			if e := errs[0]; e.Pos.Position().InFile() != (expr.Position{Line: 8, Col: c.col}) || !strings.Contains(e.Msg, c.msg) {
 				t.Errorf("error %v, want at 8:%d containing %q", e, c.col, c.msg)
 			}
 			if sw := swSweep(t, d); sw.X != nil {
@@ -263,7 +263,7 @@ func TestSweepRangeUnavailable(t *testing.T) {
 	d := calcdoc.Parse("sweep_test.md", []byte(strings.Join([]string{
 		"```calc", "f_bad = 1 Hz + 1 V", "```", "",
 		"```sweep f = 1 Hz .. f_bad", "y = f", "```"}, "\n")), kind.Standard())
-	if len(d.Errors) != 1 || d.Errors[0].Pos.Line != 2 {
+	if len(d.Errors) != 1 || d.Errors[0].Pos.Line() != 2 {
 		t.Fatalf("want only the error of line 2, got %v", d.Errors)
 	}
 	sw := swSweep(t, d)
@@ -274,7 +274,7 @@ func TestSweepRangeUnavailable(t *testing.T) {
 
 func TestSweepNoLines(t *testing.T) {
 	d := swDoc("```sweep f = 1 Hz .. 2 Hz", "# only a note", "```")
-	if len(d.Errors) != 1 || d.Errors[0].Pos != (expr.Pos{Line: 8, Col: 4}) || !strings.Contains(d.Errors[0].Msg, "no line to evaluate") {
+	if len(d.Errors) != 1 || d.Errors[0].Pos.Position().InFile() != (expr.Position{Line: 8, Col: 4}) || !strings.Contains(d.Errors[0].Msg, "no line to evaluate") {
 		t.Errorf("errors %v, want one at 8:4 saying the block has no line", d.Errors)
 	}
 }
@@ -313,12 +313,12 @@ func TestSweepLineErrors(t *testing.T) {
 			if len(d.Errors) != 1 {
 				t.Fatalf("want one error, got %v", d.Errors)
 			}
-			if e := d.Errors[0]; e.Pos != (expr.Pos{Line: c.line, Col: c.col}) || !strings.Contains(e.Msg, c.msg) {
+			if e := d.Errors[0]; e.Pos.Position().InFile() != (expr.Position{Line: c.line, Col: c.col}) || !strings.Contains(e.Msg, c.msg) {
 				t.Errorf("error %v, want at %d:%d containing %q", e, c.line, c.col, c.msg)
 			}
 			sw := swSweep(t, d)
 			for _, l := range sw.Lines {
-				ln := l.Stmt.Pos().Line
+				ln := l.Stmt.Pos().Line()
 				if (l.Unavailable != nil) != (ln == c.unav) {
 					t.Errorf("line %d: unavailable %v", ln, l.Unavailable)
 				}

@@ -36,7 +36,7 @@ func (sw *Sweep) SweepJSON(line int) calcdoc.SweepJSON {
 	}
 	cols := sw.Columns()
 	for _, l := range cols {
-		sj.Columns = append(sj.Columns, calcdoc.ColumnJSON{Text: l.Label(), Line: l.Stmt.Pos().Line, Unit: calcdoc.ValuesUnit(l.Dim, l.Angle, l.Kind)})
+		sj.Columns = append(sj.Columns, calcdoc.ColumnJSON{Text: l.Label(), Line: l.Stmt.Pos().Line(), Unit: calcdoc.ValuesUnit(l.Dim, l.Angle, l.Kind)})
 	}
 	for i, x := range sw.X {
 		p := calcdoc.PointJSON{X: calcdoc.JSONNum(x), Values: make([]calcdoc.SweepValJSON, len(cols))}

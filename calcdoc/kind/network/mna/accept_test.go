@@ -14,13 +14,13 @@ import (
 func TestAcceptRejects(t *testing.T) {
 	r := solveText(t, feed+"k: A -> 0 current 0.5 * I_g", "", nil)
 	nw, s := r.Network, r.Solution
-	if err := nw.accept(expr.Pos{Line: 1, Col: 1}, s); err != nil {
+	if err := nw.accept(expr.PlaceAt("", 1, 1), s); err != nil {
 		t.Fatalf("the solution itself: %v", err)
 	}
 	bad := &Solution{X: append([]complex128(nil), s.X...)}
 	bad.X[nw.NodeCol[r.Topo.Index["A"]]] *= 1 + 1e-6
 	nw.results(bad)
-	err := nw.accept(expr.Pos{Line: 1, Col: 1}, bad)
+	err := nw.accept(expr.PlaceAt("", 1, 1), bad)
 	if err == nil || !strings.Contains(err.Error(), "does not hold") || !strings.Contains(err.Error(), "backward error") {
 		t.Fatalf("a wrong solution: %v", err)
 	}

@@ -150,7 +150,7 @@ gm: A -> 0 current 0.5 S * V_A_pos`, "pos", nil)
 // with units (Ω/km · km), and the defined values carry their dimensions.
 func TestValuesFromEnv(t *testing.T) {
 	env := expr.NewEnv()
-	if err := env.Define(&expr.Binding{Name: "Z_L", Value: &expr.Scalar{Z: complex(20, 8), Dim: expr.DimImpedance}, Pos: expr.Pos{Line: 1, Col: 1}}); err != nil {
+	if err := env.Define(&expr.Binding{Name: "Z_L", Value: &expr.Scalar{Z: complex(20, 8), Dim: expr.DimImpedance}, Pos: expr.PlaceAt("", 1, 1)}); err != nil {
 		t.Fatal(err)
 	}
 	// hand derivation: 0.5 Ω/km · 4 km = 2 Ω in series with Z_L = (20 + j8) Ω

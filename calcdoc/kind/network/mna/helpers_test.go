@@ -15,11 +15,12 @@ import (
 // (the opening line is line 1).
 func block(text, tag string) Block {
 	lines := strings.Split(text, "\n")
-	pos := make([]expr.Pos, len(lines))
-	for i := range pos {
-		pos[i] = expr.Pos{Line: i + 2, Col: 1}
+	at := []expr.Position{{Line: 1, Col: 12}}
+	for i := range lines {
+		at = append(at, expr.Position{Line: i + 2, Col: 1})
 	}
-	return Block{Lines: lines, LinePos: pos, Tag: tag, TagPos: expr.Pos{Line: 1, Col: 12}, Pos: expr.Pos{Line: 1, Col: 1}}
+	pos := expr.Place(append([]string{tag}, lines...), at)
+	return Block{Lines: lines, LinePos: pos[1:], Tag: tag, TagPos: pos[0], Pos: pos[0].LineStart()}
 }
 
 // solveText runs a block that must solve.
@@ -38,7 +39,7 @@ func solveText(t *testing.T, text, tag string, env *expr.Env) *Result {
 
 // failText runs a block that must fail with an error containing want
 // (at line:col when at is not zero).
-func failText(t *testing.T, text, tag string, env *expr.Env, at expr.Pos, want ...string) {
+func failText(t *testing.T, text, tag string, env *expr.Env, at expr.Position, want ...string) {
 	t.Helper()
 	if env == nil {
 		env = expr.NewEnv()
@@ -53,7 +54,7 @@ func failText(t *testing.T, text, tag string, env *expr.Env, at expr.Pos, want .
 			t.Errorf("error %q\ndoes not contain %q", msg, w)
 		}
 	}
-	if at.IsValid() && errs[0].Pos != at {
+	if at.IsValid() && errs[0].Pos.Position() != at {
 		t.Errorf("error at %v, want %v: %v", errs[0].Pos, at, errs[0])
 	}
 }

@@ -111,7 +111,7 @@ func Check(n *Netlist, exists func(name string) bool) (*Topology, expr.ErrorList
 	seen := map[string]*Branch{}
 	for _, b := range n.Branches {
 		if f := seen[b.Key]; f != nil {
-			errs.Add(b.NamePos, fmt.Sprintf("the branch name %s is used twice (first at line %d): each branch has a name of its own (parallel branches between the same nodes are allowed, under different names)", b.Name, f.NamePos.Line))
+			errs.Add(b.NamePos, fmt.Sprintf("the branch name %s is used twice (first at line %d): each branch has a name of its own (parallel branches between the same nodes are allowed, under different names)", b.Name, f.NamePos.Line()))
 			continue
 		}
 		seen[b.Key] = b
@@ -147,7 +147,7 @@ func Check(n *Netlist, exists func(name string) bool) (*Topology, expr.ErrorList
 			k[0], k[1] = k[1], k[0]
 		}
 		if f := pairs[k]; f != nil {
-			errs.Add(c.Pos, fmt.Sprintf("%s and %s are coupled twice (first at line %d): write one couple line with their whole mutual impedance", c.A, c.B, f.Pos.Line))
+			errs.Add(c.Pos, fmt.Sprintf("%s and %s are coupled twice (first at line %d): write one couple line with their whole mutual impedance", c.A, c.B, f.Pos.Line()))
 			continue
 		}
 		pairs[k] = c
@@ -180,7 +180,7 @@ func Check(n *Netlist, exists func(name string) bool) (*Topology, expr.ErrorList
 			continue
 		}
 		if f := groundAt[i]; f != nil {
-			errs.Add(g.Node.Pos, fmt.Sprintf("%s is named a ground twice (first at line %d): delete one of the two lines", g.Node.Name, f.Pos.Line))
+			errs.Add(g.Node.Pos, fmt.Sprintf("%s is named a ground twice (first at line %d): delete one of the two lines", g.Node.Name, f.Pos.Line()))
 			continue
 		}
 		groundAt[i] = g

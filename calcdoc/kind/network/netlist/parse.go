@@ -25,12 +25,11 @@ func Parse(lines []string, pos []expr.Pos, tag string, tagPos expr.Pos) (*Netlis
 	if tag != "" {
 		checkTag(tag, tagPos, &errs)
 	}
+	if len(pos) < len(lines) {
+		pos = expr.Place(lines, nil) // lines without their file: at column 1 of lines 1, 2, ...
+	}
 	for i, text := range lines {
-		at := expr.Pos{Line: i + 1, Col: 1}
-		if i < len(pos) {
-			at = pos[i]
-		}
-		parseLine(n, text, at, &errs)
+		parseLine(n, text, pos[i], &errs)
 	}
 	return n, errs
 }
@@ -57,7 +56,7 @@ type line struct {
 
 func (l *line) pos(off int) expr.Pos {
 	off = max(0, min(off, len(l.s)))
-	return expr.Pos{Line: l.base.Line, Col: l.base.Col + utf8.RuneCountInString(l.s[:off])}
+	return l.base.Add(off)
 }
 
 func (l *line) errorf(off int, format string, args ...any) {

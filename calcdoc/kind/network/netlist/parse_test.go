@@ -9,11 +9,12 @@ import (
 
 func parse(text, tag string) (*Netlist, expr.ErrorList) {
 	lines := strings.Split(text, "\n")
-	pos := make([]expr.Pos, len(lines))
-	for i := range pos {
-		pos[i] = expr.Pos{Line: i + 2, Col: 1}
+	at := []expr.Position{{Line: 1, Col: 12}}
+	for i := range lines {
+		at = append(at, expr.Position{Line: i + 2, Col: 1})
 	}
-	return Parse(lines, pos, tag, expr.Pos{Line: 1, Col: 12})
+	pos := expr.Place(append([]string{tag}, lines...), at)
+	return Parse(lines, pos[1:], tag, pos[0])
 }
 
 // TestParseExample reads the example of LANGUAGE.md section 11 and a
@@ -42,10 +43,10 @@ x2: 7 -> 12 Y 1 S`, "")
 		t.Errorf("grid: %+v", g)
 	}
 	// positions: the series Z expression starts at column 35 of line 3
-	if p := g.SeriesZ.Pos(); p != (expr.Pos{Line: 3, Col: 37}) {
+	if p := g.SeriesZ.Pos(); p.Position().InFile() != (expr.Position{Line: 3, Col: 37}) {
 		t.Errorf("series Z at %v", p)
 	}
-	if p := g.Value.Pos(); p != (expr.Pos{Line: 3, Col: 23}) {
+	if p := g.Value.Pos(); p.Position().InFile() != (expr.Position{Line: 3, Col: 23}) {
 		t.Errorf("source value at %v", p)
 	}
 	tx := n.Branches[5]
@@ -55,7 +56,7 @@ x2: 7 -> 12 Y 1 S`, "")
 	if n.Branches[6].Comment != "a load" || n.Grounds[0].Comment != "the star point" {
 		t.Errorf("comments %q %q", n.Branches[6].Comment, n.Grounds[0].Comment)
 	}
-	if c := n.Couples[0]; c.A != "feed" || c.B != "mill" || c.APos != (expr.Pos{Line: 12, Col: 8}) {
+	if c := n.Couples[0]; c.A != "feed" || c.B != "mill" || c.APos.Position().InFile() != (expr.Position{Line: 12, Col: 8}) {
 		t.Errorf("couple %+v", c)
 	}
 	if b := n.Branches[7]; b.From.Name != "7" || b.To.Name != "12" || b.Element != Admittance {
@@ -103,12 +104,12 @@ func TestParseErrors(t *testing.T) {
 			t.Errorf("%q: no error", c.line)
 			continue
 		}
-		if errs[0].Pos != (expr.Pos{Line: 2, Col: c.col}) || !strings.Contains(errs[0].Msg, c.want) {
+		if errs[0].Pos.Position().InFile() != (expr.Position{Line: 2, Col: c.col}) || !strings.Contains(errs[0].Msg, c.want) {
 			t.Errorf("%q: %v, want at 2:%d %q", c.line, errs[0], c.col, c.want)
 		}
 	}
 	_, errs := parse("a: A -> B Z 1 Ω", "p-q")
-	if len(errs) == 0 || errs[0].Pos != (expr.Pos{Line: 1, Col: 12}) {
+	if len(errs) == 0 || errs[0].Pos.Position().InFile() != (expr.Position{Line: 1, Col: 12}) {
 		t.Errorf("bad tag: %v", errs)
 	}
 }

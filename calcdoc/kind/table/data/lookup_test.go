@@ -12,14 +12,18 @@ import (
 // r20 is a table with a gap: plain copper and aluminium, class 2, maximum
 // DC resistance at 20 °C in Ω/km (IEC 60228:2004, Table 2, written from
 // memory; the look-up tests need only some rising keys and numbers).
-func r20(t *testing.T) *Table {
-	t.Helper()
-	tab, errs := ParseBlock("r20", expr.NewSource(`source: IEC 60228:2004, Table 2
+const text20 = `source: IEC 60228:2004, Table 2
 S [mm²] | R_cu [Ω/km] | R_al [Ω/km]
 2.5     | 7.41        |
 4       | 4.61        |
 10      | 1.83        | 3.08
-16      | 1.15        | 1.91`, expr.Pos{Line: 20, Col: 1}), false)
+16      | 1.15        | 1.91`
+
+const text40 = "S = up(r20, 6 mm²)\nR = r20.R_cu(S)\nR_6 = interp(r20.R_cu, 6 mm²)\nx = r20.R_al(4 mm²)"
+
+func r20(t *testing.T) *Table {
+	t.Helper()
+	tab, errs := ParseBlock("r20", expr.NewSource(text20, expr.PlaceAt(text20, 20, 1)), false)
 	if len(errs) > 0 {
 		t.Fatal(errs)
 	}
@@ -129,11 +133,11 @@ func second(_ *expr.Scalar, _ []int, err error) error { return err }
 // by the document's syntax, as the table kind will do.
 func TestTableInTheEngine(t *testing.T) {
 	env := expr.NewEnv()
-	if err := env.DefineTable("r20", expr.Pos{Line: 1, Col: 1}, r20(t)); err != nil {
+	if err := env.DefineTable("r20", expr.PlaceAt("", 1, 1), r20(t)); err != nil {
 		t.Fatal(err)
 	}
 	var perrs expr.ErrorList
-	stmts := expr.ParseBlock(expr.NewSource("S = up(r20, 6 mm²)\nR = r20.R_cu(S)\nR_6 = interp(r20.R_cu, 6 mm²)\nx = r20.R_al(4 mm²)", expr.Pos{Line: 40, Col: 1}), expr.CalcMode, &perrs)
+	stmts := expr.ParseBlock(expr.NewSource(text40, expr.PlaceAt(text40, 40, 1)), expr.CalcMode, &perrs)
 	if len(perrs) > 0 {
 		t.Fatal(perrs)
 	}

@@ -50,7 +50,7 @@ func ParseBlock(name string, src *expr.Source, fromFile bool) (*Table, expr.Erro
 			s := strings.TrimSpace(text[len("source:"):])
 			switch {
 			case srcPos.IsValid():
-				errs.Add(at, fmt.Sprintf("a second source: line (the first is at line %d): give the sources on one line", srcPos.Line))
+				errs.Add(at, fmt.Sprintf("a second source: line (the first is at line %d): give the sources on one line", srcPos.Line()))
 			case s == "":
 				errs.Add(at, "the source: line names no source: write where the data come from, e.g. source: IEC 60228:2004, Table 2")
 			}
@@ -90,7 +90,7 @@ func ParseBlock(name string, src *expr.Source, fromFile bool) (*Table, expr.Erro
 			errs.Add(at, fmt.Sprintf("this row has %d cells, the header %d: give one cell a column, separated by |, and leave a cell empty for a gap", len(cells), len(t.Cols)))
 			continue
 		}
-		row := Row{Line: at.Line, Cells: make([]Cell, len(cells))}
+		row := Row{Line: at.Line(), Cells: make([]Cell, len(cells))}
 		ok := true
 		for i, c := range cells {
 			cell, err := parseCell(c, t.Cols[i], i == 0)

@@ -10,7 +10,7 @@ import (
 // block parses text as the body of a table block whose first line is line
 // 10 of the document.
 func block(text string, fromFile bool) (*Table, expr.ErrorList) {
-	return ParseBlock("cu", expr.NewSource(text, expr.Pos{Line: 10, Col: 1}), fromFile)
+	return ParseBlock("cu", expr.NewSource(text, expr.PlaceAt(text, 10, 1)), fromFile)
 }
 
 // The example of LANGUAGE.md section 9 (values of IEC 60228:2004, Table 2,
