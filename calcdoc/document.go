@@ -42,7 +42,11 @@ type Document struct {
 	// Kinds are the block kinds the document was evaluated with; the
 	// sheet draws each block by its kind.
 	Kinds *Registry
+	// Files are the files the blocks read (a table's CSV), in the order
+	// first read; the stamp lists them and the sheet carries them.
+	Files []*File
 
+	inputs  Inputs
 	lines   []int // byte offset of each line start in Text
 	byNode  map[ast.Node]*Block
 	inlineN map[ast.Node]*Inline
@@ -148,7 +152,11 @@ func Markdown() goldmark.Markdown { return markdown }
 // blocks are shown as code). It never fails: every problem is in the
 // document's Errors, and evaluation goes on past each one.
 func Parse(path string, src []byte, reg *Registry) *Document {
-	d := &Document{Path: path, Source: src, Env: expr.NewEnv(), Kinds: reg, byNode: map[ast.Node]*Block{}, inlineN: map[ast.Node]*Inline{}}
+	return parse(path, src, reg, Inputs{})
+}
+
+func parse(path string, src []byte, reg *Registry, in Inputs) *Document {
+	d := &Document{Path: path, Source: src, Env: expr.NewEnv(), Kinds: reg, inputs: in, byNode: map[ast.Node]*Block{}, inlineN: map[ast.Node]*Inline{}}
 	txt := readerLines(src)
 	var bad []int
 	if !utf8.Valid(txt) {
