@@ -1,0 +1,67 @@
+package verify
+
+import (
+	"encoding/base64"
+	"fmt"
+	"html"
+
+	"calcdoc/render"
+	"calcdoc/render/stamp"
+)
+
+// readFiles reads back the data files a sheet carries (render's
+// embedFiles: pre elements with ids FileID(1), FileID(2), ... carrying
+// prefix) into rec.files, which the document is evaluated from in place
+// of the disk, and the stamp's rows of the data files (tr elements with
+// data-file) into the recorded stamp. A carried file whose bytes do not
+// fit its stated SHA-256 is a difference of kind "hash".
+func (rec *sheetRecord) readFiles(els []*element, prefix string) {
+	rec.files = map[string][]byte{}
+	for n := 1; ; n++ {
+		id := prefix + render.FileID(n)
+		e := find(els, func(e *element) bool { return e.name == "pre" && e.attr["id"] == id })
+		if e == nil {
+			break
+		}
+		path := e.attr["data-file"]
+		if !e.closed {
+			rec.recordDiffs = append(rec.recordDiffs, Difference{Kind: "record", Message: fmt.Sprintf("the carried data file %s has no end (</pre>)", path)})
+			continue
+		}
+		var b []byte
+		switch e.attr["data-encoding"] {
+		case "text":
+			b = []byte(html.UnescapeString(string(e.raw)))
+		case "base64":
+			var err error
+			if b, err = base64.StdEncoding.DecodeString(string(e.raw)); err != nil {
+				rec.recordDiffs = append(rec.recordDiffs, Difference{Kind: "record", Message: fmt.Sprintf("the carried data file %s is not valid base64: %v", path, err)})
+				continue
+			}
+		default:
+			rec.recordDiffs = append(rec.recordDiffs, Difference{Kind: "record", Message: fmt.Sprintf("the carried data file %s has an unknown encoding %q", path, e.attr["data-encoding"])})
+			continue
+		}
+		if got := stamp.Hash(b); got != e.attr["data-sha256"] {
+			rec.recordDiffs = append(rec.recordDiffs, Difference{Kind: "hash", Sheet: e.attr["data-sha256"], Source: got,
+				Message: fmt.Sprintf("hash: the carried data file %s has SHA-256 %s, but its element states %s: the file carried in the sheet was changed", path, got, orDash(e.attr["data-sha256"]))})
+		}
+		rec.files[path] = b
+	}
+	if rec.opt.Stamp == nil {
+		return
+	}
+	for _, e := range els {
+		if e.name != "tr" || !e.hasAttr("data-file") {
+			continue
+		}
+		a := e.attr
+		state, known := render.ParseTreeState(a["data-state"])
+		if !known {
+			rec.recordDiffs = append(rec.recordDiffs, Difference{Kind: "record",
+				Message: fmt.Sprintf("the stamp states a working-tree state %q for the data file %s that calcdoc does not know", a["data-state"], a["data-file"])})
+		}
+		rec.opt.Stamp.Files = append(rec.opt.Stamp.Files, render.FileStamp{Path: a["data-file"], SHA256: a["data-sha256"],
+			Commit: a["data-commit"], CommitDate: a["data-commit-date"], State: state, Detail: a["data-detail"]})
+	}
+}
