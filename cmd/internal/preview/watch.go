@@ -124,6 +124,8 @@ type Watcher struct {
 	newDirs  map[string]bool            // folders to start watching at the next rebuild
 	shadow   map[string]map[string]bool // address → files kept from it by another file
 	shadowed bool                       // shadow changed since the last publish
+	reads    map[string]map[string]bool // data file read (a table's CSV) → documents that read it
+	stale    map[string]bool            // documents to evaluate again though their bytes are the same
 	seq      int64
 
 	mu         sync.RWMutex
@@ -178,6 +180,8 @@ func New(cfg Config) (*Watcher, error) {
 		pending: map[string]bool{},
 		newDirs: map[string]bool{},
 		shadow:  map[string]map[string]bool{},
+		reads:   map[string]map[string]bool{},
+		stale:   map[string]bool{},
 		docs:    map[string]*page{},
 		tick:    make(chan struct{}),
 		done:    make(chan struct{}),
@@ -354,7 +358,36 @@ func (w *Watcher) event(ev fsnotify.Event) bool {
 			queued = true
 		}
 	}
+	// A data file a document read (a table's CSV file) saved: each
+	// document that read it is evaluated again.
+	for doc := range w.reads[name] {
+		w.pending[doc] = true
+		w.stale[doc] = true
+		queued = true
+	}
 	return queued
+}
+
+// noteReads records the data files the document in file read, and
+// watches their folders, so that saving one evaluates the document again.
+func (w *Watcher) noteReads(file string, doc *calcdoc.Document) {
+	for _, docs := range w.reads {
+		delete(docs, file)
+	}
+	for _, f := range doc.Files {
+		if f.Disk == "" {
+			continue
+		}
+		abs, err := filepath.Abs(f.Disk)
+		if err != nil {
+			continue
+		}
+		if w.reads[abs] == nil {
+			w.reads[abs] = map[string]bool{}
+		}
+		w.reads[abs][file] = true
+		w.addWatch(filepath.Dir(abs))
+	}
 }
 
 // filesUnder lists the documents (served or kept from their address) whose
@@ -654,10 +687,13 @@ func (w *Watcher) rebuild(file string) bool {
 		w.logf("%s: cannot be read: %s", display, why)
 		return true
 	}
-	if cur != nil && cur.src != nil && bytes.Equal(cur.src, src) {
+	force := w.stale[file]
+	delete(w.stale, file)
+	if !force && cur != nil && cur.src != nil && bytes.Equal(cur.src, src) {
 		return false // saved without a change
 	}
-	doc := calcdoc.Parse(display, src, blockkind.Standard())
+	doc := calcdoc.ParseWith(display, src, blockkind.Standard(), calcdoc.Inputs{Root: r.dir})
+	w.noteReads(file, doc)
 	p := &page{key: key, file: file, display: display, src: src, status: 200, version: w.nextVersion(), at: start,
 		values: len(doc.Values), checks: len(doc.Checks), failed: doc.FailedChecks(),
 		errors: len(doc.Errors), warning: len(doc.Warnings)}
