@@ -4,6 +4,7 @@ import (
 	"encoding/base64"
 	"fmt"
 	"html"
+	"path/filepath"
 
 	"calcdoc/render"
 	"calcdoc/render/stamp"
@@ -64,4 +65,30 @@ func (rec *sheetRecord) readFiles(els []*element, prefix string) {
 		rec.opt.Stamp.Files = append(rec.opt.Stamp.Files, render.FileStamp{Path: a["data-file"], SHA256: a["data-sha256"],
 			Commit: a["data-commit"], CommitDate: a["data-commit-date"], State: state, Detail: a["data-detail"]})
 	}
+}
+
+// fileGitProblems holds the recorded git facts of each data file against
+// git (stamp.Check, as for the source), looking for the file at its path
+// from each place the source is looked for; a problem names the file.
+func (rec *sheetRecord) fileGitProblems(opt Options) []string {
+	if rec.opt.Stamp == nil {
+		return nil
+	}
+	var out []string
+	for _, f := range rec.opt.Stamp.Files {
+		b, ok := rec.files[f.Path]
+		if !ok || f.Commit == "" {
+			continue
+		}
+		var cands []string
+		for _, c := range rec.sourceCandidates(opt) {
+			cands = append(cands, filepath.Join(filepath.Dir(c), filepath.FromSlash(f.Path)))
+		}
+		st := render.StampInfo{SHA256: f.SHA256, Commit: f.Commit, CommitDate: f.CommitDate, State: f.State, Detail: f.Detail}
+		c := stamp.Check(st, b, cands...)
+		for _, p := range c.Problems {
+			out = append(out, "data file "+f.Path+": "+p)
+		}
+	}
+	return out
 }

@@ -292,7 +292,7 @@ func (rec *sheetRecord) check(unit []byte, lineBase int, opt Options, rerender f
 	}
 	if opt.Git && rec.opt.Stamp != nil {
 		res.Git = rec.gitCheck(opt)
-		for _, p := range res.Git.Problems {
+		for _, p := range append(res.Git.Problems, rec.fileGitProblems(opt)...) {
 			res.Differences = append(res.Differences, Difference{Kind: "git", Message: "git: " + p})
 		}
 	}
@@ -320,12 +320,18 @@ func (rec *sheetRecord) check(unit []byte, lineBase int, opt Options, rerender f
 // gitCheck holds the recorded stamp against git, looking for the source
 // at its recorded path from the current folder and from the sheet's.
 func (rec *sheetRecord) gitCheck(opt Options) *stamp.GitCheck {
+	c := stamp.Check(*rec.opt.Stamp, rec.source, rec.sourceCandidates(opt)...)
+	return &c
+}
+
+// sourceCandidates are the paths at which the source is looked for: its
+// recorded path from the current folder and from the sheet's.
+func (rec *sheetRecord) sourceCandidates(opt Options) []string {
 	cands := []string{rec.path}
 	if opt.SheetPath != "" && !filepath.IsAbs(rec.path) {
 		cands = append(cands, filepath.Join(filepath.Dir(opt.SheetPath), rec.path), filepath.Join(filepath.Dir(opt.SheetPath), filepath.Base(rec.path)))
 	}
-	c := stamp.Check(*rec.opt.Stamp, rec.source, cands...)
-	return &c
+	return cands
 }
 
 // item is one result or check row of a page.
