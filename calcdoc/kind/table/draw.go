@@ -27,15 +27,14 @@ func drawTable(w *markup.Writer, b *calcdoc.Block) {
 	}
 	t := res.Table
 	w.Printf("<div class=\"tablehead\" id=\"L%d\">Table %s</div>\n", b.InfoPos.Line, markup.NameHTML(t.Name))
-	w.WriteString("<dl class=\"tablefacts\">")
-	w.Printf("<dt>Source</dt><dd>%s</dd>", markup.Esc(t.Source))
+	w.Printf("<p class=\"tablefacts\">Source: %s", markup.Esc(t.Source))
 	for _, n := range t.Notes {
-		w.Printf("<dt>Note</dt><dd>%s</dd>", markup.Esc(n))
+		w.Printf("<br>Note: %s", markup.Esc(n))
 	}
 	if t.Path != "" {
-		w.Printf("<dt>File</dt><dd><code>%s</code></dd><dt>File SHA-256</dt><dd><code class=\"hash\">%s</code></dd>", markup.Esc(t.Path), markup.Esc(t.SHA256))
+		w.Printf("<br>File: <code>%s</code>, SHA-256 <code class=\"hash\">%s</code>", markup.Esc(t.Path), markup.Esc(t.SHA256))
 	}
-	w.WriteString("</dl>\n")
+	w.WriteString("</p>\n")
 	rows := allRows(len(t.Rows))
 	long := len(t.Rows) > LongRows
 	if long {
@@ -45,7 +44,7 @@ func drawTable(w *markup.Writer, b *calcdoc.Block) {
 	for _, c := range t.Cols {
 		unit := ""
 		if c.Unit != nil {
-			unit = " <span class=\"unit\">[" + markup.Esc(c.Unit.Text) + "]</span>"
+			unit = " <span class=\"unit\">[" + markup.Esc(markup.UnitText(c.Unit.Text)) + "]</span>"
 		}
 		w.Printf("<th>%s%s</th>", markup.NameHTML(c.Name), unit)
 	}

@@ -72,8 +72,7 @@ func TestLookupsInADocument(t *testing.T) {
 		"between rows 1 (S = 1.5 mm², R_20 = 12.1 Ω/km) and 2 (S = 2.5 mm², R_20 = 7.41 Ω/km)",
 		"cu: the first S at or above 2.000 mm² → S = 2.5 mm² (row 2)",
 		"cu: the first S at or below 2.000 mm² → S = 1.5 mm² (row 1)",
-		"<dt>Source</dt><dd>IEC 60228:2004, Table 2</dd>",
-		"<dt>Note</dt><dd>class 2 copper</dd>",
+		"Source: IEC 60228:2004, Table 2<br>Note: class 2 copper</p>",
 	} {
 		if !strings.Contains(string(html), want) {
 			t.Errorf("the sheet does not show %q", want)

@@ -2,6 +2,7 @@ package data
 
 import (
 	"fmt"
+	"strings"
 
 	"calcdoc/expr"
 )
@@ -14,6 +15,15 @@ import (
 //
 //	cu: S = 95 mm² → R_20 = 0.193 Ω/km (row 12)
 func (t *Table) LookupText(l expr.Lookup, digits int) string {
+	return unitSigns.Replace(t.lookupText(l, digits))
+}
+
+// unitSigns writes units as the sheet does (render/markup.UnitText):
+// "mm^2" as "mm²", "K^-1" as "K⁻¹", "*" as "·". Names and numbers hold
+// neither ^ nor *.
+var unitSigns = strings.NewReplacer("^2", "²", "^3", "³", "^-1", "⁻¹", "^-2", "⁻²", "^-3", "⁻³", "*", "·")
+
+func (t *Table) lookupText(l expr.Lookup, digits int) string {
 	key := t.Cols[0]
 	switch l.Func {
 	case "col":
