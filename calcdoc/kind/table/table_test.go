@@ -1,6 +1,7 @@
 package table_test
 
 import (
+	"fmt"
 	"math"
 	"os"
 	"path/filepath"
@@ -202,5 +203,41 @@ func TestTableFileBadCSV(t *testing.T) {
 	must(t, err)
 	if len(doc.Errors) != 1 || !strings.Contains(doc.Errors[0].Msg, "data/cu.csv:3") {
 		t.Fatalf("errors %v, want one naming data/cu.csv:3", doc.Errors)
+	}
+}
+
+// A look-up that lands on a gap is an error naming the row; a long table
+// (over LongRows rows) shows only the rows look-ups took, with the count.
+func TestGapAndLongTable(t *testing.T) {
+	var rows strings.Builder
+	for i := 1; i <= 20; i++ {
+		fmt.Fprintf(&rows, "%d | %d\n", i, 10*i)
+	}
+	src := "```table g\nsource: test data of our own\nx | y\n1 | 5\n2 |\n3 | 7\n```\n" +
+		"```table long\nsource: test data of our own\nk | v\n" + rows.String() + "```\n" +
+		"```calc\na = g.y(2)\nb = long.v(5)\nc = interp(long.v, 12.5)\n```\n"
+	doc := parse(t, src)
+	if len(doc.Errors) != 1 || doc.Errors[0].Pos.Line != 33 || !strings.Contains(doc.Errors[0].Msg, "has a gap in column y") {
+		t.Fatalf("errors %v, want the gap at line 33", doc.Errors)
+	}
+	// hand derivation: halfway between rows 12 (120) and 13 (130)
+	if v := real(value(t, doc, "c").Z); !near(v, 125) {
+		t.Errorf("c = %g, want 125", v)
+	}
+	html, err := render.Sheet(doc, render.Options{Version: "test"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	page := string(html)
+	if !strings.Contains(page, "3 of 20 rows shown") {
+		t.Errorf("the long table does not say 3 of 20 rows shown")
+	}
+	for _, r := range []string{"<td class=\"rn\">5</td>", "<td class=\"rn\">12</td>", "<td class=\"rn\">13</td>"} {
+		if !strings.Contains(page, r) {
+			t.Errorf("the long table does not show %s", r)
+		}
+	}
+	if strings.Contains(page, "<td class=\"rn\">6</td><td>6</td><td>60</td>") {
+		t.Errorf("the long table shows a row no look-up took")
 	}
 }
