@@ -358,36 +358,7 @@ func (w *Watcher) event(ev fsnotify.Event) bool {
 			queued = true
 		}
 	}
-	// A data file a document read (a table's CSV file) saved: each
-	// document that read it is evaluated again.
-	for doc := range w.reads[name] {
-		w.pending[doc] = true
-		w.stale[doc] = true
-		queued = true
-	}
-	return queued
-}
-
-// noteReads records the data files the document in file read, and
-// watches their folders, so that saving one evaluates the document again.
-func (w *Watcher) noteReads(file string, doc *calcdoc.Document) {
-	for _, docs := range w.reads {
-		delete(docs, file)
-	}
-	for _, f := range doc.Files {
-		if f.Disk == "" {
-			continue
-		}
-		abs, err := filepath.Abs(f.Disk)
-		if err != nil {
-			continue
-		}
-		if w.reads[abs] == nil {
-			w.reads[abs] = map[string]bool{}
-		}
-		w.reads[abs][file] = true
-		w.addWatch(filepath.Dir(abs))
-	}
+	return w.dataSaved(name) || queued
 }
 
 // filesUnder lists the documents (served or kept from their address) whose

@@ -1,0 +1,40 @@
+package preview
+
+import (
+	"path/filepath"
+
+	"calcdoc/calcdoc"
+)
+
+// noteReads records the data files the document in file read, and
+// watches their folders, so that saving one evaluates the document again.
+func (w *Watcher) noteReads(file string, doc *calcdoc.Document) {
+	for _, docs := range w.reads {
+		delete(docs, file)
+	}
+	for _, f := range doc.Files {
+		if f.Disk == "" {
+			continue
+		}
+		abs, err := filepath.Abs(f.Disk)
+		if err != nil {
+			continue
+		}
+		if w.reads[abs] == nil {
+			w.reads[abs] = map[string]bool{}
+		}
+		w.reads[abs][file] = true
+		w.addWatch(filepath.Dir(abs))
+	}
+}
+
+// dataSaved queues each document that read the data file name (a table's
+// CSV file), to be evaluated again though its own bytes did not change;
+// it reports whether there is one.
+func (w *Watcher) dataSaved(name string) bool {
+	for doc := range w.reads[name] {
+		w.pending[doc] = true
+		w.stale[doc] = true
+	}
+	return len(w.reads[name]) > 0
+}
