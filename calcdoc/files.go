@@ -17,6 +17,10 @@ type Inputs struct {
 	// carries them: a block reads these bytes instead of the disk, so that
 	// verify evaluates a sheet from the sheet alone.
 	Carried map[string][]byte
+	// Failed are the files a sheet records that its build could not
+	// read, by path, with the error it gave: a block gets the same error,
+	// so that a sheet with such an error evaluates again as it was built.
+	Failed map[string]string
 }
 
 // File is one file the document's blocks read.
@@ -26,6 +30,9 @@ type File struct {
 	Bytes  []byte
 	// Disk is the file read, its links followed; "" for a carried file.
 	Disk string
+	// Err is why the file could not be read ("" when it was): such a
+	// file has no bytes and no hash.
+	Err string
 }
 
 // ParseWith is Parse with the document's inputs.
@@ -64,6 +71,13 @@ func (d *Document) Carried(rel string) ([]byte, bool) {
 	}
 	b, ok := d.inputs.Carried[CleanFilePath(rel)]
 	return b, ok
+}
+
+// CarriedError returns the error a sheet records for a file its build
+// could not read, and whether it records one.
+func (d *Document) CarriedError(rel string) (string, bool) {
+	msg, ok := d.inputs.Failed[CleanFilePath(rel)]
+	return msg, ok
 }
 
 // IsCarried reports whether the document was given the files it reads

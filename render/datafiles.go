@@ -60,9 +60,14 @@ func FileID(n int) string { return "calcdoc-file-" + strconv.Itoa(n) }
 
 // embedFiles carries the data files the document read, each as the
 // source is carried (embedSource), so that verify evaluates the sheet
-// from the sheet alone.
+// from the sheet alone; a file that could not be read is carried as the
+// error it gave (data-error).
 func embedFiles(w *markup.Writer, doc *calcdoc.Document) {
 	for i, f := range doc.Files {
+		if f.Err != "" {
+			w.Printf("<pre hidden id=\"%s\" data-file=\"%s\" data-error=\"%s\"></pre>\n", FileID(i+1), esc(f.Path), esc(f.Err))
+			continue
+		}
 		text := utf8.Valid(f.Bytes)
 		enc := "text"
 		if !text {

@@ -14,6 +14,9 @@ import (
 func Files(files []*calcdoc.File) []render.FileStamp {
 	var out []render.FileStamp
 	for _, f := range files {
+		if f.Err != "" {
+			continue // not read: nothing to trace
+		}
 		fs := render.FileStamp{Path: f.Path, SHA256: Hash(f.Bytes), State: Unknown, Detail: "the file was not read from the disk; no commit recorded"}
 		if f.Disk != "" {
 			st := Of(f.Disk, f.Bytes)

@@ -18,6 +18,7 @@ import (
 // fit its stated SHA-256 is a difference of kind "hash".
 func (rec *sheetRecord) readFiles(els []*element, prefix string) {
 	rec.files = map[string][]byte{}
+	rec.failed = map[string]string{}
 	for n := 1; ; n++ {
 		id := prefix + render.FileID(n)
 		e := find(els, func(e *element) bool { return e.name == "pre" && e.attr["id"] == id })
@@ -25,6 +26,10 @@ func (rec *sheetRecord) readFiles(els []*element, prefix string) {
 			break
 		}
 		path := e.attr["data-file"]
+		if e.hasAttr("data-error") {
+			rec.failed[path] = e.attr["data-error"]
+			continue
+		}
 		if !e.closed {
 			rec.recordDiffs = append(rec.recordDiffs, Difference{Kind: "record", Message: fmt.Sprintf("the carried data file %s has no end (</pre>)", path)})
 			continue

@@ -142,3 +142,35 @@ func TestVerifyDataFileStateRelabelled(t *testing.T) {
 		t.Errorf("the relabelled data file is not found: %+v", rep.Sheets[0].Differences)
 	}
 }
+
+// A sheet whose table could not read its CSV file carries the error, so
+// it verifies as it was built though the file has appeared since.
+func TestVerifySheetWithAMissingCSVFile(t *testing.T) {
+	dir := t.TempDir()
+	path := filepath.Join(dir, "doc.md")
+	src := "```table cu from data/cu.csv\nsource: IEC 60228:2004, Table 2\n```\n"
+	if err := os.WriteFile(path, []byte(src), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	doc, err := calcdoc.LoadWith(path, kind.Standard(), calcdoc.Inputs{Root: dir})
+	if err != nil || len(doc.Errors) != 1 || !strings.Contains(doc.Errors[0].Msg, "no such file") {
+		t.Fatalf("load: %v %v", err, doc.Errors)
+	}
+	page, err := render.Sheet(doc, render.Options{Version: "test", Stamp: verifyStamp([]byte(src)), EmbedSource: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := os.MkdirAll(filepath.Join(dir, "data"), 0o755); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(filepath.Join(dir, "data", "cu.csv"), []byte("S [mm²],R_20 [Ω/km]\n4,4.61\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	rep, err := Verify(page, "test")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !rep.OK() {
+		t.Errorf("the sheet with a missing CSV file does not verify: %v", rep.Sheets[0].Differences)
+	}
+}

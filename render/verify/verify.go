@@ -200,6 +200,8 @@ type sheetRecord struct {
 	// files are the data files the sheet carries, by the path the
 	// document writes (files.go)
 	files map[string][]byte
+	// failed are the files the build could not read, with the error
+	failed map[string]string
 }
 
 // readSheet reads the record of the sheet in page (its elements, read
@@ -300,7 +302,7 @@ func (rec *sheetRecord) check(unit []byte, lineBase int, opt Options, rerender f
 	if files == nil {
 		files = map[string][]byte{} // a sheet without a stamp: still no disk
 	}
-	doc := calcdoc.ParseWith(rec.path, rec.source, kind.Standard(), calcdoc.Inputs{Carried: files})
+	doc := calcdoc.ParseWith(rec.path, rec.source, kind.Standard(), calcdoc.Inputs{Carried: files, Failed: rec.failed})
 	res.doc = doc
 	ropt := rec.opt
 	ropt.Version = opt.Version

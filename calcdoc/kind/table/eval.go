@@ -57,6 +57,9 @@ func evalTable(b *calcdoc.Block) {
 		pathPos := b.ArgAt(relOff)
 		bytes, disk, err := readFile(b.Doc(), rel)
 		if err != nil {
+			// recorded, so that the sheet carries the error and verify
+			// evaluates it again as it was built
+			b.Doc().AddFile(&calcdoc.File{Path: rel, Err: err.Error()})
 			b.Errorf(pathPos, "%v", err)
 			return
 		}
@@ -89,6 +92,9 @@ func readFile(doc *calcdoc.Document, rel string) (b []byte, disk string, err err
 	if doc.IsCarried() {
 		if b, ok := doc.Carried(rel); ok {
 			return b, "", nil
+		}
+		if msg, ok := doc.CarriedError(rel); ok {
+			return nil, "", errors.New(msg)
 		}
 		return nil, "", errors.New(rel + ": the sheet carries no such file: it was built without it")
 	}
