@@ -1,22 +1,26 @@
 package preview
 
 import (
+	"os"
 	"path/filepath"
 
 	"calcdoc/calcdoc"
 )
 
 // noteReads records the data files the document in file read, and
-// watches their folders, so that saving one evaluates the document again.
+// watches their folders, so that saving one evaluates the document again;
+// a file it could not read is looked for where its path leads, so that
+// the document is evaluated again when it appears.
 func (w *Watcher) noteReads(file string, doc *calcdoc.Document) {
 	for _, docs := range w.reads {
 		delete(docs, file)
 	}
 	for _, f := range doc.Files {
-		if f.Disk == "" {
-			continue
+		disk := f.Disk
+		if disk == "" {
+			disk = filepath.Join(filepath.Dir(file), filepath.FromSlash(f.Path))
 		}
-		abs, err := filepath.Abs(f.Disk)
+		abs, err := filepath.Abs(disk)
 		if err != nil {
 			continue
 		}
@@ -24,7 +28,9 @@ func (w *Watcher) noteReads(file string, doc *calcdoc.Document) {
 			w.reads[abs] = map[string]bool{}
 		}
 		w.reads[abs][file] = true
-		w.addWatch(filepath.Dir(abs))
+		if fi, err := os.Stat(filepath.Dir(abs)); err == nil && fi.IsDir() {
+			w.addWatch(filepath.Dir(abs))
+		}
 	}
 }
 

@@ -36,3 +36,28 @@ func TestCSVSaveRebuilds(t *testing.T) {
 	saveInPlace(t, csv, "S [mm²],R_20 [Ω/km]\n2.5,7.41\n4,4.63\n")
 	h.wait("/a.html", shows("R_20 = 4.63 Ω/km (row 2)"))
 }
+
+// A document whose CSV file is missing is evaluated again when the file
+// appears.
+func TestCSVAppearsRebuilds(t *testing.T) {
+	repo := t.TempDir()
+	if err := os.Mkdir(filepath.Join(repo, ".git"), 0o755); err != nil {
+		t.Fatal(err)
+	}
+	write(t, filepath.Join(repo, "data", "other.csv"), "k\n1\n")
+	write(t, filepath.Join(repo, "a.md"), "```table cu from data/cu.csv\nsource: IEC 60228:2004, Table 2\n```\n```calc\nR = cu.R_20(4 mm²)\n```\n")
+	h := start(t, Config{Paths: []string{repo}})
+	h.wait("/a.html", func(st int, body string) string {
+		if !strings.Contains(body, "no such file") {
+			return "the missing file is not reported"
+		}
+		return ""
+	})
+	saveRenameOver(t, filepath.Join(repo, "data", "cu.csv"), "S [mm²],R_20 [Ω/km]\n2.5,7.41\n4,4.61\n")
+	h.wait("/a.html", func(st int, body string) string {
+		if !strings.Contains(body, "R_20 = 4.61 Ω/km (row 2)") {
+			return "the file that appeared is not read"
+		}
+		return ""
+	})
+}
