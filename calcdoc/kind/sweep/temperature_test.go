@@ -6,6 +6,7 @@ import (
 	"testing"
 
 	"calcdoc/calcdoc"
+	"calcdoc/render"
 )
 
 // A sweep over a temperature in °C keeps the mark of an absolute
@@ -53,6 +54,14 @@ func TestSweepOverCelsius(t *testing.T) {
 				t.Errorf("theta_2: abs %v, plotted %g %q, want 25 in °C", l.AbsTemp, y[0], figs[0].plot.YLabel)
 			}
 		}
+	}
+	// the sheet's table shows the variable in °C: the first point 20 °C
+	html, err := render.Sheet(d, render.Options{Version: "test"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(string(html), "<tr><td>1</td><td><math display=\"inline\"><mrow><mrow><mn>20.00</mn><mspace width=\"0.25em\"/><mi mathvariant=\"normal\">°C</mi>") {
+		t.Errorf("the sweep table does not show the first point as 20.00 °C")
 	}
 	// a start in °C and a stop in K is refused
 	d = calcdoc.Parse("t.md", []byte("```sweep theta = 20 °C .. 90 K 8\nx = theta - 20 °C\n```\n"), testKinds)
