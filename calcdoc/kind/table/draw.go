@@ -2,8 +2,10 @@ package table
 
 import (
 	"sort"
+	"strings"
 
 	"calcdoc/calcdoc"
+	"calcdoc/calcdoc/kind/table/data"
 	"calcdoc/expr"
 	"calcdoc/render/markup"
 )
@@ -39,6 +41,10 @@ func drawTable(w *markup.Writer, b *calcdoc.Block) {
 	long := len(t.Rows) > LongRows
 	if long {
 		rows = usedRows(b.Doc(), t.Name)
+		if len(rows) == 0 {
+			w.Printf("<p class=\"tablecount\">%d rows, of columns %s; no look-up took any of them, so none is shown</p>\n</div>\n", len(t.Rows), markup.Esc(headers(t)))
+			return
+		}
 	}
 	w.WriteString("<table><thead><tr><th>row</th>")
 	for _, c := range t.Cols {
@@ -109,4 +115,13 @@ func DocLookups(doc *calcdoc.Document) []expr.Lookup {
 		}
 	}
 	return out
+}
+
+// headers lists the table's column headers as the block writes them.
+func headers(t *data.Table) string {
+	hs := make([]string, len(t.Cols))
+	for i, c := range t.Cols {
+		hs[i] = markup.UnitText(c.Header())
+	}
+	return strings.Join(hs, ", ")
 }

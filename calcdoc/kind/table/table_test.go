@@ -240,4 +240,13 @@ func TestGapAndLongTable(t *testing.T) {
 	if strings.Contains(page, "<td class=\"rn\">6</td><td>6</td><td>60</td>") {
 		t.Errorf("the long table shows a row no look-up took")
 	}
+	// a long table that no look-up used shows its size and columns only
+	doc = parse(t, "```table long\nsource: test data of our own\nk | v [A]\n"+rows.String()+"```\n")
+	html, err = render.Sheet(doc, render.Options{Version: "test"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(string(html), "20 rows, of columns k, v [A]; no look-up took any of them") {
+		t.Errorf("an unused long table is not summed up")
+	}
 }
