@@ -41,6 +41,9 @@ type Document struct {
 	// Kinds are the block kinds the document was evaluated with; the
 	// sheet draws each block by its kind.
 	Kinds *Registry
+	// DataFiles are the files the blocks read (a table's CSV), in the
+	// order first read; the stamp lists them and the sheet carries them.
+	DataFiles []*DataFile
 
 	// Files is the set of files the document is read from; File is the
 	// document's own (named Path, holding Text before the front matter is
@@ -48,6 +51,7 @@ type Document struct {
 	Files *expr.FileSet
 	File  *expr.File
 
+	inputs    Inputs
 	byNode    map[ast.Node]*Block
 	inlineN   map[ast.Node]*Inline
 	order     []any // the blocks and inline values in document order
@@ -149,14 +153,21 @@ func Markdown() goldmark.Markdown { return markdown }
 // It never fails: every problem is in the document's Errors, and
 // evaluation goes on past each one.
 func Parse(path string, src []byte, reg *Registry) *Document {
-	return ParseBudget(path, src, reg, expr.NewBudget(expr.DefaultBudget))
+	return parse(path, src, reg, Inputs{})
 }
 
 // ParseBudget is Parse with the work budget the evaluation spends, which
 // the caller may stop (expr.Budget.Stop) from another goroutine.
 func ParseBudget(path string, src []byte, reg *Registry, budget *expr.Budget) *Document {
-	d := ParseOnly(path, src, reg)
-	d.Env.Budget = budget
+	return parse(path, src, reg, Inputs{Budget: budget})
+}
+
+// parse reads and evaluates a document with its inputs.
+func parse(path string, src []byte, reg *Registry, in Inputs) *Document {
+	d := parseOnly(path, src, reg, in)
+	if in.Budget != nil {
+		d.Env.Budget = in.Budget
+	}
 	d.Evaluate()
 	return d
 }
@@ -167,7 +178,11 @@ func ParseBudget(path string, src []byte, reg *Registry, budget *expr.Budget) *D
 // yet). Evaluate evaluates them, with the default work budget unless the
 // caller sets Env.Budget first.
 func ParseOnly(path string, src []byte, reg *Registry) *Document {
-	d := &Document{Path: path, Source: src, Env: expr.NewEnv(), Kinds: reg, Files: &expr.FileSet{}, byNode: map[ast.Node]*Block{}, inlineN: map[ast.Node]*Inline{}}
+	return parseOnly(path, src, reg, Inputs{})
+}
+
+func parseOnly(path string, src []byte, reg *Registry, in Inputs) *Document {
+	d := &Document{Path: path, Source: src, Env: expr.NewEnv(), Kinds: reg, Files: &expr.FileSet{}, inputs: in, byNode: map[ast.Node]*Block{}, inlineN: map[ast.Node]*Inline{}}
 	d.Env.Budget = expr.NewBudget(expr.DefaultBudget)
 	txt := readerLines(src)
 	var bad []int

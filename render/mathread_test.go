@@ -113,7 +113,21 @@ type mlTok struct {
 // flatten turns an element and its children into the tokens a reader sees.
 func flatten(n *mlNode) ([]mlTok, error) {
 	switch n.name {
-	case "math", "mrow", "mtd", "root":
+	case "mrow":
+		if n.attrs["class"] == "tcol" {
+			// a column of a table: <mtext>cu</mtext><mo>.</mo> and the
+			// column's name, read back as the one name cu.R_20
+			if len(n.kids) != 3 || n.kids[0].name != "mtext" || n.kids[1].name != "mo" || n.kids[1].text != "." {
+				return nil, fmt.Errorf("a table column that is not table . name")
+			}
+			col, err := flatten(n.kids[2])
+			if err != nil || len(col) != 1 || col[0].kind != tName {
+				return nil, fmt.Errorf("a table column whose column is not a name")
+			}
+			return []mlTok{{kind: tName, text: n.kids[0].text + "." + col[0].text}}, nil
+		}
+		return flattenKids(n.kids)
+	case "math", "mtd", "root":
 		return flattenKids(n.kids)
 	case "mspace":
 		return nil, nil

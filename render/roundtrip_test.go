@@ -50,6 +50,10 @@ var preamble = []string{
 	"f(x, y) = x * y + 1",
 }
 
+// rtTable is a table the look-up statements read (data of our own, for
+// the typesetting only).
+const rtTable = "```table tb\nsource: test data of our own\nS [mm²] | R_20 [Ω/km]\n2.5 | 7.41\n4 | 4.61\n```\n"
+
 type rtStats struct{ formulas, substs int }
 
 // roundTrip builds a sheet of the preamble and stmts and checks every
@@ -57,7 +61,7 @@ type rtStats struct{ formulas, substs int }
 // checked.
 func roundTrip(t testing.TB, stmts []string) rtStats {
 	t.Helper()
-	src := "---\ndigits: 12\n---\n```calc\n" + strings.Join(preamble, "\n") + "\n" + strings.Join(stmts, "\n") + "\n```\n"
+	src := "---\ndigits: 12\n---\n" + rtTable + "```calc\n" + strings.Join(preamble, "\n") + "\n" + strings.Join(stmts, "\n") + "\n```\n"
 	doc := calcdoc.Parse("roundtrip.md", []byte(src), kind.Standard())
 	html, err := Sheet(doc, Options{Version: "test"})
 	if err != nil {
@@ -215,10 +219,11 @@ func checkSubstRow(t testing.TB, doc *calcdoc.Document, s *calcdoc.Stmt, row str
 		t.Errorf("%q: the substitution cannot be read back: %v\n  MathML: %s", s.Text, err, m[1])
 		return false
 	}
-	// every name has been replaced by its value
+	// every name has been replaced by its value; a table, or a column
+	// of one, is not a value and stays named (its look-up keeps its key)
 	var names []string
 	walkCanon(x, func(n expr.Node) {
-		if id, ok := n.(*expr.Ident); ok && id.Name != "π" && id.Name != "j" {
+		if id, ok := n.(*expr.Ident); ok && id.Name != "π" && id.Name != "j" && !strings.Contains(id.Name, ".") && doc.Env.LookupTable(id.Name) == nil {
 			names = append(names, id.Name)
 		}
 	})
@@ -394,6 +399,9 @@ var namedCases = []string{
 	"n_3 = a - -b",                    //
 	"n_4 = +a + +b",                   //
 	"n_5 = omega * (alpha_2 - a) * b", //
+	"l_1 = tb.R_20(2.5 mm^2) * a",     // a table look-up
+	"l_2 = interp(tb.R_20, 3 mm^2)",   // interpolation names a column
+	"l_3 = up(tb, 3 mm^2) + 1 mm^2",   // the next key up
 }
 
 func TestTypesetRoundTripNamed(t *testing.T) {

@@ -89,6 +89,8 @@ type StampInfo struct {
 	// Detail is one sentence for the sheet that says what State means for
 	// this file, e.g. "git is not installed; no commit recorded".
 	Detail string
+	// Files trace the data files the sheet read (datafiles.go).
+	Files []FileStamp
 }
 
 // SourceHash returns the lower-case hexadecimal SHA-256 digest (FIPS
@@ -109,8 +111,8 @@ func MarkerText(doc *calcdoc.Document, opt Options) string {
 		why = "errors in the calculation"
 	case doc.FailedChecks() > 0:
 		why = "a check is not satisfied"
-	case opt.Stamp != nil && opt.Stamp.State != TreeClean:
-		switch opt.Stamp.State {
+	case opt.Stamp != nil && opt.Stamp.SheetState() != TreeClean:
+		switch opt.Stamp.SheetState() {
 		case TreeModified, TreeUntracked:
 			why = "uncommitted changes"
 		default:
@@ -144,6 +146,7 @@ func stampSection(w *markup.Writer, doc *calcdoc.Document, opt Options) {
 	}
 	row("Last commit of the file", commit)
 	row("Working tree", esc(stateWords(s.State))+"; "+esc(s.Detail))
+	stampFileRows(w, s)
 	row("Revision and date", esc(OrDash(doc.Front.Revision))+", "+esc(OrDash(doc.Front.Date)))
 	row("calcdoc version", esc(opt.Version))
 	w.WriteString("</table>\n</section>\n")

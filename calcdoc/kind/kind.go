@@ -1,5 +1,5 @@
 // Package kind is the registry of the block kinds calcdoc ships: calc,
-// solve, phasors, sweep and network, each one unit in its own folder that
+// solve, phasors, sweep, network and table, each one unit in its own folder that
 // evaluates its blocks and draws them.
 package kind
 
@@ -10,9 +10,10 @@ import (
 	"calcdoc/calcdoc/kind/phasors"
 	"calcdoc/calcdoc/kind/solve"
 	"calcdoc/calcdoc/kind/sweep"
+	"calcdoc/calcdoc/kind/table"
 )
 
-var standard = calcdoc.NewRegistry(calc.Kind, solve.Kind, phasors.Kind, sweep.Kind, network.Kind)
+var standard = calcdoc.NewRegistry(calc.Kind, solve.Kind, phasors.Kind, sweep.Kind, network.Kind, table.Kind)
 
 // Standard returns the registry of the shipped block kinds.
 func Standard() *calcdoc.Registry { return standard }

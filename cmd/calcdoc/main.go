@@ -189,7 +189,7 @@ func (c *cli) build(args []string) int {
 	}
 	st := exitOK
 	for _, in := range inputs {
-		doc, err := calcdoc.Load(in.Path, kind.Standard())
+		doc, err := calcdoc.LoadWith(in.Path, kind.Standard(), calcdoc.Inputs{Root: in.Root})
 		if err != nil {
 			fmt.Fprintf(c.stderr, "calcdoc: %v\n", err)
 			st = max(st, exitUsage)
@@ -240,7 +240,7 @@ func (c *cli) check(args []string) int {
 	}
 	st := exitOK
 	for _, in := range inputs {
-		doc, err := calcdoc.Load(in.Path, kind.Standard())
+		doc, err := calcdoc.LoadWith(in.Path, kind.Standard(), calcdoc.Inputs{Root: in.Root})
 		if err != nil {
 			fmt.Fprintf(c.stderr, "calcdoc: %v\n", err)
 			st = max(st, exitUsage)

@@ -152,7 +152,7 @@ func (c *cli) pack(args []string) int {
 
 	var docs []*calcdoc.Document
 	for _, in := range inputs {
-		doc, err := calcdoc.Load(in.Path, kind.Standard())
+		doc, err := calcdoc.LoadWith(in.Path, kind.Standard(), calcdoc.Inputs{Root: in.Root})
 		if err != nil {
 			fmt.Fprintf(c.stderr, "calcdoc: %v\n", err)
 			return exitUsage

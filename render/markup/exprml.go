@@ -361,6 +361,10 @@ func (m *ExprML) write(b StringWriter, n expr.Node) {
 			b.WriteString("<mi>π</mi>")
 			return
 		}
+		if _, _, ok := n.Column(); ok {
+			b.WriteString(ColumnML(n))
+			return
+		}
 		b.WriteString(NameML(n.Name))
 	case *expr.WithUnit:
 		b.WriteString("<mrow>")
@@ -538,7 +542,9 @@ func (m *ExprML) call(b StringWriter, n *expr.Call) {
 	}
 	b.WriteString("<mrow>")
 	name := n.Fun.Name
-	if strings.Contains(name, "_") || utf8.RuneCountInString(name) == 1 {
+	if _, _, ok := n.Fun.Column(); ok {
+		b.WriteString(ColumnML(n.Fun))
+	} else if strings.Contains(name, "_") || utf8.RuneCountInString(name) == 1 {
 		b.WriteString(NameML(name))
 	} else {
 		b.WriteString("<mi>")
@@ -553,4 +559,11 @@ func (m *ExprML) call(b StringWriter, n *expr.Call) {
 		m.write(b, a)
 	}
 	b.WriteString("<mo>)</mo></mrow>")
+}
+
+// ColumnML typesets a column of a table, cu.R_20: the table's name in
+// upright letters, a dot, and the column as a name with its subscripts.
+func ColumnML(n *expr.Ident) string {
+	tab, col, _ := n.Column()
+	return "<mrow class=\"tcol\"><mtext>" + Esc(tab) + "</mtext><mo>.</mo>" + NameML(col) + "</mrow>"
 }

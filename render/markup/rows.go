@@ -248,6 +248,9 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 	case *expr.BadStmt:
 		w.Printf("<div class=\"f\"><code>%s</code></div>", Esc(st.Text))
 	}
+	if ok && res != nil {
+		w.LookupRows(res.Trace)
+	}
 	for _, e := range st.Errs {
 		w.ErrorRow(e)
 	}
@@ -318,5 +321,26 @@ func checkDisplay(w *Writer, c *expr.Compare) *expr.Display {
 func (w *Writer) KindNote(v expr.Value) {
 	if sc, ok := v.(*expr.Scalar); ok && sc != nil && sc.KindNotStated() {
 		w.WriteString("<div class=\"s kn\"><em>kind not stated</em> (shown in W; name W, var or VA in the line)</div>")
+	}
+}
+
+// LookupTexter is a table that says in a line what one of its look-ups
+// took (the table kind's tables are).
+type LookupTexter interface {
+	LookupText(l expr.Lookup, digits int) string
+}
+
+// LookupRows writes, under a statement's working, a small line for each
+// table look-up its evaluation made: the table, the key and the row (or
+// the two rows of an interpolation) it took.
+func (w *Writer) LookupRows(tr *expr.Trace) {
+	for _, l := range tr.Lookups() {
+		t, ok := w.Doc.Env.LookupTable(l.Table).(LookupTexter)
+		if !ok {
+			continue
+		}
+		w.WriteString("<div class=\"s lk\">")
+		w.WriteString(Esc(t.LookupText(l, w.Digits())))
+		w.WriteString("</div>")
 	}
 }

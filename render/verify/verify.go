@@ -197,6 +197,11 @@ type sheetRecord struct {
 	hasStamp    bool
 	opt         render.Options
 	recordDiffs []Difference
+	// files are the data files the sheet carries, by the path the
+	// document writes (files.go)
+	files map[string][]byte
+	// failed are the files the build could not read, with the error
+	failed map[string]string
 }
 
 // readSheet reads the record of the sheet in page (its elements, read
@@ -243,6 +248,7 @@ func readSheet(page []byte, prefix string) (*sheetRecord, error) {
 	} else if g := find(els, func(e *element) bool { return e.name == "meta" && e.attr["name"] == "generator" }); g != nil {
 		rec.opt.Version = strings.TrimPrefix(g.attr["content"], "calcdoc ")
 	}
+	rec.readFiles(els, prefix)
 	return rec, nil
 }
 
@@ -288,11 +294,15 @@ func (rec *sheetRecord) check(unit []byte, lineBase int, opt Options, rerender f
 	}
 	if opt.Git && rec.opt.Stamp != nil {
 		res.Git = rec.gitCheck(opt)
-		for _, p := range res.Git.Problems {
+		for _, p := range append(res.Git.Problems, rec.fileGitProblems(opt)...) {
 			res.Differences = append(res.Differences, Difference{Kind: "git", Message: "git: " + p})
 		}
 	}
-	doc := calcdoc.Parse(rec.path, rec.source, kind.Standard())
+	files := rec.files
+	if files == nil {
+		files = map[string][]byte{} // a sheet without a stamp: still no disk
+	}
+	doc := calcdoc.ParseWith(rec.path, rec.source, kind.Standard(), calcdoc.Inputs{Carried: files, Failed: rec.failed})
 	res.doc = doc
 	ropt := rec.opt
 	ropt.Version = opt.Version

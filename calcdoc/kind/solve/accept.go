@@ -173,7 +173,7 @@ func (r *solveRun) solveSet() bool {
 
 	for k, u := range r.unk {
 		c := r.col[k]
-		v := &expr.Scalar{Dim: u.Dim, Angle: u.Angle}
+		v := &expr.Scalar{Dim: u.Dim, Angle: u.Angle, AbsTemp: u.AbsTemp}
 		if u.Real {
 			v.Z = complex(x[c], 0)
 		} else {

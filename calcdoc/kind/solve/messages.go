@@ -231,7 +231,7 @@ func (r *solveRun) pointWords(x []float64) string {
 	var s []string
 	for k, u := range r.unk {
 		c := r.col[k]
-		v := &expr.Scalar{Dim: u.Dim, Angle: u.Angle, Z: complex(x[c], 0)}
+		v := &expr.Scalar{Dim: u.Dim, Angle: u.Angle, AbsTemp: u.AbsTemp, Z: complex(x[c], 0)}
 		if !u.Real {
 			v.Z = complex(x[c], x[c+1])
 		}

@@ -115,6 +115,7 @@ func (r *solveRun) checkUnknowns(unk []*Unknown, ok bool) bool {
 		}
 		if u.HasUnit() {
 			u.Dim, u.Angle = u.Display.Unit.Dim, u.Display.Unit.Angle && u.Display.Unit.Dim.IsZero()
+			u.AbsTemp = u.Display.Unit.Offset != 0
 		}
 		if u.NearNode != nil {
 			v, err := r.env.Eval(u.NearNode, nil)
@@ -150,10 +151,10 @@ func (r *solveRun) checkUnknowns(unk []*Unknown, ok bool) bool {
 				continue
 			}
 			if !u.HasUnit() {
-				u.Dim, u.Angle = s.Dim, s.Angle
+				u.Dim, u.Angle, u.AbsTemp = s.Dim, s.Angle, s.AbsTemp
 			}
 			near := *s
-			near.Dim = u.Dim
+			near.Dim, near.AbsTemp = u.Dim, u.AbsTemp
 			if u.Real {
 				near.Z = complex(real(near.Z), 0)
 			}
@@ -216,14 +217,19 @@ func (r *solveRun) layout(unk []*Unknown) bool {
 	r.vals = make([]*expr.Scalar, len(unk))
 	r.col = make([]int, len(unk))
 	for k, u := range unk {
-		r.vals[k] = &expr.Scalar{Dim: u.Dim, Angle: u.Angle}
+		r.vals[k] = &expr.Scalar{Dim: u.Dim, Angle: u.Angle, AbsTemp: u.AbsTemp}
 		r.loc[expr.NameKey(u.Name)] = r.vals[k] // keyed as the evaluator looks names up
 		r.col[k] = r.n
 		scale := 1.0
+		var z complex128
 		if u.HasUnit() {
 			scale = u.Display.Unit.Scale
+			if off := u.Display.Unit.Offset; off != 0 {
+				// a [°C] unknown with no starting value starts at 0 °C
+				// (273.15 K), not at absolute zero, and is scaled by it
+				z, scale = complex(off, 0), off
+			}
 		}
-		var z complex128
 		if u.Near != nil {
 			z = u.Near.Z
 			if a := cmplx.Abs(z); a > 0 {

@@ -96,6 +96,9 @@ type Unknown struct {
 	// value, else dimensionless); Angle marks an angle unit.
 	Dim   expr.Dim
 	Angle bool
+	// AbsTemp marks an absolute temperature: a [°C] unknown, or one whose
+	// starting value is in °C (LANGUAGE.md section 4).
+	AbsTemp bool
 	// Value is the solved value, nil when the set was not solved.
 	Value *expr.Scalar
 }

@@ -146,7 +146,7 @@ func sweepTable(w *markup.Writer, sw *Sweep, cols []*SweepLine) {
 		w.Printf("<th>%s</th>", lineHeadML(w, l))
 	}
 	w.WriteString("<th>note</th></tr></thead>\n<tbody>\n")
-	varS := &expr.Scalar{Dim: sw.Dim, Angle: sw.Angle, Kind: sw.Kind}
+	varS := &expr.Scalar{Dim: sw.Dim, Angle: sw.Angle, Kind: sw.Kind, AbsTemp: sw.AbsTemp}
 	for _, i := range rows {
 		varS.Z = complex(sw.X[i], 0)
 		w.Printf("<tr><td>%d</td><td>%s</td>", i+1, markup.Math(markup.ShownML(expr.FormatScalar(varS, nil, w.Digits()), false)))
@@ -213,21 +213,31 @@ func axisLabel(name, unit string) string {
 	return name + " [" + unit + "]"
 }
 
-// plotUnit is the unit a line's values are plotted in and its size in
-// coherent SI units: the line's display unit, else its default unit
-// (degrees for a real angle).
-func plotUnit(l *SweepLine) (string, float64) {
+// plotUnit is the unit a line's values are plotted in, its size in
+// coherent SI units and its offset (273.15 K for an absolute temperature
+// in °C): a value v is plotted as (v − offset) / scale. It is the line's
+// display unit, else its default unit (degrees for a real angle, °C for
+// an absolute temperature).
+func plotUnit(l *SweepLine) (string, float64, float64) {
 	if l.Display != nil && l.Display.Unit != nil {
 		u := l.Display.Unit.Text
 		if u == "deg" {
 			u = "°"
 		}
-		return markup.UnitText(u), l.Display.Unit.Scale
+		offset := 0.0
+		if l.AbsTemp {
+			offset = l.Display.Unit.Offset // °C shows (v − 273.15 K) / 1 K
+		}
+		return markup.UnitText(u), l.Display.Unit.Scale, offset
 	}
 	if l.Angle && !l.Complex && l.Dim.IsZero() {
-		return "°", math.Pi / 180
+		return "°", math.Pi / 180, 0
 	}
-	return baseUnit(l.Dim, l.Kind, l.Complex), 1
+	if l.AbsTemp && !l.Complex {
+		u, scale, offset := expr.DisplayUnitOffset(&expr.Scalar{Z: 1, Dim: l.Dim, AbsTemp: true}, nil, 4)
+		return markup.UnitText(u), scale, offset
+	}
+	return baseUnit(l.Dim, l.Kind, l.Complex), 1, 0
 }
 
 // useLogY reports whether values are drawn on a logarithmic y axis: every
@@ -280,22 +290,21 @@ func sweepPlots(w *markup.Writer, sw *Sweep, l *SweepLine) {
 func sweepFigs(sw *Sweep, l *SweepLine) []sweepFig {
 	n := len(sw.X)
 	x := make([]float64, n)
-	xUnit := baseUnit(sw.Dim, sw.Kind, false)
-	xScale := 1.0
+	xUnit, xScale, xOffset := expr.DisplayUnitOffset(&expr.Scalar{Z: 1, Dim: sw.Dim, Kind: sw.Kind, AbsTemp: sw.AbsTemp}, nil, 4)
 	if sw.Angle && sw.Dim.IsZero() {
-		xUnit, xScale = "°", math.Pi/180
+		xUnit, xScale, xOffset = "°", math.Pi/180, 0
 	}
 	for i, v := range sw.X {
-		x[i] = v / xScale
+		x[i] = (v - xOffset) / xScale
 	}
 	xLabel := axisLabel(sw.Var, markup.UnitText(xUnit))
 	col := plotColumnsOf(x, sw.Log, plotColumns)
-	unit, scale := plotUnit(l)
+	unit, scale, offset := plotUnit(l)
 	name := lineLabel(l)
 	line := l.Stmt.Pos().Line()
 	y := make([]float64, n)
 	for i := range y {
-		y[i] = l.Plot(i) / scale
+		y[i] = (l.Plot(i) - offset) / scale
 	}
 	q := name
 	what := "value"

@@ -41,6 +41,9 @@ type Sweep struct {
 	// Kind is the power kind of a power sweep variable: that of Start and
 	// Stop when they agree, else none.
 	Kind expr.PowerKind
+	// AbsTemp marks an absolute temperature (°C, LANGUAGE.md section 4),
+	// shown and plotted in °C.
+	AbsTemp bool
 	// X holds the points in coherent SI units (radians for an angle):
 	// X[i] = Start + (Stop − Start)·i/(N − 1), or with Log
 	// X[i] = Start·(Stop/Start)^(i/(N − 1)); X[0] and X[N−1] are exactly
@@ -74,6 +77,9 @@ type SweepLine struct {
 	// Complex, else the first kind known at a point (a display bracket in
 	// W, var or VA sets it on a computed power).
 	Kind expr.PowerKind
+	// AbsTemp marks an absolute temperature (°C, LANGUAGE.md section 4),
+	// shown and plotted in °C.
+	AbsTemp bool
 	// Z holds the value at each point in coherent SI units; NaN (both
 	// parts) where the line has no value: a gap.
 	Z []complex128
@@ -321,6 +327,10 @@ func parseSweepHeader(b *calcdoc.Block, sw *Sweep) bool {
 		b.Errorf(stop.pos, "the start and the stop of the range differ in unit: %s is %s, %s is %s", expr.Describe(start.s), expr.DimWord(start.s.Dim), expr.Describe(stop.s), expr.DimWord(stop.s.Dim))
 		return false
 	}
+	if start.s.AbsTemp != stop.s.AbsTemp {
+		b.Errorf(stop.pos, "the start and the stop of the range are not both temperatures in °C or both differences: %s and %s (write both in °C, or both in K)", expr.Describe(start.s), expr.Describe(stop.s))
+		return false
+	}
 	a, z := real(start.s.Z), real(stop.s.Z)
 	if !(a < z) {
 		b.Errorf(stop.pos, "the start of the range must be below its stop (start %s, stop %s)", expr.Describe(start.s), expr.Describe(stop.s))
@@ -330,7 +340,7 @@ func parseSweepHeader(b *calcdoc.Block, sw *Sweep) bool {
 		b.Errorf(start.pos, "a log sweep needs a start above zero (start %s): start at a small positive value, or drop log", expr.Describe(start.s))
 		return false
 	}
-	sw.Dim, sw.Angle = start.s.Dim, start.s.Angle || stop.s.Angle
+	sw.Dim, sw.Angle, sw.AbsTemp = start.s.Dim, start.s.Angle || stop.s.Angle, start.s.AbsTemp
 	if start.s.Kind == stop.s.Kind {
 		sw.Kind = start.s.Kind
 	}
@@ -458,7 +468,7 @@ func sweepEnd(b *calcdoc.Block, sw *Sweep, what, text string, off int) (sweepEnd
 	case !s.IsReal():
 		b.Errorf(pos, "the %s of a sweep must be real, not %s (use abs, re or im)", what, expr.Describe(s))
 	default:
-		return sweepEndValue{&expr.Scalar{Z: complex(real(s.Z), 0), Dim: s.Dim, Angle: s.Angle}, pos}, true
+		return sweepEndValue{&expr.Scalar{Z: complex(real(s.Z), 0), Dim: s.Dim, Angle: s.Angle, AbsTemp: s.AbsTemp}, pos}, true
 	}
 	return sweepEndValue{}, false
 }
@@ -568,7 +578,7 @@ func runSweep(b *calcdoc.Block, sw *Sweep) {
 	}
 	nan := complex(math.NaN(), math.NaN())
 	for i, x := range sw.X {
-		locals[expr.NameKey(sw.Var)] = &expr.Scalar{Z: complex(x, 0), Dim: sw.Dim, Angle: sw.Angle, Kind: sw.Kind}
+		locals[expr.NameKey(sw.Var)] = &expr.Scalar{Z: complex(x, 0), Dim: sw.Dim, Angle: sw.Angle, Kind: sw.Kind, AbsTemp: sw.AbsTemp}
 		for _, l := range sw.Lines {
 			if l.Name != "" {
 				delete(locals, expr.NameKey(l.Name))
@@ -628,7 +638,7 @@ func runSweep(b *calcdoc.Block, sw *Sweep) {
 			}
 			if first[li] < 0 {
 				first[li] = i
-				l.Dim, l.Angle, l.Kind = s.Dim, s.Angle, s.Kind
+				l.Dim, l.Angle, l.Kind, l.AbsTemp = s.Dim, s.Angle, s.Kind, s.AbsTemp
 				if derr := expr.CheckDisplay(s, l.Display); derr != nil {
 					// a failed display unit defines nothing: the line has
 					// no value at any point, and the lines that use it

@@ -13,7 +13,7 @@ func (l *SweepLine) At(i int) *expr.Scalar {
 	if cmplx.IsNaN(z) {
 		return nil
 	}
-	s := &expr.Scalar{Z: z, Dim: l.Dim, Angle: l.Angle, Kind: l.Kind}
+	s := &expr.Scalar{Z: z, Dim: l.Dim, Angle: l.Angle, Kind: l.Kind, AbsTemp: l.AbsTemp}
 	if l.Sense != nil {
 		s.Sense = l.Sense[i]
 	}

@@ -18,6 +18,7 @@ type Options = render.Options
 // and carrying its source, so that verify can check it.
 func Stamped(doc *calcdoc.Document, version string) Options {
 	st := stamp.Of(doc.Path, doc.Source)
+	st.Files = stamp.Files(doc.DataFiles)
 	return Options{Version: version, Stamp: &st, EmbedSource: true}
 }
 

@@ -58,8 +58,8 @@ func TestCollectFolderRule(t *testing.T) {
 		t.Fatal(err)
 	}
 	want := []Input{
-		{Path: filepath.Join(dir, "a", "c.md"), Rel: filepath.Join("a", "c.md")},
-		{Path: filepath.Join(dir, "b.md"), Rel: "b.md"},
+		{Path: filepath.Join(dir, "a", "c.md"), Rel: filepath.Join("a", "c.md"), Root: dir},
+		{Path: filepath.Join(dir, "b.md"), Rel: "b.md", Root: dir},
 	}
 	if !reflect.DeepEqual(got, want) {
 		t.Errorf("Collect = %v, want %v", got, want)

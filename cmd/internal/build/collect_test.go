@@ -41,7 +41,7 @@ func TestCollectFindsBlockInBlockquote(t *testing.T) {
 	if err := os.WriteFile(filepath.Join(only, "script.md"), []byte("```python\nx = 1\n```\n"), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	if _, err := Collect([]string{only}, kind.Standard()); err == nil || !strings.Contains(err.Error(), "no document with a calc, network, phasors, solve or sweep block") {
+	if _, err := Collect([]string{only}, kind.Standard()); err == nil || !strings.Contains(err.Error(), "no document with a calc, network, phasors, solve, sweep or table block") {
 		t.Errorf("a folder with only a python block: error %v", err)
 	}
 }

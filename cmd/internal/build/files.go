@@ -34,6 +34,9 @@ func IsMarkdown(name string) bool { return strings.EqualFold(filepath.Ext(name),
 type Input struct {
 	Path string // the file
 	Rel  string // relative to the PATH given (its base name for a file)
+	// Root is the folder given on the command line (a file's own folder):
+	// outside git, the files a document reads stay inside it.
+	Root string
 }
 
 // Collect expands the PATHs of the command line: a file is taken as it is
@@ -52,7 +55,7 @@ func Collect(paths []string, reg *calcdoc.Registry) ([]Input, error) {
 			if !IsMarkdown(p) {
 				return nil, fmt.Errorf("%s: not a Markdown document (the name must end in .md)", p)
 			}
-			out = append(out, Input{Path: p, Rel: filepath.Base(p)})
+			out = append(out, Input{Path: p, Rel: filepath.Base(p), Root: filepath.Dir(p)})
 			continue
 		}
 		var found []Input
@@ -74,7 +77,7 @@ func Collect(paths []string, reg *calcdoc.Registry) ([]Input, error) {
 				return nil
 			}
 			rel, _ := filepath.Rel(p, path)
-			found = append(found, Input{Path: path, Rel: rel})
+			found = append(found, Input{Path: path, Rel: rel, Root: p})
 			return nil
 		})
 		if err != nil {

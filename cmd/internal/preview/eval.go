@@ -28,6 +28,7 @@ var beforeEval atomic.Pointer[func(*evalJob)]
 // evalJob is one save of a document to evaluate.
 type evalJob struct {
 	key, file, rel, display string
+	root                    string // the folder given on the command line (calcdoc.Inputs.Root)
 	src                     []byte
 	at                      time.Time
 }
@@ -137,7 +138,8 @@ func (w *Watcher) evaluate(j *evalJob, budget *expr.Budget) (*page, string) {
 	if f := beforeEval.Load(); f != nil {
 		(*f)(j)
 	}
-	doc := calcdoc.ParseBudget(j.display, j.src, blockkind.Standard(), budget)
+	doc := calcdoc.ParseWith(j.display, j.src, blockkind.Standard(), calcdoc.Inputs{Root: j.root, Budget: budget})
+	w.queueReads(j.file, doc)
 	p := &page{key: j.key, file: j.file, display: j.display, src: j.src, status: 200, version: w.nextVersion(), at: j.at,
 		values: len(doc.Values), checks: len(doc.Checks), failed: doc.FailedChecks(),
 		errors: len(doc.Errors), warning: len(doc.Warnings)}

@@ -124,6 +124,11 @@ type Watcher struct {
 	newDirs  map[string]bool            // folders to start watching at the next rebuild
 	shadow   map[string]map[string]bool // address → files kept from it by another file
 	shadowed bool                       // shadow changed since the last publish
+	reads    map[string]map[string]bool // data file read (a table's CSV) → documents that read it
+	stale    map[string]bool            // documents to evaluate again though their bytes are the same
+	readMu   sync.Mutex                 // guards readQ
+	readQ    []readNote                 // the data files of evaluations done, for the loop (reads.go)
+	poke     chan struct{}              // wakes the loop to take readQ
 	seq      atomic.Int64               // the last version number given
 
 	mu         sync.RWMutex
@@ -180,6 +185,9 @@ func New(cfg Config) (*Watcher, error) {
 		pending: map[string]bool{},
 		newDirs: map[string]bool{},
 		shadow:  map[string]map[string]bool{},
+		reads:   map[string]map[string]bool{},
+		stale:   map[string]bool{},
+		poke:    make(chan struct{}, 1),
 		docs:    map[string]*page{},
 		evals:   map[string]*evalState{},
 		tick:    make(chan struct{}),
@@ -308,6 +316,8 @@ func (w *Watcher) Run(ctx context.Context) error {
 				continue
 			}
 			w.logf("watching: %v", err)
+		case <-w.poke:
+			w.takeReads()
 		case <-timer.C:
 			first = time.Time{}
 			if w.flush() {
@@ -359,7 +369,7 @@ func (w *Watcher) event(ev fsnotify.Event) bool {
 			queued = true
 		}
 	}
-	return queued
+	return w.dataSaved(name) || queued
 }
 
 // filesUnder lists the documents (served or kept from their address) whose
@@ -661,12 +671,14 @@ func (w *Watcher) rebuild(file string) bool {
 		w.logf("%s: cannot be read: %s", display, why)
 		return true
 	}
-	if w.sameAsLatest(key, cur, src) {
+	force := w.stale[file]
+	delete(w.stale, file)
+	if !force && w.sameAsLatest(key, cur, src) {
 		return false // saved without a change
 	}
 	// evaluated on the document's own worker, so that a slow document
 	// never holds the others back (eval.go)
-	w.startEval(&evalJob{key: key, file: file, rel: rel, display: display, src: src, at: start})
+	w.startEval(&evalJob{key: key, file: file, rel: rel, display: display, src: src, at: start, root: r.dir})
 	return true
 }
 

@@ -1,0 +1,108 @@
+package calcdoc
+
+import (
+	"calcdoc/expr"
+	"os"
+	"path"
+	"strings"
+)
+
+// Inputs say where a document's blocks read the files they name (a
+// table's CSV file, `table NAME from PATH`).
+type Inputs struct {
+	// Root is the folder given on the command line: outside git, a file a
+	// block names must lie inside it. "" stands for the document's own
+	// folder.
+	Root string
+	// Carried are files by the path the block writes (with /), as a sheet
+	// carries them: a block reads these bytes instead of the disk, so that
+	// verify evaluates a sheet from the sheet alone.
+	Carried map[string][]byte
+	// Failed are the files a sheet records that its build could not
+	// read, by path, with the error it gave: a block gets the same error,
+	// so that a sheet with such an error evaluates again as it was built.
+	Failed map[string]string
+	// Budget is the work budget the evaluation spends (nil: the default,
+	// expr.DefaultBudget), which the caller may stop from another
+	// goroutine.
+	Budget *expr.Budget
+}
+
+// DataFile is one file the document's blocks read.
+type DataFile struct {
+	Path   string // as the block writes it, with /
+	SHA256 string // lower-case hex SHA-256 of Bytes
+	Bytes  []byte
+	// Disk is the file read, its links followed; "" for a carried file.
+	Disk string
+	// Err is why the file could not be read ("" when it was): such a
+	// file has no bytes and no hash.
+	Err string
+}
+
+// ParseWith is Parse with the document's inputs.
+func ParseWith(path string, src []byte, reg *Registry, in Inputs) *Document {
+	return parse(path, src, reg, in)
+}
+
+// LoadWith is Load with the document's inputs.
+func LoadWith(path string, reg *Registry, in Inputs) (*Document, error) {
+	src, err := os.ReadFile(path)
+	if err != nil {
+		return nil, err
+	}
+	return parse(path, src, reg, in), nil
+}
+
+// RootFolder is the folder given on the command line, or the document's
+// folder when none was given.
+func (d *Document) RootFolder() string {
+	if d.inputs.Root != "" {
+		return d.inputs.Root
+	}
+	dir, _ := path.Split(strings.ReplaceAll(d.Path, `\`, "/"))
+	if dir == "" {
+		return "."
+	}
+	return dir
+}
+
+// Carried returns the bytes a sheet carries for the file a block names
+// (the path as written), and whether it carries them; a document read
+// from the disk carries none.
+func (d *Document) Carried(rel string) ([]byte, bool) {
+	if d.inputs.Carried == nil {
+		return nil, false
+	}
+	b, ok := d.inputs.Carried[CleanFilePath(rel)]
+	return b, ok
+}
+
+// CarriedError returns the error a sheet records for a file its build
+// could not read, and whether it records one.
+func (d *Document) CarriedError(rel string) (string, bool) {
+	msg, ok := d.inputs.Failed[CleanFilePath(rel)]
+	return msg, ok
+}
+
+// IsCarried reports whether the document was given the files it reads
+// (verify), rather than reading the disk.
+func (d *Document) IsCarried() bool { return d.inputs.Carried != nil }
+
+// CleanFilePath is the key a file is recorded and carried under: the
+// path as written, with / as separator, cleaned.
+func CleanFilePath(rel string) string {
+	return path.Clean(strings.ReplaceAll(rel, `\`, "/"))
+}
+
+// AddDataFile records a file a block read; a file read twice is recorded
+// once.
+func (d *Document) AddDataFile(f *DataFile) {
+	f.Path = CleanFilePath(f.Path)
+	for _, g := range d.DataFiles {
+		if g.Path == f.Path {
+			return
+		}
+	}
+	d.DataFiles = append(d.DataFiles, f)
+}
