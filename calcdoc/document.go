@@ -42,8 +42,11 @@ type Document struct {
 	// Kinds are the block kinds the document was evaluated with; the
 	// sheet draws each block by its kind.
 	Kinds *Registry
+	// Uses are the document's use statements, in document order (uses.go).
+	Uses []*Use
 
-	lines   []int // byte offset of each line start in Text
+	sheets  Sheets // where use statements find other documents
+	lines   []int  // byte offset of each line start in Text
 	byNode  map[ast.Node]*Block
 	inlineN map[ast.Node]*Inline
 }
@@ -147,8 +150,18 @@ func Markdown() goldmark.Markdown { return markdown }
 // string starts with a word of reg by the kind that owns it (other fenced
 // blocks are shown as code). It never fails: every problem is in the
 // document's Errors, and evaluation goes on past each one.
+//
+// A use statement reads the documents it names through a Loader of its
+// own; a build shares one Loader (Loader.Parse) so that each document is
+// evaluated once.
 func Parse(path string, src []byte, reg *Registry) *Document {
-	d := &Document{Path: path, Source: src, Env: expr.NewEnv(), Kinds: reg, byNode: map[ast.Node]*Block{}, inlineN: map[ast.Node]*Inline{}}
+	return NewLoader(reg).Parse(path, src)
+}
+
+// ParseWith is Parse with the documents that use statements name given by
+// sheets (verify gives the values a built sheet carries).
+func ParseWith(path string, src []byte, reg *Registry, sheets Sheets) *Document {
+	d := &Document{Path: path, Source: src, Env: expr.NewEnv(), Kinds: reg, byNode: map[ast.Node]*Block{}, inlineN: map[ast.Node]*Inline{}, sheets: sheets}
 	txt := readerLines(src)
 	var bad []int
 	if !utf8.Valid(txt) {

@@ -1,0 +1,182 @@
+package calcdoc
+
+import (
+	"crypto/sha256"
+	"encoding/hex"
+	"fmt"
+	"os"
+	"path/filepath"
+	"strings"
+	"sync"
+	"sync/atomic"
+)
+
+// Loader reads and evaluates documents for a whole build, so that a
+// document that several others use is evaluated once: each is kept by its
+// real path (symbolic links followed) and the SHA-256 of its bytes. It is
+// safe for use by several goroutines. A change of a file is a new key, so
+// a Loader never hands out a document older than the bytes it read; the
+// documents that use a changed one need a new Loader (a new build).
+type Loader struct {
+	kinds *Registry
+	roots []string // the folders given on the command line, absolute
+
+	mu    sync.Mutex
+	memo  map[string]*loaded
+	evals atomic.Int64
+}
+
+type loaded struct {
+	done  chan struct{}
+	doc   *Document
+	sheet *Sheet
+}
+
+// NewLoader makes a loader that evaluates with the kinds of reg. roots are
+// the folders (or files) given on the command line: outside git, a
+// document's uses must stay inside the one that holds it.
+func NewLoader(reg *Registry, roots ...string) *Loader {
+	l := &Loader{kinds: reg, memo: map[string]*loaded{}}
+	for _, r := range roots {
+		if a, err := filepath.Abs(r); err == nil {
+			if st, err := os.Stat(a); err == nil && !st.IsDir() {
+				a = filepath.Dir(a)
+			}
+			l.roots = append(l.roots, a)
+		}
+	}
+	return l
+}
+
+// Kinds are the kinds the loader evaluates with.
+func (l *Loader) Kinds() *Registry { return l.kinds }
+
+// Evaluations counts the documents the loader has evaluated.
+func (l *Loader) Evaluations() int { return int(l.evals.Load()) }
+
+// Load reads the document at path and evaluates it (once per loader for
+// the same bytes).
+func (l *Loader) Load(path string) (*Document, error) {
+	src, err := os.ReadFile(path)
+	if err != nil {
+		return nil, err
+	}
+	return l.Parse(path, src), nil
+}
+
+// Parse evaluates a document from its bytes, or returns the document
+// already evaluated from the same bytes at the same place. Its Path is
+// path.
+func (l *Loader) Parse(path string, src []byte) *Document {
+	real := realPath(path)
+	v := &view{l: l, fallback: l.rootFor(real, path)}
+	d, _ := l.eval(path, real, src, v)
+	return d
+}
+
+// eval evaluates src as the document at real, reached through the view
+// parent (whose chain it extends), or returns it from the memo.
+func (l *Loader) eval(path, real string, src []byte, parent *view) (*Document, *Sheet) {
+	key := real + "\x00" + hashHex(src)
+	child := &view{l: l, fallback: parent.fallback, chain: append(append([]string(nil), parent.chain...), real), names: append(append([]string(nil), parent.names...), path)}
+	l.mu.Lock()
+	e := l.memo[key]
+	if e == nil {
+		e = &loaded{done: make(chan struct{})}
+		l.memo[key] = e
+		l.mu.Unlock()
+		l.evals.Add(1)
+		e.doc = ParseWith(path, src, l.kinds, child)
+		e.sheet = SheetOf(e.doc)
+		close(e.done)
+		return e.doc, e.sheet
+	}
+	l.mu.Unlock()
+	select {
+	case <-e.done:
+		return withPath(e.doc, path), e.sheet
+	default:
+		// being evaluated by another goroutine of the build: evaluate a
+		// copy rather than wait (waiting could deadlock on a cycle that
+		// two goroutines entered from its two ends)
+		l.evals.Add(1)
+		d := ParseWith(path, src, l.kinds, child)
+		return d, SheetOf(d)
+	}
+}
+
+// withPath is d under another path (the same document named from two
+// places).
+func withPath(d *Document, path string) *Document {
+	if d.Path == path {
+		return d
+	}
+	c := *d
+	c.Path = path
+	return &c
+}
+
+// rootFor is the folder given on the command line that holds the file at
+// real, or the file's own folder.
+func (l *Loader) rootFor(real, path string) string {
+	for _, r := range l.roots {
+		if inside(real, realPath(r)) || inside(real, r) {
+			return r
+		}
+	}
+	if a, err := filepath.Abs(filepath.Dir(path)); err == nil {
+		return a
+	}
+	return filepath.Dir(path)
+}
+
+// view is the Sheets of one document: the loader, and the chain of
+// documents that led to it (for cycles).
+type view struct {
+	l        *Loader
+	fallback string
+	chain    []string // real paths, the document itself last
+	names    []string // the same as the user's paths run
+}
+
+// Sheet reads and evaluates the document that from names by rel.
+func (v *view) Sheet(from *Document, rel string) (*Sheet, error) {
+	root := FindRoot(from.Path, v.fallback)
+	real, err := ResolveInside(from.Path, rel, root)
+	if err != nil {
+		return nil, err
+	}
+	shown := filepath.Clean(filepath.Join(filepath.Dir(from.Path), filepath.FromSlash(strings.ReplaceAll(rel, `\`, "/"))))
+	for i, c := range v.chain {
+		if c == real {
+			ring := append(append([]string(nil), v.names[i:]...), shown)
+			return nil, fmt.Errorf("use makes a cycle: %s; a sheet cannot use itself, even through other sheets: take the value from a sheet outside the cycle", strings.Join(ring, " → "))
+		}
+	}
+	src, err := os.ReadFile(real)
+	if err != nil {
+		return nil, fmt.Errorf("%s cannot be read: %v", rel, err)
+	}
+	_, sh := v.l.eval(shown, real, src, v)
+	return sh, nil
+}
+
+// realPath is path with symbolic links followed, absolute; path itself
+// (made absolute) when it cannot be resolved.
+func realPath(path string) string {
+	if r, err := filepath.EvalSymlinks(path); err == nil {
+		path = r
+	}
+	if a, err := filepath.Abs(path); err == nil {
+		return a
+	}
+	return path
+}
+
+// SHA256 is the lower-case hex SHA-256 (FIPS 180-4) of b.
+func SHA256(b []byte) string { return hashHex(b) }
+
+func hashHex(b []byte) string {
+	sum := sha256.Sum256(b)
+	return hex.EncodeToString(sum[:])
+}
