@@ -1,6 +1,7 @@
 package calcdoc
 
 import (
+	"bytes"
 	"crypto/sha256"
 	"encoding/hex"
 	"fmt"
@@ -9,6 +10,11 @@ import (
 	"strings"
 	"sync"
 	"sync/atomic"
+
+	"calcdoc/expr"
+
+	"github.com/yuin/goldmark/ast"
+	"github.com/yuin/goldmark/text"
 )
 
 // Loader reads and evaluates documents for a whole build, so that a
@@ -180,3 +186,57 @@ func hashHex(b []byte) string {
 	sum := sha256.Sum256(b)
 	return hex.EncodeToString(sum[:])
 }
+
+// UsedFile is a document that a use statement names: its path as the
+// user's paths run, and its real path.
+type UsedFile struct {
+	Path, Real string
+}
+
+// UsesOf lists the documents that the use statements of the document at
+// path (bytes src) name and that can be found, without evaluating
+// anything: a build orders its documents by them. Paths that cannot be
+// resolved are left out (evaluation reports them).
+func (l *Loader) UsesOf(path string, src []byte) []UsedFile {
+	if !bytes.Contains(src, []byte("use")) {
+		return nil
+	}
+	txt := readerLines(src)
+	root := markdown.Parser().Parse(text.NewReader(txt))
+	fallback := l.rootFor(realPath(path), path)
+	var out []UsedFile
+	seen := map[string]bool{}
+	ast.Walk(root, func(n ast.Node, entering bool) (ast.WalkStatus, error) {
+		if !entering {
+			return ast.WalkContinue, nil
+		}
+		fc, ok := n.(*ast.FencedCodeBlock)
+		if !ok {
+			return ast.WalkContinue, nil
+		}
+		if infoWord(fc, txt) != "calc" {
+			return ast.WalkSkipChildren, nil
+		}
+		lines := fc.Lines()
+		for i := 0; i < lines.Len(); i++ {
+			seg := lines.At(i)
+			rel, ok := expr.UsePath(string(seg.Value(txt)))
+			if !ok || seen[rel] {
+				continue
+			}
+			seen[rel] = true
+			real, err := ResolveInside(path, rel, FindRoot(path, fallback))
+			if err != nil {
+				continue
+			}
+			shown := filepath.Clean(filepath.Join(filepath.Dir(path), filepath.FromSlash(strings.ReplaceAll(rel, `\`, "/"))))
+			out = append(out, UsedFile{Path: shown, Real: real})
+		}
+		return ast.WalkSkipChildren, nil
+	})
+	return out
+}
+
+// RealPath is path with symbolic links followed, absolute (the key of a
+// document in a build).
+func RealPath(path string) string { return realPath(path) }

@@ -27,9 +27,10 @@ type Sheet struct {
 	Revision string
 	Title    string
 	Values   []*UsedValue
-	// Errors counts the sheet's errors; FirstError is the first, or nil.
+	// Errors counts the sheet's errors; FirstError is the first, as
+	// "line L:C: message", or "".
 	Errors     int
-	FirstError *expr.Error
+	FirstError string
 	// Funcs are the names of its user functions (which cannot be used).
 	Funcs []string
 	// Doc is the evaluated document, or nil when the sheet was read back
@@ -54,7 +55,7 @@ func (s *Sheet) Lookup(name string) *UsedValue {
 func SheetOf(d *Document) *Sheet {
 	s := &Sheet{Path: d.Path, SHA256: hashHex(d.Source), Number: d.Front.Number, Revision: d.Front.Revision, Title: d.Front.Title, Errors: len(d.Errors), Doc: d}
 	if len(d.Errors) > 0 {
-		s.FirstError = d.Errors[0]
+		s.FirstError = "line " + d.Errors[0].Pos.String() + ": " + d.Errors[0].Msg
 	}
 	for _, v := range d.Values {
 		s.Values = append(s.Values, &UsedValue{Name: v.Name, Line: v.Pos.Line, Value: v.Value, Display: v.Display})
@@ -82,6 +83,8 @@ type Use struct {
 	// Sheet is the used sheet, or nil when it could not be had.
 	Sheet *Sheet
 	Names []*UseBinding
+
+	err string // why the sheet could not be had
 }
 
 // UseBinding is one name a use statement defines: Local in this
@@ -138,6 +141,7 @@ func evalUse(b *Block, s *expr.Use, st *Stmt) {
 	}
 	sh, err := d.sheets.Sheet(d, s.Path)
 	if err != nil {
+		u.err = err.Error()
 		fail(s.PathPos, "%s", err.Error())
 		unavailable(s.Pos())
 		return
@@ -145,8 +149,8 @@ func evalUse(b *Block, s *expr.Use, st *Stmt) {
 	u.Sheet = sh
 	if sh.Errors > 0 {
 		first := ""
-		if sh.FirstError != nil {
-			first = fmt.Sprintf(", the first at line %s: %s", sh.FirstError.Pos, sh.FirstError.Msg)
+		if sh.FirstError != "" {
+			first = ", the first at " + sh.FirstError
 		}
 		fail(s.PathPos, "%s has %d error%s%s: correct that sheet first, then this one", s.Path, sh.Errors, pluralS(sh.Errors), first)
 		unavailable(s.Pos())

@@ -242,3 +242,21 @@ func (e *Env) FuncNames() []string {
 	sort.Strings(out)
 	return out
 }
+
+// UsePath returns the path a line names when it is a use statement
+// (use NAME, ... from PATH), without reading the rest.
+func UsePath(line string) (string, bool) {
+	line = strings.TrimRight(line, "\r\n")
+	if !isUseLine(line) {
+		return "", false
+	}
+	if k := commentStart(line); k >= 0 {
+		line = line[:k]
+	}
+	at := wordIndex(line, "from")
+	if at < 0 {
+		return "", false
+	}
+	p := strings.TrimSpace(line[at+4:])
+	return p, p != ""
+}

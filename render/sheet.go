@@ -97,6 +97,7 @@ func body(w *markup.Writer, doc *calcdoc.Document, opt Options) error {
 	w.Printf("<footer class=\"caution\"><p>%s</p></footer>\n", esc(Caution))
 	if opt.EmbedSource {
 		embedSource(w, doc)
+		embedUses(w, doc)
 	}
 	return nil
 }

@@ -89,6 +89,8 @@ type StampInfo struct {
 	// Detail is one sentence for the sheet that says what State means for
 	// this file, e.g. "git is not installed; no commit recorded".
 	Detail string
+	// Uses are the sheets the document uses (uses.go).
+	Uses []UseStamp
 }
 
 // SourceHash returns the lower-case hexadecimal SHA-256 digest (FIPS
@@ -116,6 +118,8 @@ func MarkerText(doc *calcdoc.Document, opt Options) string {
 		default:
 			why = "source not under version control"
 		}
+	default:
+		why = useMarker(opt.Stamp)
 	}
 	if why == "" {
 		return ""
@@ -146,6 +150,7 @@ func stampSection(w *markup.Writer, doc *calcdoc.Document, opt Options) {
 	row("Working tree", esc(stateWords(s.State))+"; "+esc(s.Detail))
 	row("Revision and date", esc(OrDash(doc.Front.Revision))+", "+esc(OrDash(doc.Front.Date)))
 	row("calcdoc version", esc(opt.Version))
+	useStampRows(w, s)
 	w.WriteString("</table>\n</section>\n")
 }
 

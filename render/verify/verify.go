@@ -197,6 +197,10 @@ type sheetRecord struct {
 	hasStamp    bool
 	opt         render.Options
 	recordDiffs []Difference
+	// sheets answer the use statements from the records the sheet
+	// carries; useRecs are those records (uses.go)
+	sheets  calcdoc.Sheets
+	useRecs []calcdoc.SheetRecord
 }
 
 // readSheet reads the record of the sheet in page (its elements, read
@@ -243,6 +247,7 @@ func readSheet(page []byte, prefix string) (*sheetRecord, error) {
 	} else if g := find(els, func(e *element) bool { return e.name == "meta" && e.attr["name"] == "generator" }); g != nil {
 		rec.opt.Version = strings.TrimPrefix(g.attr["content"], "calcdoc ")
 	}
+	rec.readUses(els, prefix)
 	return rec, nil
 }
 
@@ -292,8 +297,11 @@ func (rec *sheetRecord) check(unit []byte, lineBase int, opt Options, rerender f
 			res.Differences = append(res.Differences, Difference{Kind: "git", Message: "git: " + p})
 		}
 	}
-	doc := calcdoc.Parse(rec.path, rec.source, kind.Standard())
+	doc := calcdoc.ParseWith(rec.path, rec.source, kind.Standard(), rec.sheets)
 	res.doc = doc
+	if opt.Git {
+		res.Differences = append(res.Differences, rec.staleUses(doc, opt)...)
+	}
 	ropt := rec.opt
 	ropt.Version = opt.Version
 	fresh, err := rerender(doc, ropt)
