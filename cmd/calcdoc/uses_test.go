@@ -1,0 +1,150 @@
+package main
+
+import (
+	"crypto/sha256"
+	"encoding/hex"
+	"encoding/json"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// gitIn runs git in dir with a fixed identity.
+func gitIn(t *testing.T, dir string, args ...string) {
+	t.Helper()
+	cmd := exec.Command("git", append([]string{"-C", dir, "-c", "user.name=Test", "-c", "user.email=test@example.invalid", "-c", "commit.gpgsign=false"}, args...)...)
+	if out, err := cmd.CombinedOutput(); err != nil {
+		t.Fatalf("git %v: %v\n%s", args, err, out)
+	}
+}
+
+// chainRepo is a repository of three sheets of our own, each using the
+// one before: a board's voltage (a.md), a feeder's drop from it (b.md),
+// and the voltage at a motor (c.md). Hand derivation: U_b = 400 V −
+// 2 · 4 V = 392 V; U_m = U_b − 3 V = 389 V.
+func chainRepo(t *testing.T) string {
+	if _, err := exec.LookPath("git"); err != nil {
+		t.Skip("git not installed")
+	}
+	dir := t.TempDir()
+	gitIn(t, dir, "init", "-q")
+	write(t, dir, "calc/a.md", "---\ntitle: Board voltage\nnumber: T-001\nrevision: A\n---\n```calc\nU_0 = 400 V\nV_d = 4 V\n```\n")
+	write(t, dir, "calc/b.md", "---\ntitle: Feeder\nnumber: T-002\nrevision: A\n---\n```calc\nuse U_0, V_d as dV from a.md\nU_b = U_0 - 2 * dV\n```\n")
+	write(t, dir, "calc/c.md", "---\ntitle: Motor\nnumber: T-003\nrevision: A\n---\n```calc\nuse U_b from b.md\nU_m = U_b - 3 V\ncheck U_m >= 380 V\n```\n")
+	gitIn(t, dir, "add", ".")
+	gitIn(t, dir, "commit", "-q", "-m", "sheets")
+	return dir
+}
+
+func marker(t *testing.T, path string) string {
+	t.Helper()
+	b, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	s := string(b)
+	i := strings.Index(s, `<p class="marker-text">`)
+	if i < 0 {
+		return ""
+	}
+	s = s[i+len(`<p class="marker-text">`):]
+	return s[:strings.Index(s, "</p>")]
+}
+
+// A sheet that uses an uncommitted sheet is not fit for issue, and one
+// that uses that sheet is not fit either: each marker says which and why.
+func TestNotForIssueThroughAChainOfTwo(t *testing.T) {
+	dir := chainRepo(t)
+	folder := filepath.Join(dir, "calc")
+	if st, _, errs := runCLI("build", folder); st != exitOK {
+		t.Fatalf("build: %d %s", st, errs)
+	}
+	for _, n := range []string{"a", "b", "c"} {
+		if m := marker(t, filepath.Join(folder, n+".html")); m != "" {
+			t.Errorf("%s.html of a clean repository is marked %q", n, m)
+		}
+	}
+	write(t, dir, "calc/a.md", "---\ntitle: Board voltage\nnumber: T-001\nrevision: A\n---\n```calc\nU_0 = 400 V\nV_d = 5 V\n```\n")
+	if st, _, errs := runCLI("build", folder); st != exitOK {
+		t.Fatalf("build: %d %s", st, errs)
+	}
+	if m := marker(t, filepath.Join(folder, "a.html")); m != "NOT FOR ISSUE: uncommitted changes" {
+		t.Errorf("a.html marker %q", m)
+	}
+	if m := marker(t, filepath.Join(folder, "b.html")); m != "NOT FOR ISSUE: uses a.md, which has uncommitted changes" {
+		t.Errorf("b.html marker %q", m)
+	}
+	if m := marker(t, filepath.Join(folder, "c.html")); m != "NOT FOR ISSUE: uses b.md, which is not fit for issue (uses a.md, which has uncommitted changes)" {
+		t.Errorf("c.html marker %q", m)
+	}
+	page, _ := os.ReadFile(filepath.Join(folder, "c.html"))
+	if !strings.Contains(string(page), `data-use-path="b.md"`) || !strings.Contains(string(page), `data-use-notfit="uses a.md, which has uncommitted changes"`) {
+		t.Error("the stamp of c.html does not list b.md with why it is not fit")
+	}
+	// the value went through both sheets: 400 − 2·5 − 3 = 387 V (hand derivation)
+	if !strings.Contains(string(page), "<mn>387.0</mn>") {
+		t.Error("c.html does not show U_m = 387.0 V")
+	}
+}
+
+// verify evaluates a sheet from what it carries, and in the repository
+// reports a used sheet whose source changed since the build, with the
+// values that moved.
+func TestVerifyStaleUse(t *testing.T) {
+	dir := chainRepo(t)
+	folder := filepath.Join(dir, "calc")
+	if st, _, errs := runCLI("build", folder); st != exitOK {
+		t.Fatalf("build: %d %s", st, errs)
+	}
+	// the sheet alone: copied out of the repository, it still verifies
+	away := t.TempDir()
+	page, _ := os.ReadFile(filepath.Join(folder, "b.html"))
+	write(t, away, "b.html", string(page))
+	if st, out, _ := runCLI("verify", filepath.Join(away, "b.html")); st != exitOK {
+		t.Errorf("verify of the sheet alone: %d\n%s", st, out)
+	}
+	if st, out, _ := runCLI("verify", filepath.Join(folder, "b.html")); st != exitOK {
+		t.Fatalf("verify of a fresh sheet: %d\n%s", st, out)
+	}
+	write(t, dir, "calc/a.md", "---\ntitle: Board voltage\nnumber: T-001\nrevision: B\n---\n```calc\nU_0 = 400 V\nV_d = 6 V\n```\n")
+	gitIn(t, dir, "commit", "-q", "-am", "a new drop")
+	st, out, _ := runCLI("verify", filepath.Join(folder, "b.html"))
+	if st != exitCheckFail {
+		t.Fatalf("verify of a stale sheet: exit %d, want 1\n%s", st, out)
+	}
+	for _, w := range []string{"used sheet a.md changed since this sheet was built", "dV 4.000 V → 6.000 V", "build this sheet again"} {
+		if !strings.Contains(out, w) {
+			t.Errorf("verify does not say %q:\n%s", w, out)
+		}
+	}
+	if strings.Contains(out, "U_0 ") {
+		t.Errorf("verify names U_0, which did not move:\n%s", out)
+	}
+}
+
+func TestValuesJSONUses(t *testing.T) {
+	dir := chainRepo(t)
+	st, out, errs := runCLI("values", filepath.Join(dir, "calc", "b.md"))
+	if st != exitOK {
+		t.Fatalf("values: %d %s", st, errs)
+	}
+	var v struct {
+		Uses []struct{ File, Name, As, SHA256 string }
+	}
+	if err := json.Unmarshal([]byte(out), &v); err != nil {
+		t.Fatal(err)
+	}
+	a, _ := os.ReadFile(filepath.Join(dir, "calc", "a.md"))
+	// the SHA-256 of a.md as sha256sum would print it (FIPS 180-4), by crypto/sha256
+	want := sha256Hex(a)
+	if len(v.Uses) != 2 || v.Uses[0].File != "a.md" || v.Uses[0].Name != "U_0" || v.Uses[1].Name != "V_d" || v.Uses[1].As != "dV" || v.Uses[0].SHA256 != want {
+		t.Errorf("uses = %+v", v.Uses)
+	}
+}
+
+func sha256Hex(b []byte) string {
+	sum := sha256.Sum256(b)
+	return hex.EncodeToString(sum[:])
+}
