@@ -148,3 +148,38 @@ func sha256Hex(b []byte) string {
 	sum := sha256.Sum256(b)
 	return hex.EncodeToString(sum[:])
 }
+
+// A package keeps the order given except that a used sheet moves before
+// its first user; its contents list the uses and say which sheet moved,
+// and a sheet it leaves out is named in a warning.
+func TestPackageOrderOfUses(t *testing.T) {
+	dir := chainRepo(t)
+	c, a, b := filepath.Join(dir, "calc", "c.md"), filepath.Join(dir, "calc", "a.md"), filepath.Join(dir, "calc", "b.md")
+	out := filepath.Join(dir, "pkg.html")
+	st, stdout, stderr := runCLI("package", "-o", out, c, a, b)
+	if st != exitOK {
+		t.Fatalf("package: %d %s", st, stderr)
+	}
+	ia, ib, ic := strings.Index(stdout, "sheet 1: "+a), strings.Index(stdout, "sheet 2: "+b), strings.Index(stdout, "sheet 3: "+c)
+	if ia < 0 || ib < 0 || ic < 0 {
+		t.Errorf("order is not a, b, c:\n%s", stdout)
+	}
+	if !strings.Contains(stdout, "T-002 ("+b+") moved before T-003 ("+c+"): T-003 ("+c+") uses it") ||
+		!strings.Contains(stdout, "T-001 ("+a+") moved before T-003 ("+c+"): T-002 ("+b+") uses it") {
+		t.Errorf("the moves are not said:\n%s", stdout)
+	}
+	page, _ := os.ReadFile(out)
+	for _, w := range []string{`<li class="uses">uses <a href="#sheet-1">sheet 1</a> (T-001): U_0, V_d</li>`, `<li class="uses">uses <a href="#sheet-2">sheet 2</a> (T-002): U_b</li>`, `<p class="moved">T-002 (`} {
+		if !strings.Contains(string(page), w) {
+			t.Errorf("the contents lack %s", w)
+		}
+	}
+	if st, out, _ := runCLI("verify", out); st != exitOK {
+		t.Errorf("verify of the package: %d\n%s", st, out)
+	}
+	// b.md left out: a warning names it
+	st, _, stderr = runCLI("package", "-o", filepath.Join(dir, "pkg2.html"), c, a)
+	if st != exitOK || !strings.Contains(stderr, "warning: "+c+" uses "+b+", which the package leaves out") {
+		t.Errorf("package without b.md: %d, stderr:\n%s", st, stderr)
+	}
+}

@@ -35,7 +35,6 @@ import (
 	"time"
 
 	"calcdoc/calcdoc"
-	blockkind "calcdoc/calcdoc/kind"
 	"calcdoc/cmd/internal/build"
 
 	"github.com/fsnotify/fsnotify"
@@ -125,6 +124,8 @@ type Watcher struct {
 	shadow   map[string]map[string]bool // address → files kept from it by another file
 	shadowed bool                       // shadow changed since the last publish
 	seq      int64
+	loader   *calcdoc.Loader // of the current burst (uses.go)
+	force    string          // a file to evaluate again though its bytes did not change
 
 	mu         sync.RWMutex
 	docs       map[string]*page    // by address (the path after "/")
@@ -146,6 +147,9 @@ type page struct {
 	version string
 	at      time.Time
 	took    time.Duration
+
+	usedFiles []string // real paths of the documents it uses
+	uses      []string // the same as its use statements write them
 
 	state                                   state
 	problem                                 string // why it cannot be read or drawn
@@ -561,11 +565,17 @@ func (w *Watcher) flush() bool {
 	}
 	files := sortedKeys(w.pending)
 	w.pending = map[string]bool{}
+	w.loader = nil // a new burst reads every document afresh
 	changed := false
+	rebuilt := map[string]bool{}
 	for _, f := range files {
 		if w.rebuild(f) {
 			changed = true
+			rebuilt[f] = true
 		}
+	}
+	if w.rebuildUsers(rebuilt) {
+		changed = true
 	}
 	if changed || w.shadowed {
 		w.publish()
@@ -654,10 +664,10 @@ func (w *Watcher) rebuild(file string) bool {
 		w.logf("%s: cannot be read: %s", display, why)
 		return true
 	}
-	if cur != nil && cur.src != nil && bytes.Equal(cur.src, src) {
+	if cur != nil && cur.src != nil && bytes.Equal(cur.src, src) && w.force != file {
 		return false // saved without a change
 	}
-	doc := calcdoc.Parse(display, src, blockkind.Standard())
+	doc := w.loaderFor().Parse(display, src)
 	p := &page{key: key, file: file, display: display, src: src, status: 200, version: w.nextVersion(), at: start,
 		values: len(doc.Values), checks: len(doc.Checks), failed: doc.FailedChecks(),
 		errors: len(doc.Errors), warning: len(doc.Warnings)}
@@ -675,6 +685,7 @@ func (w *Watcher) rebuild(file string) bool {
 	}
 	p.body = body
 	p.took = time.Since(start)
+	p.usedFiles, p.uses = usedFiles(doc, file)
 	w.store(p)
 	line := fmt.Sprintf("%s: evaluated in %s; %d of %d checks not satisfied, %d error%s",
 		display, ms(p.took), p.failed, p.checks, p.errors, plural(p.errors))
