@@ -43,4 +43,3 @@ func bodyHas(want ...string) func(int, string) string {
 		return ""
 	}
 }
-
