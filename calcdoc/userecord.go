@@ -164,7 +164,7 @@ func (r SheetRecord) Sheet() (*Sheet, error) {
 		}
 		sh.Values = append(sh.Values, v)
 	}
-	return sh, nil
+	return sh.index(), nil
 }
 
 // MarshalUseRecords writes records as JSON.

@@ -40,15 +40,29 @@ type Sheet struct {
 	byKey map[string]*UsedValue
 }
 
-// Lookup returns the value of name, or nil.
+// Lookup returns the value of name, or nil. A sheet is shared by the
+// goroutines of a build: Lookup only reads (index builds the map once,
+// before the sheet is handed out).
 func (s *Sheet) Lookup(name string) *UsedValue {
-	if s.byKey == nil {
-		s.byKey = map[string]*UsedValue{}
-		for _, v := range s.Values {
-			s.byKey[expr.NameKey(v.Name)] = v
+	key := expr.NameKey(name)
+	if s.byKey != nil {
+		return s.byKey[key]
+	}
+	for _, v := range s.Values {
+		if expr.NameKey(v.Name) == key {
+			return v
 		}
 	}
-	return s.byKey[expr.NameKey(name)]
+	return nil
+}
+
+// index builds the map Lookup reads.
+func (s *Sheet) index() *Sheet {
+	s.byKey = make(map[string]*UsedValue, len(s.Values))
+	for _, v := range s.Values {
+		s.byKey[expr.NameKey(v.Name)] = v
+	}
+	return s
 }
 
 // SheetOf is the sheet a document offers to use statements.
@@ -60,10 +74,8 @@ func SheetOf(d *Document) *Sheet {
 	for _, v := range d.Values {
 		s.Values = append(s.Values, &UsedValue{Name: v.Name, Line: v.Pos.Line, Value: v.Value, Display: v.Display})
 	}
-	for _, f := range d.Env.FuncNames() {
-		s.Funcs = append(s.Funcs, f)
-	}
-	return s
+	s.Funcs = append(s.Funcs, d.Env.FuncNames()...)
+	return s.index()
 }
 
 // Sheets gives the documents that use statements name. A Loader reads and

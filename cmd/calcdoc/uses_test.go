@@ -4,6 +4,7 @@ import (
 	"crypto/sha256"
 	"encoding/hex"
 	"encoding/json"
+	"math"
 	"os"
 	"os/exec"
 	"path/filepath"
@@ -182,4 +183,51 @@ func TestPackageOrderOfUses(t *testing.T) {
 	if st != exitOK || !strings.Contains(stderr, "warning: "+c+" uses "+b+", which the package leaves out") {
 		t.Errorf("package without b.md: %d, stderr:\n%s", st, stderr)
 	}
+}
+
+// The example folder of sheets that use sheets evaluates without an error
+// and every check holds (README "Sheets that use sheets").
+func TestPlantExample(t *testing.T) {
+	st, out, errs := runCLI("check", filepath.Join("..", "..", "examples", "plant"))
+	if st != exitOK {
+		t.Fatalf("check examples/plant: %d\n%s%s", st, out, errs)
+	}
+	if strings.Count(out, ", 0 errors") != 4 {
+		t.Errorf("want four sheets without errors:\n%s", out)
+	}
+}
+
+// The protection sheet takes the board's maximum fault through the use
+// chain unchanged. Hand derivation (IEC 60909-0, equivalent voltage
+// source, impedances referred to 400 V): Z_Q = 1.05·400²/180 MVA =
+// 0.9333 mΩ, X_Q = 0.995·Z_Q, R_Q = 0.1·X_Q; Z_T = 0.06·400²/1.25 MVA =
+// 7.68 mΩ, R_T = 11.5 kW·400²/(1.25 MVA)² = 1.1776 mΩ, X_T = sqrt(Z_T² −
+// R_T²) = 7.589 mΩ; |Z_k| = |(R_Q + R_T) + j(X_Q + X_T)| = 8.612 mΩ;
+// I_k3 = 1.05·400 V/(√3·|Z_k|) = 28.16 kA.
+func TestPlantExampleFaultLevel(t *testing.T) {
+	zq := 1.05 * 400 * 400 / 180e6
+	xq, zt, rt := 0.995*zq, 0.06*400*400/1.25e6, 11.5e3*400*400/(1.25e6*1.25e6)
+	xt := math.Sqrt(zt*zt - rt*rt)
+	zk := math.Hypot(0.1*xq+rt, xq+xt)
+	want := 1.05 * 400 / (math.Sqrt(3) * zk)
+	st, out, errs := runCLI("values", filepath.Join("..", "..", "examples", "plant", "protection", "feeder-settings.md"))
+	if st != exitOK {
+		t.Fatalf("values: %d %s", st, errs)
+	}
+	var v struct {
+		Values []struct {
+			Name string
+			Re   float64
+		}
+	}
+	json.Unmarshal([]byte(out), &v)
+	for _, x := range v.Values {
+		if x.Name == "I_k3" {
+			if math.Abs(x.Re-want) > 1e-9*want {
+				t.Errorf("I_k3 = %g A, want %g A", x.Re, want)
+			}
+			return
+		}
+	}
+	t.Error("no I_k3 among the values")
 }

@@ -56,6 +56,12 @@ func genFolder(t testing.TB, layers, width int) (string, map[string][]string) {
 // returning the sheets by file name, the order in which they were drawn,
 // and the number of evaluations.
 func buildAll(t testing.TB, dir string, workers int) (map[string][]byte, []string, int) {
+	return buildWith(t, dir, workers, true)
+}
+
+// buildWith is buildAll, stamping each sheet from git (as build does) or
+// not.
+func buildWith(t testing.TB, dir string, workers int, stamped bool) (map[string][]byte, []string, int) {
 	inputs, err := Collect([]string{dir}, kind.Standard())
 	if err != nil {
 		t.Fatal(err)
@@ -66,7 +72,11 @@ func buildAll(t testing.TB, dir string, workers int) (map[string][]byte, []strin
 	pages := map[string][]byte{}
 	var order []string
 	Evaluate(l, inputs, workers, func(i int, doc *calcdoc.Document) {
-		page, err := Sheet(doc, st.Stamped(doc))
+		opt := Options{Version: "test", EmbedSource: true}
+		if stamped {
+			opt = st.Stamped(doc)
+		}
+		page, err := Sheet(doc, opt)
 		if err != nil {
 			t.Error(err)
 		}
@@ -143,18 +153,25 @@ func TestEvaluateCycle(t *testing.T) {
 	}
 }
 
-// BenchmarkBuild200 draws a generated folder of 200 sheets with 400 uses
-// (docs/performance.md), serially and on every core.
+// BenchmarkBuild200 evaluates and draws a generated folder of 200 sheets
+// with 400 uses (docs/performance.md), serially and on every core, with
+// the stamp from git (one git run or more a sheet) and without.
 func BenchmarkBuild200(b *testing.B) {
 	dir, _ := genFolder(b, 10, 20)
-	for _, w := range []struct {
-		name    string
-		workers int
-	}{{"serial", 1}, {"parallel", 0}} {
-		b.Run(w.name, func(b *testing.B) {
-			for i := 0; i < b.N; i++ {
-				buildAll(b, dir, w.workers)
+	for _, stamped := range []bool{true, false} {
+		for _, w := range []struct {
+			name    string
+			workers int
+		}{{"serial", 1}, {"parallel", 0}} {
+			name := w.name
+			if !stamped {
+				name += "-nostamp"
 			}
-		})
+			b.Run(name, func(b *testing.B) {
+				for i := 0; i < b.N; i++ {
+					buildWith(b, dir, w.workers, stamped)
+				}
+			})
+		}
 	}
 }
