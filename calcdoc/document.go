@@ -155,7 +155,9 @@ func Markdown() goldmark.Markdown { return markdown }
 // own; a build shares one Loader (Loader.Parse) so that each document is
 // evaluated once.
 func Parse(path string, src []byte, reg *Registry) *Document {
-	return NewLoader(reg).Parse(path, src)
+	l := NewLoader(reg)
+	real := realPath(path)
+	return ParseWith(path, src, reg, &view{l: l, fallback: l.rootFor(real, path), chain: []string{real}, names: []string{path}})
 }
 
 // ParseWith is Parse with the documents that use statements name given by

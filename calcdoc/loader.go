@@ -35,7 +35,14 @@ type Loader struct {
 type loaded struct {
 	done  chan struct{}
 	doc   *Document
-	sheet *Sheet
+	once  sync.Once
+	sheet *Sheet // made when a use asks for it
+}
+
+// sheetOf is the entry's sheet, made once.
+func (e *loaded) sheetOf() *Sheet {
+	e.once.Do(func() { e.sheet = SheetOf(e.doc) })
+	return e.sheet
 }
 
 // NewLoader makes a loader that evaluates with the kinds of reg. roots are
@@ -82,7 +89,7 @@ func (l *Loader) Parse(path string, src []byte) *Document {
 
 // eval evaluates src as the document at real, reached through the view
 // parent (whose chain it extends), or returns it from the memo.
-func (l *Loader) eval(path, real string, src []byte, parent *view) (*Document, *Sheet) {
+func (l *Loader) eval(path, real string, src []byte, parent *view) (*Document, *loaded) {
 	key := real + "\x00" + hashHex(src)
 	child := &view{l: l, fallback: parent.fallback, chain: append(append([]string(nil), parent.chain...), real), names: append(append([]string(nil), parent.names...), path)}
 	l.mu.Lock()
@@ -93,21 +100,21 @@ func (l *Loader) eval(path, real string, src []byte, parent *view) (*Document, *
 		l.mu.Unlock()
 		l.evals.Add(1)
 		e.doc = ParseWith(path, src, l.kinds, child)
-		e.sheet = SheetOf(e.doc)
 		close(e.done)
-		return e.doc, e.sheet
+		return e.doc, e
 	}
 	l.mu.Unlock()
 	select {
 	case <-e.done:
-		return withPath(e.doc, path), e.sheet
+		return withPath(e.doc, path), e
 	default:
 		// being evaluated by another goroutine of the build: evaluate a
 		// copy rather than wait (waiting could deadlock on a cycle that
 		// two goroutines entered from its two ends)
 		l.evals.Add(1)
 		d := ParseWith(path, src, l.kinds, child)
-		return d, SheetOf(d)
+		c := &loaded{doc: d}
+		return d, c
 	}
 }
 
@@ -163,8 +170,8 @@ func (v *view) Sheet(from *Document, rel string) (*Sheet, error) {
 	if err != nil {
 		return nil, fmt.Errorf("%s cannot be read: %v", rel, err)
 	}
-	_, sh := v.l.eval(shown, real, src, v)
-	return sh, nil
+	_, e := v.l.eval(shown, real, src, v)
+	return e.sheetOf(), nil
 }
 
 // realPath is path with symbolic links followed, absolute; path itself
