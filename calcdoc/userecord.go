@@ -42,13 +42,13 @@ type ValueRecord struct {
 // ScalarRecord is a scalar with the bits of its parts (so that NaN and
 // every float round-trip) and its marks.
 type ScalarRecord struct {
-	Re      uint64 `json:"re"`
-	Im      uint64 `json:"im"`
-	Dim     [7]int8
-	Sense   int  `json:"sense,omitempty"`
-	Angle   bool `json:"angle,omitempty"`
-	Kind    int  `json:"kind,omitempty"`
-	AbsTemp bool `json:"abs_temp,omitempty"`
+	Re      uint64  `json:"re"`
+	Im      uint64  `json:"im"`
+	Dim     [7]int8 `json:"dim"`
+	Sense   int     `json:"sense,omitempty"`
+	Angle   bool    `json:"angle,omitempty"`
+	Kind    int     `json:"kind,omitempty"`
+	AbsTemp bool    `json:"abs_temp,omitempty"`
 }
 
 // DisplayRecord is a display: its text, its unit as written and its form.

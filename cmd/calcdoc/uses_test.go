@@ -109,6 +109,18 @@ func TestVerifyStaleUse(t *testing.T) {
 	if st, out, _ := runCLI("verify", filepath.Join(folder, "b.html")); st != exitOK {
 		t.Fatalf("verify of a fresh sheet: %d\n%s", st, out)
 	}
+	// the carried value of V_d changed from 4 V to 5 V (IEEE 754 binary64
+	// bits 0x4010000000000000 = 4616189618054758400 and 0x4014000000000000
+	// = 4617315517961601024): verify evaluates with it and finds the rows
+	// the sheet shows no longer follow
+	forged := strings.Replace(string(page), `&#34;re&#34;:4616189618054758400`, `&#34;re&#34;:4617315517961601024`, 1)
+	if forged == string(page) {
+		t.Fatal("no record of V_d = 4 V in the sheet")
+	}
+	write(t, away, "forged.html", forged)
+	if st, out, _ := runCLI("verify", filepath.Join(away, "forged.html")); st != exitCheckFail || !strings.Contains(out, "value dV (line 7): sheet shows dV=4.000 V, source gives dV=5.000 V") || !strings.Contains(out, "value U_b (line 8): sheet shows 392.0 V, source gives 390.0 V") {
+		t.Errorf("verify of a sheet whose carried value was changed: %d\n%s", st, out)
+	}
 	write(t, dir, "calc/a.md", "---\ntitle: Board voltage\nnumber: T-001\nrevision: B\n---\n```calc\nU_0 = 400 V\nV_d = 6 V\n```\n")
 	gitIn(t, dir, "commit", "-q", "-am", "a new drop")
 	st, out, _ := runCLI("verify", filepath.Join(folder, "b.html"))
