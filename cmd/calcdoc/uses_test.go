@@ -88,6 +88,16 @@ func TestNotForIssueThroughAChainOfTwo(t *testing.T) {
 	if !strings.Contains(string(page), "<mn>387.0</mn>") {
 		t.Error("c.html does not show U_m = 387.0 V")
 	}
+	// the used value's origin: the other sheet's number, revision, title,
+	// link, the line of its definition and its SHA-256 (12 hex digits)
+	b, _ := os.ReadFile(filepath.Join(folder, "b.md"))
+	if want := `from <a href="b.html">T-002 rev A — Feeder</a>, line 8; source SHA-256 <code class="hash" title="` + sha256Hex(b) + `">` + sha256Hex(b)[:12] + `</code>`; !strings.Contains(string(page), want) {
+		t.Errorf("c.html lacks the origin row %s", want)
+	}
+	bp, _ := os.ReadFile(filepath.Join(folder, "b.html"))
+	if !strings.Contains(string(bp), ", line 8 (named V_d there);") {
+		t.Error("b.html does not say that dV is V_d in a.md")
+	}
 }
 
 // verify evaluates a sheet from what it carries, and in the repository

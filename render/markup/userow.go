@@ -28,12 +28,12 @@ func (w *Writer) useRows(st *calcdoc.Stmt, line int) {
 			w.WriteString(SenseML(v.Value))
 		})
 		w.KindNote(v.Value)
-		there := ""
+		named := ""
 		if b.Name != b.Local {
-			there = " as " + Esc(b.Name)
+			named = " (named " + Esc(b.Name) + " there)"
 		}
-		w.Printf("<div class=\"origin\">from <a href=\"%s\">%s</a>%s, line %s there; source SHA-256 <code class=\"hash\" title=\"%s\">%s</code></div>",
-			Esc(u.Link), Esc(SheetLabel(sh)), there, strconv.Itoa(v.Line), Esc(sh.SHA256), Esc(ShortHash(sh.SHA256)))
+		w.Printf("<div class=\"origin\">from <a href=\"%s\">%s</a>, line %s%s; source SHA-256 <code class=\"hash\" title=\"%s\">%s</code></div>",
+			Esc(u.Link), Esc(SheetLabel(sh)), strconv.Itoa(v.Line), named, Esc(sh.SHA256), Esc(ShortHash(sh.SHA256)))
 	}
 }
 
