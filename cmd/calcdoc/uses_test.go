@@ -253,3 +253,19 @@ func TestPlantExampleFaultLevel(t *testing.T) {
 	}
 	t.Error("no I_k3 among the values")
 }
+
+// Inside git, a use may not leave the repository, even into the folder
+// given on the command line; the error is at the use line's path.
+func TestUseOutOfRepository(t *testing.T) {
+	dir := chainRepo(t)
+	outside := filepath.Join(filepath.Dir(dir), filepath.Base(dir)+"-outside.md")
+	if err := os.WriteFile(outside, []byte("```calc\nx = 1\n```\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(func() { os.Remove(outside) })
+	doc := write(t, dir, "calc/d.md", "```calc\nuse x from ../../"+filepath.Base(outside)+"\n```\n")
+	st, out, _ := runCLI("check", doc)
+	if st != exitError || !strings.Contains(out, doc+":2:12: ../../"+filepath.Base(outside)+" leads out of "+dir) || !strings.Contains(out, "copy the file in") {
+		t.Errorf("check: %d\n%s", st, out)
+	}
+}
