@@ -51,7 +51,11 @@ type Document struct {
 	Files *expr.FileSet
 	File  *expr.File
 
+	// Uses are the document's use statements, in document order (uses.go).
+	Uses []*Use
+
 	inputs    Inputs
+	sheets    Sheets // where use statements find other documents
 	byNode    map[ast.Node]*Block
 	inlineN   map[ast.Node]*Inline
 	order     []any // the blocks and inline values in document order
@@ -152,6 +156,10 @@ func Markdown() goldmark.Markdown { return markdown }
 // it (other fenced blocks are shown as code): ParseOnly, then Evaluate.
 // It never fails: every problem is in the document's Errors, and
 // evaluation goes on past each one.
+//
+// A use statement reads the documents it names through a Loader of its
+// own; a build shares one Loader (Loader.Parse) so that each document is
+// evaluated once.
 func Parse(path string, src []byte, reg *Registry) *Document {
 	return parse(path, src, reg, Inputs{})
 }
@@ -182,7 +190,15 @@ func ParseOnly(path string, src []byte, reg *Registry) *Document {
 }
 
 func parseOnly(path string, src []byte, reg *Registry, in Inputs) *Document {
-	d := &Document{Path: path, Source: src, Env: expr.NewEnv(), Kinds: reg, Files: &expr.FileSet{}, inputs: in, byNode: map[ast.Node]*Block{}, inlineN: map[ast.Node]*Inline{}}
+	if in.Sheets == nil {
+		// use statements read through a loader of this document's own
+		var roots []string
+		if in.Root != "" {
+			roots = append(roots, in.Root)
+		}
+		in.Sheets = NewLoader(reg, roots...).Sheets(path)
+	}
+	d := &Document{Path: path, Source: src, Env: expr.NewEnv(), Kinds: reg, Files: &expr.FileSet{}, inputs: in, sheets: in.Sheets, byNode: map[ast.Node]*Block{}, inlineN: map[ast.Node]*Inline{}}
 	d.Env.Budget = expr.NewBudget(expr.DefaultBudget)
 	txt := readerLines(src)
 	var bad []int

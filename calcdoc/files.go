@@ -26,6 +26,10 @@ type Inputs struct {
 	// expr.DefaultBudget), which the caller may stop from another
 	// goroutine.
 	Budget *expr.Budget
+	// Sheets give the documents that use statements name (nil: a loader
+	// of the document's own; a build shares one, and verify gives the
+	// values a built sheet carries).
+	Sheets Sheets
 }
 
 // DataFile is one file the document's blocks read.

@@ -17,6 +17,8 @@ type Stmt struct {
 	// it uses a name whose definition failed; it is not a new error.
 	Unavailable *expr.UnavailableError
 	Text        string // the statement's source text
+	// Use is the evaluated use statement (uses.go), or nil.
+	Use *Use
 }
 
 // Display is the display bracket of the statement, or nil.
@@ -57,6 +59,13 @@ func EvalStatements(b *Block, stmts []expr.Stmt, errs expr.ErrorList) []*Stmt {
 	per, rest := ErrorsOf(stmts, errs)
 	for k, s := range stmts {
 		st := &Stmt{Stmt: s, Text: b.Text(s.Pos(), s.End()), Errs: per[k]}
+		if u, ok := s.(*expr.Use); ok {
+			st.Res = &expr.Result{Stmt: s, Trace: &expr.Trace{}}
+			evalUse(b, u, st)
+			b.Errors = append(b.Errors, st.Errs...)
+			out = append(out, st)
+			continue
+		}
 		st.Res = b.Env().Exec(s)
 		if err := st.Res.Err; err != nil {
 			switch e := err.(type) {

@@ -16,6 +16,19 @@ type ValuesJSON struct {
 	Errors []ErrorJSON `json:"errors"`
 	// Sweeps holds every sweep with every point (valuesweep.go).
 	Sweeps []SweepJSON `json:"sweeps"`
+	// Uses lists each value taken from another document (uses.go).
+	Uses []UseJSON `json:"uses"`
+}
+
+// UseJSON is one value a use statement takes: the file as written, the
+// name there, the name here (as), the line of the use statement, and the
+// SHA-256 of the used file's source.
+type UseJSON struct {
+	File   string `json:"file"`
+	Name   string `json:"name"`
+	As     string `json:"as"`
+	Line   int    `json:"line"`
+	SHA256 string `json:"sha256"`
 }
 
 // ValueJSON is one named value: re and im in coherent SI units, unit the
@@ -133,6 +146,16 @@ func (d *Document) ValuesJSON() *ValuesJSON {
 		out.Errors = append(out.Errors, ErrorJSON{Line: p.Line, Col: p.Col, Message: e.Msg})
 	}
 	out.Sweeps = d.SweepsJSON()
+	out.Uses = []UseJSON{}
+	for _, u := range d.Uses {
+		sha := ""
+		if u.Sheet != nil {
+			sha = u.Sheet.SHA256
+		}
+		for _, b := range u.Names {
+			out.Uses = append(out.Uses, UseJSON{File: u.Rel, Name: b.Name, As: b.Local, Line: u.Pos.Line(), SHA256: sha})
+		}
+	}
 	return out
 }
 

@@ -121,10 +121,71 @@ func (e *Env) EvalKeyed(n Node, locals map[string]Value, trace *Trace) (Value, e
 }
 
 func (ev *evaluator) eval(n Node) (Value, error) {
+	if b, ok := n.(*Binary); ok {
+		if _, left := b.X.(*Binary); left {
+			return ev.evalChain(b)
+		}
+	}
+	return ev.node(n, func() (Value, error) { return ev.eval1(n) })
+}
+
+// evalChain evaluates a binary operation whose left operand is one too
+// (a + b + c + …, the way a long sum parses) along its left spine with a
+// loop rather than a recursion, so that a sum of a million terms costs a
+// million steps and no stack. Each operation is charged and checked as
+// eval does.
+func (ev *evaluator) evalChain(top *Binary) (Value, error) {
+	var spine []*Binary
+	var x Node = top
+	for {
+		b, ok := x.(*Binary)
+		if !ok {
+			break
+		}
+		spine = append(spine, b)
+		x = b.X
+	}
+	acc, err := ev.eval(x)
+	if err != nil {
+		return nil, err
+	}
+	for i := len(spine) - 1; i >= 0; i-- {
+		b, left := spine[i], acc
+		if acc, err = ev.node(b, func() (Value, error) { return ev.binary(b, left) }); err != nil {
+			return nil, err
+		}
+	}
+	return acc, nil
+}
+
+// binary evaluates the right operand of n and applies n to the left
+// operand's value x.
+func (ev *evaluator) binary(n *Binary, x Value) (Value, error) {
+	y, err := ev.eval(n.Y)
+	if err != nil {
+		return nil, err
+	}
+	if n.Op != ADD && n.Op != SUB {
+		// an absolute temperature enters a product, quotient, power
+		// or parallel combination in K (temperature.go)
+		x, y = ev.inKelvin(n.X, x), ev.inKelvin(n.Y, y)
+	}
+	if w := productWork(n, x, y); w > 0 {
+		if err := ev.charge(w, n.OpPos); err != nil {
+			return nil, err
+		}
+	}
+	return binaryOp(n, x, y)
+}
+
+// node charges a node's work, computes its value with f and checks it:
+// finite, of a physical unit, its power kind settled, recorded in the
+// trace.
+func (ev *evaluator) node(n Node, f func() (Value, error)) (Value, error) {
 	if err := ev.charge(NodeWork, n.Pos()); err != nil {
 		return nil, err
 	}
-	v, err := ev.eval1(n)
+	v, err := f()
 	if err == nil {
 		// the checks below look at every entry of a matrix value
 		if k := entries(v); k > 1 {
@@ -239,21 +300,7 @@ func (ev *evaluator) eval1(n Node) (Value, error) {
 		if err != nil {
 			return nil, err
 		}
-		y, err := ev.eval(n.Y)
-		if err != nil {
-			return nil, err
-		}
-		if n.Op != ADD && n.Op != SUB {
-			// an absolute temperature enters a product, quotient, power
-			// or parallel combination in K (temperature.go)
-			x, y = ev.inKelvin(n.X, x), ev.inKelvin(n.Y, y)
-		}
-		if w := productWork(n, x, y); w > 0 {
-			if err := ev.charge(w, n.OpPos); err != nil {
-				return nil, err
-			}
-		}
-		return binaryOp(n, x, y)
+		return ev.binary(n, x)
 	case *Call:
 		return ev.call(n)
 	case *MatrixLit:

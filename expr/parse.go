@@ -27,15 +27,23 @@ type Equation struct {
 // are added to errs; a statement that cannot be parsed becomes a *BadStmt
 // and parsing goes on with the next line.
 func ParseBlock(src *Source, mode Mode, errs *ErrorList) []Stmt {
+	var uses []Stmt
+	if mode == CalcMode {
+		// use statements (use.go) are read line by line before scanning
+		src, uses = splitUses(src, errs)
+	}
 	toks := Scan(src, errs)
 	p := &parser{src: src, errs: errs}
 	var out []Stmt
 	for _, st := range p.split(toks) {
 		if s := p.stmt(st, mode); s != nil {
+			for len(uses) > 0 && uses[0].Pos().Before(s.Pos()) {
+				out, uses = append(out, uses[0]), uses[1:]
+			}
 			out = append(out, s)
 		}
 	}
-	return out
+	return append(out, uses...)
 }
 
 // ParseExpr parses a single expression, optionally followed by a display

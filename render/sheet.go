@@ -98,6 +98,7 @@ func body(w *markup.Writer, doc *calcdoc.Document, opt Options) error {
 	if opt.EmbedSource {
 		embedSource(w, doc)
 		embedFiles(w, doc)
+		embedUses(w, doc)
 	}
 	return nil
 }

@@ -91,6 +91,8 @@ type StampInfo struct {
 	Detail string
 	// Files trace the data files the sheet read (datafiles.go).
 	Files []FileStamp
+	// Uses are the sheets the document uses (uses.go).
+	Uses []UseStamp
 }
 
 // SourceHash returns the lower-case hexadecimal SHA-256 digest (FIPS
@@ -118,6 +120,8 @@ func MarkerText(doc *calcdoc.Document, opt Options) string {
 		default:
 			why = "source not under version control"
 		}
+	default:
+		why = useMarker(opt.Stamp)
 	}
 	if why == "" {
 		return ""
@@ -149,6 +153,7 @@ func stampSection(w *markup.Writer, doc *calcdoc.Document, opt Options) {
 	stampFileRows(w, s)
 	row("Revision and date", esc(OrDash(doc.Front.Revision))+", "+esc(OrDash(doc.Front.Date)))
 	row("calcdoc version", esc(opt.Version))
+	useStampRows(w, s)
 	w.WriteString("</table>\n</section>\n")
 }
 

@@ -187,19 +187,28 @@ func (c *cli) build(args []string) int {
 	if single && len(inputs) != 1 {
 		return c.usageErr("-o %s names one file, but there are %d documents: give a folder", *out, len(inputs))
 	}
+	// evaluate, draw and write on every core, a used document first;
+	// report in the order of the inputs
+	stamper := build.NewStamper(version)
+	werr := make([]error, len(inputs))
+	targets := make([]string, len(inputs))
+	evald := build.Evaluate(build.NewLoader(kind.Standard(), inputs), inputs, 0, func(i int, doc *calcdoc.Document) {
+		in := inputs[i]
+		targets[i] = build.Target(*out, in.Path, in.Rel)
+		werr[i] = build.Write(doc, stamper.Stamped(doc), in.Path, targets[i], nil)
+	})
 	st := exitOK
-	for _, in := range inputs {
-		doc, err := calcdoc.LoadWith(in.Path, kind.Standard(), calcdoc.Inputs{Root: in.Root})
-		if err != nil {
-			fmt.Fprintf(c.stderr, "calcdoc: %v\n", err)
+	for i, ev := range evald {
+		in, doc, target := ev.Input, ev.Doc, targets[i]
+		if ev.Err != nil {
+			fmt.Fprintf(c.stderr, "calcdoc: %v\n", ev.Err)
 			st = max(st, exitUsage)
 			continue
 		}
 		c.printErrors(doc)
-		target := build.Target(*out, in.Path, in.Rel)
 		var re *build.RenderError
 		var we *build.WriteError
-		switch err := build.Write(doc, sheetOptions(doc), in.Path, target, nil); {
+		switch err := werr[i]; {
 		case errors.As(err, &re):
 			fmt.Fprintf(c.stderr, "%s: cannot render: %v\n", in.Path, err)
 			st = exitError
@@ -239,10 +248,10 @@ func (c *cli) check(args []string) int {
 		return st0
 	}
 	st := exitOK
-	for _, in := range inputs {
-		doc, err := calcdoc.LoadWith(in.Path, kind.Standard(), calcdoc.Inputs{Root: in.Root})
-		if err != nil {
-			fmt.Fprintf(c.stderr, "calcdoc: %v\n", err)
+	for _, ev := range build.Evaluate(build.NewLoader(kind.Standard(), inputs), inputs, 0, nil) {
+		doc := ev.Doc
+		if ev.Err != nil {
+			fmt.Fprintf(c.stderr, "calcdoc: %v\n", ev.Err)
 			st = max(st, exitUsage)
 			continue
 		}
@@ -282,7 +291,7 @@ func (c *cli) values(args []string) int {
 	if info.IsDir() || filepath.Ext(paths[0]) != ".md" {
 		return c.usageErr("%s: values takes one .md document, not a folder", paths[0])
 	}
-	doc, err := calcdoc.Load(paths[0], kind.Standard())
+	doc, err := calcdoc.NewLoader(kind.Standard(), filepath.Dir(paths[0])).Load(paths[0])
 	if err != nil {
 		return c.usageErr("%v", err)
 	}

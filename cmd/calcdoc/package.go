@@ -151,16 +151,23 @@ func (c *cli) pack(args []string) int {
 	}
 
 	var docs []*calcdoc.Document
-	for _, in := range inputs {
-		doc, err := calcdoc.LoadWith(in.Path, kind.Standard(), calcdoc.Inputs{Root: in.Root})
-		if err != nil {
-			fmt.Fprintf(c.stderr, "calcdoc: %v\n", err)
+	for _, ev := range build.Evaluate(build.NewLoader(kind.Standard(), inputs), inputs, 0, nil) {
+		if ev.Err != nil {
+			fmt.Fprintf(c.stderr, "calcdoc: %v\n", ev.Err)
 			return exitUsage
 		}
-		docs = append(docs, doc)
+		docs = append(docs, ev.Doc)
+	}
+	// a used sheet goes before its first user (packuses.go)
+	docs, moved, missing := orderUses(docs)
+	for _, m := range missing {
+		fmt.Fprintf(c.stderr, "calcdoc: warning: %s\n", m)
+	}
+	for _, m := range moved {
+		fmt.Fprintf(c.stdout, "%s\n", m)
 	}
 
-	info := pack.Info{TitleBlock: spec.TitleBlock}
+	info := pack.Info{TitleBlock: spec.TitleBlock, Moved: moved}
 	info.Title, info.Project, info.Client = pick(*title, spec.Title), pick(*project, spec.Project), pick(*client, spec.Client)
 	info.Number, info.Revision, info.Date = pick(*number, spec.Number), pick(*revision, spec.Revision), pick(*date, spec.Date)
 	if info.Project == "" {
@@ -175,6 +182,7 @@ func (c *cli) pack(args []string) int {
 
 	st := exitOK
 	sheets := make([]pack.Sheet, len(docs))
+	stamper := build.NewStamper(version)
 	numbers := map[string]string{}
 	for i, doc := range docs {
 		c.printErrors(doc)
@@ -185,7 +193,7 @@ func (c *cli) pack(args []string) int {
 			}
 			numbers[n] = doc.Path
 		}
-		sheets[i] = pack.Sheet{Doc: doc, Options: sheetOptions(doc)}
+		sheets[i] = pack.Sheet{Doc: doc, Options: stamper.Stamped(doc)}
 		st = status(doc, st)
 	}
 	page, err := pack.Package(info, sheets, version)

@@ -247,6 +247,8 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 		}
 	case *expr.BadStmt:
 		w.Printf("<div class=\"f\"><code>%s</code></div>", Esc(st.Text))
+	case *expr.Use:
+		w.useRows(st, line)
 	}
 	if ok && res != nil {
 		w.LookupRows(res.Trace)

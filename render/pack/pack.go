@@ -36,6 +36,9 @@ type Info struct {
 	// printing); the contents list shows it. The contents keep room for
 	// it either way, so adding it does not move any page.
 	StartPages []int
+	// Moved says which sheets moved before the first sheet that uses
+	// them (the order given is kept otherwise); the contents list it.
+	Moved []string `json:",omitempty"`
 }
 
 // Sheet is one sheet of a package: the evaluated document and the
@@ -135,7 +138,7 @@ func Package(info Info, sheets []Sheet, version string) ([]byte, error) {
 	}
 
 	cover(&w, info, title, sheets, hashes, pkgHash, marked, version)
-	contents(&w, sheets, info.StartPages)
+	contents(&w, sheets, info.StartPages, info.Moved)
 	for i, s := range sheets {
 		sec, err := Section(s.Doc, s.Options, i+1)
 		if err != nil {
@@ -351,7 +354,7 @@ func ParseRecord(b []byte) (Info, error) {
 }
 
 // contents lists the sheets and their first two levels of headings.
-func contents(w *bytes.Buffer, sheets []Sheet, starts []int) {
+func contents(w *bytes.Buffer, sheets []Sheet, starts []int, moved []string) {
 	w.WriteString("<nav class=\"contents\">\n<h2>Contents</h2>\n<ol>\n")
 	for i, s := range sheets {
 		fm := s.Doc.Front
@@ -364,16 +367,25 @@ func contents(w *bytes.Buffer, sheets []Sheet, starts []int) {
 			pg = fmt.Sprintf("page %d", starts[i])
 		}
 		fmt.Fprintf(w, "<li><span class=\"pg\">%s</span><a href=\"#sheet-%d\"><span class=\"cn\">Sheet %d</span> %s: %s</a>", pg, i+1, i+1, esc(label), esc(render.SheetTitle(s.Doc)))
-		if hs := headings(s.Doc, 2); len(hs) > 0 {
+		hs := headings(s.Doc, 2)
+		us := usesLines(sheets, i)
+		if len(hs)+len(us) > 0 {
 			w.WriteString("\n<ul>\n")
 			for _, h := range hs {
 				fmt.Fprintf(w, "<li>%s</li>\n", esc(h))
+			}
+			for _, u := range us {
+				fmt.Fprintf(w, "<li class=\"uses\">%s</li>\n", u)
 			}
 			w.WriteString("</ul>\n")
 		}
 		w.WriteString("</li>\n")
 	}
-	w.WriteString("</ol>\n</nav>\n")
+	w.WriteString("</ol>\n")
+	for _, m := range moved {
+		fmt.Fprintf(w, "<p class=\"moved\">%s</p>\n", esc(m))
+	}
+	w.WriteString("</nav>\n")
 }
 
 // headings returns the text of the document's headings of level 1 to

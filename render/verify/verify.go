@@ -202,6 +202,10 @@ type sheetRecord struct {
 	files map[string][]byte
 	// failed are the files the build could not read, with the error
 	failed map[string]string
+	// sheets answer the use statements from the records the sheet
+	// carries; useRecs are those records (uses.go)
+	sheets  calcdoc.Sheets
+	useRecs []calcdoc.SheetRecord
 }
 
 // readSheet reads the record of the sheet in page (its elements, read
@@ -249,6 +253,7 @@ func readSheet(page []byte, prefix string) (*sheetRecord, error) {
 		rec.opt.Version = strings.TrimPrefix(g.attr["content"], "calcdoc ")
 	}
 	rec.readFiles(els, prefix)
+	rec.readUses(els, prefix)
 	return rec, nil
 }
 
@@ -302,8 +307,11 @@ func (rec *sheetRecord) check(unit []byte, lineBase int, opt Options, rerender f
 	if files == nil {
 		files = map[string][]byte{} // a sheet without a stamp: still no disk
 	}
-	doc := calcdoc.ParseWith(rec.path, rec.source, kind.Standard(), calcdoc.Inputs{Carried: files, Failed: rec.failed})
+	doc := calcdoc.ParseWith(rec.path, rec.source, kind.Standard(), calcdoc.Inputs{Carried: files, Failed: rec.failed, Sheets: rec.sheets})
 	res.doc = doc
+	if opt.Git {
+		res.Differences = append(res.Differences, rec.staleUses(doc, opt)...)
+	}
 	ropt := rec.opt
 	ropt.Version = opt.Version
 	fresh, err := rerender(doc, ropt)

@@ -4,6 +4,7 @@ import (
 	"errors"
 	"os"
 	"path/filepath"
+	"sync"
 
 	"calcdoc/calcdoc"
 	"calcdoc/render"
@@ -15,11 +16,56 @@ import (
 type Options = render.Options
 
 // Stamped are the options of a built sheet: stamped from git (render/stamp)
-// and carrying its source, so that verify can check it.
+// and carrying its source, so that verify can check it. The stamp lists
+// each sheet the document uses, with its own git facts and whether it is
+// fit for issue (through every sheet it uses in turn).
 func Stamped(doc *calcdoc.Document, version string) Options {
+	return NewStamper(version).Stamped(doc)
+}
+
+// Stamper stamps the sheets of one build, each document once (a sheet used
+// by many is asked of git once). It is safe for use by several goroutines.
+type Stamper struct {
+	version string
+	mu      sync.Mutex
+	memo    map[string]*render.StampInfo
+}
+
+// NewStamper makes a stamper for sheets of calcdoc version.
+func NewStamper(version string) *Stamper {
+	return &Stamper{version: version, memo: map[string]*render.StampInfo{}}
+}
+
+// Stamped are the options of doc's built sheet (see Stamped).
+func (s *Stamper) Stamped(doc *calcdoc.Document) Options {
+	return Options{Version: s.version, Stamp: s.stampOf(doc, 0), EmbedSource: true}
+}
+
+func (s *Stamper) stampOf(doc *calcdoc.Document, depth int) *render.StampInfo {
+	key := calcdoc.RealPath(doc.Path) + "\x00" + calcdoc.SHA256(doc.Source)
+	s.mu.Lock()
+	if st := s.memo[key]; st != nil {
+		s.mu.Unlock()
+		return st
+	}
+	s.mu.Unlock()
 	st := stamp.Of(doc.Path, doc.Source)
 	st.Files = stamp.Files(doc.DataFiles)
-	return Options{Version: version, Stamp: &st, EmbedSource: true}
+	seen := map[string]bool{}
+	for _, u := range doc.Uses {
+		if seen[u.Rel] || u.Sheet == nil || u.Sheet.Doc == nil || depth > 64 {
+			continue
+		}
+		seen[u.Rel] = true
+		used := u.Sheet.Doc
+		ust := s.stampOf(used, depth+1)
+		uopt := Options{Version: s.version, Stamp: ust}
+		st.Uses = append(st.Uses, render.UseStamp{Path: u.Rel, SHA256: ust.SHA256, Commit: ust.Commit, State: ust.State, NotFit: render.NotFitReason(used, uopt)})
+	}
+	s.mu.Lock()
+	s.memo[key] = &st
+	s.mu.Unlock()
+	return &st
 }
 
 // Sheet writes the HTML sheet of an evaluated document.

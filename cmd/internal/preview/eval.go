@@ -2,6 +2,7 @@ package preview
 
 import (
 	"bytes"
+	"crypto/sha256"
 	"fmt"
 	"sync/atomic"
 	"time"
@@ -28,7 +29,8 @@ var beforeEval atomic.Pointer[func(*evalJob)]
 // evalJob is one save of a document to evaluate.
 type evalJob struct {
 	key, file, rel, display string
-	root                    string // the folder given on the command line (calcdoc.Inputs.Root)
+	root                    string          // the folder given on the command line (calcdoc.Inputs.Root)
+	loader                  *calcdoc.Loader // the burst's, for the documents its use statements name
 	src                     []byte
 	at                      time.Time
 }
@@ -123,6 +125,10 @@ func (w *Watcher) evalWorker(key string, st *evalState) {
 		default:
 			if cur := w.docs[key]; cur == nil || cur.file == j.file {
 				w.docs[key] = p
+				// the sheets that use this one are evaluated again when
+				// its values moved (a cycle of uses settles: its values
+				// stop moving)
+				w.queueReads(j.file, p.dataFiles, cur == nil || cur.fp != p.fp)
 			}
 		}
 		w.mu.Unlock()
@@ -138,8 +144,11 @@ func (w *Watcher) evaluate(j *evalJob, budget *expr.Budget) (*page, string) {
 	if f := beforeEval.Load(); f != nil {
 		(*f)(j)
 	}
-	doc := calcdoc.ParseWith(j.display, j.src, blockkind.Standard(), calcdoc.Inputs{Root: j.root, Budget: budget})
-	w.queueReads(j.file, doc)
+	in := calcdoc.Inputs{Root: j.root, Budget: budget}
+	if j.loader != nil {
+		in.Sheets = j.loader.Sheets(j.display)
+	}
+	doc := calcdoc.ParseWith(j.display, j.src, blockkind.Standard(), in)
 	p := &page{key: j.key, file: j.file, display: j.display, src: j.src, status: 200, version: w.nextVersion(), at: j.at,
 		values: len(doc.Values), checks: len(doc.Checks), failed: doc.FailedChecks(),
 		errors: len(doc.Errors), warning: len(doc.Warnings)}
@@ -157,6 +166,10 @@ func (w *Watcher) evaluate(j *evalJob, budget *expr.Budget) (*page, string) {
 	}
 	p.body = body
 	p.took = time.Since(j.at)
+	p.usedFiles, p.uses = usedFiles(doc, j.file)
+	p.dataFiles = doc.DataFiles
+	fp := sha256.Sum256(doc.MarshalValues())
+	p.fp = string(fp[:])
 	line := fmt.Sprintf("%s: evaluated in %s; %d of %d checks not satisfied, %d error%s",
 		j.display, ms(p.took), p.failed, p.checks, p.errors, plural(p.errors))
 	if p.warning > 0 {

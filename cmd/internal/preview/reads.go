@@ -12,14 +12,15 @@ import (
 type readNote struct {
 	file  string
 	files []*calcdoc.DataFile
+	moved bool // its values moved: the sheets that use it are evaluated again
 }
 
 // queueReads hands the data files an evaluation read to the watcher's
 // loop, which alone touches the maps of what is watched; evaluations run
 // on workers of their own (eval.go).
-func (w *Watcher) queueReads(file string, doc *calcdoc.Document) {
+func (w *Watcher) queueReads(file string, files []*calcdoc.DataFile, moved bool) {
 	w.readMu.Lock()
-	w.readQ = append(w.readQ, readNote{file: file, files: doc.DataFiles})
+	w.readQ = append(w.readQ, readNote{file: file, files: files, moved: moved})
 	w.readMu.Unlock()
 	select {
 	case w.poke <- struct{}{}:
@@ -28,15 +29,21 @@ func (w *Watcher) queueReads(file string, doc *calcdoc.Document) {
 }
 
 // takeReads records, on the loop, the data files of the evaluations done
-// since it last ran.
-func (w *Watcher) takeReads() {
+// since it last ran, and queues the sheets that use a document whose
+// values moved; it reports whether it queued one.
+func (w *Watcher) takeReads() bool {
 	w.readMu.Lock()
 	q := w.readQ
 	w.readQ = nil
 	w.readMu.Unlock()
+	moved := map[string]bool{}
 	for _, n := range q {
 		w.noteReads(n.file, n.files)
+		if n.moved {
+			moved[calcdoc.RealPath(n.file)] = true
+		}
 	}
+	return len(moved) > 0 && w.queueUsers(moved)
 }
 
 // noteReads records the data files the document in file read, and

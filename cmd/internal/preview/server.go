@@ -280,6 +280,7 @@ func (w *Watcher) serveListing(rw http.ResponseWriter) {
 			fmt.Fprintf(&b, "<td>%s, in %s</td></tr>\n", p.at.Format("15:04:05"), ms(p.took))
 		}
 		b.WriteString("</tbody>\n</table>\n")
+		usesListing(&b, pages)
 	}
 	if kept := w.keptFiles(); len(kept) > 0 {
 		b.WriteString("<p>Not served, because a file from an earlier PATH has the same address:</p>\n<ul>\n")

@@ -130,6 +130,7 @@ type Watcher struct {
 	readQ    []readNote                 // the data files of evaluations done, for the loop (reads.go)
 	poke     chan struct{}              // wakes the loop to take readQ
 	seq      atomic.Int64               // the last version number given
+	loader   *calcdoc.Loader            // of the current burst (uses.go)
 
 	mu         sync.RWMutex
 	docs       map[string]*page      // by address (the path after "/")
@@ -153,6 +154,11 @@ type page struct {
 	version string
 	at      time.Time
 	took    time.Duration
+
+	usedFiles []string            // real paths of the documents it uses
+	dataFiles []*calcdoc.DataFile // the data files its blocks read (a table's CSV)
+	fp        string              // SHA-256 of its values JSON: whether a new evaluation moved them
+	uses      []string            // the same as its use statements write them
 
 	state                                   state
 	problem                                 string // why it cannot be read or drawn
@@ -317,7 +323,12 @@ func (w *Watcher) Run(ctx context.Context) error {
 			}
 			w.logf("watching: %v", err)
 		case <-w.poke:
-			w.takeReads()
+			if w.takeReads() {
+				if first.IsZero() {
+					first = time.Now()
+				}
+				timer.Reset(Quiet)
+			}
 		case <-timer.C:
 			first = time.Time{}
 			if w.flush() {
@@ -570,12 +581,15 @@ func (w *Watcher) flush() bool {
 	}
 	files := sortedKeys(w.pending)
 	w.pending = map[string]bool{}
+	w.loader = nil // a new burst reads every document afresh
 	changed := false
 	for _, f := range files {
 		if w.rebuild(f) {
 			changed = true
 		}
 	}
+	// the sheets that use a document are evaluated again once its new
+	// evaluation is done and its values moved (reads.go, uses.go)
 	if changed || w.shadowed {
 		w.publish()
 	}
@@ -678,7 +692,7 @@ func (w *Watcher) rebuild(file string) bool {
 	}
 	// evaluated on the document's own worker, so that a slow document
 	// never holds the others back (eval.go)
-	w.startEval(&evalJob{key: key, file: file, rel: rel, display: display, src: src, at: start, root: r.dir})
+	w.startEval(&evalJob{key: key, file: file, rel: rel, display: display, src: src, at: start, root: r.dir, loader: w.loaderFor()})
 	return true
 }
 
