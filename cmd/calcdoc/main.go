@@ -235,7 +235,7 @@ func (c *cli) build(args []string) int {
 // summaryLine says how a document evaluated.
 func summaryLine(doc *calcdoc.Document) string {
 	held, failed, _ := doc.CheckCounts()
-	s := fmt.Sprintf("%d values, %d checks (%d satisfied, %d not satisfied), %d errors", len(doc.Values), len(doc.Checks), held, failed, len(doc.Errors))
+	s := fmt.Sprintf("%s, %s (%d satisfied, %d not satisfied), %s", counted(len(doc.Values), "value"), counted(len(doc.Checks), "check"), held, failed, counted(len(doc.Errors), "error"))
 	if len(doc.Warnings) > 0 {
 		s += fmt.Sprintf(", %d warnings", len(doc.Warnings))
 	}
@@ -300,4 +300,12 @@ func (c *cli) values(args []string) int {
 	}
 	c.stdout.Write(doc.MarshalValues())
 	return status(doc, exitOK)
+}
+
+// counted is "1 value", "2 values".
+func counted(n int, word string) string {
+	if n == 1 {
+		return "1 " + word
+	}
+	return fmt.Sprintf("%d %ss", n, word)
 }

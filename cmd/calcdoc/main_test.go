@@ -87,7 +87,7 @@ func TestCheckOutput(t *testing.T) {
 	}
 	lines := strings.Split(strings.TrimSpace(out), "\n")
 	want := []string{
-		p + ": 1 values, 1 checks (0 satisfied, 1 not satisfied), 1 errors",
+		p + ": 1 value, 1 check (0 satisfied, 1 not satisfied), 1 error",
 		p + ":5: check not satisfied: V > 240 V",
 		p + `:6:7: unknown unit "ohms" (did you mean "ohm" or "Ω"?)`,
 	}
