@@ -323,6 +323,7 @@ func cover(w *bytes.Buffer, info Info, title string, sheets []Sheet, hashes []st
 	}
 	w.WriteString("</table>\n")
 	w.WriteString(Record(info))
+	fmt.Fprintf(w, "<p class=\"caution\">%s</p>\n", esc(render.Caution))
 	fmt.Fprintf(w, "<p class=\"gen\">Made by calcdoc %s. Every sheet carries its own source: <code>calcdoc verify</code> on this file evaluates each one again and confirms that the sheet, its hash and the package hash still match it.</p>\n", esc(version))
 	w.WriteString("</section>\n")
 }
