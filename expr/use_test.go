@@ -5,6 +5,11 @@ import (
 	"testing"
 )
 
+// TestParseUse reads two use lines placed at line 11 and their positions,
+// counted by hand: in "use I_k3, Z_Q as Z_src from ../fault/msb board.md"
+// the new name Z_src starts at column 18 and the path at column 29 (4
+// characters of "use ", 6 of "I_k3, ", 4 of "Z_Q ", 3 of "as ", 6 of
+// "Z_src ", 5 of "from "); the indented case line's use starts at column 3.
 func TestParseUse(t *testing.T) {
 	src := NewSource("x = 1\nuse I_k3, Z_Q as Z_src from ../fault/msb board.md # the board\n  use φ in max as phi_max from a.md\ny = x", PlaceAt("x = 1\nuse I_k3, Z_Q as Z_src from ../fault/msb board.md # the board\n  use φ in max as phi_max from a.md\ny = x", 10, 1))
 	var errs ErrorList
@@ -37,6 +42,8 @@ func TestParseUse(t *testing.T) {
 	}
 }
 
+// TestParseUseErrors: each malformed use line is one bad statement with its
+// error at the column counted by hand (the word or gap at fault).
 func TestParseUseErrors(t *testing.T) {
 	for _, c := range []struct{ line, pos, want string }{
 		{"use I_k3", "1:1", "names the document"},

@@ -2,6 +2,7 @@ package render
 
 import (
 	"encoding/json"
+	"io/fs"
 	"os"
 	"path/filepath"
 	"regexp"
@@ -19,7 +20,14 @@ import (
 // entry in the values JSON are in the unit of its kind, and its kind is
 // the one its IEEE 1459 letter symbol (P, Q, S) names.
 func TestExamplesShowPowersByKind(t *testing.T) {
-	files, err := filepath.Glob(filepath.Join("..", "examples", "*.md"))
+	// every example, in subfolders too (examples/plant/...)
+	var files []string
+	err := filepath.WalkDir(filepath.Join("..", "examples"), func(p string, d fs.DirEntry, err error) error {
+		if err == nil && !d.IsDir() && strings.HasSuffix(p, ".md") {
+			files = append(files, p)
+		}
+		return err
+	})
 	if err != nil || len(files) == 0 {
 		t.Fatalf("no examples: %v", err)
 	}

@@ -37,7 +37,7 @@ usage:
   calcdoc values PATH                  JSON of one document's values, checks and errors
   calcdoc values --csv [--sweep LINE] PATH
                                        the values, or one sweep's points, as CSV
-  calcdoc watch [--addr HOST:PORT] [--allow-host NAME] [-o OUT] PATH...
+  calcdoc watch [--addr HOST:PORT] [--allow-host NAME]... [-o OUT] PATH...
                                        rebuild on every save and serve a live preview
   calcdoc package [-o FILE] [--pdf FILE] PATH...
                                        one stamped calculation package
@@ -45,12 +45,13 @@ usage:
                                        confirm that every byte of a sheet or package
                                        is what calcdoc writes from the inputs it
                                        carries, and check its signatures
-  calcdoc sign --key KEY --role checked|approved SHEET.html...
-                                       sign issued sheets with an SSH key
+  calcdoc sign --key KEY --role checked|approved [--signers FILE] [--principal NAME] SHEET.html...
+                                       sign issued sheets or packages with an SSH key
   calcdoc version
 
 A PATH that is a folder means every .md file below it that holds an
-evaluated block (calc, solve, phasors, sweep, ...), wherever it stands. Exit status: 0 all evaluated and every check holds, 1 a check
+evaluated block (calc, solve, phasors, sweep, network, table), wherever it
+stands. Exit status: 0 all evaluated and every check holds, 1 a check
 fails, 3 a document has an error, 2 a usage error. verify: 0 every sheet
 matches its source and every signature holds, 1 one does not, 2 a usage
 error. sign: 0 signed, 1 the file does not verify or the signer is not

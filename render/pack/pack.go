@@ -201,7 +201,7 @@ func packagePageCSS(info Info, title string, sheets []Sheet, pkgHash string) str
   @bottom-center { content: %s; font: 7pt monospace; }
   @bottom-right { content: "page " counter(page) " of " counter(pages); font: 8pt sans-serif; }
 }
-`, size(info.Paper), render.CSSString(pkgNo), render.CSSString(title), render.CSSString("package sha256 "+short12(pkgHash)))
+`, size(info.Paper), render.CSSString(pkgNo), render.CSSString(title), render.CSSString("package sha256 "+markup.ShortHash(pkgHash)))
 	n := len(sheets)
 	for i, s := range sheets {
 		k := i + 1
@@ -213,7 +213,7 @@ func packagePageCSS(info Info, title string, sheets []Sheet, pkgHash string) str
 		if fm.Revision != "" {
 			left += " rev " + fm.Revision
 		}
-		center := "source sha256 " + short12(s.sourceHash())
+		center := "source sha256 " + markup.ShortHash(s.sourceHash())
 		fmt.Fprintf(&b, `@page cd-sheet-%d {
   size: %s;
   counter-increment: cd-sheet-%d;
@@ -245,14 +245,6 @@ func Section(doc *calcdoc.Document, opt render.Options, k int) ([]byte, error) {
 	}
 	w.WriteString("</section>\n")
 	return w.Bytes(), nil
-}
-
-// short12 is the first 12 characters of a hash, as the page foot shows it.
-func short12(h string) string {
-	if len(h) > 12 {
-		return h[:12]
-	}
-	return h
 }
 
 // SheetPrefix is the prefix of the ids of sheet k in a package.
@@ -323,6 +315,7 @@ func cover(w *bytes.Buffer, info Info, title string, sheets []Sheet, hashes []st
 	}
 	w.WriteString("</table>\n")
 	w.WriteString(Record(info))
+	fmt.Fprintf(w, "<p class=\"caution\">%s</p>\n", esc(render.Caution))
 	fmt.Fprintf(w, "<p class=\"gen\">Made by calcdoc %s. Every sheet carries its own source: <code>calcdoc verify</code> on this file evaluates each one again and confirms that the sheet, its hash and the package hash still match it.</p>\n", esc(version))
 	w.WriteString("</section>\n")
 }

@@ -108,6 +108,14 @@ func TestPackageHTML(t *testing.T) {
 			t.Errorf("the cover lacks the revision row %s", row)
 		}
 	}
+	// the cover carries the caution every sheet carries (the project's
+	// rule: results are checked by a competent person and follow the
+	// local codes and licensed practice)
+	coverStart := strings.Index(html, `<section class="cover"`)
+	coverEnd := strings.Index(html[max(coverStart, 0):], "</section>")
+	if coverStart < 0 || coverEnd < 0 || !strings.Contains(html[coverStart:coverStart+coverEnd], htmlpkg.EscapeString(render.Caution)) {
+		t.Errorf("the cover lacks the caution %q", render.Caution)
+	}
 	// every id is unique: each sheet's ids carry its prefix
 	seen := map[string]bool{}
 	for _, m := range regexp.MustCompile(` id="([^"]*)"`).FindAllStringSubmatch(html, -1) {

@@ -230,7 +230,7 @@ func TestVerifyStateRelabelled(t *testing.T) {
 // repository) and put together in one package, verifies, with the git
 // facts checked against this repository.
 func TestVerifyShippedExamples(t *testing.T) {
-	paths, err := filepath.Glob(filepath.Join("..", "..", "examples", "*.md"))
+	paths, err := shippedExamples()
 	if err != nil || len(paths) == 0 {
 		t.Fatalf("no examples: %v", err)
 	}

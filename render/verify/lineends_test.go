@@ -3,6 +3,7 @@ package verify
 import (
 	"bytes"
 	"fmt"
+	"io/fs"
 	"os"
 	"path/filepath"
 	"strings"
@@ -23,12 +24,12 @@ import (
 // The two files are read from the examples' own folder, so that the
 // tables they read from files resolve as they do for a user.
 func TestCRLFTwinSheets(t *testing.T) {
-	files, err := filepath.Glob(filepath.Join("..", "..", "examples", "*.md"))
+	files, err := shippedExamples()
 	if err != nil || len(files) == 0 {
 		t.Fatalf("no examples found: %v", err)
 	}
 	for _, path := range files {
-		t.Run(filepath.Base(path), func(t *testing.T) {
+		t.Run(filepath.ToSlash(strings.TrimPrefix(path, filepath.Join("..", "..", "examples")+string(filepath.Separator))), func(t *testing.T) {
 			raw, err := os.ReadFile(path)
 			if err != nil {
 				t.Fatal(err)
@@ -142,4 +143,18 @@ func TestSourceCandidates(t *testing.T) {
 	if got := sourceCandidates("calc/a.md", "", '/'); len(got) != 1 {
 		t.Errorf("a /-written path gets no other spelling: %q", got)
 	}
+}
+
+// shippedExamples lists every .md file under examples/, in subfolders too
+// (examples/plant/...), in lexical order; examples/data/README.md, which
+// describes the data files and holds no block, is not an example.
+func shippedExamples() ([]string, error) {
+	var files []string
+	err := filepath.WalkDir(filepath.Join("..", "..", "examples"), func(p string, d fs.DirEntry, err error) error {
+		if err == nil && !d.IsDir() && strings.HasSuffix(p, ".md") && d.Name() != "README.md" {
+			files = append(files, p)
+		}
+		return err
+	})
+	return files, err
 }

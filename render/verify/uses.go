@@ -11,6 +11,7 @@ import (
 	"calcdoc/calcdoc/kind"
 	"calcdoc/expr"
 	"calcdoc/render"
+	"calcdoc/render/markup"
 )
 
 // readUses reads what a sheet carries of the sheets it uses: the records
@@ -102,7 +103,7 @@ func (rec *sheetRecord) staleUses(doc *calcdoc.Document, opt Options) []Differen
 			what = "moved: " + strings.Join(moved, "; ")
 		}
 		out = append(out, Difference{Kind: "use", Name: r.Path, Sheet: r.SHA256, Source: calcdoc.SHA256(src),
-			Message: fmt.Sprintf("used sheet %s changed since this sheet was built (SHA-256 %s → %s); %s: build this sheet again", r.Path, short(r.SHA256), short(calcdoc.SHA256(src)), what)})
+			Message: fmt.Sprintf("used sheet %s changed since this sheet was built (SHA-256 %s → %s); %s: build this sheet again", r.Path, markup.ShortHash(r.SHA256), markup.ShortHash(calcdoc.SHA256(src)), what)})
 	}
 	return out
 }
@@ -116,11 +117,4 @@ func useCandidates(srcPath, sheetPath, rel string) []string {
 		out = append(out, filepath.Join(filepath.Dir(sheetPath), rel))
 	}
 	return out
-}
-
-func short(h string) string {
-	if len(h) > 12 {
-		return h[:12]
-	}
-	return h
 }
