@@ -179,3 +179,14 @@ type BadStmt struct {
 	desc
 	Names []*Ident
 }
+
+// Unparen returns n without the parentheses written around it.
+func Unparen(n Node) Node {
+	for {
+		p, ok := n.(*Paren)
+		if !ok {
+			return n
+		}
+		n = p.X
+	}
+}

@@ -153,7 +153,7 @@ func (m *ExprML) substituted(n expr.Node) (shownValue, bool) {
 
 // form returns the level of n's typeset form.
 func (m *ExprML) form(n expr.Node) form {
-	n = unparen(n)
+	n = expr.Unparen(n)
 	if s, ok := m.substituted(n); ok {
 		return s.f
 	}
@@ -211,7 +211,7 @@ func binLevel(op expr.Kind) int {
 // stays linear: only a place that refuses a sign asks.)
 func (m *ExprML) leadSign(n expr.Node) bool {
 	for {
-		n = unparen(n)
+		n = expr.Unparen(n)
 		if s, ok := m.substituted(n); ok {
 			return s.f.signed
 		}
@@ -300,17 +300,17 @@ func liftedAngle(n *expr.WithUnit) (expr.Node, bool) {
 	if n.Unit.Angle {
 		return nil, false
 	}
-	a, ok := unparen(n.X).(*expr.Binary)
+	a, ok := expr.Unparen(n.X).(*expr.Binary)
 	if !ok || a.Op != expr.ANGLE {
 		return nil, false
 	}
-	y := unparen(a.Y)
+	y := expr.Unparen(a.Y)
 	for {
 		u, ok := y.(*expr.Unary)
 		if !ok {
 			break
 		}
-		y = unparen(u.X)
+		y = expr.Unparen(u.X)
 	}
 	if w, ok := y.(*expr.WithUnit); ok && w.Unit.Angle {
 		return a, true
@@ -322,25 +322,25 @@ func liftedAngle(n *expr.WithUnit) (expr.Node, bool) {
 // an angle unit (3° A), which right of ∠ the parser would read as the
 // phasor's unit.
 func unitAfterAngleUnit(n expr.Node) bool {
-	n = unparen(n)
+	n = expr.Unparen(n)
 	for {
 		u, ok := n.(*expr.Unary)
 		if !ok {
 			break
 		}
-		n = unparen(u.X)
+		n = expr.Unparen(u.X)
 	}
 	w, ok := n.(*expr.WithUnit)
 	if !ok || w.Unit.Angle {
 		return false
 	}
-	in, ok := unparen(w.X).(*expr.WithUnit)
+	in, ok := expr.Unparen(w.X).(*expr.WithUnit)
 	return ok && in.Unit.Angle
 }
 
 // write typesets n without brackets around it.
 func (m *ExprML) write(b StringWriter, n expr.Node) {
-	n = unparen(n)
+	n = expr.Unparen(n)
 	if s, ok := m.substituted(n); ok {
 		b.WriteString("<mrow>")
 		b.WriteString(s.ml)
@@ -448,7 +448,7 @@ func (m *ExprML) write(b StringWriter, n expr.Node) {
 // Splits reports whether n is typeset in more than one piece by
 // WritePieces: its top is a sum, a difference or a product.
 func (m *ExprML) Splits(n expr.Node) bool {
-	n = unparen(n)
+	n = expr.Unparen(n)
 	if _, subst := m.substituted(n); subst {
 		return false
 	}
@@ -465,8 +465,8 @@ func (m *ExprML) WritePieces(b StringWriter, n expr.Node, cut func(newTerm bool)
 	var factors func(n expr.Node, need int, noSign bool)
 	factors = func(n expr.Node, need int, noSign bool) {
 		f := m.form(n)
-		bin, isBin := unparen(n).(*expr.Binary)
-		_, subst := m.substituted(unparen(n))
+		bin, isBin := expr.Unparen(n).(*expr.Binary)
+		_, subst := m.substituted(expr.Unparen(n))
 		if f.lv < need || !isBin || subst || bin.Op != expr.MUL || noSign && m.leadSign(n) {
 			m.operand(b, n, need, noSign)
 			return
@@ -478,8 +478,8 @@ func (m *ExprML) WritePieces(b StringWriter, n expr.Node, cut func(newTerm bool)
 	}
 	var terms func(n expr.Node)
 	terms = func(n expr.Node) {
-		bin, isBin := unparen(n).(*expr.Binary)
-		_, subst := m.substituted(unparen(n))
+		bin, isBin := expr.Unparen(n).(*expr.Binary)
+		_, subst := m.substituted(expr.Unparen(n))
 		if !isBin || subst || bin.Op != expr.ADD && bin.Op != expr.SUB {
 			factors(n, lvAdd, false)
 			return
@@ -495,16 +495,6 @@ func (m *ExprML) WritePieces(b StringWriter, n expr.Node, cut func(newTerm bool)
 }
 
 func IsConstant(name string) bool { return name == "pi" || name == "π" || name == "j" }
-
-func unparen(n expr.Node) expr.Node {
-	for {
-		p, ok := n.(*expr.Paren)
-		if !ok {
-			return n
-		}
-		n = p.X
-	}
-}
 
 func numLiteral(text string) string {
 	if m, e, ok := strings.Cut(strings.ToLower(text), "e"); ok {

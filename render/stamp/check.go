@@ -1,6 +1,7 @@
 package stamp
 
 import (
+	"calcdoc/render/markup"
 	"fmt"
 	"os/exec"
 	"path/filepath"
@@ -80,29 +81,29 @@ func Check(st Stamp, src []byte, candidates ...string) GitCheck {
 	}
 	out, err := g.run(c.Repo, "log", "-1", "--format=%H%x00%cI", st.Commit, "--", c.Rel)
 	if err != nil {
-		bad("git cannot read the history of %s at %s: %v", c.Rel, short(st.Commit), err)
+		bad("git cannot read the history of %s at %s: %v", c.Rel, markup.ShortHash(st.Commit), err)
 		return c
 	}
 	last, date, _ := strings.Cut(strings.TrimRight(string(out), "\r\n"), "\x00")
 	switch {
 	case last == "":
-		bad("commit %s does not hold %s, but the sheet records it as the file's last commit", short(st.Commit), c.Rel)
+		bad("commit %s does not hold %s, but the sheet records it as the file's last commit", markup.ShortHash(st.Commit), c.Rel)
 		return c
 	case last != st.Commit:
-		bad("commit %s did not change %s (its last change by then was %s), but the sheet records it as the file's last commit", short(st.Commit), c.Rel, short(last))
+		bad("commit %s did not change %s (its last change by then was %s), but the sheet records it as the file's last commit", markup.ShortHash(st.Commit), c.Rel, markup.ShortHash(last))
 	}
 	if st.Commit == last && date != st.CommitDate {
-		bad("commit %s is dated %s, but the sheet records %s", short(st.Commit), date, orNone(st.CommitDate))
+		bad("commit %s is dated %s, but the sheet records %s", markup.ShortHash(st.Commit), date, orNone(st.CommitDate))
 	}
 	blob, kind, err := g.entry(c.Repo, st.Commit, c.Rel)
 	if err != nil {
-		bad("git cannot read %s at %s: %v", c.Rel, short(st.Commit), err)
+		bad("git cannot read %s at %s: %v", c.Rel, markup.ShortHash(st.Commit), err)
 		return c
 	}
 	var committed []byte
 	if kind == regular {
 		if committed, err = g.run(c.Repo, "cat-file", "blob", blob); err != nil {
-			bad("git cannot read %s at %s: %v", c.Rel, short(st.Commit), err)
+			bad("git cannot read %s at %s: %v", c.Rel, markup.ShortHash(st.Commit), err)
 			return c
 		}
 	}
@@ -113,11 +114,11 @@ func Check(st Stamp, src []byte, candidates ...string) GitCheck {
 		if kind == regular {
 			h = "SHA-256 " + Hash(committed)
 		}
-		bad("the sheet says the source is clean (as committed in %s), but %s at that commit is %s, not the embedded source's %s", short(st.Commit), c.Rel, h, Hash(src))
+		bad("the sheet says the source is clean (as committed in %s), but %s at that commit is %s, not the embedded source's %s", markup.ShortHash(st.Commit), c.Rel, h, Hash(src))
 	case st.State == Modified && same:
-		bad("the sheet says the source has uncommitted changes, but the embedded source is byte for byte %s at %s", c.Rel, short(st.Commit))
+		bad("the sheet says the source has uncommitted changes, but the embedded source is byte for byte %s at %s", c.Rel, markup.ShortHash(st.Commit))
 	case st.State != Clean && st.State != Modified:
-		bad("the sheet records commit %s with the working-tree state %q, which records no commit", short(st.Commit), st.State)
+		bad("the sheet records commit %s with the working-tree state %q, which records no commit", markup.ShortHash(st.Commit), st.State)
 	}
 	return c
 }

@@ -11,6 +11,7 @@ package stamp
 
 import (
 	"bytes"
+	"calcdoc/render/markup"
 	"context"
 	"errors"
 	"fmt"
@@ -145,13 +146,13 @@ func Of(path string, src []byte) Stamp {
 
 	if kind == regular && bytes.Equal(content, src) {
 		st.State = Clean
-		st.Detail = fmt.Sprintf("source is as committed in %s of %s%s", short(hash), date, shallow)
+		st.Detail = fmt.Sprintf("source is as committed in %s of %s%s", markup.ShortHash(hash), date, shallow)
 		return st
 	}
 	st.State = Modified
 	if kind == other {
 		st.Detail = fmt.Sprintf("source is a regular file where its last commit %s of %s%s holds a link or another kind of entry: uncommitted change",
-			short(hash), date, shallow)
+			markup.ShortHash(hash), date, shallow)
 		return st
 	}
 	staged := ""
@@ -159,7 +160,7 @@ func Of(path string, src []byte) Stamp {
 		staged = ", partly or wholly staged"
 	}
 	st.Detail = fmt.Sprintf("source differs from its last commit %s of %s%s: uncommitted changes%s",
-		short(hash), date, shallow, staged)
+		markup.ShortHash(hash), date, shallow, staged)
 	return st
 }
 
@@ -198,14 +199,6 @@ func relInTree(topDir, file string) (rel string, ok bool) {
 		return "", false
 	}
 	return filepath.ToSlash(r), true
-}
-
-// short abbreviates a commit hash to 12 characters for Detail.
-func short(hash string) string {
-	if len(hash) > 12 {
-		return hash[:12]
-	}
-	return hash
 }
 
 // resolve returns the absolute path of path with every symbolic link

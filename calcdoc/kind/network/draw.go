@@ -270,7 +270,7 @@ func substitution(w *markup.Writer, x expr.Node) string {
 	if x == nil {
 		return ""
 	}
-	if _, bare := unparen(x).(*expr.Ident); bare {
+	if _, bare := expr.Unparen(x).(*expr.Ident); bare {
 		return ""
 	}
 	names := false
@@ -288,14 +288,4 @@ func substitution(w *markup.Writer, x expr.Node) string {
 		return ""
 	}
 	return "<br>= " + markup.Math(w.ExprMLFor(true, tr).Node(x, false))
-}
-
-func unparen(n expr.Node) expr.Node {
-	for {
-		p, ok := n.(*expr.Paren)
-		if !ok {
-			return n
-		}
-		n = p.X
-	}
 }
