@@ -26,6 +26,9 @@ func FuzzEngine(f *testing.F) {
 		"phi = 1\nφ = 2\nV_phi = 1\nV_φ = 2\n\u00b5 = 1\n\u03bc = 2\nf(omega, ω) = 1\nx, χ, chi = [1; 2; 3]",
 		"\u0399_k = 3 A\nV_\u0430 = 1\nI\u3164 = 1\na\u200bb = 2\nZ\ufeff_s = 1\nx = 1 +\u200d 2\nR\u0301 = 1\n\U0001d465 = 1",
 		"I_k [kA] = 3 A\nx = 2Z_s\nA = 16 mm2\nQ = 50 kVAr\ny = ln 0\nz = 2  V\nw = (1)x_1\n2 A [mA]\n√3\n2²",
+		// use statements (read line by line before scanning) and table look-ups
+		"use I_k3, Z_Q as Z_src from ../fault/msb.md # fault level\nuse x in max as y from a.md\nuse = 3\nuse from\nuse a as from b.md",
+		"a = cu.R_20(2.5 mm^2)\nb = interp(cu.R_20, 3 mm^2)\nc = up(cu, 3 mm^2)\nd = ceil(1.1 * 100 A, 10 A)\ne = 70 °C - 20 °C\nf = round(2.5)",
 	} {
 		f.Add(s)
 	}
