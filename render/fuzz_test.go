@@ -32,6 +32,9 @@ func FuzzDocument(f *testing.F) {
 		"```sweep f = 1 Hz .. 10 Hz log 5\n|1 Ω + j*f*1 Ω/Hz|\n```\n",
 		"<b>raw</b> `=1/0` ![i](x)\n",
 		"---\nrevisions: [1, 2]\n---\n",
+		"```network\nground N\ng: N -> A source 10 V, Z 1 Ω\nl: A -> N Z 4 Ω\n```\n",
+		"```table t\nsource: test\nx [A] | y [s]\n1 | 2\n3 | \n```\n```calc\nv = interp(t.y, 2 A)\n```\n",
+		"```calc\nuse a from other.md\n```\n",
 	} {
 		f.Add([]byte(s))
 	}
