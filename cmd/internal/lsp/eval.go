@@ -97,6 +97,9 @@ type Diagnostic struct {
 	Severity int    `json:"severity"`
 	Source   string `json:"source"`
 	Message  string `json:"message"`
+	// Data is the certain fix of the error, for the code action
+	// request, or nil.
+	Data *fixData `json:"data,omitempty"`
 }
 
 // LSP DiagnosticSeverity.
@@ -120,7 +123,11 @@ func diagnostics(d *calcdoc.Document, t *text, enc string) []Diagnostic {
 		} else if e.Pos.IsValid() {
 			msg = e.Pos.Position().String() + ": " + msg // in another file
 		}
-		out = append(out, Diagnostic{Range: t.rng(off, wordEnd(t.b, off), enc), Severity: sev, Source: "calcdoc", Message: msg})
+		dg := Diagnostic{Range: t.rng(off, wordEnd(t.b, off), enc), Severity: sev, Source: "calcdoc", Message: msg}
+		if e.Pos.File == d.File {
+			dg.Data = certainFix(msg, t, off, enc)
+		}
+		out = append(out, dg)
 	}
 	for _, e := range d.Errors {
 		add(e, sevError)

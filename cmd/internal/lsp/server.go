@@ -188,6 +188,7 @@ func init() {
 		"textDocument/definition":     (*Server).definition,
 		"textDocument/completion":     (*Server).completion,
 		"textDocument/documentSymbol": (*Server).documentSymbol,
+		"textDocument/codeAction":     (*Server).codeAction,
 		"$/cancelRequest":             func(*Server, json.RawMessage) (any, error) { return nil, nil },
 		"$/setTrace":                  func(*Server, json.RawMessage) (any, error) { return nil, nil },
 	}
@@ -257,6 +258,7 @@ func (s *Server) initialize(raw json.RawMessage) (any, error) {
 			"inlayHintProvider":      true,
 			"definitionProvider":     true,
 			"documentSymbolProvider": true,
+			"codeActionProvider":     map[string]any{"codeActionKinds": []string{"quickfix"}},
 			"completionProvider":     map[string]any{"triggerCharacters": []string{"[", "("}},
 		},
 		"serverInfo": map[string]any{"name": "calcdoc", "version": s.Version},
