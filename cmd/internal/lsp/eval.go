@@ -17,6 +17,13 @@ import (
 // stopped then, so the evaluation ends early). The documents open in the
 // editor that use it are evaluated again when its values moved.
 func (s *Server) evaluate(st *docState, gen int64) {
+	defer func() {
+		// a panic of a kind is a bug: say so in the editor's log, and
+		// keep serving
+		if p := recover(); p != nil {
+			s.conn.notify("window/logMessage", map[string]any{"type": 1, "message": fmt.Sprintf("calcdoc: evaluating %s failed (a bug): %v", st.path, p)})
+		}
+	}()
 	s.mu.Lock()
 	if st.closed || st.gen != gen {
 		s.mu.Unlock()
@@ -31,6 +38,7 @@ func (s *Server) evaluate(st *docState, gen int64) {
 		open[calcdoc.RealPath(o.path)] = o.text.b
 	}
 	root := s.rootFor(st.path)
+	enc := s.enc
 	hook := s.debounced
 	s.mu.Unlock()
 	if hook != nil {
@@ -47,34 +55,49 @@ func (s *Server) evaluate(st *docState, gen int64) {
 		return b, ok
 	})
 	doc := calcdoc.ParseWith(st.path, src, s.kinds, calcdoc.Inputs{Root: root, Budget: budget, Sheets: loader.Sheets(st.path)})
+	t := newText(src)
+	diags := diagnostics(doc, t, enc)
+	uses := map[string]bool{}
+	for _, u := range doc.Uses {
+		if u.Sheet != nil && u.Sheet.Doc != nil {
+			uses[calcdoc.RealPath(u.Sheet.Doc.Path)] = true
+		}
+	}
+	me := calcdoc.RealPath(st.path)
 
 	s.mu.Lock()
 	if st.closed || st.gen != gen || budget.Stopped() {
 		s.mu.Unlock()
 		return
 	}
-	t := newText(src)
-	st.doc, st.dtext = doc, t
-	st.uses = map[string]bool{}
-	for _, u := range doc.Uses {
-		if u.Sheet != nil && u.Sheet.Doc != nil {
-			st.uses[calcdoc.RealPath(u.Sheet.Doc.Path)] = true
+	st.doc, st.dtext, st.uses = doc, t, uses
+	version := st.version
+	// the open documents that use this one are evaluated again when its
+	// values moved; the fingerprint (the values JSON) is made only when
+	// there are such documents (it costs about as much as the evaluation)
+	var users []*docState
+	for _, o := range s.docs {
+		if o != st && o.uses[me] {
+			users = append(users, o)
 		}
 	}
-	sum := sha256.Sum256(doc.MarshalValues())
-	moved := st.fp != string(sum[:])
-	st.fp = string(sum[:])
-	diags := diagnostics(doc, t, s.enc)
-	version := st.version
-	if moved {
-		me := calcdoc.RealPath(st.path)
-		for _, o := range s.docs {
-			if o != st && o.uses[me] {
-				s.scheduleLocked(o)
-			}
-		}
+	if len(users) == 0 {
+		st.fp = "" // not known: the next document that uses it is told
 	}
 	s.mu.Unlock()
+	if len(users) > 0 {
+		sum := sha256.Sum256(doc.MarshalValues())
+		s.mu.Lock()
+		if st.gen == gen && st.fp != string(sum[:]) {
+			for _, o := range users {
+				if !o.closed {
+					s.scheduleLocked(o)
+				}
+			}
+			st.fp = string(sum[:])
+		}
+		s.mu.Unlock()
+	}
 	s.conn.notify("textDocument/publishDiagnostics", map[string]any{"uri": st.uri, "version": version, "diagnostics": diags})
 }
 

@@ -51,7 +51,7 @@ type docState struct {
 	closed    bool
 
 	// the last evaluation: the document, the text it was read from, and
-	// the fingerprint of its values
+	// the fingerprint of its values ("" when not made)
 	doc   *calcdoc.Document
 	dtext *text
 	fp    string
