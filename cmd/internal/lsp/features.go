@@ -202,7 +202,7 @@ func (s *Server) definition(raw json.RawMessage) (any, error) {
 	if v == nil || word == "" {
 		return nil, err
 	}
-	uri := pathURI(v.doc.Path)
+	uri := s.uriOf(v.doc.Path)
 	t, ok := resolve(v.doc, word, a)
 	if !ok {
 		return nil, nil
@@ -218,7 +218,7 @@ func (s *Server) definition(raw json.RawMessage) (any, error) {
 				if expr.NameKey(ov.Name) == key && ov.Pos.File == other.File {
 					ot := newText(other.Source)
 					bom := bomLen(other.Source)
-					return Location{URI: pathURI(other.Path), Range: ot.rng(ov.Pos.Off+bom, ov.Pos.Off+bom+len(ov.Name), v.enc)}, nil
+					return Location{URI: s.uriOf(other.Path), Range: ot.rng(ov.Pos.Off+bom, ov.Pos.Off+bom+len(ov.Name), v.enc)}, nil
 				}
 			}
 		}
@@ -229,6 +229,21 @@ func (s *Server) definition(raw json.RawMessage) (any, error) {
 		return here(t.table.ArgPos.Off, len(tableName(t.table))), nil
 	}
 	return nil, nil
+}
+
+// uriOf is the URI of the document at path: the URI the editor opened it
+// under when it is open (an editor may spell a URI its own way), else
+// its file URI.
+func (s *Server) uriOf(path string) string {
+	real := calcdoc.RealPath(path)
+	s.mu.Lock()
+	defer s.mu.Unlock()
+	for _, o := range s.docs {
+		if calcdoc.RealPath(o.path) == real {
+			return o.uri
+		}
+	}
+	return pathURI(path)
 }
 
 // CompletionItem is an LSP completion item.

@@ -363,3 +363,82 @@ func first(ds []Diagnostic) any {
 	}
 	return ds[0]
 }
+
+// TestFullSyncCRLFAndBOM: a change without a range replaces the whole
+// text; a text with a byte-order mark and CR LF line ends has its
+// positions counted as the editor counts them (the mark is a character
+// of line 0, CR LF one line end). "y = 2 * " is 8 characters: zz stands
+// at line 2, columns 8 to 10.
+func TestFullSyncCRLFAndBOM(t *testing.T) {
+	cl := newClient(t, time.Millisecond)
+	cl.initialize("")
+	uri := pathURI(filepath.Join(t.TempDir(), "w.md"))
+	cl.open(uri, "```calc\nx = 1 V\n```\n", 1)
+	if ds := cl.diagnostics(uri, 1); len(ds) != 0 {
+		t.Fatalf("%+v", ds)
+	}
+	cl.notify("textDocument/didChange", map[string]any{
+		"textDocument":   map[string]any{"uri": uri, "version": 2},
+		"contentChanges": []any{map[string]any{"text": "\uFEFF```calc\r\nx = 1 V\r\ny = 2 * zz\r\n```\r\n"}},
+	})
+	ds := cl.diagnostics(uri, 2)
+	zz := errAt(t, ds, "zz")
+	if zz.Range != (Range{at(2, 8), at(2, 10)}) {
+		t.Errorf("zz at %+v, want line 2 columns 8 to 10", zz.Range)
+	}
+	// an incremental change across the CR LF: lines 1 and 2 become
+	// "x = 1 V + 2 * zz" (14 characters before zz)
+	cl.change(uri, 3, Range{at(1, 7), at(2, 10)}, " + 2 * zz")
+	ds = cl.diagnostics(uri, 3)
+	zz = errAt(t, ds, "zz")
+	if zz.Range != (Range{at(1, 14), at(1, 16)}) || len(ds) != 1 {
+		t.Errorf("after the join, zz at %+v, want line 1 columns 14 to 16 (diagnostics %+v)", zz.Range, ds)
+	}
+	cl.shutdownExit()
+}
+
+// TestNewerTextStopsEvaluation: while a document that would spend the
+// whole work budget is being evaluated, newer text arrives: the running
+// evaluation is stopped and its result never published; the newer text's
+// diagnostics are.
+func TestNewerTextStopsEvaluation(t *testing.T) {
+	cl := newClient(t, time.Millisecond)
+	started := make(chan int, 4)
+	cl.srv.debounced = func(string) { started <- 1 }
+	cl.initialize("")
+	uri := pathURI(filepath.Join(t.TempDir(), "heavy.md"))
+	var b strings.Builder
+	b.WriteString("```calc\nf_0(x) = x\n")
+	for k := 1; k <= 40; k++ {
+		fmt.Fprintf(&b, "f_%d(x) = f_%d(x) + f_%d(x)\n", k, k-1, k-1)
+	}
+	b.WriteString("y = f_40(1)\n```\n")
+	cl.open(uri, b.String(), 1)
+	<-started // version 1 is being evaluated
+	cl.notify("textDocument/didChange", map[string]any{
+		"textDocument":   map[string]any{"uri": uri, "version": 2},
+		"contentChanges": []any{map[string]any{"text": "```calc\ny = 2 V\n```\n"}},
+	})
+	deadline := time.After(20 * time.Second)
+	for {
+		select {
+		case m := <-cl.notes:
+			var p publishParams
+			if json.Unmarshal(m.Params, &p) != nil || m.Method != "textDocument/publishDiagnostics" {
+				continue
+			}
+			if p.Version == 1 {
+				t.Fatalf("the evaluation of version 1 was published after version 2 arrived: %+v", p.Diagnostics)
+			}
+			if p.Version == 2 {
+				if len(p.Diagnostics) != 0 {
+					t.Errorf("version 2: %+v", p.Diagnostics)
+				}
+				cl.shutdownExit()
+				return
+			}
+		case <-deadline:
+			t.Fatal("no diagnostics of version 2")
+		}
+	}
+}
