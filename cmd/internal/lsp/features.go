@@ -202,6 +202,19 @@ func (s *Server) definition(raw json.RawMessage) (any, error) {
 	if v == nil || word == "" {
 		return nil, err
 	}
+	// the path of a use statement: the start of the document it names
+	for _, b := range v.doc.Blocks {
+		stmts, _ := b.Result.([]*calcdoc.Stmt)
+		for _, st := range stmts {
+			u, ok := st.Stmt.(*expr.Use)
+			if !ok || st.Use == nil || st.Use.Sheet == nil || st.Use.Sheet.Doc == nil || u.PathPos.File != v.doc.File {
+				continue
+			}
+			if a >= u.PathPos.Off && a < u.PathPos.Off+len(u.Path) {
+				return Location{URI: s.uriOf(st.Use.Sheet.Doc.Path)}, nil
+			}
+		}
+	}
 	uri := s.uriOf(v.doc.Path)
 	t, ok := resolve(v.doc, word, a)
 	if !ok {

@@ -223,6 +223,13 @@ func TestDefinitionAcrossUse(t *testing.T) {
 	if loc.URI != srcURI || loc.Range != (Range{at(2, 0), at(2, 3)}) {
 		t.Errorf("definition of U_s: %+v, want %s line 2 columns 0 to 3", loc, srcURI)
 	}
+	// the path of the use statement (line 3, column 14, inside
+	// "src.md") goes to the start of src.md
+	loc = Location{}
+	cl.call("textDocument/definition", docParams(userURI, at(3, 14)), &loc)
+	if loc.URI != srcURI || loc.Range != (Range{}) {
+		t.Errorf("definition of the use path: %+v, want %s at 0:0", loc, srcURI)
+	}
 	cl.call("textDocument/hover", docParams(userURI, at(4, 9)), &hv)
 	if !contains(hv.Contents.Value, "from src.md, line 3") {
 		t.Errorf("hover on a used name: %q", hv.Contents.Value)
