@@ -151,7 +151,9 @@ type publishParams struct {
 // diagnostics waits for the diagnostics of uri at version.
 func (c *client) diagnostics(uri string, version int) []Diagnostic {
 	c.t.Helper()
-	deadline := time.After(20 * time.Second)
+	// generous: spending the whole work budget takes seconds, and many
+	// times that under the race detector on a loaded machine
+	deadline := time.After(120 * time.Second)
 	for {
 		select {
 		case m := <-c.notes:
@@ -166,7 +168,7 @@ func (c *client) diagnostics(uri string, version int) []Diagnostic {
 				return p.Diagnostics
 			}
 		case <-deadline:
-			c.t.Fatalf("no diagnostics of %s version %d in 20 s", uri, version)
+			c.t.Fatalf("no diagnostics of %s version %d in 120 s", uri, version)
 			return nil
 		}
 	}

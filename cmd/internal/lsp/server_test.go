@@ -426,7 +426,7 @@ func TestNewerTextStopsEvaluation(t *testing.T) {
 		"textDocument":   map[string]any{"uri": uri, "version": 2},
 		"contentChanges": []any{map[string]any{"text": "```calc\ny = 2 V\n```\n"}},
 	})
-	deadline := time.After(20 * time.Second)
+	deadline := time.After(120 * time.Second)
 	for {
 		select {
 		case m := <-cl.notes:
