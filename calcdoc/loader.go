@@ -30,6 +30,28 @@ type Loader struct {
 	mu    sync.Mutex
 	memo  map[string]*loaded
 	evals atomic.Int64
+
+	// overlay, when set, gives the bytes of a used document by its real
+	// path instead of the disk (SetOverlay).
+	overlay func(real string) ([]byte, bool)
+}
+
+// SetOverlay makes the loader's use statements read a document through
+// f, by its real path (symbolic links followed, absolute), before the
+// disk: the language server gives the unsaved text of the documents open
+// in the editor. f returns false to let the disk be read. Set it before
+// the loader is used.
+func (l *Loader) SetOverlay(f func(real string) ([]byte, bool)) { l.overlay = f }
+
+// read is the bytes of the document at real: the overlay's, else the
+// disk's.
+func (l *Loader) read(real string) ([]byte, error) {
+	if l.overlay != nil {
+		if b, ok := l.overlay(real); ok {
+			return b, nil
+		}
+	}
+	return os.ReadFile(real)
 }
 
 type loaded struct {
@@ -175,7 +197,7 @@ func (v *view) Sheet(from *Document, rel string) (*Sheet, error) {
 			return nil, fmt.Errorf("use makes a cycle: %s; a sheet cannot use itself, even through other sheets: take the value from a sheet outside the cycle", strings.Join(ring, " → "))
 		}
 	}
-	src, err := os.ReadFile(real)
+	src, err := v.l.read(real)
 	if err != nil {
 		return nil, fmt.Errorf("%s cannot be read: %v", rel, err)
 	}

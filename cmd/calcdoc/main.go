@@ -47,6 +47,8 @@ usage:
                                        carries, and check its signatures
   calcdoc sign --key KEY --role checked|approved [--signers FILE] [--principal NAME] SHEET.html...
                                        sign issued sheets or packages with an SSH key
+  calcdoc lsp                          a language server for editors (LSP over
+                                       standard input and output)
   calcdoc version
 
 A PATH that is a folder means every .md file below it that holds an
