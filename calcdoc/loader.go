@@ -26,6 +26,7 @@ import (
 type Loader struct {
 	kinds *Registry
 	roots []string // the folders given on the command line, absolute
+	read  func(path string) ([]byte, error) // ReadWith; nil: the disk
 
 	mu    sync.Mutex
 	memo  map[string]*loaded
@@ -58,6 +59,15 @@ func NewLoader(reg *Registry, roots ...string) *Loader {
 			l.roots = append(l.roots, a)
 		}
 	}
+	return l
+}
+
+// ReadWith makes the loader read the documents that use statements name,
+// and the files their blocks name, through read (given an absolute path,
+// resolved without the disk: ResolveLexical) instead of from the disk:
+// diff reads them at a git revision. It returns l.
+func (l *Loader) ReadWith(read func(path string) ([]byte, error)) *Loader {
+	l.read = read
 	return l
 }
 
@@ -108,7 +118,7 @@ func (l *Loader) eval(path, real string, src []byte, parent *view) (*Document, *
 		l.memo[key] = e
 		l.mu.Unlock()
 		l.evals.Add(1)
-		e.doc = ParseWith(path, src, l.kinds, Inputs{Sheets: child, Root: child.fallback})
+		e.doc = ParseWith(path, src, l.kinds, Inputs{Sheets: child, Root: child.fallback, Read: l.read})
 		close(e.done)
 		return e.doc, e
 	}
@@ -121,7 +131,7 @@ func (l *Loader) eval(path, real string, src []byte, parent *view) (*Document, *
 		// copy rather than wait (waiting could deadlock on a cycle that
 		// two goroutines entered from its two ends)
 		l.evals.Add(1)
-		d := ParseWith(path, src, l.kinds, Inputs{Sheets: child, Root: child.fallback})
+		d := ParseWith(path, src, l.kinds, Inputs{Sheets: child, Root: child.fallback, Read: l.read})
 		c := &loaded{doc: d}
 		return d, c
 	}
@@ -164,7 +174,11 @@ type view struct {
 // Sheet reads and evaluates the document that from names by rel.
 func (v *view) Sheet(from *Document, rel string) (*Sheet, error) {
 	root := FindRoot(from.Path, v.fallback)
-	real, err := ResolveInside(from.Path, rel, root)
+	resolve, read := ResolveInside, os.ReadFile
+	if v.l.read != nil {
+		resolve, read = ResolveLexical, v.l.read
+	}
+	real, err := resolve(from.Path, rel, root)
 	if err != nil {
 		return nil, err
 	}
@@ -175,7 +189,7 @@ func (v *view) Sheet(from *Document, rel string) (*Sheet, error) {
 			return nil, fmt.Errorf("use makes a cycle: %s; a sheet cannot use itself, even through other sheets: take the value from a sheet outside the cycle", strings.Join(ring, " → "))
 		}
 	}
-	src, err := os.ReadFile(real)
+	src, err := read(real)
 	if err != nil {
 		return nil, fmt.Errorf("%s cannot be read: %v", rel, err)
 	}
