@@ -25,7 +25,7 @@ import (
 // documents that use a changed one need a new Loader (a new build).
 type Loader struct {
 	kinds *Registry
-	roots []string // the folders given on the command line, absolute
+	roots []string                          // the folders given on the command line, absolute
 	read  func(path string) ([]byte, error) // ReadWith; nil: the disk
 
 	mu    sync.Mutex
