@@ -8,6 +8,7 @@ import (
 
 	"calcdoc/calcdoc"
 	"calcdoc/calcdoc/kind"
+	"calcdoc/expr"
 )
 
 // Line is the change as one line of text, without the document.
@@ -100,10 +101,24 @@ func Textconv(w io.Writer, path string) {
 		have[v.Name] = true
 		fmt.Fprintf(w, "%s %s = %s\n", v.Role, v.Name, v.Text)
 	}
-	for _, u := range d.Uses {
-		for _, n := range u.Names {
-			if !have[n.Local] {
-				fmt.Fprintf(w, "input %s = not resolved (use from %s)\n", n.Local, u.Rel)
+	for _, b := range d.Blocks {
+		stmts, _ := b.Result.([]*calcdoc.Stmt)
+		for _, st := range stmts {
+			switch x := st.Stmt.(type) {
+			case *expr.Use:
+				if st.Use != nil && st.Use.Sheet == nil {
+					for _, n := range x.Names {
+						fmt.Fprintf(w, "input %s = not resolved (use from %s)\n", n.Local().Name, x.Path)
+					}
+				}
+			case *expr.Assign:
+				if st.Unavailable != nil {
+					for _, id := range x.Names {
+						if !have[id.Name] {
+							fmt.Fprintf(w, "%s = not evaluated (it needs a value that is not resolved)\n", id.Name)
+						}
+					}
+				}
 			}
 		}
 	}
