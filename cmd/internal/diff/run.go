@@ -6,6 +6,7 @@ import (
 	"os"
 	"path/filepath"
 	"sort"
+	"strings"
 
 	"calcdoc/calcdoc"
 	"calcdoc/calcdoc/kind"
@@ -109,6 +110,12 @@ func Run(paths []string, from, to string, o Options) (*Report, error) {
 	for _, d := range docs {
 		rel, _ := g.Rel(d.abs)
 		a, b := g.snapshot(la, r.From, d.abs), g.snapshot(lb, r.To, d.abs)
+		for _, s := range []*Snapshot{a, b} {
+			for i, e := range s.Errors {
+				// name files as the output does: from the repository's top
+				s.Errors[i] = filepath.ToSlash(strings.ReplaceAll(e, g.Top+string(filepath.Separator), ""))
+			}
+		}
 		if d.folder && a.Blocks == 0 && b.Blocks == 0 && len(a.Errors) == 0 && len(b.Errors) == 0 {
 			continue // prose, not a calculation document
 		}
