@@ -48,7 +48,7 @@ func TestCheckMatching(t *testing.T) {
 		{Key: "gone", Evaluated: true, Pass: true},
 	}
 	b := []Check{
-		{Key: "new text", Evaluated: true, Pass: false},                             // pairs with "old text" by order
+		{Key: "new text", Evaluated: true, Pass: false},                               // pairs with "old text" by order
 		{Key: "V_drop <= 4 %", Evaluated: true, Pass: true, Util: 0.5, HasUtil: true}, // unchanged
 		{Key: "breaker", Evaluated: true, Pass: true, Util: 0.6, HasUtil: true},       // +20 %
 	}
