@@ -30,6 +30,11 @@ type Inputs struct {
 	// of the document's own; a build shares one, and verify gives the
 	// values a built sheet carries).
 	Sheets Sheets
+	// Read, when set, reads the files that blocks name (a table's CSV) in
+	// place of the disk: it gets the file's absolute path, resolved
+	// without the disk (ResolveLexical), and returns its bytes. diff uses
+	// it to read a document's files at a git revision.
+	Read func(path string) ([]byte, error)
 }
 
 // DataFile is one file the document's blocks read.
@@ -88,6 +93,10 @@ func (d *Document) CarriedError(rel string) (string, bool) {
 	msg, ok := d.inputs.Failed[CleanFilePath(rel)]
 	return msg, ok
 }
+
+// Reader is the function that reads the files the document's blocks
+// name in place of the disk (Inputs.Read), or nil.
+func (d *Document) Reader() func(path string) ([]byte, error) { return d.inputs.Read }
 
 // IsCarried reports whether the document was given the files it reads
 // (verify), rather than reading the disk.

@@ -24,8 +24,9 @@ import (
 // a Loader never hands out a document older than the bytes it read; the
 // documents that use a changed one need a new Loader (a new build).
 type Loader struct {
-	kinds *Registry
-	roots []string // the folders given on the command line, absolute
+	kinds  *Registry
+	roots  []string                          // the folders given on the command line, absolute
+	readFn func(path string) ([]byte, error) // ReadWith; nil: the disk
 
 	mu    sync.Mutex
 	memo  map[string]*loaded
@@ -45,11 +46,14 @@ func (l *Loader) SetOverlay(f func(real string) ([]byte, bool)) { l.overlay = f 
 
 // read is the bytes of the document at real: the overlay's, else the
 // disk's.
-func (l *Loader) read(real string) ([]byte, error) {
+func (l *Loader) readDoc(real string) ([]byte, error) {
 	if l.overlay != nil {
 		if b, ok := l.overlay(real); ok {
 			return b, nil
 		}
+	}
+	if l.readFn != nil {
+		return l.readFn(real)
 	}
 	return os.ReadFile(real)
 }
@@ -80,6 +84,15 @@ func NewLoader(reg *Registry, roots ...string) *Loader {
 			l.roots = append(l.roots, a)
 		}
 	}
+	return l
+}
+
+// ReadWith makes the loader read the documents that use statements name,
+// and the files their blocks name, through read (given an absolute path,
+// resolved without the disk: ResolveLexical) instead of from the disk:
+// diff reads them at a git revision. It returns l.
+func (l *Loader) ReadWith(read func(path string) ([]byte, error)) *Loader {
+	l.readFn = read
 	return l
 }
 
@@ -130,7 +143,7 @@ func (l *Loader) eval(path, real string, src []byte, parent *view) (*Document, *
 		l.memo[key] = e
 		l.mu.Unlock()
 		l.evals.Add(1)
-		e.doc = ParseWith(path, src, l.kinds, Inputs{Sheets: child, Root: child.fallback})
+		e.doc = ParseWith(path, src, l.kinds, Inputs{Sheets: child, Root: child.fallback, Read: l.readFn})
 		close(e.done)
 		return e.doc, e
 	}
@@ -143,7 +156,7 @@ func (l *Loader) eval(path, real string, src []byte, parent *view) (*Document, *
 		// copy rather than wait (waiting could deadlock on a cycle that
 		// two goroutines entered from its two ends)
 		l.evals.Add(1)
-		d := ParseWith(path, src, l.kinds, Inputs{Sheets: child, Root: child.fallback})
+		d := ParseWith(path, src, l.kinds, Inputs{Sheets: child, Root: child.fallback, Read: l.readFn})
 		c := &loaded{doc: d}
 		return d, c
 	}
@@ -186,7 +199,11 @@ type view struct {
 // Sheet reads and evaluates the document that from names by rel.
 func (v *view) Sheet(from *Document, rel string) (*Sheet, error) {
 	root := FindRoot(from.Path, v.fallback)
-	real, err := ResolveInside(from.Path, rel, root)
+	resolve := ResolveInside
+	if v.l.readFn != nil {
+		resolve = ResolveLexical
+	}
+	real, err := resolve(from.Path, rel, root)
 	if err != nil {
 		return nil, err
 	}
@@ -197,7 +214,7 @@ func (v *view) Sheet(from *Document, rel string) (*Sheet, error) {
 			return nil, fmt.Errorf("use makes a cycle: %s; a sheet cannot use itself, even through other sheets: take the value from a sheet outside the cycle", strings.Join(ring, " → "))
 		}
 	}
-	src, err := v.l.read(real)
+	src, err := v.l.readDoc(real)
 	if err != nil {
 		return nil, fmt.Errorf("%s cannot be read: %v", rel, err)
 	}

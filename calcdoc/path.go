@@ -57,6 +57,32 @@ func ResolveInside(docPath, rel, root string) (string, error) {
 	return real, nil
 }
 
+// ResolveLexical is ResolveInside without the disk: rel joined to the
+// document's folder and cleaned, made absolute, which must lie inside
+// root (compared as written, no link followed). It serves files read
+// from somewhere other than the disk (a git revision, Inputs.Read).
+func ResolveLexical(docPath, rel, root string) (string, error) {
+	if rel == "" {
+		return "", errors.New("no path given: name the file relative to the document, e.g. data/cu.csv")
+	}
+	slashed := strings.ReplaceAll(rel, `\`, "/")
+	if strings.HasPrefix(slashed, "/") || filepath.IsAbs(rel) || filepath.VolumeName(rel) != "" || hasDrive(slashed) {
+		return "", fmt.Errorf("%s is an absolute path: name the file relative to the document, so that the repository can move", rel)
+	}
+	p, err := filepath.Abs(filepath.Join(filepath.Dir(docPath), filepath.FromSlash(slashed)))
+	if err != nil {
+		return "", err
+	}
+	r, err := filepath.Abs(root)
+	if err != nil {
+		return "", err
+	}
+	if !inside(p, r) {
+		return "", fmt.Errorf("%s leads out of %s: a document may read only files inside the repository that holds it (outside git, inside the folder given on the command line); copy the file in", rel, root)
+	}
+	return p, nil
+}
+
 // hasDrive reports a Windows drive letter, "C:/...", in a path written
 // with /, whatever the system.
 func hasDrive(p string) bool {

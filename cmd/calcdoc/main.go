@@ -47,6 +47,12 @@ usage:
                                        carries, and check its signatures
   calcdoc sign --key KEY --role checked|approved [--signers FILE] [--principal NAME] SHEET.html...
                                        sign issued sheets or packages with an SSH key
+  calcdoc diff [--from REV] [--to REV] [--html FILE] [--min-change P%] PATH...
+                                       the values and checks that changed between
+                                       two git revisions (default HEAD and the
+                                       working tree)
+  calcdoc diff --textconv FILE         one file's values as text, for git's
+                                       textconv diff driver
   calcdoc lsp                          a language server for editors (LSP over
                                        standard input and output)
   calcdoc version
@@ -57,7 +63,9 @@ stands. Exit status: 0 all evaluated and every check holds, 1 a check
 fails, 3 a document has an error, 2 a usage error. verify: 0 every sheet
 matches its source and every signature holds, 1 one does not, 2 a usage
 error. sign: 0 signed, 1 the file does not verify or the signer is not
-allowed the role, 2 a usage error, 3 signing failed.
+allowed the role, 2 a usage error, 3 signing failed. diff: 0 nothing
+changed, 1 something changed, 2 a usage error, 3 an error; --textconv
+always 0.
 `
 
 type cli struct {

@@ -99,6 +99,16 @@ func readFile(doc *calcdoc.Document, rel string) (b []byte, disk string, err err
 		return nil, "", errors.New(rel + ": the sheet carries no such file: it was built without it")
 	}
 	root := data.FindRoot(doc.Path, doc.RootFolder())
+	if read := doc.Reader(); read != nil {
+		p, err := data.ResolveLexical(doc.Path, rel, root)
+		if err != nil {
+			return nil, "", err
+		}
+		if b, err = read(p); err != nil {
+			return nil, "", errors.New(rel + ": the file cannot be read: " + err.Error())
+		}
+		return b, "", nil
+	}
 	disk, err = data.ResolveInside(doc.Path, rel, root)
 	if err != nil {
 		return nil, "", err

@@ -32,7 +32,7 @@ var Layers = []Layer{
 	{4, "block kinds", []string{"calcdoc/calcdoc/kind/..."}},
 	{5, "sheet writer", []string{"calcdoc/render", "calcdoc/render/internal/..."}},
 	{6, "issuing", []string{"calcdoc/render/stamp/...", "calcdoc/render/verify/...", "calcdoc/render/pack/...", "calcdoc/render/pdf/..."}},
-	{7, "build", []string{"calcdoc/cmd/internal/build/..."}},
+	{7, "build", []string{"calcdoc/cmd/internal/build/...", "calcdoc/cmd/internal/diff/..."}},
 	{8, "preview", []string{"calcdoc/cmd/internal/preview/...", "calcdoc/cmd/internal/lsp/..."}},
 	{9, "command", []string{"calcdoc/cmd/calcdoc/...", "calcdoc/cmd/calcbench/...", "calcdoc/cmd/internal/layers/..."}},
 }

@@ -12,3 +12,9 @@ func ResolveInside(docPath, rel, root string) (string, error) {
 // FindRoot is the folder that a document's files must stay inside
 // (calcdoc.FindRoot).
 func FindRoot(docPath, fallback string) string { return calcdoc.FindRoot(docPath, fallback) }
+
+// ResolveLexical resolves rel without the disk, for a file read through
+// Inputs.Read (calcdoc.ResolveLexical).
+func ResolveLexical(docPath, rel, root string) (string, error) {
+	return calcdoc.ResolveLexical(docPath, rel, root)
+}
