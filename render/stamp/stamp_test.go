@@ -394,19 +394,23 @@ func TestOfGitFails(t *testing.T) {
 	}
 	p := filepath.Join(t.TempDir(), "calc.md")
 	write(t, p, "x = 1\n")
+	// The failing git is given a long time to answer, so that a loaded
+	// machine starting the script slowly does not turn its error into a
+	// time-out; the hanging one a short time.
 	tests := []struct {
-		name   string
-		script string
-		detail string // Detail must hold it
+		name    string
+		script  string
+		timeout time.Duration
+		detail  string // Detail must hold it
 	}{
-		{"git errors", `echo "fatal: object store damaged" >&2; exit 128`, "object store damaged"},
-		{"git hangs", `exec sleep 30`, "no answer within"},
+		{"git errors", `echo "fatal: object store damaged" >&2; exit 128`, 20 * time.Second, "object store damaged"},
+		{"git hangs", `exec sleep 30`, 300 * time.Millisecond, "no answer within"},
 	}
 	saved := timeout
-	timeout = 200 * time.Millisecond
 	t.Cleanup(func() { timeout = saved })
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
+			timeout = tc.timeout
 			fakeGit(t, tc.script)
 			got := Of(p, []byte("x = 1\n"))
 			if got.State != Unknown || got.Commit != "" || !strings.Contains(got.Detail, tc.detail) {
