@@ -35,7 +35,7 @@ func (t *Table) lookupText(l expr.Lookup, digits int) string {
 		if err != nil {
 			break
 		}
-		return fmt.Sprintf("%s: %s = %s → %s = %s (row %d)", t.Name, key.Name, t.keyText(i), t.Cols[j].Name, t.cellText(i, j), i+1)
+		return fmt.Sprintf("%s: %s = %s → %s = %s (row %d)", shownName(t.Name), shownName(key.Name), t.keyText(i), shownName(t.Cols[j].Name), t.cellText(i, j), i+1)
 	case "interp":
 		if len(l.Rows) != 2 {
 			break
@@ -46,10 +46,10 @@ func (t *Table) lookupText(l expr.Lookup, digits int) string {
 		}
 		a, b := l.Rows[0], l.Rows[1]
 		return fmt.Sprintf("%s: %s = %s, between rows %d (%s = %s, %s = %s) and %d (%s = %s, %s = %s) → %s = %s (linear)",
-			t.Name, key.Name, key.format(l.X, digits),
-			a+1, key.Name, t.keyText(a), t.Cols[j].Name, t.cellText(a, j),
-			b+1, key.Name, t.keyText(b), t.Cols[j].Name, t.cellText(b, j),
-			t.Cols[j].Name, t.Cols[j].format(l.Value, digits))
+			shownName(t.Name), shownName(key.Name), key.format(l.X, digits),
+			a+1, shownName(key.Name), t.keyText(a), shownName(t.Cols[j].Name), t.cellText(a, j),
+			b+1, shownName(key.Name), t.keyText(b), shownName(t.Cols[j].Name), t.cellText(b, j),
+			shownName(t.Cols[j].Name), t.Cols[j].format(l.Value, digits))
 	case "up", "down":
 		if len(l.Rows) != 1 {
 			break
@@ -59,9 +59,9 @@ func (t *Table) lookupText(l expr.Lookup, digits int) string {
 		if l.Func == "down" {
 			dir = "at or below"
 		}
-		return fmt.Sprintf("%s: the first %s %s %s → %s = %s (row %d)", t.Name, key.Name, dir, key.format(l.X, digits), key.Name, t.keyText(i), i+1)
+		return fmt.Sprintf("%s: the first %s %s %s → %s = %s (row %d)", shownName(t.Name), shownName(key.Name), dir, key.format(l.X, digits), shownName(key.Name), t.keyText(i), i+1)
 	}
-	return t.Name + ": " + l.Func
+	return shownName(t.Name) + ": " + l.Func
 }
 
 // cellText is the cell of row i, column j as written, with its unit.
@@ -83,4 +83,17 @@ func (c Column) format(v *expr.Scalar, digits int) string {
 		d = &expr.Display{Text: c.Unit.Text, Unit: c.Unit}
 	}
 	return expr.FormatScalar(v, d, digits).String()
+}
+
+// shownName is a table's or column's name as the look-up line writes it:
+// each "_"-separated part that is a spelled Greek name as its letter
+// ("theta_0" is "θ_0"), as the sheet typesets names (LANGUAGE.md section 3).
+func shownName(name string) string {
+	parts := strings.Split(name, "_")
+	for i, p := range parts {
+		if g, ok := expr.GreekLetter(p); ok {
+			parts[i] = g
+		}
+	}
+	return strings.Join(parts, "_")
 }
