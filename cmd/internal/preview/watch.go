@@ -245,14 +245,7 @@ func New(cfg Config) (*Watcher, error) {
 	w.fsw = fsw
 	// Watch first, then read: a save made meanwhile is then seen twice,
 	// never missed.
-	for _, r := range w.roots {
-		if r.file != "" {
-			w.addWatch(r.dir)
-			w.pending[filepath.Join(r.dir, r.file)] = true
-		} else {
-			w.addTree(r.dir)
-		}
-	}
+	w.watchRoots()
 	for _, r := range w.roots {
 		r.lost = !w.watched[r.dir] // gone meanwhile, or cannot be watched: tried again every Retry
 	}
@@ -547,8 +540,9 @@ func (w *Watcher) recover() bool {
 	return queued
 }
 
-// rescan queues every file under every PATH, and every document known.
-func (w *Watcher) rescan() {
+// watchRoots watches every PATH (a file's folder, a folder's tree) and
+// queues its documents.
+func (w *Watcher) watchRoots() {
 	for _, r := range w.roots {
 		if r.file != "" {
 			w.addWatch(r.dir)
@@ -557,6 +551,11 @@ func (w *Watcher) rescan() {
 			w.addTree(r.dir)
 		}
 	}
+}
+
+// rescan queues every file under every PATH, and every document known.
+func (w *Watcher) rescan() {
+	w.watchRoots()
 	for _, fs := range w.shadow {
 		for f := range fs {
 			w.pending[f] = true
