@@ -118,7 +118,7 @@ type Result struct {
 	// Governing is the case of the highest utilisation (or the first
 	// failing one) of a check with cases.
 	Governing string
-	Err   error        // an *Error or an *UnavailableError, or nil
+	Err       error // an *Error or an *UnavailableError, or nil
 
 	// Display is the display the value is shown in (ChooseDisplay: the
 	// line's bracket, the literal's unit, the preferred unit), or nil.
