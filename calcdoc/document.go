@@ -69,6 +69,9 @@ type NamedValue struct {
 	Pos     expr.Pos
 	Value   expr.Value
 	Display *expr.Display
+	// Cases is the value in each of the document's cases (Front.Cases)
+	// for a value that depends on a case, else nil (LANGUAGE.md section 10).
+	Cases []expr.Value
 }
 
 // CheckRecord is one evaluated check.
@@ -76,6 +79,14 @@ type CheckRecord struct {
 	Pos    expr.Pos
 	Text   string
 	Result *expr.CheckResult // nil when the check could not be evaluated
+	// Cases is the result in each of the document's cases for a check
+	// with cases (nil where it does not apply or has no verdict), else
+	// nil; Governing names the case of the highest utilisation.
+	Cases     []*expr.CheckResult
+	Governing string
+	// NoVerdict marks the cases the check applies to but could not be
+	// evaluated in (a solve that failed in that case).
+	NoVerdict []bool
 }
 
 // Inline is an inline value `=expr` in prose.
@@ -216,6 +227,7 @@ func parseOnly(path string, src []byte, reg *Registry, in Inputs) *Document {
 		} else {
 			parseFrontMatter(y, d.File.LineStart(2), &d.Front, &d.Errors, &d.Warnings)
 			d.Env.Preferred = d.Front.Units
+			d.Env.Cases = d.Front.Cases
 			// blank the front matter out, keeping every offset
 			body := append([]byte(nil), txt...)
 			end := len(txt)

@@ -238,6 +238,17 @@ func summary(w *markup.Writer, doc *calcdoc.Document) {
 		w.Printf(", %d not evaluated", notEval)
 	}
 	w.WriteString(".</p>\n")
+	if ch, cf, cn := doc.CaseCheckCounts(); ch != nil {
+		w.WriteString("<ul class=\"cases\">\n")
+		for k, name := range doc.Front.Cases {
+			w.Printf("<li>case %s: %d satisfied, %d not satisfied", esc(name), ch[k], cf[k])
+			if cn[k] > 0 {
+				w.Printf(", %d not evaluated", cn[k])
+			}
+			w.WriteString("</li>\n")
+		}
+		w.WriteString("</ul>\n")
+	}
 	if len(doc.Errors) > 0 {
 		w.WriteString("<ol class=\"errlist\">\n")
 		for _, e := range doc.Errors {
