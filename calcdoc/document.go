@@ -97,7 +97,10 @@ type Inline struct {
 	Value   expr.Value
 	Display *expr.Display
 	Err     error
-	src     *expr.Source // the span's text, line by line, with positions
+	// Cases is the value in each of the document's cases for an inline
+	// value that depends on a case, else nil.
+	Cases []expr.Value
+	src   *expr.Source // the span's text, line by line, with positions
 }
 
 // Digits is the number of significant figures the sheet shows.
@@ -456,7 +459,7 @@ func (d *Document) evalInline(in *Inline) {
 		d.Errors = append(d.Errors, errs...)
 	} else {
 		d.Env.Budget.Begin(in.Pos, "inline value")
-		v, err := d.Env.Eval(x, nil)
+		v, cases, err := d.Env.EvalCases(x, nil)
 		if err == nil {
 			if derr := expr.CheckDisplay(v, disp); derr != nil {
 				err = expr.Errorf(in.Pos, "%s", derr.Error())
@@ -465,6 +468,19 @@ func (d *Document) evalInline(in *Inline) {
 			} else {
 				v = kv
 			}
+		}
+		for k := range cases {
+			if err != nil {
+				break
+			}
+			if derr := expr.CheckDisplay(cases[k], disp); derr != nil {
+				err = expr.Errorf(in.Pos, "%s", derr.Error())
+			} else {
+				cases[k], err = expr.BracketKind(cases[k], x, disp)
+			}
+		}
+		if err == nil {
+			in.Cases = cases
 		}
 		in.Value, in.Display, in.Err = v, disp, err
 		if e, ok := err.(*expr.Error); ok {

@@ -358,3 +358,10 @@ func (e *Env) execCheck(s *Check, r *Result) {
 	r.Check = &g
 	r.Governing = e.Cases[gov]
 }
+
+// EvalCases evaluates n in every case when it depends on one: v is the
+// first case's value and cases the value in each case (nil when n depends
+// on no case). An error in one case names the case.
+func (e *Env) EvalCases(n Node, trace *Trace) (v Value, cases []Value, err error) {
+	return e.evalCases(n, trace)
+}
