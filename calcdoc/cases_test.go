@@ -3,8 +3,12 @@ package calcdoc_test
 import (
 	"encoding/json"
 	"math"
+	"path/filepath"
 	"strings"
 	"testing"
+
+	"calcdoc/calcdoc"
+	"calcdoc/expr"
 )
 
 // caseDoc is LANGUAGE.md section 10's example: the voltage factors
@@ -91,6 +95,51 @@ func TestCasesFrontMatterErrors(t *testing.T) {
 		d := parse(t, src)
 		if len(d.Errors) == 0 || !strings.Contains(d.Errors[0].Msg, want) || d.Errors[0].Pos.Line() == 0 {
 			t.Errorf("%q: errors %v, want %q with a line", src, d.Errors, want)
+		}
+	}
+}
+
+// use across cases: a used value with cases maps onto this sheet's cases
+// of the same names (here given in the other order), and "use NAME in
+// CASE as NEW" takes one case. Values: the hand derivation of
+// TestCasesValuesJSON (14035.03 A at max, 8065.92 A at min).
+func TestCasesUse(t *testing.T) {
+	dir := t.TempDir()
+	writeFiles(t, dir, map[string]string{
+		"board.md": caseDoc,
+		"user.md": "---\ncases: [min, max]\n---\n```calc\n" +
+			"use I_k3 from board.md\n" +
+			"use I_k3 in max as I_max from board.md\n" +
+			"I_2 = I_k3 / 2\n" +
+			"```\n",
+		"nocase.md": "```calc\nuse I_k3 from board.md\n```\n",
+		"other.md":  "---\ncases: [hi, lo]\n---\n```calc\nuse I_k3 in mid as I_x from board.md\n```\n",
+	})
+	d, err := calcdoc.NewLoader(kinds, dir).Load(filepath.Join(dir, "user.md"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(d.Errors) > 0 {
+		t.Fatal(d.Errors)
+	}
+	half := d.Env.Lookup("I_2").Cases
+	// this sheet's order: min first
+	if len(half) != 2 || math.Abs(real(half[0].(*expr.Scalar).Z)-8065.92/2) > 0.01 || math.Abs(real(half[1].(*expr.Scalar).Z)-14035.03/2) > 0.01 {
+		t.Errorf("I_2 per case = %v, want 4032.96 (min) and 7017.52 (max)", half)
+	}
+	im := d.Env.Lookup("I_max")
+	if im.Cases != nil || math.Abs(real(im.Value.(*expr.Scalar).Z)-14035.03) > 0.01 {
+		t.Errorf("I_max = %v (cases %v), want 14035.03 with no cases", im.Value, im.Cases)
+	}
+	for name, want := range map[string]string{
+		"nocase.md": "cases [max, min], but this sheet has no cases",
+		"other.md":  "has no case \"mid\": its cases are max, min",
+	} {
+		errs := useErr(t, map[string]string{"board.md": caseDoc, name: map[string]string{
+			"nocase.md": "```calc\nuse I_k3 from board.md\n```\n",
+			"other.md":  "---\ncases: [hi, lo]\n---\n```calc\nuse I_k3 in mid as I_x from board.md\n```\n"}[name]}, name)
+		if len(errs) == 0 || !strings.Contains(errs[0].Msg, want) {
+			t.Errorf("%s: errors %v, want %q", name, errs, want)
 		}
 	}
 }
