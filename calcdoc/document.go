@@ -123,7 +123,7 @@ func (d *Document) InlineFor(n ast.Node) *Inline { return d.inlineN[n] }
 func (d *Document) CheckCounts() (held, failed, notEvaluated int) {
 	for _, c := range d.Checks {
 		switch {
-		case c.Result == nil:
+		case c.Result == nil || c.noVerdict():
 			notEvaluated++
 		case c.Result.Pass:
 			held++
@@ -472,6 +472,9 @@ func (d *Document) evalInline(in *Inline) {
 		for k := range cases {
 			if err != nil {
 				break
+			}
+			if cases[k] == nil {
+				continue
 			}
 			if derr := expr.CheckDisplay(cases[k], disp); derr != nil {
 				err = expr.Errorf(in.Pos, "%s", derr.Error())

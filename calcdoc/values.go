@@ -142,7 +142,7 @@ func (d *Document) ValuesJSON() *ValuesJSON {
 	}
 	for _, c := range d.Checks {
 		cj := CheckJSON{Line: c.Pos.Line(), Text: c.Text}
-		if c.Result != nil && finiteCheck(c.Result) {
+		if c.Result != nil && finiteCheck(c.Result) && !c.noVerdict() {
 			p := c.Result.Pass
 			cj.Pass = &p
 		}

@@ -188,3 +188,14 @@ func (c *CheckRecord) FailedCases(cases []string) []string {
 	}
 	return out
 }
+
+// noVerdict reports whether a check with cases has no verdict in a case
+// it applies to: then it has none as a whole ("pass" is null).
+func (c *CheckRecord) noVerdict() bool {
+	for _, nv := range c.NoVerdict {
+		if nv {
+			return true
+		}
+	}
+	return false
+}

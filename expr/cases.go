@@ -34,6 +34,10 @@ func (e *Env) ResetCaseDep() bool {
 	return d
 }
 
+// SetCaseDep sets the record that an evaluation read a value with cases
+// (to restore it after evaluating for each case).
+func (e *Env) SetCaseDep(d bool) { e.caseDep = d }
+
 // CaseDep reports whether an evaluation since the last ResetCaseDep read
 // a value with cases (a case literal or a name with cases).
 func (e *Env) CaseDep() bool { return e.caseDep }
@@ -215,27 +219,43 @@ func (e *Env) evalCases(n Node, trace *Trace) (v Value, cases []Value, err error
 	prevCase, prevDep := e.caseIdx, e.caseDep
 	defer func() { e.caseIdx, e.caseDep = prevCase, prevDep }()
 	e.caseIdx, e.caseDep = 0, false
-	v, err = e.Eval(n, trace)
-	if err != nil || !e.caseDep || len(e.Cases) == 0 {
-		if err != nil && e.caseDep && len(e.Cases) > 1 {
-			err = e.inCase(err, e.Cases[0])
-		}
-		return v, nil, err
+	v0, err0 := e.Eval(n, trace)
+	if !e.caseDep || len(e.Cases) == 0 {
+		return v0, nil, err0
 	}
+	// a case whose inputs have no value (a solve that failed in it) has
+	// no value either; the other cases stand
 	cases = make([]Value, len(e.Cases))
-	cases[0] = v
-	for k := 1; k < len(e.Cases); k++ {
-		e.caseIdx = k
-		x, err := e.Eval(n, nil)
+	var unavailable error
+	first := -1
+	for k := range e.Cases {
+		x, err := v0, err0
+		if k > 0 {
+			e.caseIdx = k
+			x, err = e.Eval(n, nil)
+		}
 		if err != nil {
+			if _, ok := err.(*UnavailableError); ok {
+				if unavailable == nil {
+					unavailable = err
+				}
+				continue
+			}
 			return nil, nil, e.inCase(err, e.Cases[k])
 		}
-		if why := sameCaseKind(v, x); why != "" {
-			return nil, nil, Errorf(n.Pos(), "the cases of one value must share unit, power kind and angle mark: case %s and case %s give %s", e.Cases[0], e.Cases[k], why)
+		if first >= 0 {
+			if why := sameCaseKind(cases[first], x); why != "" {
+				return nil, nil, Errorf(n.Pos(), "the cases of one value must share unit, power kind and angle mark: case %s and case %s give %s", e.Cases[first], e.Cases[k], why)
+			}
+		} else {
+			first = k
 		}
 		cases[k] = x
 	}
-	return v, cases, nil
+	if first < 0 {
+		return nil, nil, unavailable
+	}
+	return cases[first], cases, nil
 }
 
 // inCase names the case an error happened in.
@@ -254,6 +274,9 @@ func checkDisplayCases(v Value, cases []Value, d *Display) error {
 		return err
 	}
 	for _, c := range cases {
+		if c == nil {
+			continue
+		}
 		if err := CheckDisplay(c, d); err != nil {
 			return err
 		}

@@ -172,8 +172,10 @@ func (e *Env) Exec(s Stmt) *Result {
 				if cases != nil {
 					b.Cases = make([]Value, len(cases))
 					for k, c := range cases {
-						y := c.(*Matrix).E[i]
-						b.Cases[k] = &y
+						if c != nil {
+							y := c.(*Matrix).E[i]
+							b.Cases[k] = &y
+						}
 					}
 				}
 				e.Define(b)
@@ -198,8 +200,10 @@ func (e *Env) Exec(s Stmt) *Result {
 		}
 		v, r.Value = kv, kv
 		if cases != nil {
-			cases[0] = kv
-			for k := 1; k < len(cases); k++ {
+			for k := range cases {
+				if cases[k] == nil {
+					continue
+				}
 				if cases[k], kerr = bracketKind(cases[k], s.X, s.Display); kerr != nil {
 					r.Err, r.Value = kerr, nil
 					e.defineUnavailableAt(s.Names, s.Names[0].P)
@@ -248,9 +252,10 @@ func (e *Env) Exec(s Stmt) *Result {
 			} else {
 				r.Value = kv
 				if cases != nil {
-					cases[0] = kv
-					for k := 1; k < len(cases) && r.Err == nil; k++ {
-						cases[k], r.Err = bracketKind(cases[k], s.X, s.Display)
+					for k := 0; k < len(cases) && r.Err == nil; k++ {
+						if cases[k] != nil {
+							cases[k], r.Err = bracketKind(cases[k], s.X, s.Display)
+						}
 					}
 					if r.Err == nil {
 						r.Cases = cases
