@@ -143,3 +143,19 @@ func TestCasesUse(t *testing.T) {
 		}
 	}
 }
+
+// The values CSV of a document with cases has a case column; I_k3's rows
+// carry the hand-derived values of TestCasesValuesJSON.
+func TestCasesValuesCSV(t *testing.T) {
+	d := parse(t, caseDoc)
+	var b strings.Builder
+	if err := d.WriteValuesCSV(&b); err != nil {
+		t.Fatal(err)
+	}
+	csv := b.String()
+	for _, want := range []string{"name,line,case,re,im,unit,shown", "I_k3,7,max,14035.03", "I_k3,7,min,8065.92", "U,10,,400,0,V,"} {
+		if !strings.Contains(csv, want) {
+			t.Errorf("CSV lacks %q:\n%s", want, csv)
+		}
+	}
+}
