@@ -49,6 +49,15 @@ func renderSweep(w *markup.Writer, b *calcdoc.Block) {
 	for _, l := range sw.Lines {
 		sweepLineRow(w, l)
 	}
+	for _, c := range append([]*Sweep{sw}, sw.CaseSweeps...) {
+		sweepPoints(w, c)
+	}
+	w.WriteString("</div>\n")
+}
+
+// sweepPoints draws a sweep's table and plots, under the name of its case
+// for a sweep worked per case.
+func sweepPoints(w *markup.Writer, sw *Sweep) {
 	var cols []*SweepLine
 	for _, l := range sw.Lines {
 		if l.OK() {
@@ -56,12 +65,14 @@ func renderSweep(w *markup.Writer, b *calcdoc.Block) {
 		}
 	}
 	if sw.X != nil && len(cols) > 0 {
+		if sw.Case != "" {
+			w.Printf("<div class=\"sweepcase\"><span class=\"case\">%s</span></div>\n", markup.Esc(sw.Case))
+		}
 		sweepTable(w, sw, cols)
 		for _, l := range cols {
 			sweepPlots(w, sw, l)
 		}
 	}
-	w.WriteString("</div>\n")
 }
 
 // sweepHead describes the range: "sweep of f from 10 Hz to 100 kHz, 200
