@@ -2,6 +2,7 @@ package network
 
 import (
 	"math"
+	"strings"
 	"testing"
 
 	"calcdoc/expr"
@@ -26,5 +27,9 @@ func TestNetworkPerCase(t *testing.T) {
 				t.Errorf("%s case %d = %g, want %g", name, k, got, want[k])
 			}
 		}
+	}
+	// the sheet shows V_B in each case: 70.00 V and 63.00 V
+	if page := sheet(t, d); !strings.Contains(page, "<mtext>lo:\u00a0</mtext><mrow><mn>63.00</mn>") {
+		t.Error("the network's results show each case's value")
 	}
 }
