@@ -45,3 +45,13 @@ func nameCase(errs []*expr.Error, c string) {
 		e.Msg = "in case " + c + ": " + e.Msg
 	}
 }
+
+// CaseSweepValuers are the sweeps of the cases after the first, for the
+// values JSON (calcdoc.CaseSweepValuer).
+func (sw *Sweep) CaseSweepValuers() []calcdoc.SweepValuer {
+	var out []calcdoc.SweepValuer
+	for _, c := range sw.CaseSweeps {
+		out = append(out, c)
+	}
+	return out
+}

@@ -32,6 +32,10 @@ func TestSweepPerCase(t *testing.T) {
 			t.Errorf("case %s: |Z(1 kHz)| = %g, want %g", s.Case, got, want)
 		}
 	}
+	sj := d.SweepsJSON()
+	if len(sj) != 2 || sj[0].Case != "a" || sj[1].Case != "b" {
+		t.Errorf("values JSON: want a sweep entry per case, got %d", len(sj))
+	}
 	html, err := render.Sheet(d, render.Options{})
 	if err != nil {
 		t.Fatal(err)
