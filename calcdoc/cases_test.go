@@ -131,6 +131,19 @@ func TestCasesUse(t *testing.T) {
 	if im.Cases != nil || math.Abs(real(im.Value.(*expr.Scalar).Z)-14035.03) > 0.01 {
 		t.Errorf("I_max = %v (cases %v), want 14035.03 with no cases", im.Value, im.Cases)
 	}
+	// the record a built sheet carries (for verify) keeps the cases
+	recs := calcdoc.UseRecords(d)
+	sheets, _, err := calcdoc.RecordedSheets(calcdoc.MarshalUseRecords(recs))
+	if err != nil {
+		t.Fatal(err)
+	}
+	sh, err := sheets.Sheet(d, "board.md")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if rv := sh.Lookup("I_k3"); len(sh.Cases) != 2 || rv == nil || len(rv.Cases) != 2 || math.Abs(real(rv.Cases[1].(*expr.Scalar).Z)-8065.92) > 0.01 {
+		t.Errorf("recorded sheet: cases %v, I_k3 %+v", sh.Cases, rv)
+	}
 	for name, want := range map[string]string{
 		"nocase.md": "cases [max, min], but this sheet has no cases",
 		"other.md":  "has no case \"mid\": its cases are max, min",
