@@ -40,7 +40,12 @@ func TestSweepPerCase(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if strings.Count(string(html), "<div class=\"sweepcase\">") != 2 {
-		t.Error("the sheet draws the sweep once per case, each under its case's name")
+	page := string(html)
+	if strings.Count(page, "<div class=\"sweepcase\">") != 2 {
+		t.Error("the sheet draws the sweep's table once per case, each under its case's name")
+	}
+	// one plot of |Z| and one of arg Z, each with a curve per case
+	if n := strings.Count(page, "<svg"); n != 2 || !strings.Contains(page, "|Z| (a)") || !strings.Contains(page, "|Z| (b)") || !strings.Contains(page, "one curve per case") {
+		t.Errorf("%d plots; want 2, each with a curve per case labelled with its case", n)
 	}
 }
