@@ -46,3 +46,17 @@ func TestSheetWithCases(t *testing.T) {
 		t.Error("check in min: has no row for max")
 	}
 }
+
+// The formula of a case literal is typeset with each case's name before
+// its value, never as an unreadable expression.
+func TestCaseLiteralTypeset(t *testing.T) {
+	d := calcdoc.Parse("c.md", []byte("---\ncases: [max, min]\n---\n```calc\nc = {max: 1.10, min: 0.95}\n```\n"), kind.Standard())
+	out, err := Sheet(d, Options{Version: "test"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	page := string(out)
+	if strings.Contains(page, "merror") || !strings.Contains(page, "<mo>{</mo><mtext>max:\u00a0</mtext><mn>1.10</mn><mo>,</mo><mtext>min:\u00a0</mtext><mn>0.95</mn><mo>}</mo>") {
+		t.Error("the case literal is not typeset as {max: 1.10, min: 0.95}")
+	}
+}
