@@ -69,6 +69,9 @@ type NamedValue struct {
 	Pos     expr.Pos
 	Value   expr.Value
 	Display *expr.Display
+	// Cases is the value in each of the document's cases (Front.Cases)
+	// for a value that depends on a case, else nil (LANGUAGE.md section 10).
+	Cases []expr.Value
 }
 
 // CheckRecord is one evaluated check.
@@ -76,6 +79,14 @@ type CheckRecord struct {
 	Pos    expr.Pos
 	Text   string
 	Result *expr.CheckResult // nil when the check could not be evaluated
+	// Cases is the result in each of the document's cases for a check
+	// with cases (nil where it does not apply or has no verdict), else
+	// nil; Governing names the case of the highest utilisation.
+	Cases     []*expr.CheckResult
+	Governing string
+	// NoVerdict marks the cases the check applies to but could not be
+	// evaluated in (a solve that failed in that case).
+	NoVerdict []bool
 }
 
 // Inline is an inline value `=expr` in prose.
@@ -86,7 +97,10 @@ type Inline struct {
 	Value   expr.Value
 	Display *expr.Display
 	Err     error
-	src     *expr.Source // the span's text, line by line, with positions
+	// Cases is the value in each of the document's cases for an inline
+	// value that depends on a case, else nil.
+	Cases []expr.Value
+	src   *expr.Source // the span's text, line by line, with positions
 }
 
 // Digits is the number of significant figures the sheet shows.
@@ -109,7 +123,7 @@ func (d *Document) InlineFor(n ast.Node) *Inline { return d.inlineN[n] }
 func (d *Document) CheckCounts() (held, failed, notEvaluated int) {
 	for _, c := range d.Checks {
 		switch {
-		case c.Result == nil:
+		case c.Result == nil || c.noVerdict():
 			notEvaluated++
 		case c.Result.Pass:
 			held++
@@ -216,6 +230,7 @@ func parseOnly(path string, src []byte, reg *Registry, in Inputs) *Document {
 		} else {
 			parseFrontMatter(y, d.File.LineStart(2), &d.Front, &d.Errors, &d.Warnings)
 			d.Env.Preferred = d.Front.Units
+			d.Env.Cases = d.Front.Cases
 			// blank the front matter out, keeping every offset
 			body := append([]byte(nil), txt...)
 			end := len(txt)
@@ -444,7 +459,7 @@ func (d *Document) evalInline(in *Inline) {
 		d.Errors = append(d.Errors, errs...)
 	} else {
 		d.Env.Budget.Begin(in.Pos, "inline value")
-		v, err := d.Env.Eval(x, nil)
+		v, cases, err := d.Env.EvalCases(x, nil)
 		if err == nil {
 			if derr := expr.CheckDisplay(v, disp); derr != nil {
 				err = expr.Errorf(in.Pos, "%s", derr.Error())
@@ -453,6 +468,22 @@ func (d *Document) evalInline(in *Inline) {
 			} else {
 				v = kv
 			}
+		}
+		for k := range cases {
+			if err != nil {
+				break
+			}
+			if cases[k] == nil {
+				continue
+			}
+			if derr := expr.CheckDisplay(cases[k], disp); derr != nil {
+				err = expr.Errorf(in.Pos, "%s", derr.Error())
+			} else {
+				cases[k], err = expr.BracketKind(cases[k], x, disp)
+			}
+		}
+		if err == nil {
+			in.Cases = cases
 		}
 		in.Value, in.Display, in.Err = v, disp, err
 		if e, ok := err.(*expr.Error); ok {

@@ -46,6 +46,8 @@ type FrontMatter struct {
 	Phasors string          // "rms" or "peak"
 	Units   *expr.Preferred // preferred display units, or nil
 	Present bool            // the document has front matter
+	// Cases names the document's cases (LANGUAGE.md section 10), or nil.
+	Cases []string
 }
 
 // DefaultDigits is the number of significant figures shown when the front
@@ -205,6 +207,8 @@ func parseFrontMatter(text []byte, base expr.Pos, fm *FrontMatter, errs, warns *
 			}
 		case "units":
 			parseUnits(v, fm, errs, pos)
+		case "cases":
+			parseCases(v, fm, errs, pos)
 		case "revisions":
 			if v.Kind != yaml.SequenceNode {
 				errs.Add(pos(v), "front matter key \"revisions\" must be a list of {rev, date, by, note}")
@@ -238,7 +242,7 @@ func parseFrontMatter(text []byte, base expr.Pos, fm *FrontMatter, errs, warns *
 				fm.Revisions = append(fm.Revisions, r)
 			}
 		default:
-			warns.Add(pos(k), fmt.Sprintf("unknown front matter key %q (known: title, project, number, revision, prepared, checked, approved, date, client, revisions, digits, phasors, paper, units)", k.Value))
+			warns.Add(pos(k), fmt.Sprintf("unknown front matter key %q (known: title, project, number, revision, prepared, checked, approved, date, client, revisions, digits, phasors, paper, units, cases)", k.Value))
 		}
 	}
 }
@@ -274,4 +278,31 @@ func parseUnits(v *yaml.Node, fm *FrontMatter, errs *expr.ErrorList, pos func(*y
 		return
 	}
 	fm.Units = p
+}
+
+// caseNameRE is what a case name may be: a letter, then letters, digits
+// and underscores.
+var caseNameRE = regexp.MustCompile(`^\pL[\pL\pN_]*$`)
+
+// parseCases reads "cases: [max, min]": two or more names, each once.
+func parseCases(v *yaml.Node, fm *FrontMatter, errs *expr.ErrorList, pos func(*yaml.Node) expr.Pos) {
+	if v.Kind != yaml.SequenceNode || len(v.Content) < 2 {
+		errs.Add(pos(v), "front matter key \"cases\" must be a list of two or more case names, e.g. cases: [max, min]")
+		return
+	}
+	seen := map[string]bool{}
+	var names []string
+	for _, item := range v.Content {
+		if item.Kind != yaml.ScalarNode || !caseNameRE.MatchString(item.Value) {
+			errs.Add(pos(item), fmt.Sprintf("case name %q must be a name: a letter, then letters, digits or _", item.Value))
+			return
+		}
+		if seen[item.Value] {
+			errs.Add(pos(item), fmt.Sprintf("case %q is listed twice in \"cases\": each case is named once", item.Value))
+			return
+		}
+		seen[item.Value] = true
+		names = append(names, item.Value)
+	}
+	fm.Cases = names
 }

@@ -83,16 +83,24 @@ func EvalStatements(b *Block, stmts []expr.Stmt, errs expr.ErrorList) []*Stmt {
 					if bd := b.Env().Lookup(s.Names[0].Name); bd != nil && bd.Value == st.Res.Value {
 						disp = bd.Display // includes the unit a literal is written in
 					}
-					b.AddValue(&NamedValue{Name: s.Names[0].Name, Pos: s.Names[0].Pos(), Value: st.Res.Value, Display: disp})
+					b.AddValue(&NamedValue{Name: s.Names[0].Name, Pos: s.Names[0].Pos(), Value: st.Res.Value, Display: disp, Cases: st.Res.Cases})
 				} else if m, ok := st.Res.Value.(*expr.Matrix); ok && len(m.E) == len(s.Names) {
 					for i, id := range s.Names {
 						e := m.E[i]
-						b.AddValue(&NamedValue{Name: id.Name, Pos: id.Pos(), Value: &e, Display: s.Display})
+						var cases []expr.Value
+						if bd := b.Env().Lookup(id.Name); bd != nil {
+							cases = bd.Cases
+						}
+						b.AddValue(&NamedValue{Name: id.Name, Pos: id.Pos(), Value: &e, Display: s.Display, Cases: cases})
 					}
 				}
 			}
 		case *expr.Check:
-			b.AddCheck(&CheckRecord{Pos: s.Pos(), Text: b.Text(s.Cmp.Pos(), s.Cmp.End()), Result: st.Res.Check})
+			rec := &CheckRecord{Pos: s.Pos(), Text: b.Text(s.Cmp.Pos(), s.Cmp.End()), Result: st.Res.Check, Cases: st.Res.CaseChecks, Governing: st.Res.Governing}
+			for _, err := range st.Res.CaseErrs {
+				rec.NoVerdict = append(rec.NoVerdict, err != nil)
+			}
+			b.AddCheck(rec)
 		}
 		b.Errors = append(b.Errors, st.Errs...)
 		out = append(out, st)

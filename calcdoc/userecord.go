@@ -26,6 +26,8 @@ type SheetRecord struct {
 	FirstError string        `json:"first_error,omitempty"`
 	Funcs      []string      `json:"funcs,omitempty"`
 	Values     []ValueRecord `json:"values,omitempty"`
+	// Cases names the sheet's cases (LANGUAGE.md section 10), if any.
+	Cases []string `json:"cases,omitempty"`
 }
 
 // ValueRecord is one value of a used sheet, exactly.
@@ -37,6 +39,9 @@ type ValueRecord struct {
 	E       []ScalarRecord `json:"e"`
 	Resid   []uint64       `json:"resid,omitempty"`
 	Display *DisplayRecord `json:"display,omitempty"`
+	// Cases holds the value in each of the sheet's cases for a value with
+	// cases (null for a case with no value); E is then the first's.
+	Cases []*ValueRecord `json:"cases,omitempty"`
 }
 
 // ScalarRecord is a scalar with the bits of its parts (so that NaN and
@@ -77,6 +82,7 @@ func UseRecords(d *Document) []SheetRecord {
 		sh := u.Sheet
 		r.SHA256, r.Number, r.Revision, r.Title, r.Errors, r.Funcs = sh.SHA256, sh.Number, sh.Revision, sh.Title, sh.Errors, sh.Funcs
 		r.FirstError = sh.FirstError
+		r.Cases = sh.Cases
 		for _, v := range sh.Values {
 			r.Values = append(r.Values, valueRecord(v))
 		}
@@ -106,6 +112,14 @@ func valueRecord(v *UsedValue) ValueRecord {
 		for _, q := range x.Resid {
 			r.Resid = append(r.Resid, math.Float64bits(q))
 		}
+	}
+	for _, c := range v.Cases {
+		if c == nil {
+			r.Cases = append(r.Cases, nil)
+			continue
+		}
+		cr := valueRecord(&UsedValue{Name: v.Name, Line: v.Line, Value: c})
+		r.Cases = append(r.Cases, &cr)
 	}
 	if d := v.Display; d != nil {
 		r.Display = &DisplayRecord{Text: d.Text, Form: int(d.Form)}
@@ -137,6 +151,19 @@ func (r ValueRecord) used() (*UsedValue, error) {
 	default:
 		return nil, fmt.Errorf("the record of %s holds no value", r.Name)
 	}
+	if len(r.Cases) > 0 {
+		v.Cases = make([]expr.Value, len(r.Cases))
+		for k, c := range r.Cases {
+			if c == nil {
+				continue
+			}
+			cv, err := c.used()
+			if err != nil {
+				return nil, err
+			}
+			v.Cases[k] = cv.Value
+		}
+	}
 	if r.Display != nil {
 		d := &expr.Display{Text: r.Display.Text, Form: expr.Form(r.Display.Form)}
 		if r.Display.Unit != "" {
@@ -156,7 +183,7 @@ func (r SheetRecord) Sheet() (*Sheet, error) {
 	if r.Err != "" {
 		return nil, errors.New(r.Err)
 	}
-	sh := &Sheet{Path: r.Path, SHA256: r.SHA256, Number: r.Number, Revision: r.Revision, Title: r.Title, Errors: r.Errors, FirstError: r.FirstError, Funcs: r.Funcs}
+	sh := &Sheet{Path: r.Path, SHA256: r.SHA256, Number: r.Number, Revision: r.Revision, Title: r.Title, Errors: r.Errors, FirstError: r.FirstError, Funcs: r.Funcs, Cases: r.Cases}
 	for _, vr := range r.Values {
 		v, err := vr.used()
 		if err != nil {

@@ -16,6 +16,9 @@ type UsedValue struct {
 	Line    int
 	Value   expr.Value
 	Display *expr.Display
+	// Cases is the value in each of the sheet's cases (Sheet.Cases) for a
+	// value that depends on a case, else nil.
+	Cases []expr.Value
 }
 
 // Sheet is a document as a use statement sees it: where it is, the
@@ -33,6 +36,8 @@ type Sheet struct {
 	FirstError string
 	// Funcs are the names of its user functions (which cannot be used).
 	Funcs []string
+	// Cases names the sheet's cases (its front matter), or nil.
+	Cases []string
 	// Doc is the evaluated document, or nil when the sheet was read back
 	// from the records a built sheet carries (verify).
 	Doc *Document
@@ -72,8 +77,9 @@ func SheetOf(d *Document) *Sheet {
 		s.FirstError = "line " + d.Errors[0].Pos.String() + ": " + d.Errors[0].Msg
 	}
 	for _, v := range d.Values {
-		s.Values = append(s.Values, &UsedValue{Name: v.Name, Line: v.Pos.Line(), Value: v.Value, Display: v.Display})
+		s.Values = append(s.Values, &UsedValue{Name: v.Name, Line: v.Pos.Line(), Value: v.Value, Display: v.Display, Cases: v.Cases})
 	}
+	s.Cases = d.Front.Cases
 	s.Funcs = append(s.Funcs, d.Env.FuncNames()...)
 	return s.index()
 }
@@ -139,13 +145,6 @@ func evalUse(b *Block, s *expr.Use, st *Stmt) {
 	fail := func(pos expr.Pos, format string, args ...any) {
 		st.Errs = append(st.Errs, expr.Errorf(pos, format, args...))
 	}
-	for _, n := range s.Names {
-		if n.Case != nil {
-			fail(n.Case.Pos(), "cases are not supported yet: %s in %s takes one case's value, and calcdoc has no cases yet (write use %s from %s)", n.Name.Name, n.Case.Name, n.Name.Name, s.Path)
-			unavailable(s.Pos())
-			return
-		}
-	}
 	if d.sheets == nil {
 		fail(s.PathPos, "this document cannot use other sheets here: no sheets are available to read %s from", s.Path)
 		unavailable(s.Pos())
@@ -182,9 +181,19 @@ func evalUse(b *Block, s *expr.Use, st *Stmt) {
 			st.Errs = append(st.Errs, err)
 			continue
 		}
+		val, cases, msg := useCase(n, v, sh, s.Path, d.Front.Cases)
+		if msg != "" {
+			pos := n.Name.Pos()
+			if n.Case != nil {
+				pos = n.Case.Pos()
+			}
+			fail(pos, "%s", msg)
+			env.Define(&expr.Binding{Name: id.Name, Pos: id.Pos(), Unavailable: true, Cause: pos})
+			continue
+		}
 		bind.Value = v
-		env.Define(&expr.Binding{Name: id.Name, Value: v.Value, Pos: id.Pos(), Display: v.Display})
-		b.AddValue(&NamedValue{Name: id.Name, Pos: id.Pos(), Value: v.Value, Display: v.Display})
+		env.Define(&expr.Binding{Name: id.Name, Value: val, Pos: id.Pos(), Display: v.Display, Cases: cases})
+		b.AddValue(&NamedValue{Name: id.Name, Pos: id.Pos(), Value: val, Display: v.Display, Cases: cases})
 	}
 }
 

@@ -127,7 +127,7 @@ func TestUseErrors(t *testing.T) {
 		{"sheet with errors", map[string]string{"f.md": "```calc\nx = 1 V + 1 A\n```\n", "a.md": "```calc\nuse x from f.md\ny = x\n```\n"}, "a.md", "2:12",
 			[]string{"f.md has 1 error, the first at line 2:", "correct that sheet first"}},
 		{"case", map[string]string{"f.md": faultDoc, "a.md": "```calc\nuse I_k3 in max as I_max from f.md\n```\n"}, "a.md", "2:13",
-			[]string{"cases are not supported yet"}},
+			[]string{"f.md has no cases", "write use I_k3 from f.md"}},
 		{"no path", map[string]string{"a.md": "```calc\nuse x from\n```\n"}, "a.md", "2:7",
 			[]string{"no path after from"}},
 		{"defined twice", map[string]string{"f.md": faultDoc, "a.md": "```calc\nc = 2\nuse c from f.md\n```\n"}, "a.md", "3:5",

@@ -45,6 +45,9 @@ type ValueJSON struct {
 	Shown string `json:"shown"`
 	// the sense of a power factor (valuesweep.go); absent on other values
 	*SenseJSON
+	// Cases, for a value with cases, stands in place of Re, Im and Shown
+	// (MarshalJSON): one {re, im, shown} per case, in the document's order.
+	Cases []CaseJSON `json:"-"`
 }
 
 // CheckJSON is one check; Pass is null when the check could not be evaluated.
@@ -52,6 +55,9 @@ type CheckJSON struct {
 	Line int    `json:"line"`
 	Text string `json:"text"`
 	Pass *bool  `json:"pass"`
+	// Cases, for a check with cases: each case's verdict (null where the
+	// check does not apply or has none), in the document's order.
+	Cases []CaseJSON `json:"-"`
 }
 
 // ErrorJSON is one error.
@@ -131,14 +137,16 @@ func (d *Document) ValuesJSON() *ValuesJSON {
 			vj.Re, vj.Im, vj.Unit, vj.Kind = re, im, un, kd
 		}
 		vj.SenseJSON = valueSenseJSON(v.Value)
+		vj.Cases = d.valueCasesJSON(v)
 		out.Values = append(out.Values, vj)
 	}
 	for _, c := range d.Checks {
 		cj := CheckJSON{Line: c.Pos.Line(), Text: c.Text}
-		if c.Result != nil && finiteCheck(c.Result) {
+		if c.Result != nil && finiteCheck(c.Result) && !c.noVerdict() {
 			p := c.Result.Pass
 			cj.Pass = &p
 		}
+		cj.Cases = d.checkCasesJSON(c)
 		out.Checks = append(out.Checks, cj)
 	}
 	for _, e := range d.Errors {

@@ -35,30 +35,62 @@ var ValuesCSVHeader = []string{"name", "line", "re", "im", "unit", "shown"}
 // factor with its sense). A vector or matrix has one row per entry, named
 // as the language picks it, counting from 1: v(2) for an entry of a
 // column vector, M(1,2) for one of a matrix.
+//
+// A document with cases (LANGUAGE.md section 10) has a "case" column after
+// "line": a value with cases has a row per case, named in it (a case
+// with no value has empty numbers); one with no cases a row with an empty
+// case.
 func (d *Document) WriteValuesCSV(w io.Writer) error {
 	cw := newCSV(w)
-	cw.Write(ValuesCSVHeader)
+	withCases := len(d.Front.Cases) > 0
+	if withCases {
+		cw.Write([]string{"name", "line", "case", "re", "im", "unit", "shown"})
+	} else {
+		cw.Write(ValuesCSVHeader)
+	}
+	row := func(cas string, r []string) {
+		if withCases {
+			r = append(r[:2:2], append([]string{cas}, r[2:]...)...)
+		}
+		cw.Write(r)
+	}
 	for _, v := range d.Values {
 		line := strconv.Itoa(v.Pos.Line())
-		switch x := v.Value.(type) {
-		case *expr.Scalar:
-			cw.Write([]string{v.Name, line, csvNum(real(x.Z)), csvNum(imag(x.Z)), csvUnit(x), expr.FormatValue(x, v.Display, d.Digits())})
-		case *expr.Matrix:
-			shown := expr.DisplayMatrix(x)
-			for i := 0; i < x.Rows; i++ {
-				for j := 0; j < x.Cols; j++ {
-					e, s := x.At(i, j), shown.At(i, j)
-					name := fmt.Sprintf("%s(%d,%d)", v.Name, i+1, j+1)
-					if x.Cols == 1 {
-						name = fmt.Sprintf("%s(%d)", v.Name, i+1)
-					}
-					cw.Write([]string{name, line, csvNum(real(e.Z)), csvNum(imag(e.Z)), csvUnit(&e), expr.FormatValue(&s, v.Display, d.Digits())})
-				}
+		if v.Cases == nil {
+			d.valueRows(v.Name, line, v.Value, v.Display, func(r []string) { row("", r) })
+			continue
+		}
+		for k, c := range d.Front.Cases {
+			if k >= len(v.Cases) || v.Cases[k] == nil {
+				row(c, []string{v.Name, line, "", "", "", ""})
+				continue
 			}
+			d.valueRows(v.Name, line, v.Cases[k], v.Display, func(r []string) { row(c, r) })
 		}
 	}
 	cw.Flush()
 	return cw.Error()
+}
+
+// valueRows gives the CSV rows of one value: one for a single value, one
+// per entry for a matrix.
+func (d *Document) valueRows(name, line string, val expr.Value, disp *expr.Display, out func([]string)) {
+	switch x := val.(type) {
+	case *expr.Scalar:
+		out([]string{name, line, csvNum(real(x.Z)), csvNum(imag(x.Z)), csvUnit(x), expr.FormatValue(x, disp, d.Digits())})
+	case *expr.Matrix:
+		shown := expr.DisplayMatrix(x)
+		for i := 0; i < x.Rows; i++ {
+			for j := 0; j < x.Cols; j++ {
+				e, s := x.At(i, j), shown.At(i, j)
+				n := fmt.Sprintf("%s(%d,%d)", name, i+1, j+1)
+				if x.Cols == 1 {
+					n = fmt.Sprintf("%s(%d)", name, i+1)
+				}
+				out([]string{n, line, csvNum(real(e.Z)), csvNum(imag(e.Z)), csvUnit(&e), expr.FormatValue(&s, disp, d.Digits())})
+			}
+		}
+	}
 }
 
 // NoSweepError is the answer to a sweep asked for by a line where no sweep

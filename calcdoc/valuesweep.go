@@ -11,7 +11,10 @@ import "calcdoc/expr"
 // entry then carries a field `Case string `json:"case"“ naming it, and
 // SweepsJSON walks the cases. Nothing else here changes.
 type SweepJSON struct {
-	Line     int          `json:"line"`
+	Line int `json:"line"`
+	// Case names the case of a sweep worked per case (one entry per
+	// case, LANGUAGE.md section 10); absent otherwise.
+	Case     string       `json:"case,omitempty"`
 	Variable string       `json:"variable"`
 	Unit     string       `json:"unit"`
 	Columns  []ColumnJSON `json:"columns"`
@@ -122,11 +125,22 @@ type SweepValuer interface {
 // SweepsJSON lists every sweep block of the document with every point. A
 // sweep whose range has no value has no columns and no points (its errors
 // are among the document's errors).
+// CaseSweepValuer is a sweep worked per case: the sweeps of the cases
+// after the first (the block's Result being the first's).
+type CaseSweepValuer interface {
+	CaseSweepValuers() []SweepValuer
+}
+
 func (d *Document) SweepsJSON() []SweepJSON {
 	out := []SweepJSON{}
 	for _, b := range d.Blocks {
 		if sv, ok := b.Result.(SweepValuer); ok {
 			out = append(out, sv.SweepJSON(b.Pos.Line()))
+		}
+		if cs, ok := b.Result.(CaseSweepValuer); ok {
+			for _, sv := range cs.CaseSweepValuers() {
+				out = append(out, sv.SweepJSON(b.Pos.Line()))
+			}
 		}
 	}
 	return out

@@ -87,6 +87,16 @@ func writeNode(b *strings.Builder, n Node) {
 		b.WriteByte('|')
 		writeNode(b, n.X)
 		b.WriteByte('|')
+	case *CaseLit:
+		b.WriteByte('{')
+		for i, x := range n.X {
+			if i > 0 {
+				b.WriteString(", ")
+			}
+			b.WriteString(n.Names[i].Name + ": ")
+			writeNode(b, x)
+		}
+		b.WriteByte('}')
 	case *Unary:
 		b.WriteString(n.Op.String())
 		writeNode(b, n.X)

@@ -155,11 +155,22 @@ type FuncDef struct {
 	Body   Node
 }
 
-// Check is "check a <= b".
+// Check is "check a <= b", or "check in max, min: a <= b" for a check
+// that applies to the cases named only (In; nil is every case).
 type Check struct {
 	span
 	desc
 	Cmp *Compare
+	In  []*Ident
+}
+
+// CaseLit is {max: a, min: b}: a value for each case of the document
+// (LANGUAGE.md section 10). Names[i] labels X[i]; the labels are case
+// names, in their own namespace.
+type CaseLit struct {
+	span
+	Names []*Ident
+	X     []Node
 }
 
 // ExprStmt is a bare expression: shown, not named. Display is optional: a

@@ -21,6 +21,11 @@ type Binding struct {
 	Cause Pos
 	// Display is how the definition asked the value to be shown, or nil.
 	Display *Display
+	// Cases holds one value per case of the document (Env.Cases), in its
+	// order, for a value that depends on a case; nil otherwise. Value is
+	// then the first case's value. A case whose value could not be had
+	// (a solve that failed in it) holds nil.
+	Cases []Value
 }
 
 // Func is a user function f(a, b) = body.
@@ -47,6 +52,12 @@ type Env struct {
 	// Budget is the evaluation work the document may still spend, shared
 	// by every evaluation in the environment; nil is no limit.
 	Budget *Budget
+	// Cases names the document's cases (front matter "cases"), or nil.
+	Cases []string
+	// caseIdx is the case being evaluated (an index into Cases);
+	// caseDep records that an evaluation read a value with cases.
+	caseIdx int
+	caseDep bool
 }
 
 // NewEnv returns an empty environment with a budget of DefaultBudget.
@@ -73,7 +84,7 @@ func IsBuiltin(name string) bool {
 	return ok || reserved[name]
 }
 
-var reserved = map[string]bool{"check": true}
+var reserved = map[string]bool{"check": true, "casemax": true, "casemin": true}
 
 // BuiltinNames lists the built-in functions, sorted.
 func BuiltinNames() []string {
@@ -96,7 +107,7 @@ func (e *Env) CanDefine(name string, pos Pos) *Error {
 		if _, ok := constants[key]; ok {
 			what = "built-in constant"
 		}
-		if reserved[name] {
+		if name == "check" {
 			what = "keyword"
 		}
 		return Errorf(pos, "%q is a %s and cannot be redefined: choose another name", name, what)

@@ -13,6 +13,8 @@ import (
 type Trace struct {
 	entries []traceEntry
 	lookups []Lookup // the table look-ups (tables.go)
+	// extremes are the cases casemax and casemin chose (cases.go)
+	extremes []traceExtreme
 }
 
 type traceEntry struct {
@@ -319,6 +321,8 @@ func (ev *evaluator) eval1(n Node) (Value, error) {
 			}
 		}
 		return m, nil
+	case *CaseLit:
+		return ev.caseLit(n)
 	case *Compare:
 		return nil, Errorf(n.P, "a comparison is allowed only in a check")
 	case *BadExpr:
@@ -351,7 +355,7 @@ func (ev *evaluator) ident(n *Ident) (Value, error) {
 		if b.Unavailable {
 			return nil, &UnavailableError{Pos: n.P, Name: n.Name, Def: b.cause()}
 		}
-		return b.Value, nil
+		return ev.env.bindingValue(b, n.P, n.Name)
 	}
 	if err := ev.tableRef(n); err != nil {
 		return nil, err
@@ -613,7 +617,14 @@ func (ev *evaluator) call(n *Call) (Value, error) {
 		if b.Unavailable {
 			return nil, &UnavailableError{Pos: n.Fun.P, Name: name, Def: b.cause()}
 		}
-		return ev.index(n, b.Value)
+		v, err := ev.env.bindingValue(b, n.Fun.P, name)
+		if err != nil {
+			return nil, err
+		}
+		return ev.index(n, v)
+	}
+	if key == "casemax" || key == "casemin" {
+		return ev.caseExtreme(n, key == "casemax")
 	}
 	args := make([]Value, len(n.Args))
 	for i, a := range n.Args {

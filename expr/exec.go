@@ -105,7 +105,20 @@ type Result struct {
 	Value Value        // the value of an assignment or a bare expression
 	Check *CheckResult // for a check
 	Trace *Trace       // the values of the names in the statement's expression
-	Err   error        // an *Error or an *UnavailableError, or nil
+	// Cases is the value in each case of the document (Env.Cases) for a
+	// value that depends on a case, else nil; Value is then Cases[0].
+	Cases []Value
+	// CaseChecks is a check's result in each case, for a check that
+	// depends on a case or names its cases (nil in a case it does not
+	// apply to, or one whose sides could not be had: CaseErrs says why).
+	// Check is then the governing case's result, its Pass true only when
+	// every case's holds.
+	CaseChecks []*CheckResult
+	CaseErrs   []error
+	// Governing is the case of the highest utilisation (or the first
+	// failing one) of a check with cases.
+	Governing string
+	Err       error // an *Error or an *UnavailableError, or nil
 
 	// Display is the display the value is shown in (ChooseDisplay: the
 	// line's bracket, the literal's unit, the preferred unit), or nil.
@@ -135,7 +148,7 @@ func (e *Env) Exec(s Stmt) *Result {
 				}
 			}
 		}
-		v, err := e.Eval(s.X, r.Trace)
+		v, cases, err := e.evalCases(s.X, r.Trace)
 		if err != nil {
 			r.Err = err
 			cause := s.Names[0].P
@@ -155,11 +168,21 @@ func (e *Env) Exec(s Stmt) *Result {
 			}
 			for i, id := range s.Names {
 				x := m.E[i]
-				e.Define(&Binding{Name: id.Name, Value: &x, Pos: id.P, Display: s.Display})
+				b := &Binding{Name: id.Name, Value: &x, Pos: id.P, Display: s.Display}
+				if cases != nil {
+					b.Cases = make([]Value, len(cases))
+					for k, c := range cases {
+						if c != nil {
+							y := c.(*Matrix).E[i]
+							b.Cases[k] = &y
+						}
+					}
+				}
+				e.Define(b)
 			}
 			return r
 		}
-		if err := CheckDisplay(v, s.Display); err != nil {
+		if err := checkDisplayCases(v, cases, s.Display); err != nil {
 			// a line whose display unit fails defines nothing: later uses
 			// of the name get "not defined because its line has an error"
 			r.Err = Errorf(s.Display.P, "%s: %s", s.Names[0].Name, err.Error())
@@ -176,9 +199,22 @@ func (e *Env) Exec(s Stmt) *Result {
 			return r
 		}
 		v, r.Value = kv, kv
+		if cases != nil {
+			for k := range cases {
+				if cases[k] == nil {
+					continue
+				}
+				if cases[k], kerr = bracketKind(cases[k], s.X, s.Display); kerr != nil {
+					r.Err, r.Value = kerr, nil
+					e.defineUnavailableAt(s.Names, s.Names[0].P)
+					return r
+				}
+			}
+		}
+		r.Cases = cases
 		disp := e.ChooseDisplay(v, s.Display, s.X)
 		r.Display = disp
-		e.Define(&Binding{Name: s.Names[0].Name, Value: v, Pos: s.Names[0].P, Display: disp})
+		e.Define(&Binding{Name: s.Names[0].Name, Value: v, Pos: s.Names[0].P, Display: disp, Cases: cases})
 	case *FuncDef:
 		if err := e.CanDefine(s.Name.Name, s.Name.P); err != nil {
 			r.Err = err
@@ -204,18 +240,27 @@ func (e *Env) Exec(s Stmt) *Result {
 		}
 		e.DefineFunc(&Func{Name: s.Name.Name, Params: names, Body: s.Body, Pos: s.Name.P})
 	case *Check:
-		c, err := e.EvalCheck(s.Cmp, r.Trace)
-		r.Check, r.Err = c, err
+		e.execCheck(s, r)
 	case *ExprStmt:
-		v, err := e.Eval(s.X, r.Trace)
+		v, cases, err := e.evalCases(s.X, r.Trace)
 		r.Value, r.Err = v, err
 		if err == nil {
-			if derr := CheckDisplay(v, s.Display); derr != nil {
+			if derr := checkDisplayCases(v, cases, s.Display); derr != nil {
 				r.Err = Errorf(s.Display.P, "%s", derr.Error())
 			} else if kv, kerr := bracketKind(v, s.X, s.Display); kerr != nil {
 				r.Err = kerr
 			} else {
 				r.Value = kv
+				if cases != nil {
+					for k := 0; k < len(cases) && r.Err == nil; k++ {
+						if cases[k] != nil {
+							cases[k], r.Err = bracketKind(cases[k], s.X, s.Display)
+						}
+					}
+					if r.Err == nil {
+						r.Cases = cases
+					}
+				}
 			}
 			r.Display = e.ChooseDisplay(r.Value, s.Display, s.X)
 		}
@@ -314,6 +359,10 @@ func Walk(n Node, f func(Node) bool) {
 			}
 		}
 	case *Compare:
+		for _, x := range n.X {
+			Walk(x, f)
+		}
+	case *CaseLit:
 		for _, x := range n.X {
 			Walk(x, f)
 		}

@@ -111,9 +111,9 @@ func (p *parser) split(toks []Token) [][]Token {
 				break
 			}
 			switch t.Kind {
-			case LPAREN, LBRACK:
+			case LPAREN, LBRACK, LBRACE:
 				open = append(open, t)
-			case RPAREN, RBRACK:
+			case RPAREN, RBRACK, RBRACE:
 				if len(open) > 0 {
 					open = open[:len(open)-1]
 				}
@@ -125,6 +125,9 @@ func (p *parser) split(toks []Token) [][]Token {
 			closer := ")"
 			if o.Kind == LBRACK {
 				what, closer = "bracket", "]"
+			}
+			if o.Kind == LBRACE {
+				what, closer = "brace", "}"
 			}
 			p.errs.Add(p.pos(o.Off), fmt.Sprintf("unclosed %s: this %q is never closed (add %q)", what, o.Text, closer))
 			// cut at the first line break after the opening token
@@ -224,9 +227,10 @@ func (p *parser) stmt(toks []Token, mode Mode) (s Stmt) {
 	}
 	if body[0].Kind == IDENT && body[0].Text == "check" && len(body) > 1 && body[1].Kind != ASSIGN {
 		p.i = 1
+		in := p.checkIn()
 		cmp := p.comparison()
 		p.expectEnd()
-		return &Check{span: sp, desc: d, Cmp: cmp}
+		return &Check{span: sp, desc: d, Cmp: cmp, In: in}
 	}
 	if eq := p.topAssign(); eq >= 0 {
 		return p.assignment(eq, sp, d)
@@ -267,9 +271,9 @@ func (p *parser) topAssign() int {
 	depth := 0
 	for i, t := range p.toks {
 		switch t.Kind {
-		case LPAREN, LBRACK:
+		case LPAREN, LBRACK, LBRACE:
 			depth++
-		case RPAREN, RBRACK:
+		case RPAREN, RBRACK, RBRACE:
 			depth--
 		case ASSIGN:
 			if depth == 0 {
@@ -697,6 +701,8 @@ func (p *parser) primary() Node {
 		return &Abs{span: span{p.pos(t.Off), p.pos(e.End)}, X: x}
 	case LBRACK:
 		return p.matrix()
+	case LBRACE:
+		return p.caseLit()
 	case EOF:
 		p.fail(t.Off, "expression ends too soon: a value is missing")
 	case RPAREN:

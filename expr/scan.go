@@ -101,6 +101,8 @@ const (
 	NE
 	DISPLAY // "[kA polar]" directly after a name, a number, a unit or ")": Text is what the brackets hold
 	ILLEGAL
+	LBRACE // { of a case literal
+	RBRACE // }
 )
 
 var kindNames = map[Kind]string{
@@ -108,6 +110,7 @@ var kindNames = map[Kind]string{
 	UNIT: "unit", ADD: "+", SUB: "-", MUL: "*", DIV: "/", POW: "^", ANGLE: "∠", PAR: "∥", BAR: "|",
 	LPAREN: "(", RPAREN: ")", LBRACK: "[", RBRACK: "]", COMMA: ",", SEMI: ";", ASSIGN: "=",
 	COLON: ":", DISPLAY: "display bracket", LT: "<", LE: "<=", GT: ">", GE: ">=", EQ: "==", NE: "!=", ILLEGAL: "illegal character",
+	LBRACE: "{", RBRACE: "}",
 }
 
 func (k Kind) String() string { return kindNames[k] }
@@ -262,6 +265,10 @@ func (s *scanner) run() []Token {
 				}
 			case ']':
 				k = RBRACK
+			case '{':
+				k = LBRACE
+			case '}':
+				k = RBRACE
 			case ',':
 				k = COMMA
 			case ';':
@@ -331,8 +338,6 @@ var charHints = map[rune]string{
 	'₁': "a subscript is written with _, as in V_1",
 	'₂': "a subscript is written with _, as in V_2",
 	'₃': "a subscript is written with _, as in V_3",
-	'{': "group with parentheses ( )",
-	'}': "group with parentheses ( )",
 }
 
 // displayAllowed reports whether a "[" here opens a display bracket: it

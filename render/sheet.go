@@ -238,6 +238,17 @@ func summary(w *markup.Writer, doc *calcdoc.Document) {
 		w.Printf(", %d not evaluated", notEval)
 	}
 	w.WriteString(".</p>\n")
+	if ch, cf, cn := doc.CaseCheckCounts(); ch != nil {
+		w.WriteString("<ul class=\"cases\">\n")
+		for k, name := range doc.Front.Cases {
+			w.Printf("<li>case %s: %d satisfied, %d not satisfied", esc(name), ch[k], cf[k])
+			if cn[k] > 0 {
+				w.Printf(", %d not evaluated", cn[k])
+			}
+			w.WriteString("</li>\n")
+		}
+		w.WriteString("</ul>\n")
+	}
 	if len(doc.Errors) > 0 {
 		w.WriteString("<ol class=\"errlist\">\n")
 		for _, e := range doc.Errors {
@@ -341,6 +352,19 @@ func (n *nodes) codeSpan(out util.BufWriter, src []byte, node ast.Node, entering
 				msg = fmt.Sprintf("%s has no value (its definition at line %d failed)", u.Name, u.Def.Line())
 			}
 			w.Printf("<span class=\"inl-err\" id=\"L%d\">[ERROR: %s]</span>", in.Pos.Line(), esc(msg))
+		case in.Cases != nil:
+			// one value per case, each marked with its case
+			w.Printf("<span class=\"inl\" title=\"%s\">", esc(in.Text))
+			for k, name := range w.Doc.Front.Cases {
+				if k >= len(in.Cases) {
+					break
+				}
+				if k > 0 {
+					w.WriteString("; ")
+				}
+				w.Printf("<span class=\"case\">%s</span> %s", esc(name), markup.Math(markup.ValueML(in.Cases[k], displayFor(w.Doc, in.Display, in.Text), w.Digits(), false)+markup.SenseML(in.Cases[k])))
+			}
+			w.WriteString("</span>")
 		default:
 			w.Printf("<span class=\"inl\" title=\"%s\">%s</span>", esc(in.Text), markup.Math(markup.ValueML(in.Value, displayFor(w.Doc, in.Display, in.Text), w.Digits(), false)+markup.SenseML(in.Value)))
 		}

@@ -56,6 +56,8 @@ ol.errlist, ul.warnlist { margin: 2pt 0 2pt 1.4em; padding: 0; }
 .verdict.fail::before { content: "✗ "; }
 .verdict.pass::before { content: "✓ "; }
 .util { margin-left: 3mm; font-size: 8.5pt; }
+.case { display: inline-block; min-width: 12mm; margin-right: 2mm; font-size: 8.5pt; font-weight: bold; border: 0.3pt solid #444; padding: 0 1mm; }
+.case::before { content: "case "; font-weight: normal; }
 .tol { font-size: 8pt; font-style: italic; }
 .err, .na { border: 0.8pt dashed #111; padding: 1pt 4pt; margin: 2pt 0; font-size: 9pt; }
 .err .tag, .na .tag { font-weight: bold; letter-spacing: 0.04em; }

@@ -11,6 +11,7 @@ import (
 	"os"
 	"path/filepath"
 	"runtime/debug"
+	"strings"
 
 	"calcdoc/calcdoc"
 	"calcdoc/calcdoc/kind"
@@ -270,6 +271,10 @@ func (c *cli) check(args []string) int {
 		for _, ch := range doc.Checks {
 			if ch.Result != nil && !ch.Result.Pass {
 				p := ch.Pos.Position() // file and line: a check is a whole line
+				if fc := ch.FailedCases(doc.Front.Cases); len(fc) > 0 {
+					fmt.Fprintf(c.stdout, "%s:%d: check not satisfied in case %s: %s\n", p.Filename, p.Line, strings.Join(fc, ", "), ch.Text)
+					continue
+				}
 				fmt.Fprintf(c.stdout, "%s:%d: check not satisfied: %s\n", p.Filename, p.Line, ch.Text)
 			}
 		}

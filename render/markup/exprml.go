@@ -429,6 +429,17 @@ func (m *ExprML) write(b StringWriter, n expr.Node) {
 			b.WriteString("</mtr>")
 		}
 		b.WriteString("</mtable><mo>]</mo></mrow>")
+	case *expr.CaseLit:
+		// {max: a, min: b}: each case's name, then its value
+		b.WriteString("<mrow><mo>{</mo>")
+		for i, x := range n.X {
+			if i > 0 {
+				b.WriteString("<mo>,</mo>")
+			}
+			b.WriteString("<mtext>" + Esc(n.Names[i].Name) + ":\u00a0</mtext>")
+			m.write(b, x)
+		}
+		b.WriteString("<mo>}</mo></mrow>")
 	case *expr.Compare:
 		b.WriteString("<mrow>")
 		for i, x := range n.X {

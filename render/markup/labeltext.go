@@ -144,6 +144,16 @@ func (l *labelText) node(n expr.Node) {
 		l.node(n.Y)
 	case *expr.Call:
 		l.call(n)
+	case *expr.CaseLit:
+		l.base("{")
+		for i, x := range n.X {
+			if i > 0 {
+				l.base(", ")
+			}
+			l.base(n.Names[i].Name + ": ")
+			l.node(x)
+		}
+		l.base("}")
 	case *expr.MatrixLit:
 		l.base("[")
 		for i, row := range n.Rows {

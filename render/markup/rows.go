@@ -184,11 +184,16 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 				if bd := w.Doc.Env.Lookup(x.Names[0].Name); bd != nil && bd.Value == res.Value {
 					disp = bd.Display
 				}
-				w.MathDiv("r", resultAttrs(x.Names[0].Name, line), func() {
-					w.WriteString("<mo>=</mo>")
-					w.WriteString(s.valueML(res.Value, disp, false))
-					w.WriteString(SenseML(res.Value))
-				})
+				if res.Cases != nil {
+					w.caseResults(x.Names[0].Name, line, res.Cases, disp)
+				} else {
+					w.MathDiv("r", resultAttrs(x.Names[0].Name, line), func() {
+						w.WriteString("<mo>=</mo>")
+						w.WriteString(s.valueML(res.Value, disp, false))
+						w.WriteString(SenseML(res.Value))
+					})
+				}
+				w.governingNote(res.Trace)
 				w.KindNote(res.Value)
 			}
 		}
@@ -204,7 +209,9 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 		w.MathRowTail("f", head+"<mo>(</mo>"+strings.Join(ps, "<mo>,</mo>")+"<mo>)</mo><mo>=</mo>", f, x.Body, "<span class=\"kindtag\">function</span>")
 	case *expr.Check:
 		w.CheckRow(f, x.Cmp)
-		if ok && res.Check != nil {
+		if res.CaseChecks != nil && len(st.Errs) == 0 {
+			w.caseChecks(res, x.Cmp, line)
+		} else if ok && res.Check != nil {
 			c := res.Check
 			disp := checkDisplay(w, x.Cmp)
 			dg := CheckRowDigits(c.Values, x.Cmp.Ops, disp, w.Digits())
@@ -242,7 +249,12 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 			if hasNames(x.X) {
 				w.MathRow("s", "<mo>=</mo>", s, x.X)
 			}
-			w.Printf("<div class=\"r\" data-value=\"\" data-line=\"%d\">%s</div>", line, Math("<mo>=</mo>"+ValueML(res.Value, res.Display, w.Digits(), false)+SenseML(res.Value)))
+			if res.Cases != nil {
+				w.caseResults("", line, res.Cases, res.Display)
+			} else {
+				w.Printf("<div class=\"r\" data-value=\"\" data-line=\"%d\">%s</div>", line, Math("<mo>=</mo>"+ValueML(res.Value, res.Display, w.Digits(), false)+SenseML(res.Value)))
+			}
+			w.governingNote(res.Trace)
 			w.KindNote(res.Value)
 		}
 	case *expr.BadStmt:

@@ -30,18 +30,40 @@ func evalNetwork(b *calcdoc.Block) {
 		at = b.Pos
 	}
 	mb := mna.Block{Lines: b.Lines, LinePos: b.LinePos, Tag: b.Arg, TagPos: b.ArgPos, Pos: at}
-	r, errs := mna.Run(mb, env, nil)
-	for k, e := range errs {
-		if !e.Pos.IsValid() { // an error of the block as a whole (no branches, say): at its opening line
-			c := *e
-			c.Pos = at
-			errs[k] = &c
+	run := func() (*mna.Result, expr.ErrorList) {
+		r, errs := mna.Run(mb, env, nil)
+		for k, e := range errs {
+			if !e.Pos.IsValid() { // an error of the block as a whole (no branches, say): at its opening line
+				c := *e
+				c.Pos = at
+				errs[k] = &c
+			}
 		}
+		return r, errs
+	}
+	if len(env.Cases) > 1 {
+		prev := env.SetCase(0)
+		prevDep := env.ResetCaseDep()
+		defer func() {
+			env.SetCase(prev)
+			env.SetCaseDep(prevDep)
+		}()
+	}
+	r, errs := run()
+	var perCase map[string][]expr.Value
+	if len(env.Cases) > 1 && env.CaseDep() {
+		// elements that read a value with cases: the network is solved once
+		// per case (the first case's is the one drawn)
+		perCase, errs = casesOf(r, errs, env, run)
 	}
 	res := &Result{Result: r, Errs: errs, Display: map[string]*expr.Display{}}
 	b.Result = res
 	b.Errors = append(b.Errors, errs...)
 	for _, d := range append(r.Defs(), unreadNodes(r)...) {
+		if perCase != nil {
+			defineCases(b, res, d, perCase[d.Name])
+			continue
+		}
 		if d.Value == nil {
 			if env.CanDefine(d.Name, d.Pos) == nil {
 				env.Define(&expr.Binding{Name: d.Name, Pos: d.Pos, Unavailable: true})

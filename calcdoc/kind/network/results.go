@@ -130,12 +130,34 @@ func defLines(res *Result) map[string]int {
 }
 
 // valueML is a defined value as the sheet shows it: in its display.
+//
+// A network solved per case (LANGUAGE.md section 10) shows the value in
+// each case, each after its case's name; v is the first case's.
 func valueML(w *markup.Writer, name string, v *expr.Scalar) string {
 	var d *expr.Display
-	if bd := w.Doc.Env.Lookup(name); bd != nil {
+	bd := w.Doc.Env.Lookup(name)
+	if bd != nil {
 		d = bd.Display
 	}
-	return markup.ValueML(v, d, w.Digits(), false)
+	if bd == nil || bd.Cases == nil {
+		return markup.ValueML(v, d, w.Digits(), false)
+	}
+	var out string
+	for k, c := range w.Doc.Front.Cases {
+		if k >= len(bd.Cases) {
+			break
+		}
+		if k > 0 {
+			out += "<mtext>;\u00a0</mtext>"
+		}
+		out += "<mtext>" + markup.Esc(c) + ":\u00a0</mtext>"
+		if bd.Cases[k] == nil {
+			out += "<mtext>not solved</mtext>"
+			continue
+		}
+		out += markup.ValueML(bd.Cases[k], d, w.Digits(), false)
+	}
+	return out
 }
 
 // solutionRow writes the node voltages, each a result the verifier

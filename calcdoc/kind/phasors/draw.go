@@ -1,6 +1,7 @@
 package phasors
 
 import (
+	"fmt"
 	"strings"
 
 	"calcdoc/calcdoc"
@@ -15,7 +16,29 @@ import (
 func renderPhasors(w *markup.Writer, b *calcdoc.Block) {
 	res, _ := b.Result.(*Phasors)
 	w.Printf("<div class=\"block phasors\" id=\"B%d\">\n", b.Pos.Line())
-	w.Printf("<figure class=\"phasors\" id=\"L%d\">\n", b.InfoPos.Line())
+	phasorFigure(w, b, res, fmt.Sprintf("L%d", b.InfoPos.Line()))
+	if res != nil {
+		for _, c := range res.CaseDiagrams {
+			phasorFigure(w, b, c, fmt.Sprintf("L%d-%s", b.InfoPos.Line(), c.Case))
+		}
+	}
+	for _, e := range b.Errors {
+		w.ErrorRow(e)
+	}
+	if res != nil {
+		for _, it := range res.Items {
+			if it.Unavailable != nil {
+				w.UnavailableRow(it.Unavailable)
+			}
+		}
+	}
+	w.WriteString("</div>\n")
+}
+
+// phasorFigure draws one diagram (one per case for a block worked per
+// case, under its case's name).
+func phasorFigure(w *markup.Writer, b *calcdoc.Block, res *Phasors, id string) {
+	w.Printf("<figure class=\"phasors\" id=\"%s\">\n", markup.Esc(id))
 	var arrows []svg.Arrow
 	var vals []string
 	if res != nil {
@@ -45,6 +68,9 @@ func renderPhasors(w *markup.Writer, b *calcdoc.Block) {
 		}
 	}
 	w.WriteString("<figcaption>")
+	if res != nil && res.Case != "" {
+		w.Printf("<span class=\"case\">%s</span> ", markup.Esc(res.Case))
+	}
 	if res != nil && res.Caption != "" {
 		w.WriteString(markup.Esc(res.Caption))
 	}
@@ -55,17 +81,6 @@ func renderPhasors(w *markup.Writer, b *calcdoc.Block) {
 		w.Printf("<span class=\"vals\">%s</span>", strings.Join(vals, "; "))
 	}
 	w.WriteString("</figcaption>\n</figure>\n")
-	for _, e := range b.Errors {
-		w.ErrorRow(e)
-	}
-	if res != nil {
-		for _, it := range res.Items {
-			if it.Unavailable != nil {
-				w.UnavailableRow(it.Unavailable)
-			}
-		}
-	}
-	w.WriteString("</div>\n")
 }
 
 // phasorArrows are the arrows of a phasor diagram: one per entry with a

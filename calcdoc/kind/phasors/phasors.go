@@ -26,6 +26,11 @@ const (
 type Phasors struct {
 	Items   []*PhasorItem
 	Caption string // the block's non-blank lines, trimmed and joined by spaces
+	// Case names the case of a diagram whose entries read a value with
+	// cases (LANGUAGE.md section 10), else ""; CaseDiagrams are the
+	// diagrams of the other cases, in the document's order (cases.go).
+	Case         string
+	CaseDiagrams []*Phasors
 }
 
 // PhasorItem is one entry of the list after the word phasors.
@@ -75,7 +80,7 @@ func (it *PhasorItem) OK() bool { return it.Value != nil && it.Err == nil && it.
 // unit of the dimension with the SI prefix that puts M in [1, 1000), VA for
 // a power group holding a complex value, W for an all-real one), so that
 // ring values read as "rings: 50 V" or "rings: 100 kVA".
-func evalPhasors(b *calcdoc.Block) {
+func evalPhasorsOnce(b *calcdoc.Block) *Phasors {
 	res := &Phasors{}
 	b.Result = res
 	var caption []string
@@ -87,7 +92,7 @@ func evalPhasors(b *calcdoc.Block) {
 	res.Caption = strings.Join(caption, " ")
 	if strings.TrimSpace(b.Arg) == "" {
 		b.Errorf(b.InfoPos, "a phasors block lists the values to draw after the word phasors, separated by commas, e.g. phasors V_a, I_a")
-		return
+		return res
 	}
 	parts, offs := calcdoc.SplitTopLevel(b.Arg)
 	for k, part := range parts {
@@ -161,6 +166,7 @@ func evalPhasors(b *calcdoc.Block) {
 		}
 	}
 	assignPhasorScales(b, res)
+	return res
 }
 
 // assignPhasorScales groups the entries with values by dimension and sets

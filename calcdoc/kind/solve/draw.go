@@ -263,7 +263,20 @@ func solvedParts(w *markup.Writer, b *calcdoc.Block, set *SolveSet) {
 	w.Printf("<div class=\"row sol\"><div class=\"ln\">%d</div><div class=\"math\">", line)
 	for _, u := range set.Unknowns {
 		disp := u.Display
-		if b := w.Doc.Env.Lookup(u.Name); b != nil && b.Value == expr.Value(u.Value) {
+		if b := w.Doc.Env.Lookup(u.Name); b != nil && b.Cases != nil {
+			// solved per case: a line per case, marked with its case
+			for k, c := range w.Doc.Front.Cases {
+				if k >= len(b.Cases) {
+					break
+				}
+				if b.Cases[k] == nil {
+					w.Printf("<div class=\"r\" data-case=\"%s\"><span class=\"case\">%s</span>%s <span class=\"verdict none\">not solved in this case</span></div>", markup.Esc(c), markup.Esc(c), markup.Math(markup.NameML(u.Name)))
+					continue
+				}
+				w.Printf("<div class=\"r\" data-value=\"%s\" data-line=\"%d\" data-case=\"%s\"><span class=\"case\">%s</span>%s</div>", markup.Esc(u.Name), u.Pos.Line(), markup.Esc(c), markup.Esc(c), markup.Math(markup.NameML(u.Name)+"<mo>=</mo>"+markup.ValueML(b.Cases[k], b.Display, w.Digits(), false)))
+			}
+			continue
+		} else if b != nil && b.Value == expr.Value(u.Value) {
 			disp = b.Display // the chosen display: the bracket, else the preferred unit
 		}
 		w.Printf("<div class=\"r\" data-value=\"%s\" data-line=\"%d\">%s</div>", markup.Esc(u.Name), u.Pos.Line(), markup.Math(markup.NameML(u.Name)+"<mo>=</mo>"+markup.ValueML(u.Value, disp, w.Digits(), false)))

@@ -373,6 +373,87 @@ type solveRun struct {
 }
 
 func evalSolve(b *calcdoc.Block) {
+	env := b.Env()
+	if len(env.Cases) < 2 {
+		set, ok := runSolve(b)
+		defineSolve(b, set, ok)
+		return
+	}
+	// with cases: solve for the first case, noting whether the equations
+	// read a value with cases; if they did, solve again for every other
+	// case (cases.go in expr), each case's failure naming its case
+	prev := env.SetCase(0)
+	prevDep := env.ResetCaseDep()
+	defer func() {
+		env.SetCase(prev)
+		env.SetCaseDep(prevDep)
+	}()
+	n0 := len(b.Errors)
+	set0, ok0 := runSolve(b)
+	if !env.CaseDep() {
+		defineSolve(b, set0, ok0)
+		return
+	}
+	nameCase(b.Errors[n0:], env.Cases[0])
+	sets, oks := []*SolveSet{set0}, []bool{ok0}
+	for k := 1; k < len(env.Cases); k++ {
+		env.SetCase(k)
+		nk := len(b.Errors)
+		set, ok := runSolve(b)
+		nameCase(b.Errors[nk:], env.Cases[k])
+		if !ok {
+			// the first case's set is the one drawn: the other case's
+			// failure is listed on the block
+			set0.SetErrs = append(set0.SetErrs, b.Errors[nk:]...)
+		}
+		sets, oks = append(sets, set), append(oks, ok)
+	}
+	b.Result = set0
+	set0.Solved = ok0
+	if !ok0 {
+		defer func() {
+			for _, u := range set0.Unknowns {
+				u.Value = nil
+			}
+		}()
+	}
+	for i, u := range set0.Unknowns {
+		cases := make([]expr.Value, len(sets))
+		var first expr.Value
+		for k, set := range sets {
+			if !oks[k] {
+				continue
+			}
+			v := set.Unknowns[i].Value
+			if kv, err := expr.BracketKind(v, nil, u.Display); err == nil {
+				v = kv.(*expr.Scalar)
+			}
+			cases[k] = v
+			if first == nil {
+				first = v
+			}
+		}
+		if first == nil {
+			if env.CanDefine(u.Name, u.Pos) == nil {
+				env.Define(&expr.Binding{Name: u.Name, Pos: u.Pos, Unavailable: true, Display: u.Display})
+			}
+			continue
+		}
+		disp := env.ChooseDisplay(first, u.Display, nil)
+		env.Define(&expr.Binding{Name: u.Name, Value: first, Pos: u.Pos, Display: disp, Cases: cases})
+		b.AddValue(&calcdoc.NamedValue{Name: u.Name, Pos: u.Pos, Value: first, Display: disp, Cases: cases})
+	}
+}
+
+// nameCase says in each error which case it happened in.
+func nameCase(errs []*expr.Error, c string) {
+	for _, e := range errs {
+		e.Msg = "in case " + c + ": " + e.Msg
+	}
+}
+
+// runSolve prepares and solves the block's set in the current case.
+func runSolve(b *calcdoc.Block) (*SolveSet, bool) {
 	set := &SolveSet{}
 	b.Result = set
 	r := &solveRun{b: b, set: set, env: b.Env()}
@@ -381,11 +462,18 @@ func evalSolve(b *calcdoc.Block) {
 	if ok {
 		ok = r.solveSet()
 	}
+	return set, ok
+}
+
+// defineSolve defines the unknowns of a set solved once.
+func defineSolve(b *calcdoc.Block, set *SolveSet, ok bool) {
+	env := b.Env()
+	b.Result = set
 	if !ok {
 		for _, u := range set.Unknowns {
 			u.Value = nil
-			if r.env.CanDefine(u.Name, u.Pos) == nil {
-				r.env.Define(&expr.Binding{Name: u.Name, Pos: u.Pos, Unavailable: true, Display: u.Display})
+			if env.CanDefine(u.Name, u.Pos) == nil {
+				env.Define(&expr.Binding{Name: u.Name, Pos: u.Pos, Unavailable: true, Display: u.Display})
 			}
 		}
 		return
@@ -395,8 +483,8 @@ func evalSolve(b *calcdoc.Block) {
 		if kv, err := expr.BracketKind(u.Value, nil, u.Display); err == nil {
 			u.Value = kv.(*expr.Scalar) // an unknown shown in W, var or VA has that power kind
 		}
-		disp := r.env.ChooseDisplay(u.Value, u.Display, nil) // the bracket, else the preferred unit
-		r.env.Define(&expr.Binding{Name: u.Name, Value: u.Value, Pos: u.Pos, Display: disp})
+		disp := env.ChooseDisplay(u.Value, u.Display, nil) // the bracket, else the preferred unit
+		env.Define(&expr.Binding{Name: u.Name, Value: u.Value, Pos: u.Pos, Display: disp})
 		b.AddValue(&calcdoc.NamedValue{Name: u.Name, Pos: u.Pos, Value: u.Value, Display: disp})
 	}
 }

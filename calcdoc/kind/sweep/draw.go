@@ -49,19 +49,48 @@ func renderSweep(w *markup.Writer, b *calcdoc.Block) {
 	for _, l := range sw.Lines {
 		sweepLineRow(w, l)
 	}
+	all := append([]*Sweep{sw}, sw.CaseSweeps...)
+	for _, c := range all {
+		sweepPoints(w, c)
+	}
+	if len(all) > 1 && casePlots(w, all) {
+		w.WriteString("</div>\n")
+		return
+	}
+	for _, c := range all {
+		if c.Case != "" && c.X != nil && len(okLines(c)) > 0 {
+			w.Printf("<div class=\"sweepcase\"><span class=\"case\">%s</span> plots</div>\n", markup.Esc(c.Case))
+		}
+		for _, l := range okLines(c) {
+			if c.X != nil {
+				sweepPlots(w, c, l)
+			}
+		}
+	}
+	w.WriteString("</div>\n")
+}
+
+// okLines are a sweep's lines with values (its table columns and plots).
+func okLines(sw *Sweep) []*SweepLine {
 	var cols []*SweepLine
 	for _, l := range sw.Lines {
 		if l.OK() {
 			cols = append(cols, l)
 		}
 	}
+	return cols
+}
+
+// sweepPoints draws a sweep's table, under the name of its case for a
+// sweep worked per case.
+func sweepPoints(w *markup.Writer, sw *Sweep) {
+	cols := okLines(sw)
 	if sw.X != nil && len(cols) > 0 {
-		sweepTable(w, sw, cols)
-		for _, l := range cols {
-			sweepPlots(w, sw, l)
+		if sw.Case != "" {
+			w.Printf("<div class=\"sweepcase\"><span class=\"case\">%s</span></div>\n", markup.Esc(sw.Case))
 		}
+		sweepTable(w, sw, cols)
 	}
-	w.WriteString("</div>\n")
 }
 
 // sweepHead describes the range: "sweep of f from 10 Hz to 100 kHz, 200
@@ -413,12 +442,38 @@ func thinPlot(p svg.Plot, col []int) svg.Plot {
 		return p
 	}
 	idx := thinIndices(col, p.Series[0].Y)
-	x, y := make([]float64, len(idx)), make([]float64, len(idx))
+	if len(p.Series) > 1 {
+		// one curve per case: the points any curve keeps, for all of them
+		keep := map[int]bool{}
+		for _, i := range idx {
+			keep[i] = true
+		}
+		for _, s := range p.Series[1:] {
+			for _, i := range thinIndices(col, s.Y) {
+				keep[i] = true
+			}
+		}
+		idx = idx[:0:0]
+		for i := range p.X {
+			if keep[i] {
+				idx = append(idx, i)
+			}
+		}
+	}
+	x := make([]float64, len(idx))
 	for k, i := range idx {
-		x[k], y[k] = p.X[i], p.Series[0].Y[i]
+		x[k] = p.X[i]
+	}
+	series := make([]svg.Series, len(p.Series))
+	for j, s := range p.Series {
+		y := make([]float64, len(idx))
+		for k, i := range idx {
+			y[k] = s.Y[i]
+		}
+		series[j] = svg.Series{Name: s.Name, Y: y}
 	}
 	p.X = x
-	p.Series = []svg.Series{{Name: p.Series[0].Name, Y: y}}
+	p.Series = series
 	return p
 }
 

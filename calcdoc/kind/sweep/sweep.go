@@ -53,6 +53,11 @@ type Sweep struct {
 	// Unavailable is set when the range uses a name whose definition
 	// failed: the block is not evaluated, and that is not a new error.
 	Unavailable *expr.UnavailableError
+	// Case names the case of a sweep whose lines read a value with cases
+	// (LANGUAGE.md section 10), else ""; CaseSweeps are the same sweep
+	// worked in each other case, in the document's order (cases.go).
+	Case       string
+	CaseSweeps []*Sweep
 }
 
 // SweepLine is one line of a sweep block.
@@ -209,7 +214,7 @@ func isName(s string) bool {
 const sweepUsage = "write sweep NAME = START .. STOP, then optionally log and the number of points, e.g. sweep f = 10 Hz .. 100 kHz log 200"
 
 // evalSweep evaluates a sweep block (LANGUAGE.md section 6).
-func evalSweep(b *calcdoc.Block) {
+func evalSweepOnce(b *calcdoc.Block) *Sweep {
 	sw := &Sweep{}
 	b.Result = sw
 	headerOK := parseSweepHeader(b, sw)
@@ -231,6 +236,7 @@ func evalSweep(b *calcdoc.Block) {
 	for _, l := range sw.Lines {
 		b.Errors = append(b.Errors, l.Errs...)
 	}
+	return sw
 }
 
 // parseSweepHeader reads "NAME = START .. STOP [log] [N]" from b.Arg.

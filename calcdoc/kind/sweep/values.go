@@ -30,7 +30,7 @@ func (s *Sweep) Columns() []*SweepLine {
 // SweepJSON is the sweep's entry in the values JSON (LANGUAGE.md section
 // 8): every point, not only those the sheet's table shows.
 func (sw *Sweep) SweepJSON(line int) calcdoc.SweepJSON {
-	sj := calcdoc.SweepJSON{Line: line, Variable: sw.Var, Unit: calcdoc.ValuesUnit(sw.Dim, sw.Angle, sw.Kind), Columns: []calcdoc.ColumnJSON{}, Points: []calcdoc.PointJSON{}}
+	sj := calcdoc.SweepJSON{Line: line, Case: sw.Case, Variable: sw.Var, Unit: calcdoc.ValuesUnit(sw.Dim, sw.Angle, sw.Kind), Columns: []calcdoc.ColumnJSON{}, Points: []calcdoc.PointJSON{}}
 	if sw.X == nil {
 		return sj
 	}

@@ -26,8 +26,8 @@ const (
 // Change is one change of one document between the two revisions.
 type Change struct {
 	Doc string // the document's path, as given
-	// Case is the case the change belongs to; "" for a document without
-	// cases (the language has none yet: the field is kept for them).
+	// Case is the case the change belongs to; "" for a value or check
+	// with no cases.
 	Case string
 	Kind string // Added, Removed, Changed or Failed
 	Item string // ItemDocument, ItemValue, ItemCheck or ItemFront
@@ -99,20 +99,20 @@ func compareValues(doc string, a, b []Value, o Options) []Change {
 	var out []Change
 	old := map[string]Value{}
 	for _, v := range a {
-		old[v.Name] = v
+		old[v.key()] = v
 	}
 	inB := map[string]bool{}
 	for _, v := range b {
-		inB[v.Name] = true
+		inB[v.key()] = true
 	}
 	// removed values go where they stood in a: before the first value of
 	// b that followed them there
 	ai := 0
 	flush := func(stop string) {
-		for ai < len(a) && a[ai].Name != stop {
-			if !inB[a[ai].Name] {
+		for ai < len(a) && a[ai].key() != stop {
+			if !inB[a[ai].key()] {
 				v := a[ai]
-				out = append(out, Change{Doc: doc, Kind: Removed, Item: ItemValue, Name: v.Name, Role: v.Role, Old: v.Text})
+				out = append(out, Change{Doc: doc, Case: v.Case, Kind: Removed, Item: ItemValue, Name: v.Name, Role: v.Role, Old: v.Text})
 			}
 			ai++
 		}
@@ -121,13 +121,13 @@ func compareValues(doc string, a, b []Value, o Options) []Change {
 		}
 	}
 	for _, v := range b {
-		p, ok := old[v.Name]
+		p, ok := old[v.key()]
 		if !ok {
-			out = append(out, Change{Doc: doc, Kind: Added, Item: ItemValue, Name: v.Name, Role: v.Role, New: v.Text})
+			out = append(out, Change{Doc: doc, Case: v.Case, Kind: Added, Item: ItemValue, Name: v.Name, Role: v.Role, New: v.Text})
 			continue
 		}
-		flush(v.Name)
-		c := Change{Doc: doc, Kind: Changed, Item: ItemValue, Name: v.Name, Role: v.Role, Old: p.Text, New: v.Text}
+		flush(v.key())
+		c := Change{Doc: doc, Case: v.Case, Kind: Changed, Item: ItemValue, Name: v.Name, Role: v.Role, Old: p.Text, New: v.Text}
 		if equal, rel, hasRel, mag := measure(p.Value, v.Value); !equal {
 			c.Rel, c.HasRel, c.Magnitude = rel, hasRel, mag
 			if hasRel && math.Abs(rel) < o.MinChange {
@@ -175,13 +175,14 @@ func compareChecks(doc string, a, b []Check, o Options) []Change {
 	used := make([]bool, len(a))
 	byKey := map[string][]int{}
 	for i, c := range a {
-		byKey[c.Key] = append(byKey[c.Key], i)
+		byKey[c.Key+"\x00"+c.Case] = append(byKey[c.Key+"\x00"+c.Case], i)
 	}
 	for j, c := range b {
 		pair[j] = -1
-		if l := byKey[c.Key]; len(l) > 0 {
+		k := c.Key + "\x00" + c.Case
+		if l := byKey[k]; len(l) > 0 {
 			pair[j], used[l[0]] = l[0], true
-			byKey[c.Key] = l[1:]
+			byKey[k] = l[1:]
 		}
 	}
 	var restA []int
@@ -191,7 +192,7 @@ func compareChecks(doc string, a, b []Check, o Options) []Change {
 		}
 	}
 	for j := range b {
-		if pair[j] < 0 && len(restA) > 0 {
+		if pair[j] < 0 && len(restA) > 0 && a[restA[0]].Case == b[j].Case {
 			pair[j], used[restA[0]] = restA[0], true
 			restA = restA[1:]
 		}
@@ -199,11 +200,11 @@ func compareChecks(doc string, a, b []Check, o Options) []Change {
 	var out []Change
 	for j, c := range b {
 		if pair[j] < 0 {
-			out = append(out, Change{Doc: doc, Kind: Added, Item: ItemCheck, Name: c.Key, New: c.verdict()})
+			out = append(out, Change{Doc: doc, Case: c.Case, Kind: Added, Item: ItemCheck, Name: c.Key, New: c.verdict()})
 			continue
 		}
 		p := a[pair[j]]
-		ch := Change{Doc: doc, Kind: Changed, Item: ItemCheck, Name: c.Key, Old: p.verdict(), New: c.verdict()}
+		ch := Change{Doc: doc, Case: c.Case, Kind: Changed, Item: ItemCheck, Name: c.Key, Old: p.verdict(), New: c.verdict()}
 		if p.Evaluated != c.Evaluated || p.Pass != c.Pass || p.HasUtil != c.HasUtil {
 			out = append(out, ch)
 			continue
@@ -220,7 +221,7 @@ func compareChecks(doc string, a, b []Check, o Options) []Change {
 		out = append(out, ch)
 	}
 	for _, i := range restA {
-		out = append(out, Change{Doc: doc, Kind: Removed, Item: ItemCheck, Name: a[i].Key, Old: a[i].verdict()})
+		out = append(out, Change{Doc: doc, Case: a[i].Case, Kind: Removed, Item: ItemCheck, Name: a[i].Key, Old: a[i].verdict()})
 	}
 	return out
 }

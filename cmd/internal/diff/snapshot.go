@@ -25,7 +25,12 @@ type Value struct {
 	Role  string
 	Value expr.Value
 	Text  string // as the sheet shows it
+	// Case is the case of a value with cases (one Value per case), else "".
+	Case string
 }
+
+// key is what a value is matched by between the revisions: its name and case.
+func (v Value) key() string { return v.Name + "\x00" + v.Case }
 
 // Check is one check of a document at a revision.
 type Check struct {
@@ -34,6 +39,9 @@ type Check struct {
 	Pass      bool
 	Util      float64
 	HasUtil   bool
+	// Case is the case of a check with cases (one Check per case it
+	// applies to), else "".
+	Case string
 }
 
 // Field is one front-matter key with its value.
@@ -67,12 +75,37 @@ func Take(d *calcdoc.Document) *Snapshot {
 		if role == "" {
 			role = Result
 		}
+		if v.Cases != nil {
+			// a value with cases is compared case by case
+			for k, c := range d.Front.Cases {
+				if k < len(v.Cases) && v.Cases[k] != nil {
+					s.Values = append(s.Values, Value{Name: v.Name, Role: role, Value: v.Cases[k], Text: expr.FormatValue(v.Cases[k], v.Display, digits), Case: c})
+				}
+			}
+			continue
+		}
 		s.Values = append(s.Values, Value{Name: v.Name, Role: role, Value: v.Value, Text: expr.FormatValue(v.Value, v.Display, digits)})
 	}
 	for _, c := range d.Checks {
 		k := descs[c.Pos.Off]
 		if k == "" {
 			k = strings.Join(strings.Fields(c.Text), " ")
+		}
+		if c.Cases != nil {
+			// a check with cases is compared case by case
+			for i, name := range d.Front.Cases {
+				r := c.Cases[i]
+				nv := i < len(c.NoVerdict) && c.NoVerdict[i]
+				if r == nil && !nv {
+					continue // the check does not apply in this case
+				}
+				ck := Check{Key: k, Case: name}
+				if r != nil {
+					ck.Evaluated, ck.Pass, ck.Util, ck.HasUtil = true, r.Pass, r.Utilisation, r.HasUtil
+				}
+				s.Checks = append(s.Checks, ck)
+			}
+			continue
 		}
 		ck := Check{Key: k}
 		if c.Result != nil {
