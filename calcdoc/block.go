@@ -81,3 +81,42 @@ func (d *Document) Attach(b *Block) *Block {
 	b.doc = d
 	return b
 }
+
+// PerCase runs run for the document's first case and, when that read a
+// value with cases, once more for each other case (LANGUAGE.md section
+// 10), naming its case in every error a run adds to the block. It returns
+// how many cases were run: 1 when the block does not depend on a case or
+// the document has none (run is then called once, with k = 0).
+func (b *Block) PerCase(run func(k int)) int {
+	env := b.Env()
+	if len(env.Cases) < 2 {
+		run(0)
+		return 1
+	}
+	prev := env.SetCase(0)
+	prevDep := env.ResetCaseDep()
+	defer func() {
+		env.SetCase(prev)
+		env.SetCaseDep(prevDep)
+	}()
+	n0 := len(b.Errors)
+	run(0)
+	if !env.CaseDep() {
+		return 1
+	}
+	NameCase(b.Errors[n0:], env.Cases[0])
+	for k := 1; k < len(env.Cases); k++ {
+		env.SetCase(k)
+		nk := len(b.Errors)
+		run(k)
+		NameCase(b.Errors[nk:], env.Cases[k])
+	}
+	return len(env.Cases)
+}
+
+// NameCase says in each error which case it happened in.
+func NameCase(errs []*expr.Error, c string) {
+	for _, e := range errs {
+		e.Msg = "in case " + c + ": " + e.Msg
+	}
+}

@@ -374,39 +374,25 @@ type solveRun struct {
 
 func evalSolve(b *calcdoc.Block) {
 	env := b.Env()
-	if len(env.Cases) < 2 {
-		set, ok := runSolve(b)
-		defineSolve(b, set, ok)
-		return
-	}
 	// with cases: solve for the first case, noting whether the equations
 	// read a value with cases; if they did, solve again for every other
-	// case (cases.go in expr), each case's failure naming its case
-	prev := env.SetCase(0)
-	prevDep := env.ResetCaseDep()
-	defer func() {
-		env.SetCase(prev)
-		env.SetCaseDep(prevDep)
-	}()
-	n0 := len(b.Errors)
-	set0, ok0 := runSolve(b)
-	if !env.CaseDep() {
-		defineSolve(b, set0, ok0)
-		return
-	}
-	nameCase(b.Errors[n0:], env.Cases[0])
-	sets, oks := []*SolveSet{set0}, []bool{ok0}
-	for k := 1; k < len(env.Cases); k++ {
-		env.SetCase(k)
+	// case, each case's failure naming its case
+	var sets []*SolveSet
+	var oks []bool
+	n := b.PerCase(func(k int) {
 		nk := len(b.Errors)
 		set, ok := runSolve(b)
-		nameCase(b.Errors[nk:], env.Cases[k])
-		if !ok {
+		if k > 0 && !ok {
 			// the first case's set is the one drawn: the other case's
 			// failure is listed on the block
-			set0.SetErrs = append(set0.SetErrs, b.Errors[nk:]...)
+			sets[0].SetErrs = append(sets[0].SetErrs, b.Errors[nk:]...)
 		}
 		sets, oks = append(sets, set), append(oks, ok)
+	})
+	set0, ok0 := sets[0], oks[0]
+	if n == 1 {
+		defineSolve(b, set0, ok0)
+		return
 	}
 	b.Result = set0
 	set0.Solved = ok0
@@ -442,13 +428,6 @@ func evalSolve(b *calcdoc.Block) {
 		disp := env.ChooseDisplay(first, u.Display, nil)
 		env.Define(&expr.Binding{Name: u.Name, Value: first, Pos: u.Pos, Display: disp, Cases: cases})
 		b.AddValue(&calcdoc.NamedValue{Name: u.Name, Pos: u.Pos, Value: first, Display: disp, Cases: cases})
-	}
-}
-
-// nameCase says in each error which case it happened in.
-func nameCase(errs []*expr.Error, c string) {
-	for _, e := range errs {
-		e.Msg = "in case " + c + ": " + e.Msg
 	}
 }
 

@@ -4,7 +4,6 @@ import (
 	"strings"
 
 	"calcdoc/calcdoc"
-	"calcdoc/expr"
 	"calcdoc/render/markup"
 )
 
@@ -13,40 +12,17 @@ import (
 // case's sweep is the block's Result, the others its CaseSweeps, and
 // every error names its case.
 func evalSweep(b *calcdoc.Block) {
-	env := b.Env()
-	if len(env.Cases) < 2 {
-		evalSweepOnce(b)
-		return
-	}
-	prev := env.SetCase(0)
-	prevDep := env.ResetCaseDep()
-	defer func() {
-		env.SetCase(prev)
-		env.SetCaseDep(prevDep)
-	}()
-	n0 := len(b.Errors)
-	sw0 := evalSweepOnce(b)
-	if !env.CaseDep() {
-		return
-	}
-	nameCase(b.Errors[n0:], env.Cases[0])
-	sw0.Case = env.Cases[0]
-	for k := 1; k < len(env.Cases); k++ {
-		env.SetCase(k)
-		nk := len(b.Errors)
-		sw := evalSweepOnce(b)
-		nameCase(b.Errors[nk:], env.Cases[k])
-		sw.Case = env.Cases[k]
-		sw0.CaseSweeps = append(sw0.CaseSweeps, sw)
+	var all []*Sweep
+	n := b.PerCase(func(int) { all = append(all, evalSweepOnce(b)) })
+	sw0 := all[0]
+	if n > 1 {
+		cases := b.Env().Cases
+		for k, sw := range all {
+			sw.Case = cases[k]
+		}
+		sw0.CaseSweeps = all[1:]
 	}
 	b.Result = sw0
-}
-
-// nameCase says in each error which case it happened in.
-func nameCase(errs []*expr.Error, c string) {
-	for _, e := range errs {
-		e.Msg = "in case " + c + ": " + e.Msg
-	}
 }
 
 // CaseSweepValuers are the sweeps of the cases after the first, for the
