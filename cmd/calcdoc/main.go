@@ -202,6 +202,7 @@ func (c *cli) build(args []string) int {
 	// evaluate, draw and write on every core, a used document first;
 	// report in the order of the inputs
 	stamper := build.NewStamper(version)
+	stamper.Prefetch(inputs) // git runs while the documents are evaluated
 	werr := make([]error, len(inputs))
 	targets := make([]string, len(inputs))
 	evald := build.Evaluate(build.NewLoader(kind.Standard(), inputs), inputs, 0, func(i int, doc *calcdoc.Document) {

@@ -150,6 +150,8 @@ func (c *cli) pack(args []string) int {
 		return c.usageErr("--pdf %s and the HTML package are the same file", *pdfOut)
 	}
 
+	stamper := build.NewStamper(version)
+	stamper.Prefetch(inputs) // git runs while the documents are evaluated
 	var docs []*calcdoc.Document
 	for _, ev := range build.Evaluate(build.NewLoader(kind.Standard(), inputs), inputs, 0, nil) {
 		if ev.Err != nil {
@@ -182,7 +184,6 @@ func (c *cli) pack(args []string) int {
 
 	st := exitOK
 	sheets := make([]pack.Sheet, len(docs))
-	stamper := build.NewStamper(version)
 	numbers := map[string]string{}
 	for i, doc := range docs {
 		c.printErrors(doc)

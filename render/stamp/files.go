@@ -11,7 +11,11 @@ import (
 // as Of stamps the source: its SHA-256 of the bytes read and how those
 // bytes relate to git. A file given to the document rather than read
 // from the disk (Disk "") has no git facts.
-func Files(files []*calcdoc.DataFile) []render.FileStamp {
+func Files(files []*calcdoc.DataFile) []render.FileStamp { return NewSession().Files(files) }
+
+// Files stamps the data files a document read (see Files), sharing the
+// session's repository facts.
+func (s *Session) Files(files []*calcdoc.DataFile) []render.FileStamp {
 	var out []render.FileStamp
 	for _, f := range files {
 		if f.Err != "" {
@@ -19,7 +23,7 @@ func Files(files []*calcdoc.DataFile) []render.FileStamp {
 		}
 		fs := render.FileStamp{Path: f.Path, SHA256: Hash(f.Bytes), State: Unknown, Detail: "the file was not read from the disk; no commit recorded"}
 		if f.Disk != "" {
-			st := Of(f.Disk, f.Bytes)
+			st := s.Of(f.Disk, f.Bytes)
 			fs.Commit, fs.CommitDate, fs.State = st.Commit, st.CommitDate, st.State
 			fs.Detail = fileDetail(st.Detail)
 		}

@@ -55,8 +55,10 @@ func Hash(src []byte) string { return render.SourceHash(src) }
 
 // Of stamps the source file at path whose bytes, as the caller read them,
 // are src. It runs git in the file's own work tree (found from the file's
-// real directory after resolving symbolic links) and never fails: problems
-// become State and Detail. The comparison that decides Clean is made on src,
+// real directory after resolving symbolic links), and no git at all when
+// no repository holds that directory (discover.go); it never fails:
+// problems become State and Detail. A build stamps its files through one
+// Session, which shares the repository's facts among them. The comparison that decides Clean is made on src,
 // not on the file as it is now on disk, so a sheet is never called Clean
 // unless the exact bytes it was computed from are the bytes at HEAD.
 //
@@ -64,31 +66,20 @@ func Hash(src []byte) string { return render.SourceHash(src) }
 // smudge conversion): a working copy whose line endings git converts on
 // checkout is Modified, since the committed bytes, whose SHA-256 a reader
 // can recompute from the commit, are not the bytes the sheet was made from.
-func Of(path string, src []byte) Stamp {
-	st := Stamp{SHA256: Hash(src)}
-	gitPath, err := exec.LookPath("git")
-	if err != nil {
-		st.State = NoGit
-		st.Detail = "git is not installed; no commit recorded"
-		return st
-	}
-	g := runner{git: gitPath}
+func Of(path string, src []byte) Stamp { return NewSession().Of(path, src) }
 
-	file, err := resolve(path)
-	if err != nil {
-		st.State = Unknown
-		st.Detail = fmt.Sprintf("the source path cannot be resolved (%v); no commit recorded", err)
-		return st
-	}
-	if fi, err := os.Stat(file); err != nil || !fi.Mode().IsRegular() {
-		st.State = Unknown
-		if err != nil {
-			st.Detail = fmt.Sprintf("the source file cannot be examined (%v); no commit recorded", err)
-		} else {
-			st.Detail = "the source path is not a regular file; no commit recorded"
-		}
-		return st
-	}
+// notInRepo is the Detail of a file no repository holds.
+const notInRepo = "not in a git repository; no commit recorded"
+
+// shallowNote ends the Detail of a commit found in a shallow clone.
+const shallowNote = " (in a shallow clone, so the change may be older than this commit)"
+
+// slowOf stamps file (absolute, links resolved, a regular file) by the full
+// sequence of git commands: the work tree, HEAD, HEAD's entry, the blob,
+// the last commit, the clone's depth and the index, one run each. A
+// session uses it where its one run of git log does not settle the facts
+// (no commit yet, an error, a file git places elsewhere).
+func slowOf(g runner, st Stamp, file string, src []byte) Stamp {
 	dir := filepath.Dir(file)
 
 	top, err := g.run(dir, "rev-parse", "--show-toplevel")
@@ -96,7 +87,7 @@ func Of(path string, src []byte) Stamp {
 		var ge *gitError
 		if errors.As(err, &ge) && strings.Contains(ge.stderr, "not a git repository") {
 			st.State = NoRepo
-			st.Detail = "not in a git repository; no commit recorded"
+			st.Detail = notInRepo
 			return st
 		}
 		return unknown(st, err)
@@ -111,6 +102,7 @@ func Of(path string, src []byte) Stamp {
 		st.Detail = fmt.Sprintf("git places the file outside its work tree %s; no commit recorded", topDir)
 		return st
 	}
+	index := func() (string, bool, error) { return g.indexBlob(topDir, rel) }
 
 	// The blob of the file at HEAD, if HEAD exists and holds the file.
 	headBlob, kind, err := g.headEntry(topDir, rel)
@@ -118,7 +110,9 @@ func Of(path string, src []byte) Stamp {
 		return unknown(st, err)
 	}
 	if kind == absent {
-		return untracked(g, st, topDir, rel)
+		u := untracked(g, topDir, rel, index)
+		st.State, st.Detail = u.State, u.Detail
+		return st
 	}
 	var content []byte
 	if kind == regular {
@@ -141,7 +135,7 @@ func Of(path string, src []byte) Stamp {
 	shallow := ""
 	if out, err := g.run(topDir, "rev-parse", "--is-shallow-repository"); err == nil &&
 		strings.TrimSpace(string(out)) == "true" {
-		shallow = " (in a shallow clone, so the change may be older than this commit)"
+		shallow = shallowNote
 	}
 
 	if kind == regular && bytes.Equal(content, src) {
@@ -149,6 +143,12 @@ func Of(path string, src []byte) Stamp {
 		st.Detail = fmt.Sprintf("source is as committed in %s of %s%s", markup.ShortHash(hash), date, shallow)
 		return st
 	}
+	return modified(st, kind, hash, date, shallow, headBlob, index)
+}
+
+// modified fills st for bytes that are not HEAD's entry, whose last
+// commit is hash of date; index looks up the file's index entry.
+func modified(st Stamp, kind entryKind, hash, date, shallow, headBlob string, index func() (string, bool, error)) Stamp {
 	st.State = Modified
 	if kind == other {
 		st.Detail = fmt.Sprintf("source is a regular file where its last commit %s of %s%s holds a link or another kind of entry: uncommitted change",
@@ -156,7 +156,7 @@ func Of(path string, src []byte) Stamp {
 		return st
 	}
 	staged := ""
-	if idx, ok, err := g.indexBlob(topDir, rel); err == nil && ok && idx != headBlob {
+	if idx, ok, err := index(); err == nil && ok && idx != headBlob {
 		staged = ", partly or wholly staged"
 	}
 	st.Detail = fmt.Sprintf("source differs from its last commit %s of %s%s: uncommitted changes%s",
@@ -164,17 +164,18 @@ func Of(path string, src []byte) Stamp {
 	return st
 }
 
-// untracked fills st for a file that HEAD does not hold.
-func untracked(g runner, st Stamp, topDir, rel string) Stamp {
-	st.State = Untracked
-	if _, ok, err := g.indexBlob(topDir, rel); err == nil && ok {
+// untracked is the State and Detail of a file that HEAD does not hold;
+// index looks up its index entry.
+func untracked(g runner, topDir, rel string, index func() (string, bool, error)) Stamp {
+	st := Stamp{State: Untracked}
+	if _, ok, err := index(); err == nil && ok {
 		st.Detail = "source is added to git's index but never committed; no commit recorded"
 		return st
 	}
 	// check-ignore exits 0 when the path is ignored and 1 when it is not.
 	// It takes no pathspec magic, so it runs without literal pathspecs
 	// (its arguments are paths matched against the ignore patterns).
-	if _, err := g.runPaths(topDir, false, "check-ignore", "-q", "--", rel); err == nil {
+	if _, err := g.runPaths(topDir, false, nil, "check-ignore", "-q", "--", rel); err == nil {
 		st.Detail = "source is ignored by git; no commit recorded"
 		return st
 	}
@@ -218,12 +219,14 @@ func resolve(path string) (string, error) {
 // locks and C-locale messages.
 type runner struct {
 	git string
+	sem chan struct{} // when not nil, held while git runs
 }
 
 type gitError struct {
-	args   []string
-	err    error
-	stderr string
+	args     []string
+	err      error
+	stderr   string
+	timedOut bool
 }
 
 func (e *gitError) Error() string {
@@ -269,11 +272,21 @@ func gitEnv() []string {
 // run runs `git -C dir ARGS` with every pathspec taken literally (no glob
 // or magic) and returns its standard output.
 func (g runner) run(dir string, args ...string) ([]byte, error) {
-	return g.runPaths(dir, true, args...)
+	return g.runPaths(dir, true, nil, args...)
 }
 
-// runPaths runs `git -C dir ARGS`, with literal pathspecs if literal.
-func (g runner) runPaths(dir string, literal bool, args ...string) ([]byte, error) {
+// runArgs is run with git's options opts (say "-c", "NAME=VALUE") before
+// the command.
+func (g runner) runArgs(dir string, opts []string, args ...string) ([]byte, error) {
+	return g.runPaths(dir, true, opts, args...)
+}
+
+// runPaths runs `git -C dir OPTS ARGS`, with literal pathspecs if literal.
+func (g runner) runPaths(dir string, literal bool, opts []string, args ...string) ([]byte, error) {
+	if g.sem != nil {
+		g.sem <- struct{}{}
+		defer func() { <-g.sem }()
+	}
 	ctx, cancel := context.WithTimeout(context.Background(), timeout)
 	defer cancel()
 	full := []string{"--no-pager"}
@@ -281,8 +294,9 @@ func (g runner) runPaths(dir string, literal bool, args ...string) ([]byte, erro
 		full = append(full, "--literal-pathspecs")
 	}
 	full = append(full,
-		"-c", "core.quotePath=false", "-c", "log.showSignature=false", "-c", "log.follow=false",
-		"-C", dir)
+		"-c", "core.quotePath=false", "-c", "log.showSignature=false", "-c", "log.follow=false")
+	full = append(full, opts...)
+	full = append(full, "-C", dir)
 	full = append(full, args...)
 	cmd := exec.CommandContext(ctx, g.git, full...)
 	cmd.Env = gitEnv()
@@ -292,7 +306,7 @@ func (g runner) runPaths(dir string, literal bool, args ...string) ([]byte, erro
 	cmd.Stderr = &stderr
 	err := cmd.Run()
 	if ctx.Err() == context.DeadlineExceeded {
-		return nil, &gitError{args: args, err: fmt.Errorf("no answer within %v", timeout)}
+		return nil, &gitError{args: args, err: fmt.Errorf("no answer within %v", timeout), timedOut: true}
 	}
 	if err != nil {
 		msg := strings.TrimSpace(stderr.String())

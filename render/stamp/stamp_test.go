@@ -392,7 +392,13 @@ func TestOfGitFails(t *testing.T) {
 	if _, err := exec.LookPath("sh"); err != nil {
 		t.Skip("no sh to run a stand-in git")
 	}
-	p := filepath.Join(t.TempDir(), "calc.md")
+	// A ".git" folder beside the file: the stamp finds a repository
+	// there without git (discover.go) and asks the stand-in git about it.
+	dir := t.TempDir()
+	if err := os.Mkdir(filepath.Join(dir, ".git"), 0o755); err != nil {
+		t.Fatal(err)
+	}
+	p := filepath.Join(dir, "calc.md")
 	write(t, p, "x = 1\n")
 	// The failing git is given a long time to answer, so that a loaded
 	// machine starting the script slowly does not turn its error into a

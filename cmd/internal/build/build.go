@@ -24,16 +24,28 @@ func Stamped(doc *calcdoc.Document, version string) Options {
 }
 
 // Stamper stamps the sheets of one build, each document once (a sheet used
-// by many is asked of git once). It is safe for use by several goroutines.
+// by many is asked of git once), through one stamp.Session: what git says
+// of a repository is asked once for all the build's files in it, and no
+// git runs for files outside any repository. It is safe for use by
+// several goroutines.
 type Stamper struct {
 	version string
+	git     *stamp.Session
 	mu      sync.Mutex
 	memo    map[string]*render.StampInfo
 }
 
 // NewStamper makes a stamper for sheets of calcdoc version.
 func NewStamper(version string) *Stamper {
-	return &Stamper{version: version, memo: map[string]*render.StampInfo{}}
+	return &Stamper{version: version, git: stamp.NewSession(), memo: map[string]*render.StampInfo{}}
+}
+
+// Prefetch starts asking git about the inputs' files at once, so that git
+// runs while the documents are evaluated; Stamped joins each.
+func (s *Stamper) Prefetch(inputs []Input) {
+	for _, in := range inputs {
+		s.git.Start(in.Path)
+	}
 }
 
 // Stamped are the options of doc's built sheet (see Stamped).
@@ -49,8 +61,8 @@ func (s *Stamper) stampOf(doc *calcdoc.Document, depth int) *render.StampInfo {
 		return st
 	}
 	s.mu.Unlock()
-	st := stamp.Of(doc.Path, doc.Source)
-	st.Files = stamp.Files(doc.DataFiles)
+	st := s.git.Start(doc.Path).Stamp(doc.Source)
+	st.Files = s.git.Files(doc.DataFiles)
 	seen := map[string]bool{}
 	for _, u := range doc.Uses {
 		if seen[u.Rel] || u.Sheet == nil || u.Sheet.Doc == nil || depth > 64 {
