@@ -12,10 +12,10 @@ import (
 	"unicode/utf8"
 
 	"calcdoc/expr"
+	"calcdoc/internal/gfm"
 
 	"github.com/yuin/goldmark"
 	"github.com/yuin/goldmark/ast"
-	"github.com/yuin/goldmark/extension"
 	"github.com/yuin/goldmark/text"
 )
 
@@ -159,7 +159,7 @@ func Load(path string, reg *Registry) (*Document, error) {
 }
 
 // markdown is the goldmark configuration: CommonMark with GFM tables.
-var markdown = goldmark.New(goldmark.WithExtensions(extension.Table, extension.Strikethrough))
+var markdown = goldmark.New(goldmark.WithExtensions(gfm.Table, gfm.Strikethrough))
 
 // Markdown returns the goldmark instance calcdoc parses prose with, so
 // that renderers use the same configuration.

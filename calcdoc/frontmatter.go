@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"fmt"
 	"regexp"
+	"sync"
 	"time"
 	"unicode/utf8"
 
@@ -54,7 +55,7 @@ type FrontMatter struct {
 // matter does not say.
 const DefaultDigits = 4
 
-var dateRE = regexp.MustCompile(`^\d{4}-\d{2}-\d{2}$`)
+var dateRE = sync.OnceValue(func() *regexp.Regexp { return regexp.MustCompile(`^\d{4}-\d{2}-\d{2}$`) })
 
 // splitFrontMatter finds the front matter: the first line is "---" and
 // the block ends at the next line that is "---" (or "..."). It returns the
@@ -250,7 +251,7 @@ func parseFrontMatter(text []byte, base expr.Pos, fm *FrontMatter, errs, warns *
 // ValidDate reports whether s is a date written YYYY-MM-DD that exists in
 // the calendar (time.Parse's reading of the layout 2006-01-02).
 func ValidDate(s string) bool {
-	if !dateRE.MatchString(s) {
+	if !dateRE().MatchString(s) {
 		return false
 	}
 	_, err := time.Parse("2006-01-02", s)
@@ -282,7 +283,7 @@ func parseUnits(v *yaml.Node, fm *FrontMatter, errs *expr.ErrorList, pos func(*y
 
 // caseNameRE is what a case name may be: a letter, then letters, digits
 // and underscores.
-var caseNameRE = regexp.MustCompile(`^\pL[\pL\pN_]*$`)
+var caseNameRE = sync.OnceValue(func() *regexp.Regexp { return regexp.MustCompile(`^\pL[\pL\pN_]*$`) })
 
 // parseCases reads "cases: [max, min]": two or more names, each once.
 func parseCases(v *yaml.Node, fm *FrontMatter, errs *expr.ErrorList, pos func(*yaml.Node) expr.Pos) {
@@ -293,7 +294,7 @@ func parseCases(v *yaml.Node, fm *FrontMatter, errs *expr.ErrorList, pos func(*y
 	seen := map[string]bool{}
 	var names []string
 	for _, item := range v.Content {
-		if item.Kind != yaml.ScalarNode || !caseNameRE.MatchString(item.Value) {
+		if item.Kind != yaml.ScalarNode || !caseNameRE().MatchString(item.Value) {
 			errs.Add(pos(item), fmt.Sprintf("case name %q must be a name: a letter, then letters, digits or _", item.Value))
 			return
 		}

@@ -11,10 +11,10 @@ import (
 
 	"calcdoc/calcdoc"
 	"calcdoc/expr"
+	"calcdoc/render/internal/gfmhtml"
 	"calcdoc/render/markup"
 
 	"github.com/yuin/goldmark/ast"
-	"github.com/yuin/goldmark/extension"
 	"github.com/yuin/goldmark/renderer"
 	ghtml "github.com/yuin/goldmark/renderer/html"
 	"github.com/yuin/goldmark/util"
@@ -279,8 +279,8 @@ func plural(n int) string {
 func prose(w *markup.Writer, doc *calcdoc.Document) error {
 	r := renderer.NewRenderer(renderer.WithNodeRenderers(
 		util.Prioritized(ghtml.NewRenderer(), 1000),
-		util.Prioritized(extension.NewTableHTMLRenderer(), 500),
-		util.Prioritized(extension.NewStrikethroughHTMLRenderer(), 500),
+		util.Prioritized(gfmhtml.NewTableHTMLRenderer(), 500),
+		util.Prioritized(gfmhtml.NewStrikethroughHTMLRenderer(), 500),
 		util.Prioritized(&nodes{w: w}, 100),
 	))
 	// the node renderers write into the writer goldmark hands them

@@ -12,6 +12,7 @@ import (
 	"regexp"
 	"strconv"
 	"strings"
+	"sync"
 
 	"calcdoc/calcdoc"
 	"calcdoc/render"
@@ -464,7 +465,7 @@ func plural(n int) string {
 func SheetStartPages(pages []string, n int) (starts []int, ok bool) {
 	starts = make([]int, n)
 	for i, p := range pages {
-		for _, m := range startRE.FindAllStringSubmatch(p, -1) {
+		for _, m := range startRE().FindAllStringSubmatch(p, -1) {
 			k, of := Atoi(m[1]), Atoi(m[2])
 			if of != n || k < 1 || k > n {
 				continue
@@ -483,13 +484,13 @@ func SheetStartPages(pages []string, n int) (starts []int, ok bool) {
 	return starts, true
 }
 
-var numberRE = regexp.MustCompile(`^[0-9]+$`)
+var numberRE = sync.OnceValue(func() *regexp.Regexp { return regexp.MustCompile(`^[0-9]+$`) })
 
-var startRE = regexp.MustCompile(`sheet ([0-9]+) of ([0-9]+), page 1\b`)
+var startRE = sync.OnceValue(func() *regexp.Regexp { return regexp.MustCompile(`sheet ([0-9]+) of ([0-9]+), page 1\b`) })
 
 // Atoi reads a sheet index written by Package; anything else is 0.
 func Atoi(s string) int {
-	if !numberRE.MatchString(s) {
+	if !numberRE().MatchString(s) {
 		return 0
 	}
 	n, err := strconv.Atoi(s)

@@ -18,6 +18,7 @@ import (
 	"regexp"
 	"strconv"
 	"strings"
+	"sync"
 	"unicode/utf8"
 
 	"calcdoc/calcdoc"
@@ -381,7 +382,7 @@ func items(page []byte) []item {
 		case !e.hasAttr("data-value"):
 			continue
 		}
-		if numberRE.MatchString(lineAttr) {
+		if numberRE().MatchString(lineAttr) {
 			it.line, _ = strconv.Atoi(lineAttr)
 		}
 		it.text = plainText(e.raw)
@@ -390,7 +391,7 @@ func items(page []byte) []item {
 	return out
 }
 
-var numberRE = regexp.MustCompile(`^[0-9]+$`)
+var numberRE = sync.OnceValue(func() *regexp.Regexp { return regexp.MustCompile(`^[0-9]+$`) })
 
 // compareItems names the result and check rows whose text differs between
 // the sheet and the fresh render, and the rows only one of them has.

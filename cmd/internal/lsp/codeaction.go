@@ -4,6 +4,7 @@ import (
 	"encoding/json"
 	"regexp"
 	"strings"
+	"sync"
 	"unicode"
 	"unicode/utf8"
 )
@@ -14,7 +15,9 @@ import (
 // "… delete it and write Y"). The name in the text must read as the
 // message's name once its invisible characters are dropped; the fix
 // replaces the whole name by the one the message writes.
-var nameFix = regexp.MustCompile(`^the name "([^"]+)" holds .*: (?:delete it and )?write (\S+)$`)
+var nameFix = sync.OnceValue(func() *regexp.Regexp {
+	return regexp.MustCompile(`^the name "([^"]+)" holds .*: (?:delete it and )?write (\S+)$`)
+})
 
 // fixData is a diagnostic's certain fix, carried in its data member
 // (LSP 3.16) to the code action request.
@@ -29,7 +32,7 @@ func isNameOrFormat(r rune) bool { return isNameRune(r) || unicode.Is(unicode.Cf
 
 // certainFix is the fix of an error at buffer offset off of t, or nil.
 func certainFix(msg string, t *text, off int, enc string) *fixData {
-	m := nameFix.FindStringSubmatch(msg)
+	m := nameFix().FindStringSubmatch(msg)
 	if m == nil {
 		return nil
 	}

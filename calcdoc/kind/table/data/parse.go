@@ -12,6 +12,7 @@ import (
 	"regexp"
 	"strconv"
 	"strings"
+	"sync"
 	"unicode"
 	"unicode/utf8"
 
@@ -149,7 +150,7 @@ func isSeparator(text string) bool {
 	return strings.Trim(text, "-:| \t") == "" && strings.Contains(text, "-")
 }
 
-var headerRe = regexp.MustCompile(`^([^\[\]]*?)\s*(?:\[([^\[\]]*)\])?$`)
+var headerRe = sync.OnceValue(func() *regexp.Regexp { return regexp.MustCompile(`^([^\[\]]*?)\s*(?:\[([^\[\]]*)\])?$`) })
 
 // parseHeader reads the header cells: a name, and its unit in brackets
 // (none: plain numbers). errs holds, for each cell, its problem or nil.
@@ -179,7 +180,7 @@ func parseHeader(cells []string) ([]Column, []error) {
 }
 
 func parseColumn(c string) (Column, error) {
-	m := headerRe.FindStringSubmatch(c)
+	m := headerRe().FindStringSubmatch(c)
 	if c == "" || m == nil || m[1] == "" {
 		if c == "" {
 			return Column{}, fmt.Errorf("a header cell is empty: give each column a name and, in brackets, its unit, e.g. R_20 [Ω/km]")
@@ -208,7 +209,9 @@ func parseColumn(c string) (Column, error) {
 	return col, nil
 }
 
-var numberRe = regexp.MustCompile(`^[+-]?(?:[0-9]+\.?[0-9]*|\.[0-9]+)(?:[eE][+-]?[0-9]+)?$`)
+var numberRe = sync.OnceValue(func() *regexp.Regexp {
+	return regexp.MustCompile(`^[+-]?(?:[0-9]+\.?[0-9]*|\.[0-9]+)(?:[eE][+-]?[0-9]+)?$`)
+})
 
 // parseCell reads one cell of column c: a number, or empty for a gap (a
 // key cannot be a gap).
@@ -221,9 +224,9 @@ func parseCell(text string, c Column, key bool) (Cell, error) {
 		cell.Gap = true
 		return cell, nil
 	}
-	if !numberRe.MatchString(text) {
+	if !numberRe().MatchString(text) {
 		hint := "write a number such as 0.524 or 1.2e3, with no unit (the header gives it), or leave the cell empty for a gap"
-		if numberRe.MatchString(strings.Replace(text, ",", ".", 1)) {
+		if numberRe().MatchString(strings.Replace(text, ",", ".", 1)) {
 			hint = "write the decimal point as \".\" (" + strings.Replace(text, ",", ".", 1) + ")"
 		}
 		return cell, fmt.Errorf("%q in column %s is not a number: %s", text, c.Name, hint)
