@@ -10,7 +10,6 @@ import (
 	"io"
 	"os"
 	"path/filepath"
-	"runtime/debug"
 	"strings"
 
 	"calcdoc/calcdoc"
@@ -74,9 +73,7 @@ type cli struct {
 }
 
 func main() {
-	// calcdoc runs for a fraction of a second and allocates much of what it
-	// makes once: collect garbage less often than Go's default.
-	debug.SetGCPercent(400)
+	tuneGC() // gc.go: off below a soft memory limit
 	c := &cli{stdout: os.Stdout, stderr: os.Stderr}
 	os.Exit(c.run(os.Args[1:]))
 }
