@@ -11,8 +11,8 @@ import (
 	"strings"
 	"unicode/utf8"
 
+	"calcdoc/calcdoc/gfm"
 	"calcdoc/expr"
-	"calcdoc/internal/gfm"
 
 	"github.com/yuin/goldmark"
 	"github.com/yuin/goldmark/ast"

@@ -27,7 +27,7 @@ type Layer struct {
 var Layers = []Layer{
 	{0, "numeric", []string{"calcdoc/expr/linalg/..."}},
 	{1, "engine", []string{"calcdoc/expr"}},
-	{2, "document", []string{"calcdoc/calcdoc", "calcdoc/internal/gfm"}},
+	{2, "document", []string{"calcdoc/calcdoc", "calcdoc/calcdoc/gfm"}},
 	{3, "drawing primitives", []string{"calcdoc/render/markup/...", "calcdoc/render/svg/..."}},
 	{4, "block kinds", []string{"calcdoc/calcdoc/kind/..."}},
 	{5, "sheet writer", []string{"calcdoc/render", "calcdoc/render/internal/..."}},

@@ -4,7 +4,7 @@ import (
 	"bytes"
 	"testing"
 
-	"calcdoc/internal/gfm"
+	"calcdoc/calcdoc/gfm"
 
 	"github.com/yuin/goldmark"
 	"github.com/yuin/goldmark/extension"
@@ -12,7 +12,7 @@ import (
 	"github.com/yuin/goldmark/util"
 )
 
-// The copy (calcdoc/internal/gfm's parsers, this package's renderers)
+// The copy (calcdoc/calcdoc/gfm's parsers, this package's renderers)
 // writes the HTML that goldmark's own extension package writes: the
 // reference is goldmark v1.8.7 itself, given the same Markdown. The
 // inputs include the table examples of the GitHub Flavored Markdown
