@@ -25,17 +25,17 @@ const EqualTolerance = 1e-9
 
 // EvalCheck evaluates a comparison chain.
 func (e *Env) EvalCheck(c *Compare, trace *Trace) (*CheckResult, error) {
-	ev := &evaluator{env: e, trace: trace}
-	res := &CheckResult{Pass: true}
+	ev := evaluator{env: e, trace: trace}
+	res := &CheckResult{Pass: true, Values: make([]*Scalar, 0, len(c.X)), Holds: make([]bool, 0, len(c.Ops))}
 	for _, x := range c.X {
 		v, err := ev.eval(x)
 		if err != nil {
 			return nil, err
 		}
-		s, ok := v.(*Scalar)
-		if !ok {
-			return nil, Errorf(x.Pos(), "a check compares single values, not %s", shapeWord(v))
+		if v.m != nil {
+			return nil, Errorf(x.Pos(), "a check compares single values, not %s", shapeWord(v.m))
 		}
+		s := v.value().(*Scalar)
 		if !s.IsFinite() {
 			// never a verdict on a value that is not finite (LANGUAGE.md section 4)
 			return nil, Errorf(x.Pos(), "this side of the check is not a finite value: no verdict")

@@ -5,6 +5,7 @@ import (
 	"sort"
 	"strconv"
 	"strings"
+	"sync"
 	"unicode"
 	"unicode/utf8"
 )
@@ -142,8 +143,40 @@ const (
 func Scan(src *Source, errs *ErrorList) []Token {
 	// about one token for every four bytes of a calc block: room for
 	// them all at once instead of growing (and copying) the slice
-	sc := scanner{src: src, text: src.Text, errs: errs, toks: make([]Token, 0, len(src.Text)/4+8)}
+	return scanInto(src, errs, make([]Token, 0, len(src.Text)/4+8))
+}
+
+// scanInto is Scan appending to buf[:0].
+func scanInto(src *Source, errs *ErrorList, buf []Token) []Token {
+	sc := scanner{src: src, text: src.Text, errs: errs, toks: buf[:0]}
 	return sc.run()
+}
+
+// scratch is what one ParseBlock uses and drops: the tokens and the
+// statements cut from them. Nothing parsed keeps a token (names and
+// numbers keep strings of the source text), so the buffers go back to
+// scratchPool, cleared, for the next block.
+type scratch struct {
+	toks  []Token
+	stmts [][]Token
+}
+
+var scratchPool = sync.Pool{New: func() any { return new(scratch) }}
+
+// release clears the buffers (they must not keep a source text alive)
+// and returns them to the pool; a buffer grown very large is dropped.
+func (sc *scratch) release() {
+	if cap(sc.toks) > 1<<16 {
+		sc.toks = nil
+	}
+	if cap(sc.stmts) > 1<<14 {
+		sc.stmts = nil
+	}
+	// only the used part: what lies beyond it was cleared before
+	clear(sc.toks)
+	clear(sc.stmts)
+	sc.toks, sc.stmts = sc.toks[:0], sc.stmts[:0]
+	scratchPool.Put(sc)
 }
 
 type scanner struct {
