@@ -9,7 +9,34 @@ package expr
 // never sized, as for ParseExpr) gives single allocations.
 
 // slab hands out the elements of one allocation.
-type slab[T any] struct{ free []T }
+type slab[T any] struct {
+	free  []T
+	chunk int // the size of the last chunk alloc made
+}
+
+// alloc returns a new zero element, making a chunk when the slab is
+// empty: 8 elements first, twice as many each time after, up to limit.
+// An environment's slabs grow this way with its statements.
+func (s *slab[T]) alloc(limit int) *T {
+	if len(s.free) == 0 {
+		s.refill(1, limit)
+	}
+	return s.one()
+}
+
+func (s *slab[T]) refill(n, limit int) {
+	s.chunk = max(min(limit, 2*s.chunk), 8, n)
+	s.free = make([]T, s.chunk)
+}
+
+// keep is list for a slab that grows (alloc): a copy of xs of exactly
+// its length and capacity, nil for none.
+func (s *slab[T]) keep(xs []T, limit int) []T {
+	if n := len(xs); n > 0 && len(s.free) < n {
+		s.refill(n, limit)
+	}
+	return s.list(xs)
+}
 
 // reserve makes room for n elements.
 func (s *slab[T]) reserve(n int) {
@@ -114,4 +141,23 @@ func (a *arena) size(toks []Token, mode Mode) {
 	a.names.reserve(assigns)
 	a.nodes.reserve(calls + commas + cmps + checks)
 	a.ops.reserve(cmps)
+}
+
+// slabLimit is the largest chunk of an environment's slabs.
+const slabLimit = 128
+
+// resultTrace is a Result with its Trace, allocated together.
+type resultTrace struct {
+	r Result
+	t Trace
+}
+
+// envMem is what an environment allocates for its statements: the
+// results, bindings and trace entries Exec keeps, in slabs, and the
+// buffer a statement's trace records into.
+type envMem struct {
+	results  slab[resultTrace]
+	bindings slab[Binding]
+	entries  slab[traceEntry]
+	traceBuf []traceEntry
 }

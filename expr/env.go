@@ -58,6 +58,8 @@ type Env struct {
 	// caseDep records that an evaluation read a value with cases.
 	caseIdx int
 	caseDep bool
+	// mem holds the slabs of what Exec keeps (arena.go).
+	mem envMem
 }
 
 // NewEnv returns an empty environment with a budget of DefaultBudget.

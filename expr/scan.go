@@ -39,13 +39,40 @@ func NewSource(text string, first Pos) *Source {
 // position in the file (where the line stands verbatim). Without a
 // position for every line, the lines are a file of their own.
 func NewSourceLines(lines []string, pos []Pos) *Source {
-	text := strings.Join(lines, "\n")
 	if len(pos) < len(lines) {
-		return NewSource(text, Pos{})
+		return NewSource(strings.Join(lines, "\n"), Pos{})
+	}
+	text, ok := inFile(lines, pos)
+	if !ok {
+		text = strings.Join(lines, "\n")
 	}
 	s := &Source{Text: text, Lines: append([]Pos(nil), pos[:len(lines)]...)}
 	s.index()
 	return s
+}
+
+// inFile returns the lines joined by line breaks as a piece of their
+// file's text, with no copy, when they stand in it so: one after the
+// other, each followed by "\n" (the text of a fenced block outside a
+// list or a quotation). The names and numbers parsed from the source
+// keep pieces of it, so a copy would stay alive as long as they do.
+func inFile(lines []string, pos []Pos) (string, bool) {
+	if len(lines) == 0 || pos[0].File == nil {
+		return "", false
+	}
+	f := pos[0].File
+	for i, l := range lines {
+		p := pos[i]
+		end := p.Off + len(l)
+		if p.File != f || end > len(f.text) || f.text[p.Off:end] != l {
+			return "", false
+		}
+		if i+1 < len(lines) && (pos[i+1].Off != end+1 || end >= len(f.text) || f.text[end] != '\n') {
+			return "", false
+		}
+	}
+	last := len(lines) - 1
+	return f.text[pos[0].Off : pos[last].Off+len(lines[last])], true
 }
 
 func (s *Source) index() {
