@@ -78,6 +78,7 @@ type arena struct {
 	idents   slab[Ident]
 	numbers  slab[Number]
 	binaries slab[Binary]
+	unaries  slab[Unary]
 	units    slab[WithUnit]
 	parens   slab[Paren]
 	calls    slab[Call]
@@ -92,7 +93,7 @@ type arena struct {
 
 // size reserves room for the nodes the tokens of a block can make.
 func (a *arena) size(toks []Token, mode Mode) {
-	var idents, numbers, binaries, units, parens, calls, bars, cmps, assigns, checks, commas int
+	var idents, numbers, binaries, unaries, units, parens, calls, bars, cmps, assigns, checks, commas int
 	for i, t := range toks {
 		switch t.Kind {
 		case IDENT:
@@ -103,7 +104,13 @@ func (a *arena) size(toks []Token, mode Mode) {
 			}
 		case NUMBER:
 			numbers++
-		case ADD, SUB, MUL, DIV, POW, ANGLE, PAR:
+		case ADD, SUB:
+			if i == 0 || prefixBefore(toks[i-1].Kind) {
+				unaries++
+			} else {
+				binaries++
+			}
+		case MUL, DIV, POW, ANGLE, PAR:
 			binaries++
 		case BAR:
 			bars++
@@ -131,6 +138,7 @@ func (a *arena) size(toks []Token, mode Mode) {
 	a.idents.reserve(idents)
 	a.numbers.reserve(numbers)
 	a.binaries.reserve(binaries + bars/2)
+	a.unaries.reserve(unaries)
 	a.units.reserve(units)
 	a.parens.reserve(parens)
 	a.calls.reserve(calls)
@@ -141,6 +149,16 @@ func (a *arena) size(toks []Token, mode Mode) {
 	a.names.reserve(assigns)
 	a.nodes.reserve(calls + commas + cmps + checks)
 	a.ops.reserve(cmps)
+}
+
+// prefixBefore reports whether a + or - after a token of kind k is a
+// sign (a Unary node) rather than an operator.
+func prefixBefore(k Kind) bool {
+	switch k {
+	case NUMBER, IDENT, UNIT, RPAREN, RBRACK, RBRACE, BAR, DISPLAY:
+		return false
+	}
+	return true
 }
 
 // slabLimit is the largest chunk of an environment's slabs.

@@ -154,7 +154,8 @@ func (ev *evaluator) caseExtreme(n *Call, max bool) (val, error) {
 		}
 	}
 	if ev.trace != nil {
-		ev.trace.extremes = append(ev.trace.extremes, traceExtreme{n, e.Cases[bestK]})
+		m := ev.trace.extra()
+		m.extremes = append(m.extremes, traceExtreme{n, e.Cases[bestK]})
 	}
 	return best, nil
 }
@@ -178,7 +179,10 @@ func (t *Trace) Governing() []string {
 		return nil
 	}
 	var out []string
-	for _, x := range t.extremes {
+	if t.more == nil {
+		return nil
+	}
+	for _, x := range t.more.extremes {
 		out = append(out, fmt.Sprintf("%s: %s", x.call.Fun.Name, x.cas))
 	}
 	return out

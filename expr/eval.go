@@ -12,9 +12,23 @@ import (
 // the values substituted. The zero Trace is empty and ready to use.
 type Trace struct {
 	entries []traceEntry
+	// more holds what few lines record: a trace costs one pointer for it
+	more *traceMore
+}
+
+// traceMore is what a trace records besides the values of names.
+type traceMore struct {
 	lookups []Lookup // the table look-ups (tables.go)
 	// extremes are the cases casemax and casemin chose (cases.go)
 	extremes []traceExtreme
+}
+
+// extra returns t's traceMore, making it.
+func (t *Trace) extra() *traceMore {
+	if t.more == nil {
+		t.more = new(traceMore)
+	}
+	return t.more
 }
 
 type traceEntry struct {

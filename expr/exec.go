@@ -26,8 +26,17 @@ const EqualTolerance = 1e-9
 // EvalCheck evaluates a comparison chain.
 func (e *Env) EvalCheck(c *Compare, trace *Trace) (*CheckResult, error) {
 	ev := evaluator{env: e, trace: trace}
-	res := &CheckResult{Pass: true, Values: make([]*Scalar, 0, len(c.X)), Holds: make([]bool, 0, len(c.Ops))}
-	for _, x := range c.X {
+	// the result, its lists and the values of a chain of up to three
+	// in one allocation
+	ca := new(checkAlloc)
+	res := &ca.res
+	res.Pass = true
+	if len(c.X) <= len(ca.vals) {
+		res.Values, res.Holds = ca.vals[:0:len(c.X)], ca.holds[:0:len(c.Ops)]
+	} else {
+		res.Values, res.Holds = make([]*Scalar, 0, len(c.X)), make([]bool, 0, len(c.Ops))
+	}
+	for i, x := range c.X {
 		v, err := ev.eval(x)
 		if err != nil {
 			return nil, err
@@ -35,7 +44,13 @@ func (e *Env) EvalCheck(c *Compare, trace *Trace) (*CheckResult, error) {
 		if v.m != nil {
 			return nil, Errorf(x.Pos(), "a check compares single values, not %s", shapeWord(v.m))
 		}
-		s := v.value().(*Scalar)
+		s := v.box
+		if s == nil && i < len(ca.scalars) {
+			ca.scalars[i] = v.s
+			s = &ca.scalars[i]
+		} else if s == nil {
+			s = v.value().(*Scalar)
+		}
 		if !s.IsFinite() {
 			// never a verdict on a value that is not finite (LANGUAGE.md section 4)
 			return nil, Errorf(x.Pos(), "this side of the check is not a finite value: no verdict")
@@ -97,6 +112,15 @@ func (e *Env) EvalCheck(c *Compare, trace *Trace) (*CheckResult, error) {
 		}
 	}
 	return res, nil
+}
+
+// checkAlloc is a CheckResult with room for a chain of up to three
+// values (EvalCheck).
+type checkAlloc struct {
+	res     CheckResult
+	vals    [3]*Scalar
+	holds   [2]bool
+	scalars [3]Scalar
 }
 
 // Result is what executing one statement gives.

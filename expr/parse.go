@@ -620,7 +620,9 @@ func (p *parser) unary() Node {
 		p.enter(t.Off)
 		defer p.leave()
 		x := p.unary()
-		return &Unary{span: span{p.pos(t.Off), x.End()}, Op: k, X: x}
+		u := p.a.unaries.one()
+		*u = Unary{span: span{p.pos(t.Off), x.End()}, Op: k, X: x}
+		return u
 	}
 	return p.angle()
 }
@@ -633,7 +635,9 @@ func (p *parser) signed(next func() Node) Node {
 		p.enter(t.Off)
 		defer p.leave()
 		x := p.signed(next)
-		return &Unary{span: span{p.pos(t.Off), x.End()}, Op: k, X: x}
+		u := p.a.unaries.one()
+		*u = Unary{span: span{p.pos(t.Off), x.End()}, Op: k, X: x}
+		return u
 	}
 	return next()
 }

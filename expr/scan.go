@@ -76,7 +76,7 @@ func inFile(lines []string, pos []Pos) (string, bool) {
 }
 
 func (s *Source) index() {
-	s.starts = []int{0}
+	s.starts = make([]int, 1, strings.Count(s.Text, "\n")+1)
 	for i := 0; i < len(s.Text); i++ {
 		if s.Text[i] == '\n' {
 			s.starts = append(s.starts, i+1)

@@ -83,7 +83,10 @@ func (t *Trace) Lookups() []Lookup {
 	if t == nil {
 		return nil
 	}
-	return append([]Lookup(nil), t.lookups...)
+	if t.more == nil {
+		return nil
+	}
+	return append([]Lookup(nil), t.more.lookups...)
 }
 
 // tableRef is the error of a table or a column of one written where a
@@ -189,7 +192,8 @@ func (ev *evaluator) lookup(n *Call) (val, error) {
 	}
 	rec.Rows, rec.Value = rows, v
 	if ev.trace != nil {
-		ev.trace.lookups = append(ev.trace.lookups, rec)
+		m := ev.trace.extra()
+		m.lookups = append(m.lookups, rec)
 	}
 	return unbox(v), nil
 }
