@@ -86,7 +86,25 @@ type evaluator struct {
 	env    *Env
 	trace  *Trace
 	locals map[string]Value
+	// params and args are the parameters (keys) of the user function
+	// being evaluated and their values, seen before locals: a call
+	// hands its arguments over without a map or a box
+	params []string
+	args   []val
 	depth  int
+}
+
+// local is the value of a parameter or a local name.
+func (ev *evaluator) local(key string) (val, bool) {
+	for i, p := range ev.params {
+		if p == key {
+			return ev.args[i], true
+		}
+	}
+	if v, ok := ev.locals[key]; ok {
+		return unbox(v), true
+	}
+	return val{}, false
 }
 
 // charge spends n units of the document's budget for work at pos (see
@@ -372,8 +390,8 @@ func keyedLocals(locals map[string]Value) map[string]Value {
 
 func (ev *evaluator) ident(n *Ident) (val, error) {
 	key := n.key()
-	if v, ok := ev.locals[key]; ok {
-		return unbox(v), nil
+	if v, ok := ev.local(key); ok {
+		return v, nil
 	}
 	if b := ev.env.vars[key]; b != nil {
 		if b.Unavailable {
@@ -404,10 +422,15 @@ func (ev *evaluator) suggestName(name string) string {
 	best, bestD := "", 3
 	// a suggestion compares the name with every name: optional work, left
 	// out when the budget cannot hold it
-	if !ev.env.Budget.TryCharge(suggestWork * int64(len(ev.env.order)+len(ev.locals))) {
+	if !ev.env.Budget.TryCharge(suggestWork * int64(len(ev.env.order)+len(ev.params)+len(ev.locals))) {
 		return ""
 	}
 	for _, k := range ev.env.order {
+		if d := editDistance(name, k); d < bestD && d <= len(name)/2 {
+			best, bestD = k, d
+		}
+	}
+	for _, k := range ev.params {
 		if d := editDistance(name, k); d < bestD && d <= len(name)/2 {
 			best, bestD = k, d
 		}
@@ -638,8 +661,11 @@ func (ev *evaluator) call(n *Call) (val, error) {
 		return ev.lookup(n) // a look-up in a table (tables.go)
 	}
 	// an entry of a matrix value: M(i, j), v(i)
-	if v, ok := ev.locals[key]; ok {
-		return ev.index(n, v)
+	if v, ok := ev.local(key); ok {
+		if v.m == nil {
+			return val{}, Errorf(n.P, "%q is a value, not a function or a matrix: it cannot be called or indexed", n.Fun.Name)
+		}
+		return ev.index(n, v.m)
 	}
 	if b := ev.env.vars[key]; b != nil {
 		if b.Unavailable {
@@ -731,14 +757,10 @@ func (ev *evaluator) callFunc(n *Call, f *Func, args []val) (val, error) {
 	if ev.depth >= MaxCallDepth {
 		return val{}, Errorf(n.P, "functions call each other too deeply (more than %d levels)", MaxCallDepth)
 	}
-	locals := make(map[string]Value, len(args))
-	for i, p := range f.keys {
-		locals[p] = args[i].value()
-	}
 	if err := ev.charge(CallWork+int64(len(args)), n.P); err != nil {
 		return val{}, err
 	}
-	sub := evaluator{env: ev.env, locals: locals, depth: ev.depth + 1}
+	sub := evaluator{env: ev.env, params: f.keys, args: args, depth: ev.depth + 1}
 	v, err := sub.eval(f.Body)
 	if err != nil {
 		if e, ok := err.(*Error); ok && e == ev.env.Budget.Over() {

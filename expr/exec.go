@@ -26,8 +26,8 @@ const EqualTolerance = 1e-9
 // EvalCheck evaluates a comparison chain.
 func (e *Env) EvalCheck(c *Compare, trace *Trace) (*CheckResult, error) {
 	ev := evaluator{env: e, trace: trace}
-	// the result, its lists and the values of a chain of up to three
-	// in one allocation
+	// the result, its lists and its computed values in one allocation
+	// for a check of one comparison
 	ca := new(checkAlloc)
 	res := &ca.res
 	res.Pass = true
@@ -114,13 +114,13 @@ func (e *Env) EvalCheck(c *Compare, trace *Trace) (*CheckResult, error) {
 	return res, nil
 }
 
-// checkAlloc is a CheckResult with room for a chain of up to three
-// values (EvalCheck).
+// checkAlloc is a CheckResult with room for the two values of a check
+// of one comparison (EvalCheck).
 type checkAlloc struct {
 	res     CheckResult
-	vals    [3]*Scalar
-	holds   [2]bool
-	scalars [3]Scalar
+	vals    [2]*Scalar
+	holds   [1]bool
+	scalars [2]Scalar
 }
 
 // Result is what executing one statement gives.

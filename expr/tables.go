@@ -106,7 +106,7 @@ func (ev *evaluator) table(at Pos, name string) (*tableBinding, error) {
 	if b := ev.env.tables[NameKey(name)]; b != nil {
 		return b, nil
 	}
-	if ev.env.vars[NameKey(name)] != nil || ev.locals[NameKey(name)] != nil {
+	if ev.env.vars[NameKey(name)] != nil || ev.isLocal(NameKey(name)) {
 		return nil, Errorf(at, "%s is a value, not a table: a look-up reads a table defined by a table block above", name)
 	}
 	var names []string

@@ -129,3 +129,9 @@ func productWorkVal(n *Binary, x, y *val) int64 {
 	}
 	return productWork(n, x.m, y.m)
 }
+
+// isLocal reports whether key names a parameter or a local name.
+func (ev *evaluator) isLocal(key string) bool {
+	_, ok := ev.local(key)
+	return ok
+}
