@@ -179,3 +179,11 @@ type envMem struct {
 	entries  slab[traceEntry]
 	traceBuf []traceEntry
 }
+
+// memory returns e's slabs, making them.
+func (e *Env) memory() *envMem {
+	if e.mem == nil {
+		e.mem = new(envMem)
+	}
+	return e.mem
+}

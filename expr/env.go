@@ -58,8 +58,10 @@ type Env struct {
 	// caseDep records that an evaluation read a value with cases.
 	caseIdx int
 	caseDep bool
-	// mem holds the slabs of what Exec keeps (arena.go).
-	mem envMem
+	// mem holds the slabs of what Exec keeps (arena.go), made on first
+	// use; a pointer, so that a copy of an Env shares it rather than
+	// handing out the same free elements twice.
+	mem *envMem
 }
 
 // NewEnv returns an empty environment with a budget of DefaultBudget.

@@ -156,15 +156,17 @@ func (e *Env) Exec(s Stmt) *Result {
 	// the result and its trace in one allocation, from a slab that grows
 	// with the statements (arena.go); the trace records into a buffer
 	// the environment reuses and keeps a copy of exactly its length
-	rt := e.mem.results.alloc(slabLimit)
+	mem := e.memory()
+	rt := mem.results.alloc(slabLimit)
 	r := &rt.r
 	r.Stmt, r.Trace = s, &rt.t
-	r.Trace.entries = e.mem.traceBuf[:0]
+	r.Trace.entries = mem.traceBuf[:0]
+	mem.traceBuf = nil // a nested Exec (none today) would start its own
 	e.exec(s, r)
 	buf := r.Trace.entries
-	r.Trace.entries = e.mem.entries.keep(buf, 8*slabLimit)
+	r.Trace.entries = mem.entries.keep(buf, 8*slabLimit)
 	clear(buf)
-	e.mem.traceBuf = buf[:0]
+	mem.traceBuf = buf[:0]
 	return r
 }
 
@@ -254,7 +256,7 @@ func (e *Env) exec(s Stmt, r *Result) {
 		r.Cases = cases
 		disp := e.ChooseDisplay(v, s.Display, s.X)
 		r.Display = disp
-		b := e.mem.bindings.alloc(slabLimit)
+		b := e.memory().bindings.alloc(slabLimit)
 		*b = Binding{Name: s.Names[0].Name, Value: v, Pos: s.Names[0].P, Display: disp, Cases: cases}
 		e.Define(b)
 	case *FuncDef:
