@@ -94,11 +94,16 @@ type parser struct {
 	bad   bool
 	opPos Pos
 	a     arena // the slabs the nodes are allocated in (arena.go)
+	line  int   // the line of the last position made (pos)
 }
 
 type bail struct{}
 
-func (p *parser) pos(off int) Pos { return p.src.PosAt(off) }
+func (p *parser) pos(off int) Pos {
+	pos, line := p.src.posNear(off, p.line)
+	p.line = line
+	return pos
+}
 
 func (p *parser) fail(off int, format string, args ...any) {
 	p.errs.Add(p.pos(off), fmt.Sprintf(format, args...))

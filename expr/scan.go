@@ -86,12 +86,23 @@ func (s *Source) index() {
 
 // PosAt converts a byte offset into Text to a position in the file.
 func (s *Source) PosAt(off int) Pos {
+	p, _ := s.posNear(off, 0)
+	return p
+}
+
+// posNear is PosAt that looks at line hint first (the line of the last
+// position asked for, when positions come in order, as the parser asks
+// for them), and returns the line it found.
+func (s *Source) posNear(off, hint int) (Pos, int) {
 	off = max(0, min(off, len(s.Text)))
-	i := max(0, sort.Search(len(s.starts), func(i int) bool { return s.starts[i] > off })-1)
-	if i >= len(s.Lines) {
-		return Pos{}
+	i := hint
+	if i < 0 || i >= len(s.starts) || s.starts[i] > off || i+1 < len(s.starts) && s.starts[i+1] <= off {
+		i = max(0, sort.Search(len(s.starts), func(i int) bool { return s.starts[i] > off })-1)
 	}
-	return s.Lines[i].Add(off - s.starts[i])
+	if i >= len(s.Lines) {
+		return Pos{}, i
+	}
+	return s.Lines[i].Add(off - s.starts[i]), i
 }
 
 // Kind is the kind of a token.
