@@ -179,7 +179,7 @@ func (e *Env) exec(s Stmt, r *Result) {
 		e.defineUnavailable(s.Names)
 	case *Assign:
 		for i, id := range s.Names {
-			if err := e.CanDefine(id.Name, id.P); err != nil {
+			if err := e.canDefine(id.Name, id.key(), id.P); err != nil {
 				r.Err = err
 				return
 			}
