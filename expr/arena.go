@@ -178,6 +178,7 @@ type envMem struct {
 	bindings slab[Binding]
 	entries  slab[traceEntry]
 	traceBuf []traceEntry
+	displays map[displayKey]*Display // ChooseDisplay's, by unit and form
 }
 
 // memory returns e's slabs, making them.
