@@ -349,10 +349,13 @@ func (d *Document) fenced(n *ast.FencedCodeBlock) {
 		b.ArgPos = d.PosAt(n.Info.Segment.Start + strings.Index(info, b.Arg))
 	}
 	lines := n.Lines()
+	if lines.Len() > 0 {
+		b.Lines = make([]string, 0, lines.Len())
+		b.LinePos = make([]expr.Pos, 0, lines.Len())
+	}
 	for i := 0; i < lines.Len(); i++ {
 		seg := lines.At(i)
-		t := strings.TrimRight(string(seg.Value(d.Text)), "\r\n")
-		b.Lines = append(b.Lines, t)
+		b.Lines = append(b.Lines, d.lineText(seg))
 		b.LinePos = append(b.LinePos, d.PosAt(seg.Start))
 	}
 	b.Pos = b.InfoPos.LineStart()
@@ -361,6 +364,18 @@ func (d *Document) fenced(n *ast.FencedCodeBlock) {
 	d.byNode[n] = b
 	b.kind = kind
 	d.order = append(d.order, b)
+}
+
+// lineText is a line of a fenced block without its line break: a piece
+// of the file's text where the line stands there as it is (no copy), else
+// a copy of what goldmark gives (a line with padding, or in the blanked
+// front matter).
+func (d *Document) lineText(seg text.Segment) string {
+	v := seg.Value(d.Text)
+	if ft := d.File.Text(); seg.Padding == 0 && seg.Stop <= len(ft) && ft[seg.Start:seg.Stop] == string(v) {
+		return strings.TrimRight(ft[seg.Start:seg.Stop], "\r\n")
+	}
+	return strings.TrimRight(string(v), "\r\n")
 }
 
 // evalBlock evaluates a block by its kind, charging its work to the

@@ -34,6 +34,13 @@ func (s *Stmt) Display() *expr.Display {
 
 // Text returns the source between two positions of the block.
 func (b *Block) Text(from, to expr.Pos) string {
+	if i, ok := b.lineOf(from, to); ok {
+		// a span on one line: a piece of it, no copy
+		start, line := b.LinePos[i].Off, b.Lines[i]
+		lo := max(0, min(from.Off-start, len(line)))
+		hi := max(lo, min(to.Off-start, len(line)))
+		return line[lo:hi]
+	}
 	var parts []string
 	// LinePos is in document order: start at the first line of the span
 	// and stop after its last, so that each statement costs its own lines
@@ -51,14 +58,58 @@ func (b *Block) Text(from, to expr.Pos) string {
 	return strings.Join(parts, "\n")
 }
 
+// lineOf finds the line that holds the whole of from..to, if one does.
+func (b *Block) lineOf(from, to expr.Pos) (int, bool) {
+	i := sort.Search(len(b.LinePos), func(i int) bool { return b.LinePos[i].Off+len(b.Lines[i]) >= from.Off })
+	if i >= len(b.LinePos) {
+		return 0, false
+	}
+	start := b.LinePos[i].Off
+	if start > to.Off || to.Off > start+len(b.Lines[i]) {
+		return 0, false
+	}
+	// the next line must not start inside the span either
+	if i+1 < len(b.LinePos) && b.LinePos[i+1].Off <= to.Off {
+		return 0, false
+	}
+	return i, true
+}
+
 // EvalStatements runs parsed statements of a block in its environment and
 // records values, checks and errors. Parse errors in errs are attached to
 // the statements they fall in.
 func EvalStatements(b *Block, stmts []expr.Stmt, errs expr.ErrorList) []*Stmt {
 	var out []*Stmt
-	per, rest := ErrorsOf(stmts, errs)
+	var per [][]*expr.Error
+	var rest []*expr.Error
+	if len(errs) > 0 {
+		per, rest = ErrorsOf(stmts, errs)
+	}
+	// the statements, their named values and check records in one
+	// allocation each for the block
+	var sts []Stmt
+	var named []NamedValue
+	var checks []CheckRecord
+	if len(stmts) > 0 {
+		out = make([]*Stmt, 0, len(stmts))
+		sts = make([]Stmt, len(stmts))
+		nv, nc := 0, 0
+		for _, s := range stmts {
+			switch s := s.(type) {
+			case *expr.Assign:
+				nv += len(s.Names)
+			case *expr.Check:
+				nc++
+			}
+		}
+		named, checks = make([]NamedValue, 0, nv), make([]CheckRecord, 0, nc)
+	}
 	for k, s := range stmts {
-		st := &Stmt{Stmt: s, Text: b.Text(s.Pos(), s.End()), Errs: per[k]}
+		st := &sts[k]
+		*st = Stmt{Stmt: s, Text: b.Text(s.Pos(), s.End())}
+		if per != nil {
+			st.Errs = per[k]
+		}
 		if u, ok := s.(*expr.Use); ok {
 			st.Res = &expr.Result{Stmt: s, Trace: &expr.Trace{}}
 			evalUse(b, u, st)
@@ -83,7 +134,8 @@ func EvalStatements(b *Block, stmts []expr.Stmt, errs expr.ErrorList) []*Stmt {
 					if bd := b.Env().Lookup(s.Names[0].Name); bd != nil && bd.Value == st.Res.Value {
 						disp = bd.Display // includes the unit a literal is written in
 					}
-					b.AddValue(&NamedValue{Name: s.Names[0].Name, Pos: s.Names[0].Pos(), Value: st.Res.Value, Display: disp, Cases: st.Res.Cases})
+					named = append(named, NamedValue{Name: s.Names[0].Name, Pos: s.Names[0].Pos(), Value: st.Res.Value, Display: disp, Cases: st.Res.Cases})
+					b.AddValue(&named[len(named)-1])
 				} else if m, ok := st.Res.Value.(*expr.Matrix); ok && len(m.E) == len(s.Names) {
 					for i, id := range s.Names {
 						e := m.E[i]
@@ -91,12 +143,14 @@ func EvalStatements(b *Block, stmts []expr.Stmt, errs expr.ErrorList) []*Stmt {
 						if bd := b.Env().Lookup(id.Name); bd != nil {
 							cases = bd.Cases
 						}
-						b.AddValue(&NamedValue{Name: id.Name, Pos: id.Pos(), Value: &e, Display: s.Display, Cases: cases})
+						named = append(named, NamedValue{Name: id.Name, Pos: id.Pos(), Value: &e, Display: s.Display, Cases: cases})
+						b.AddValue(&named[len(named)-1])
 					}
 				}
 			}
 		case *expr.Check:
-			rec := &CheckRecord{Pos: s.Pos(), Text: b.Text(s.Cmp.Pos(), s.Cmp.End()), Result: st.Res.Check, Cases: st.Res.CaseChecks, Governing: st.Res.Governing}
+			checks = append(checks, CheckRecord{Pos: s.Pos(), Text: b.Text(s.Cmp.Pos(), s.Cmp.End()), Result: st.Res.Check, Cases: st.Res.CaseChecks, Governing: st.Res.Governing})
+			rec := &checks[len(checks)-1]
 			for _, err := range st.Res.CaseErrs {
 				rec.NoVerdict = append(rec.NoVerdict, err != nil)
 			}

@@ -78,14 +78,14 @@ func (e *Env) caseName(k int) string {
 
 // caseLit checks a {case: value, ...} against the document's cases and
 // evaluates the branch of the current case.
-func (ev *evaluator) caseLit(n *CaseLit) (Value, error) {
+func (ev *evaluator) caseLit(n *CaseLit) (val, error) {
 	e := ev.env
 	if len(e.Cases) == 0 {
-		return nil, Errorf(n.P, "{…} gives a value per case, but this document has no cases: name them in the front matter, e.g. cases: [max, min]")
+		return val{}, Errorf(n.P, "{…} gives a value per case, but this document has no cases: name them in the front matter, e.g. cases: [max, min]")
 	}
 	for _, id := range n.Names {
 		if e.CaseIndex(id.Name) < 0 {
-			return nil, Errorf(id.P, "unknown case %q: the document's cases are %s", id.Name, strings.Join(e.Cases, ", "))
+			return val{}, Errorf(id.P, "unknown case %q: the document's cases are %s", id.Name, strings.Join(e.Cases, ", "))
 		}
 	}
 	var missing []string
@@ -105,7 +105,7 @@ func (ev *evaluator) caseLit(n *CaseLit) (Value, error) {
 		}
 	}
 	if len(missing) > 0 {
-		return nil, Errorf(n.P, "case %s is missing in {…}: every case of the document (%s) is given a value", strings.Join(missing, ", "), strings.Join(e.Cases, ", "))
+		return val{}, Errorf(n.P, "case %s is missing in {…}: every case of the document (%s) is given a value", strings.Join(missing, ", "), strings.Join(e.Cases, ", "))
 	}
 	e.caseDep = true
 	return ev.eval(n.X[branch])
@@ -119,41 +119,43 @@ type CaseExtreme struct {
 // caseExtreme evaluates casemax(x) or casemin(x): x in every case, the
 // largest or smallest (by magnitude for a complex value). The result
 // depends on no case.
-func (ev *evaluator) caseExtreme(n *Call, max bool) (Value, error) {
+func (ev *evaluator) caseExtreme(n *Call, max bool) (val, error) {
 	name := n.Fun.Name
 	if len(n.Args) != 1 {
-		return nil, Errorf(n.P, "%s takes 1 argument, not %d", name, len(n.Args))
+		return val{}, Errorf(n.P, "%s takes 1 argument, not %d", name, len(n.Args))
 	}
 	e := ev.env
 	if len(e.Cases) == 0 {
-		return nil, Errorf(n.P, "%s needs cases: name them in the front matter, e.g. cases: [max, min]", name)
+		return val{}, Errorf(n.P, "%s needs cases: name them in the front matter, e.g. cases: [max, min]", name)
 	}
 	prevCase, prevDep := e.caseIdx, e.caseDep
 	defer func() { e.caseIdx, e.caseDep = prevCase, prevDep }()
-	var best *Scalar
+	var best val
+	found := false
 	bestK := 0
 	for k := range e.Cases {
 		e.caseIdx = k
 		v, err := ev.eval(n.Args[0])
 		if err != nil {
-			return nil, err
+			return val{}, err
 		}
-		s, ok := scalarOf(v)
-		if !ok {
-			return nil, Errorf(n.Args[0].Pos(), "%s takes a single value, not %s", name, Describe(v))
+		if v.m != nil {
+			return val{}, Errorf(n.Args[0].Pos(), "%s takes a single value, not %s", name, Describe(v.m))
 		}
-		if best != nil {
-			if _, ok := sumDim(best, s); !ok {
-				return nil, Errorf(n.Args[0].Pos(), "%s: the cases differ in unit (%s and %s)", name, dimWord(best.Dim), dimWord(s.Dim))
+		s := &v.s
+		if found {
+			if _, ok := sumDim(&best.s, s); !ok {
+				return val{}, Errorf(n.Args[0].Pos(), "%s: the cases differ in unit (%s and %s)", name, dimWord(best.s.Dim), dimWord(s.Dim))
 			}
 		}
 		m := magnitude(s)
-		if best == nil || (max && m > magnitude(best)) || (!max && m < magnitude(best)) {
-			best, bestK = s, k
+		if !found || (max && m > magnitude(&best.s)) || (!max && m < magnitude(&best.s)) {
+			best, bestK, found = v, k, true
 		}
 	}
 	if ev.trace != nil {
-		ev.trace.extremes = append(ev.trace.extremes, traceExtreme{n, e.Cases[bestK]})
+		m := ev.trace.extra()
+		m.extremes = append(m.extremes, traceExtreme{n, e.Cases[bestK]})
 	}
 	return best, nil
 }
@@ -177,7 +179,10 @@ func (t *Trace) Governing() []string {
 		return nil
 	}
 	var out []string
-	for _, x := range t.extremes {
+	if t.more == nil {
+		return nil
+	}
+	for _, x := range t.more.extremes {
 		out = append(out, fmt.Sprintf("%s: %s", x.call.Fun.Name, x.cas))
 	}
 	return out

@@ -72,14 +72,36 @@ func (e *Env) ChooseDisplay(v Value, bracket *Display, x Node) *Display {
 		form = bracket.Form
 	}
 	if u := LiteralUnit(x); u != nil {
-		return &Display{Text: u.Text, Unit: u, Form: form}
+		return e.display(u, form)
 	}
 	if s, ok := v.(*Scalar); ok {
 		if u := e.Preferred.For(s.Dim, s.Kind); u != nil {
-			return &Display{Text: u.Text, Unit: u, Form: form}
+			return e.display(u, form)
 		}
 	}
 	return bracket
+}
+
+// display is the Display of unit u in form, one for each pair in an
+// environment: the statements written in one unit share it (a Display
+// made here is never changed).
+func (e *Env) display(u *Unit, form Form) *Display {
+	m := e.memory()
+	k := displayKey{u, form}
+	if d := m.displays[k]; d != nil {
+		return d
+	}
+	if m.displays == nil {
+		m.displays = map[displayKey]*Display{}
+	}
+	d := &Display{Text: u.Text, Unit: u, Form: form}
+	m.displays[k] = d
+	return d
+}
+
+type displayKey struct {
+	u    *Unit
+	form Form
 }
 
 // bracketKind applies a display bracket to a power (IEEE 1459 kinds): on

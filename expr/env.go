@@ -58,6 +58,10 @@ type Env struct {
 	// caseDep records that an evaluation read a value with cases.
 	caseIdx int
 	caseDep bool
+	// mem holds the slabs of what Exec keeps (arena.go), made on first
+	// use; a pointer, so that a copy of an Env shares it rather than
+	// handing out the same free elements twice.
+	mem *envMem
 }
 
 // NewEnv returns an empty environment with a budget of DefaultBudget.
@@ -75,13 +79,15 @@ func (e *Env) LookupFunc(name string) *Func { return e.funcs[NameKey(name)] }
 func (e *Env) Names() []string { return append([]string(nil), e.order...) }
 
 // IsBuiltin reports whether name is a built-in function or constant.
-func IsBuiltin(name string) bool {
-	name = NameKey(name)
-	if _, ok := builtins[name]; ok {
+func IsBuiltin(name string) bool { return isBuiltinKey(NameKey(name)) }
+
+// isBuiltinKey is IsBuiltin of a name's key.
+func isBuiltinKey(key string) bool {
+	if _, ok := builtins[key]; ok {
 		return true
 	}
-	_, ok := constants[name]
-	return ok || reserved[name]
+	_, ok := constants[key]
+	return ok || reserved[key]
 }
 
 var reserved = map[string]bool{"check": true, "casemax": true, "casemin": true}
@@ -98,11 +104,15 @@ func BuiltinNames() []string {
 
 // CanDefine reports why name cannot be defined at pos, or nil.
 func (e *Env) CanDefine(name string, pos Pos) *Error {
+	return e.canDefine(name, NameKey(name), pos)
+}
+
+// canDefine is CanDefine of a name whose key is known.
+func (e *Env) canDefine(name, key string, pos Pos) *Error {
 	if tab, col, ok := strings.Cut(name, "."); ok {
 		return Errorf(pos, "%q is a column of a table (%s.%s): a name being defined holds no '.' (write %s_%s)", name, tab, col, tab, col)
 	}
-	key := NameKey(name)
-	if IsBuiltin(key) {
+	if isBuiltinKey(key) {
 		what := "built-in function"
 		if _, ok := constants[key]; ok {
 			what = "built-in constant"
@@ -138,10 +148,11 @@ func sameNameNote(name, first string) string {
 
 // Define adds a value. It returns an error when the name is taken.
 func (e *Env) Define(b *Binding) *Error {
-	if err := e.CanDefine(b.Name, b.Pos); err != nil {
+	key := NameKey(b.Name)
+	if err := e.canDefine(b.Name, key, b.Pos); err != nil {
 		return err
 	}
-	e.vars[NameKey(b.Name)] = b
+	e.vars[key] = b
 	e.order = append(e.order, b.Name)
 	return nil
 }

@@ -12,9 +12,23 @@ import (
 // the values substituted. The zero Trace is empty and ready to use.
 type Trace struct {
 	entries []traceEntry
+	// more holds what few lines record: a trace costs one pointer for it
+	more *traceMore
+}
+
+// traceMore is what a trace records besides the values of names.
+type traceMore struct {
 	lookups []Lookup // the table look-ups (tables.go)
 	// extremes are the cases casemax and casemin chose (cases.go)
 	extremes []traceExtreme
+}
+
+// extra returns t's traceMore, making it.
+func (t *Trace) extra() *traceMore {
+	if t.more == nil {
+		t.more = new(traceMore)
+	}
+	return t.more
 }
 
 type traceEntry struct {
@@ -72,7 +86,25 @@ type evaluator struct {
 	env    *Env
 	trace  *Trace
 	locals map[string]Value
+	// params and args are the parameters (keys) of the user function
+	// being evaluated and their values, seen before locals: a call
+	// hands its arguments over without a map or a box
+	params []string
+	args   []val
 	depth  int
+}
+
+// local is the value of a parameter or a local name.
+func (ev *evaluator) local(key string) (val, bool) {
+	for i, p := range ev.params {
+		if p == key {
+			return ev.args[i], true
+		}
+	}
+	if v, ok := ev.locals[key]; ok {
+		return unbox(v), true
+	}
+	return val{}, false
 }
 
 // charge spends n units of the document's budget for work at pos (see
@@ -91,8 +123,8 @@ func (ev *evaluator) charge(n int64, pos Pos) error {
 // user-function bodies are not).
 // The error is an *Error or an *UnavailableError.
 func (e *Env) Eval(n Node, trace *Trace) (Value, error) {
-	ev := &evaluator{env: e, trace: trace}
-	return ev.eval(n)
+	ev := evaluator{env: e, trace: trace}
+	return ev.result(n)
 }
 
 // EvalWith evaluates n with extra local names (the parameters of a user
@@ -103,8 +135,8 @@ func (e *Env) EvalWith(n Node, locals map[string]Value, trace *Trace) (Value, er
 	if err := e.Budget.Charge(LocalWork*int64(len(locals)), n.Pos()); err != nil {
 		return nil, err
 	}
-	ev := &evaluator{env: e, trace: trace, locals: keyedLocals(locals)}
-	return ev.eval(n)
+	ev := evaluator{env: e, trace: trace, locals: keyedLocals(locals)}
+	return ev.result(n)
 }
 
 // EvalKeyed is EvalWith for locals already keyed by NameKey, as a sweep
@@ -118,17 +150,40 @@ func (e *Env) EvalKeyed(n Node, locals map[string]Value, trace *Trace) (Value, e
 	if err := e.Budget.Charge(KeyedWork, n.Pos()); err != nil {
 		return nil, err
 	}
-	ev := &evaluator{env: e, trace: trace, locals: locals}
-	return ev.eval(n)
+	ev := evaluator{env: e, trace: trace, locals: locals}
+	return ev.result(n)
 }
 
-func (ev *evaluator) eval(n Node) (Value, error) {
+// result evaluates n and boxes its value: the one allocation of a
+// scalar result.
+func (ev *evaluator) result(n Node) (Value, error) {
+	v, err := ev.eval(n)
+	if err != nil {
+		return nil, err
+	}
+	return v.value(), nil
+}
+
+// eval charges a node's work, computes its value and checks it (check):
+// finite, of a physical unit, its power kind settled, recorded in the
+// trace.
+func (ev *evaluator) eval(n Node) (val, error) {
 	if b, ok := n.(*Binary); ok {
 		if _, left := b.X.(*Binary); left {
 			return ev.evalChain(b)
 		}
 	}
-	return ev.node(n, func() (Value, error) { return ev.eval1(n) })
+	if err := ev.charge(NodeWork, n.Pos()); err != nil {
+		return val{}, err
+	}
+	v, err := ev.eval1(n)
+	if err != nil {
+		return val{}, err
+	}
+	if err := ev.check(n, &v); err != nil {
+		return val{}, err
+	}
+	return v, nil
 }
 
 // evalChain evaluates a binary operation whose left operand is one too
@@ -136,8 +191,9 @@ func (ev *evaluator) eval(n Node) (Value, error) {
 // loop rather than a recursion, so that a sum of a million terms costs a
 // million steps and no stack. Each operation is charged and checked as
 // eval does.
-func (ev *evaluator) evalChain(top *Binary) (Value, error) {
-	var spine []*Binary
+func (ev *evaluator) evalChain(top *Binary) (val, error) {
+	var buf [8]*Binary
+	spine := buf[:0]
 	var x Node = top
 	for {
 		b, ok := x.(*Binary)
@@ -149,12 +205,18 @@ func (ev *evaluator) evalChain(top *Binary) (Value, error) {
 	}
 	acc, err := ev.eval(x)
 	if err != nil {
-		return nil, err
+		return val{}, err
 	}
 	for i := len(spine) - 1; i >= 0; i-- {
-		b, left := spine[i], acc
-		if acc, err = ev.node(b, func() (Value, error) { return ev.binary(b, left) }); err != nil {
-			return nil, err
+		b := spine[i]
+		if err := ev.charge(NodeWork, b.Pos()); err != nil {
+			return val{}, err
+		}
+		if acc, err = ev.binary(b, acc); err != nil {
+			return val{}, err
+		}
+		if err := ev.check(b, &acc); err != nil {
+			return val{}, err
 		}
 	}
 	return acc, nil
@@ -162,51 +224,30 @@ func (ev *evaluator) evalChain(top *Binary) (Value, error) {
 
 // binary evaluates the right operand of n and applies n to the left
 // operand's value x.
-func (ev *evaluator) binary(n *Binary, x Value) (Value, error) {
+func (ev *evaluator) binary(n *Binary, x val) (val, error) {
 	y, err := ev.eval(n.Y)
 	if err != nil {
-		return nil, err
+		return val{}, err
 	}
 	if n.Op != ADD && n.Op != SUB {
 		// an absolute temperature enters a product, quotient, power
 		// or parallel combination in K (temperature.go)
 		x, y = ev.inKelvin(n.X, x), ev.inKelvin(n.Y, y)
 	}
-	if w := productWork(n, x, y); w > 0 {
-		if err := ev.charge(w, n.OpPos); err != nil {
-			return nil, err
-		}
-	}
-	return binaryOp(n, x, y)
-}
-
-// node charges a node's work, computes its value with f and checks it:
-// finite, of a physical unit, its power kind settled, recorded in the
-// trace.
-func (ev *evaluator) node(n Node, f func() (Value, error)) (Value, error) {
-	if err := ev.charge(NodeWork, n.Pos()); err != nil {
-		return nil, err
-	}
-	v, err := f()
-	if err == nil {
-		// the checks below look at every entry of a matrix value
-		if k := entries(v); k > 1 {
-			if err := ev.charge(EntryWork*k, n.Pos()); err != nil {
-				return nil, err
+	if x.m != nil || y.m != nil {
+		if w := productWorkVal(n, &x, &y); w > 0 {
+			if err := ev.charge(w, n.OpPos); err != nil {
+				return val{}, err
 			}
 		}
-		if err := nonFinite(n, v); err != nil {
-			return nil, err
+		r, err := matrixOp(n, x.value(), y.value())
+		if err != nil {
+			return val{}, err
 		}
-		v = settleKinds(v)
-		if !dimsInRange(v) {
-			return nil, Errorf(n.Pos(), "the unit of this value has an exponent beyond ±%d: not a physical quantity", MaxExponent)
-		}
-		if ev.trace != nil {
-			ev.trace.record(n, v)
-		}
+		return unbox(r), nil
 	}
-	return v, err
+	s, err := binaryScalar(n, x.s, y.s)
+	return val{s: s}, err
 }
 
 func scalarOf(v Value) (*Scalar, bool) {
@@ -230,13 +271,13 @@ func Describe(v Value) string {
 	return "?"
 }
 
-func (ev *evaluator) eval1(n Node) (Value, error) {
+func (ev *evaluator) eval1(n Node) (val, error) {
 	switch n := n.(type) {
 	case *Number:
 		if n.Imag {
-			return &Scalar{Z: complex(0, n.Value)}, nil
+			return val{s: Scalar{Z: complex(0, n.Value)}}, nil
 		}
-		return &Scalar{Z: complex(n.Value, 0)}, nil
+		return val{s: Scalar{Z: complex(n.Value, 0)}}, nil
 	case *Ident:
 		return ev.ident(n)
 	case *Paren:
@@ -244,63 +285,65 @@ func (ev *evaluator) eval1(n Node) (Value, error) {
 	case *WithUnit:
 		x, err := ev.eval(n.X)
 		if err != nil {
-			return nil, err
+			return val{}, err
 		}
 		if n.Unit.Offset != 0 {
-			return withOffsetUnit(n, x, false)
+			return ev.withOffsetUnit(n, x, false)
 		}
-		s, ok := scalarOf(x)
-		if !ok {
-			m := x.(*Matrix)
+		if m := x.m; m != nil {
 			out := NewMatrix(m.Rows, m.Cols)
 			for i, e := range m.E {
 				out.E[i] = Scalar{Z: e.Z * complex(n.Unit.Scale, 0), Dim: e.Dim.Mul(n.Unit.Dim), Angle: n.Unit.Angle && e.Dim.IsZero(), Kind: n.Unit.Kind}
 				if out.E[i].Z == 0 && e.Z != 0 {
-					return nil, underflow(opPos(n), "value in "+n.Unit.Text)
+					return val{}, underflow(opPos(n), "value in "+n.Unit.Text)
 				}
 			}
 			out.Resid = residScale(m, complex(n.Unit.Scale, 0), false)
-			return out, nil
+			return val{m: out}, nil
 		}
+		s := &x.s
 		if z := s.Z * complex(n.Unit.Scale, 0); z == 0 && s.Z != 0 {
-			return nil, underflow(opPos(n), "value in "+n.Unit.Text)
+			return val{}, underflow(opPos(n), "value in "+n.Unit.Text)
 		}
-		return &Scalar{Z: s.Z * complex(n.Unit.Scale, 0), Dim: s.Dim.Mul(n.Unit.Dim), Angle: n.Unit.Angle && s.Dim.IsZero(), Kind: n.Unit.Kind}, nil
+		return val{s: Scalar{Z: s.Z * complex(n.Unit.Scale, 0), Dim: s.Dim.Mul(n.Unit.Dim), Angle: n.Unit.Angle && s.Dim.IsZero(), Kind: n.Unit.Kind}}, nil
 	case *Unary:
 		if u, ok := n.X.(*WithUnit); ok && n.Op == SUB && u.Unit.Offset != 0 {
 			// "-20 °C" is (-20) °C, a temperature below zero on the scale
 			x, err := ev.eval(u.X)
 			if err != nil {
-				return nil, err
+				return val{}, err
 			}
-			return withOffsetUnit(u, x, true)
+			return ev.withOffsetUnit(u, x, true)
 		}
 		x, err := ev.eval(n.X)
 		if err != nil {
-			return nil, err
+			return val{}, err
 		}
 		if n.Op == ADD {
 			return x, nil
 		}
-		if hasTemp(x) {
-			return nil, negTemp(n.P, x)
+		if x.hasTemp() {
+			return val{}, negTemp(n.P, x.value())
 		}
-		return neg(x), nil
+		if x.m != nil {
+			return val{m: neg(x.m).(*Matrix)}, nil
+		}
+		return val{s: Scalar{Z: canonZ(-x.s.Z), Dim: x.s.Dim, Angle: x.s.Angle, Kind: x.s.Kind}}, nil
 	case *Abs:
 		x, err := ev.eval(n.X)
 		if err != nil {
-			return nil, err
+			return val{}, err
 		}
 		x = ev.inKelvin(n.X, x)
-		s, ok := scalarOf(x)
-		if !ok {
-			return nil, Errorf(n.P, "|x| needs a single value, not %s (use det for a determinant)", Describe(x))
+		if x.m != nil {
+			return val{}, Errorf(n.P, "|x| needs a single value, not %s (use det for a determinant)", Describe(x.m))
 		}
-		return &Scalar{Z: complex(cmplx.Abs(s.Z), 0), Dim: s.Dim, Kind: absKind(s)}, nil
+		s := &x.s
+		return val{s: Scalar{Z: complex(cmplx.Abs(s.Z), 0), Dim: s.Dim, Kind: absKind(s)}}, nil
 	case *Binary:
 		x, err := ev.eval(n.X)
 		if err != nil {
-			return nil, err
+			return val{}, err
 		}
 		return ev.binary(n, x)
 	case *Call:
@@ -311,24 +354,23 @@ func (ev *evaluator) eval1(n Node) (Value, error) {
 			for j, en := range row {
 				v, err := ev.eval(en)
 				if err != nil {
-					return nil, err
+					return val{}, err
 				}
-				s, ok := scalarOf(v)
-				if !ok {
-					return nil, Errorf(en.Pos(), "a matrix entry must be a single value, not %s", Describe(v))
+				if v.m != nil {
+					return val{}, Errorf(en.Pos(), "a matrix entry must be a single value, not %s", Describe(v.m))
 				}
-				m.Set(i, j, *s)
+				m.Set(i, j, v.s)
 			}
 		}
-		return m, nil
+		return val{m: m}, nil
 	case *CaseLit:
 		return ev.caseLit(n)
 	case *Compare:
-		return nil, Errorf(n.P, "a comparison is allowed only in a check")
+		return val{}, Errorf(n.P, "a comparison is allowed only in a check")
 	case *BadExpr:
-		return nil, Errorf(n.P, "this expression could not be read")
+		return val{}, Errorf(n.P, "this expression could not be read")
 	}
-	return nil, Errorf(n.Pos(), "cannot evaluate this expression")
+	return val{}, Errorf(n.Pos(), "cannot evaluate this expression")
 }
 
 // keyedLocals returns locals keyed by NameKey: locals itself when every
@@ -346,40 +388,49 @@ func keyedLocals(locals map[string]Value) map[string]Value {
 	return locals
 }
 
-func (ev *evaluator) ident(n *Ident) (Value, error) {
+func (ev *evaluator) ident(n *Ident) (val, error) {
 	key := n.key()
-	if v, ok := ev.locals[key]; ok {
+	if v, ok := ev.local(key); ok {
 		return v, nil
 	}
 	if b := ev.env.vars[key]; b != nil {
 		if b.Unavailable {
-			return nil, &UnavailableError{Pos: n.P, Name: n.Name, Def: b.cause()}
+			return val{}, &UnavailableError{Pos: n.P, Name: n.Name, Def: b.cause()}
 		}
-		return ev.env.bindingValue(b, n.P, n.Name)
+		v, err := ev.env.bindingValue(b, n.P, n.Name)
+		if err != nil {
+			return val{}, err
+		}
+		return unbox(v), nil
 	}
 	if err := ev.tableRef(n); err != nil {
-		return nil, err
+		return val{}, err
 	}
 	if c, ok := constants[key]; ok {
-		return c, nil
+		return unbox(c), nil
 	}
 	if _, ok := builtins[key]; ok {
-		return nil, Errorf(n.P, "%q is a function: call it with parentheses, e.g. %s(x)", n.Name, n.Name)
+		return val{}, Errorf(n.P, "%q is a function: call it with parentheses, e.g. %s(x)", n.Name, n.Name)
 	}
 	if f := ev.env.funcs[key]; f != nil {
-		return nil, Errorf(n.P, "%q is a function defined at line %d: call it with parentheses", n.Name, f.Pos.Line())
+		return val{}, Errorf(n.P, "%q is a function defined at line %d: call it with parentheses", n.Name, f.Pos.Line())
 	}
-	return nil, Errorf(n.P, "unknown name %q%s", n.Name, ev.suggestName(n.Name))
+	return val{}, Errorf(n.P, "unknown name %q%s", n.Name, ev.suggestName(n.Name))
 }
 
 func (ev *evaluator) suggestName(name string) string {
 	best, bestD := "", 3
 	// a suggestion compares the name with every name: optional work, left
 	// out when the budget cannot hold it
-	if !ev.env.Budget.TryCharge(suggestWork * int64(len(ev.env.order)+len(ev.locals))) {
+	if !ev.env.Budget.TryCharge(suggestWork * int64(len(ev.env.order)+len(ev.params)+len(ev.locals))) {
 		return ""
 	}
 	for _, k := range ev.env.order {
+		if d := editDistance(name, k); d < bestD && d <= len(name)/2 {
+			best, bestD = k, d
+		}
+	}
+	for _, k := range ev.params {
 		if d := editDistance(name, k); d < bestD && d <= len(name)/2 {
 			best, bestD = k, d
 		}
@@ -432,17 +483,14 @@ func opName(k Kind) string {
 	return k.String()
 }
 
-func binaryOp(n *Binary, x, y Value) (Value, error) {
-	xs, xok := scalarOf(x)
-	ys, yok := scalarOf(y)
-	if !xok || !yok {
-		return matrixOp(n, x, y)
-	}
+// binaryScalar applies the operator of n to two single values.
+func binaryScalar(n *Binary, xv, yv Scalar) (Scalar, error) {
+	xs, ys := &xv, &yv
 	switch n.Op {
 	case ADD, SUB:
 		d, ok := sumDim(xs, ys)
 		if !ok {
-			return nil, unitMismatch(n, opName(n.Op), xs, ys)
+			return Scalar{}, unitMismatch(n, opName(n.Op), xv, yv)
 		}
 		z := xs.Z + ys.Z
 		if n.Op == SUB {
@@ -450,56 +498,59 @@ func binaryOp(n *Binary, x, y Value) (Value, error) {
 		}
 		k, err := sumKind(n, xs, ys)
 		if err != nil {
-			return nil, err
+			return Scalar{}, err
 		}
 		t, err := sumTemp(n.Op, n.OpPos, xs, ys)
 		if err != nil {
-			return nil, err
+			return Scalar{}, err
 		}
 		// a ± b is an angle when both are (LANGUAGE.md section 3)
-		return &Scalar{Z: z, Dim: d, Angle: xs.Angle && ys.Angle, Kind: k, AbsTemp: t}, nil
+		return Scalar{Z: z, Dim: d, Angle: xs.Angle && ys.Angle, Kind: k, AbsTemp: t}, nil
 	case MUL:
 		if z := xs.Z * ys.Z; z == 0 && xs.Z != 0 && ys.Z != 0 {
-			return nil, underflow(n.OpPos, "product")
+			return Scalar{}, underflow(n.OpPos, "product")
 		}
 		// a·k and k·a with k a plain number that is not an angle
-		return &Scalar{Z: xs.Z * ys.Z, Dim: xs.Dim.Mul(ys.Dim), Angle: xs.Angle && isPlainFactor(ys) || ys.Angle && isPlainFactor(xs), Kind: scaledKind(xs, ys) | scaledKind(ys, xs)}, nil
+		return Scalar{Z: xs.Z * ys.Z, Dim: xs.Dim.Mul(ys.Dim), Angle: xs.Angle && isPlainFactor(ys) || ys.Angle && isPlainFactor(xs), Kind: scaledKind(xs, ys) | scaledKind(ys, xs)}, nil
 	case DIV:
 		if ys.Z == 0 {
-			return nil, Errorf(n.Y.Pos(), "division by zero: the divisor is 0")
+			return Scalar{}, Errorf(n.Y.Pos(), "division by zero: the divisor is 0")
 		}
 		if z := xs.Z / ys.Z; z == 0 && xs.Z != 0 {
-			return nil, underflow(n.OpPos, "quotient")
+			return Scalar{}, underflow(n.OpPos, "quotient")
 		}
-		return &Scalar{Z: xs.Z / ys.Z, Dim: xs.Dim.Div(ys.Dim), Angle: xs.Angle && isPlainFactor(ys), Kind: scaledKind(xs, ys)}, nil
+		return Scalar{Z: xs.Z / ys.Z, Dim: xs.Dim.Div(ys.Dim), Angle: xs.Angle && isPlainFactor(ys), Kind: scaledKind(xs, ys)}, nil
 	case PAR:
 		if xs.Dim != ys.Dim {
-			return nil, unitMismatch(n, opName(n.Op), xs, ys)
+			return Scalar{}, unitMismatch(n, opName(n.Op), xv, yv)
 		}
 		z, err := parallel(n.OpPos, xs.Z, ys.Z)
 		if err != nil {
-			return nil, err
+			return Scalar{}, err
 		}
-		return &Scalar{Z: z, Dim: xs.Dim}, nil
+		return Scalar{Z: z, Dim: xs.Dim}, nil
 	case ANGLE:
 		if err := checkAngle(n.Y, ys, "the angle after ∠"); err != nil {
-			return nil, err
+			return Scalar{}, err
 		}
 		if !ys.IsReal() {
-			return nil, Errorf(n.Y.Pos(), "the angle after ∠ must be real, not %s", Describe(ys))
+			return Scalar{}, Errorf(n.Y.Pos(), "the angle after ∠ must be real, not %s", describeScalar(yv))
 		}
 		if !xs.IsReal() {
-			return nil, Errorf(n.X.Pos(), "the magnitude before ∠ must be real, not %s (use abs() for a magnitude)", Describe(xs))
+			return Scalar{}, Errorf(n.X.Pos(), "the magnitude before ∠ must be real, not %s (use abs() for a magnitude)", describeScalar(xv))
 		}
-		return &Scalar{Z: complex(real(xs.Z), 0) * cmplx.Rect(1, real(ys.Z)), Dim: xs.Dim}, nil
+		return Scalar{Z: complex(real(xs.Z), 0) * cmplx.Rect(1, real(ys.Z)), Dim: xs.Dim}, nil
 	case POW:
 		return power(n, xs, ys)
 	}
-	return nil, Errorf(n.P, "unknown operator %s", n.Op)
+	return Scalar{}, Errorf(n.P, "unknown operator %s", n.Op)
 }
 
-func unitMismatch(n *Binary, verb string, x, y *Scalar) error {
-	return Errorf(n.OpPos, "cannot %s %s and %s: the units differ (%s and %s)", verb, Describe(x), Describe(y), dimWord(x.Dim), dimWord(y.Dim))
+// describeScalar is Describe of a single value held by value.
+func describeScalar(s Scalar) string { return Describe(&s) }
+
+func unitMismatch(n *Binary, verb string, x, y Scalar) error {
+	return Errorf(n.OpPos, "cannot %s %s and %s: the units differ (%s and %s)", verb, describeScalar(x), describeScalar(y), dimWord(x.Dim), dimWord(y.Dim))
 }
 
 // dimWord names a dimension in the words of the trade.
@@ -543,13 +594,13 @@ func DimWord(d Dim) string { return dimWord(d) }
 // power computes x^y. y must be dimensionless; when x has a unit, y must be
 // real and make every exponent of the unit whole. Whole exponents are
 // computed by repeated multiplication, so that j^2 is exactly -1.
-func power(n *Binary, x, y *Scalar) (Value, error) {
+func power(n *Binary, x, y *Scalar) (Scalar, error) {
 	if !y.Dim.IsZero() {
-		return nil, Errorf(n.Y.Pos(), "an exponent must be a plain number, not %s", Describe(y))
+		return Scalar{}, Errorf(n.Y.Pos(), "an exponent must be a plain number, not %s", describeScalar(*y))
 	}
 	if !x.Dim.IsZero() {
 		if !y.IsReal() {
-			return nil, Errorf(n.Y.Pos(), "a quantity with a unit can only be raised to a real power")
+			return Scalar{}, Errorf(n.Y.Pos(), "a quantity with a unit can only be raised to a real power")
 		}
 		p := real(y.Z)
 		var d Dim
@@ -557,24 +608,24 @@ func power(n *Binary, x, y *Scalar) (Value, error) {
 			v := float64(e) * p
 			r := math.Round(v)
 			if math.Abs(v-r) > 1e-9 || math.Abs(r) > 100 {
-				return nil, Errorf(n.Y.Pos(), "cannot raise %s to the power %g: the unit's exponents would not be whole numbers", dimWord(x.Dim), p)
+				return Scalar{}, Errorf(n.Y.Pos(), "cannot raise %s to the power %g: the unit's exponents would not be whole numbers", dimWord(x.Dim), p)
 			}
 			d[i] = int8(r)
 		}
 		z := powZ(x.Z, y.Z)
 		if z == 0 && x.Z != 0 {
-			return nil, underflow(n.OpPos, "power")
+			return Scalar{}, underflow(n.OpPos, "power")
 		}
-		return &Scalar{Z: z, Dim: d}, nil
+		return Scalar{Z: z, Dim: d}, nil
 	}
 	z := powZ(x.Z, y.Z)
 	if x.Z == 0 && real(y.Z) < 0 {
-		return nil, Errorf(n.P, "0 raised to a negative power is infinite")
+		return Scalar{}, Errorf(n.P, "0 raised to a negative power is infinite")
 	}
 	if z == 0 && x.Z != 0 {
-		return nil, underflow(n.OpPos, "power")
+		return Scalar{}, underflow(n.OpPos, "power")
 	}
-	return &Scalar{Z: z}, nil
+	return Scalar{Z: z}, nil
 }
 
 func powZ(x, y complex128) complex128 {
@@ -602,175 +653,6 @@ func powZ(x, y complex128) complex128 {
 		}
 	}
 	return cmplx.Pow(x, y)
-}
-
-func (ev *evaluator) call(n *Call) (Value, error) {
-	name, key := n.Fun.Name, n.Fun.key()
-	if n.Fun.Dot > 0 || tableFuncs[key] {
-		return ev.lookup(n) // a look-up in a table (tables.go)
-	}
-	// an entry of a matrix value: M(i, j), v(i)
-	if v, ok := ev.locals[key]; ok {
-		return ev.index(n, v)
-	}
-	if b := ev.env.vars[key]; b != nil {
-		if b.Unavailable {
-			return nil, &UnavailableError{Pos: n.Fun.P, Name: name, Def: b.cause()}
-		}
-		v, err := ev.env.bindingValue(b, n.Fun.P, name)
-		if err != nil {
-			return nil, err
-		}
-		return ev.index(n, v)
-	}
-	if key == "casemax" || key == "casemin" {
-		return ev.caseExtreme(n, key == "casemax")
-	}
-	args := make([]Value, len(n.Args))
-	for i, a := range n.Args {
-		v, err := ev.eval(a)
-		if err != nil {
-			return nil, err
-		}
-		if !keepsTemp[key] || ev.env.funcs[key] != nil {
-			v = ev.inKelvin(a, v) // a function takes an absolute temperature in K
-		}
-		args[i] = v
-	}
-	if f := ev.env.funcs[key]; f != nil {
-		if len(args) != len(f.Params) {
-			return nil, Errorf(n.P, "%s takes %d argument%s (defined at line %d), not %d", name, len(f.Params), plural(len(f.Params)), f.Pos.Line(), len(args))
-		}
-		if ev.depth >= MaxCallDepth {
-			return nil, Errorf(n.P, "functions call each other too deeply (more than %d levels)", MaxCallDepth)
-		}
-		locals := make(map[string]Value, len(args))
-		for i, p := range f.keys {
-			locals[p] = args[i]
-		}
-		if err := ev.charge(CallWork+int64(len(args)), n.P); err != nil {
-			return nil, err
-		}
-		sub := &evaluator{env: ev.env, locals: locals, depth: ev.depth + 1}
-		v, err := sub.eval(f.Body)
-		if err != nil {
-			if e, ok := err.(*Error); ok && e == ev.env.Budget.Over() {
-				// the work is the calling line's: the error moves out to
-				// the outermost call, on that line
-				e.Pos = n.P
-				return nil, e
-			}
-			if e, ok := err.(*Error); ok {
-				return nil, Errorf(n.P, "in %s (defined at line %d): %s", name, f.Pos.Line(), e.Msg)
-			}
-			return nil, err
-		}
-		return v, nil
-	}
-	bf, ok := builtins[key]
-	if !ok {
-		return nil, Errorf(n.Fun.P, "unknown function %q%s", name, ev.suggestFunc(name))
-	}
-	if len(args) < bf.min || (bf.max >= 0 && len(args) > bf.max) {
-		want := fmt.Sprint(bf.min)
-		if bf.max != bf.min {
-			if bf.max < 0 {
-				want = fmt.Sprintf("at least %d", bf.min)
-			} else {
-				want = fmt.Sprintf("%d to %d", bf.min, bf.max)
-			}
-		}
-		pl := plural(bf.max) // "1 to 3 arguments"
-		if bf.max < 0 {
-			pl = plural(bf.min) // "at least 1 argument"
-		}
-		return nil, Errorf(n.P, "%s takes %s argument%s, not %d", name, want, pl, len(args))
-	}
-	if key == "polar" && len(args) == 2 {
-		if a, ok := scalarOf(args[1]); ok {
-			if err := checkAngle(n.Args[1], a, "the second argument of polar"); err != nil {
-				return nil, err
-			}
-		}
-	}
-	if err := ev.charge(builtinWork(key, args), n.P); err != nil {
-		return nil, err
-	}
-	v, err := bf.fn(args)
-	if err != nil {
-		return nil, Errorf(n.P, "%s: %s", name, err.Error())
-	}
-	return v, nil
-}
-
-func (ev *evaluator) suggestFunc(name string) string {
-	best, bestD := "", 3
-	if !ev.env.Budget.TryCharge(suggestWork * int64(len(builtins)+len(ev.env.funcs))) {
-		return ""
-	}
-	for k := range builtins {
-		if d := editDistance(name, k); d < bestD && d <= len(name)/2 {
-			best, bestD = k, d
-		}
-	}
-	for k := range ev.env.funcs {
-		if d := editDistance(name, k); d < bestD && d <= len(name)/2 {
-			best, bestD = k, d
-		}
-	}
-	if best != "" {
-		return fmt.Sprintf(" (did you mean %q?)", best)
-	}
-	return ""
-}
-
-func plural(n int) string {
-	if n == 1 {
-		return ""
-	}
-	return "s"
-}
-
-func (ev *evaluator) index(n *Call, v Value) (Value, error) {
-	m, ok := v.(*Matrix)
-	if !ok {
-		return nil, Errorf(n.P, "%q is a value, not a function or a matrix: it cannot be called or indexed", n.Fun.Name)
-	}
-	idx := make([]int, len(n.Args))
-	for i, a := range n.Args {
-		x, err := ev.eval(a)
-		if err != nil {
-			return nil, err
-		}
-		s, ok := scalarOf(x)
-		if !ok || !s.Dim.IsZero() || !s.IsReal() || real(s.Z) != math.Trunc(real(s.Z)) {
-			return nil, Errorf(a.Pos(), "an index must be a whole number counting from 1, not %s", Describe(x))
-		}
-		idx[i] = int(real(s.Z))
-	}
-	switch len(idx) {
-	case 1:
-		k := idx[0]
-		if m.Cols != 1 && m.Rows != 1 {
-			return nil, Errorf(n.P, "%q is a %d×%d matrix: pick an entry with two indices, %s(row, column)", n.Fun.Name, m.Rows, m.Cols, n.Fun.Name)
-		}
-		if k < 1 || k > len(m.E) {
-			return nil, Errorf(n.Args[0].Pos(), "index %d out of range: %s has %d entries (counting from 1)", k, n.Fun.Name, len(m.E))
-		}
-		s := m.E[k-1]
-		return &s, nil
-	case 2:
-		i, j := idx[0], idx[1]
-		if i < 1 || i > m.Rows {
-			return nil, Errorf(n.Args[0].Pos(), "row %d out of range: %s has %d rows (counting from 1)", i, n.Fun.Name, m.Rows)
-		}
-		if j < 1 || j > m.Cols {
-			return nil, Errorf(n.Args[1].Pos(), "column %d out of range: %s has %d columns (counting from 1)", j, n.Fun.Name, m.Cols)
-		}
-		s := m.At(i-1, j-1)
-		return &s, nil
-	}
-	return nil, Errorf(n.P, "an entry is picked with one index (a vector) or two (a matrix), not %d", len(idx))
 }
 
 // trimZeros drops trailing zeros after a decimal point: "3.000" -> "3".

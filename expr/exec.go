@@ -25,16 +25,31 @@ const EqualTolerance = 1e-9
 
 // EvalCheck evaluates a comparison chain.
 func (e *Env) EvalCheck(c *Compare, trace *Trace) (*CheckResult, error) {
-	ev := &evaluator{env: e, trace: trace}
-	res := &CheckResult{Pass: true}
-	for _, x := range c.X {
+	ev := evaluator{env: e, trace: trace}
+	// the result, its lists and its computed values in one allocation
+	// for a check of one comparison
+	ca := new(checkAlloc)
+	res := &ca.res
+	res.Pass = true
+	if len(c.X) <= len(ca.vals) {
+		res.Values, res.Holds = ca.vals[:0:len(c.X)], ca.holds[:0:len(c.Ops)]
+	} else {
+		res.Values, res.Holds = make([]*Scalar, 0, len(c.X)), make([]bool, 0, len(c.Ops))
+	}
+	for i, x := range c.X {
 		v, err := ev.eval(x)
 		if err != nil {
 			return nil, err
 		}
-		s, ok := v.(*Scalar)
-		if !ok {
-			return nil, Errorf(x.Pos(), "a check compares single values, not %s", shapeWord(v))
+		if v.m != nil {
+			return nil, Errorf(x.Pos(), "a check compares single values, not %s", shapeWord(v.m))
+		}
+		s := v.box
+		if s == nil && i < len(ca.scalars) {
+			ca.scalars[i] = v.s
+			s = &ca.scalars[i]
+		} else if s == nil {
+			s = v.value().(*Scalar)
 		}
 		if !s.IsFinite() {
 			// never a verdict on a value that is not finite (LANGUAGE.md section 4)
@@ -99,6 +114,15 @@ func (e *Env) EvalCheck(c *Compare, trace *Trace) (*CheckResult, error) {
 	return res, nil
 }
 
+// checkAlloc is a CheckResult with room for the two values of a check
+// of one comparison (EvalCheck).
+type checkAlloc struct {
+	res     CheckResult
+	vals    [2]*Scalar
+	holds   [1]bool
+	scalars [2]Scalar
+}
+
 // Result is what executing one statement gives.
 type Result struct {
 	Stmt  Stmt
@@ -129,7 +153,25 @@ type Result struct {
 // whose definition fails is defined as unavailable, so later lines that
 // use it say so once instead of repeating the error.
 func (e *Env) Exec(s Stmt) *Result {
-	r := &Result{Stmt: s, Trace: &Trace{}}
+	// the result and its trace in one allocation, from a slab that grows
+	// with the statements (arena.go); the trace records into a buffer
+	// the environment reuses and keeps a copy of exactly its length
+	mem := e.memory()
+	rt := mem.results.alloc(slabLimit)
+	r := &rt.r
+	r.Stmt, r.Trace = s, &rt.t
+	r.Trace.entries = mem.traceBuf[:0]
+	mem.traceBuf = nil // a nested Exec (none today) would start its own
+	e.exec(s, r)
+	buf := r.Trace.entries
+	r.Trace.entries = mem.entries.keep(buf, 8*slabLimit)
+	clear(buf)
+	mem.traceBuf = buf[:0]
+	return r
+}
+
+// exec is Exec's work on r.
+func (e *Env) exec(s Stmt, r *Result) {
 	e.Budget.Begin(s.Pos(), "line")
 	switch s := s.(type) {
 	case *Note:
@@ -137,14 +179,14 @@ func (e *Env) Exec(s Stmt) *Result {
 		e.defineUnavailable(s.Names)
 	case *Assign:
 		for i, id := range s.Names {
-			if err := e.CanDefine(id.Name, id.P); err != nil {
+			if err := e.canDefine(id.Name, id.key(), id.P); err != nil {
 				r.Err = err
-				return r
+				return
 			}
 			for _, prev := range s.Names[:i] {
 				if prev.key() == id.key() {
 					r.Err = Errorf(id.P, "%q is listed twice before \"=\"%s: each name is defined once", id.Name, sameNameNote(id.Name, prev.Name))
-					return r
+					return
 				}
 			}
 		}
@@ -156,7 +198,7 @@ func (e *Env) Exec(s Stmt) *Result {
 				cause = u.Def
 			}
 			e.defineUnavailableAt(s.Names, cause)
-			return r
+			return
 		}
 		r.Value = v
 		if len(s.Names) > 1 {
@@ -164,7 +206,7 @@ func (e *Env) Exec(s Stmt) *Result {
 			if !ok || (m.Cols != 1 && m.Rows != 1) || len(m.E) != len(s.Names) {
 				r.Err = Errorf(s.Names[0].P, "%d names are assigned but the value is %s: give as many names as it has entries", len(s.Names), shapeWord(v))
 				e.defineUnavailable(s.Names)
-				return r
+				return
 			}
 			for i, id := range s.Names {
 				x := m.E[i]
@@ -180,7 +222,7 @@ func (e *Env) Exec(s Stmt) *Result {
 				}
 				e.Define(b)
 			}
-			return r
+			return
 		}
 		if err := checkDisplayCases(v, cases, s.Display); err != nil {
 			// a line whose display unit fails defines nothing: later uses
@@ -188,7 +230,7 @@ func (e *Env) Exec(s Stmt) *Result {
 			r.Err = Errorf(s.Display.P, "%s: %s", s.Names[0].Name, err.Error())
 			r.Value = nil
 			e.defineUnavailableAt(s.Names, s.Names[0].P)
-			return r
+			return
 		}
 		kv, kerr := bracketKind(v, s.X, s.Display)
 		if kerr != nil {
@@ -196,7 +238,7 @@ func (e *Env) Exec(s Stmt) *Result {
 			r.Err = kerr
 			r.Value = nil
 			e.defineUnavailableAt(s.Names, s.Names[0].P)
-			return r
+			return
 		}
 		v, r.Value = kv, kv
 		if cases != nil {
@@ -207,36 +249,38 @@ func (e *Env) Exec(s Stmt) *Result {
 				if cases[k], kerr = bracketKind(cases[k], s.X, s.Display); kerr != nil {
 					r.Err, r.Value = kerr, nil
 					e.defineUnavailableAt(s.Names, s.Names[0].P)
-					return r
+					return
 				}
 			}
 		}
 		r.Cases = cases
 		disp := e.ChooseDisplay(v, s.Display, s.X)
 		r.Display = disp
-		e.Define(&Binding{Name: s.Names[0].Name, Value: v, Pos: s.Names[0].P, Display: disp, Cases: cases})
+		b := e.memory().bindings.alloc(slabLimit)
+		*b = Binding{Name: s.Names[0].Name, Value: v, Pos: s.Names[0].P, Display: disp, Cases: cases}
+		e.Define(b)
 	case *FuncDef:
 		if err := e.CanDefine(s.Name.Name, s.Name.P); err != nil {
 			r.Err = err
-			return r
+			return
 		}
 		params := map[string]bool{}
 		var names []string
 		for _, p := range s.Params {
 			if params[p.key()] {
 				r.Err = Errorf(p.P, "parameter %q is listed twice", p.Name)
-				return r
+				return
 			}
 			if IsBuiltin(p.Name) {
 				r.Err = Errorf(p.P, "parameter %q would hide a built-in: choose another name", p.Name)
-				return r
+				return
 			}
 			params[p.key()] = true
 			names = append(names, p.Name)
 		}
 		if err := e.checkBody(s.Body, s.Name, params); err != nil {
 			r.Err = err
-			return r
+			return
 		}
 		e.DefineFunc(&Func{Name: s.Name.Name, Params: names, Body: s.Body, Pos: s.Name.P})
 	case *Check:
@@ -267,7 +311,7 @@ func (e *Env) Exec(s Stmt) *Result {
 	default:
 		r.Err = Errorf(s.Pos(), "this statement is not allowed here")
 	}
-	return r
+	return
 }
 
 func (e *Env) defineUnavailable(names []*Ident) {

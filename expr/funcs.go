@@ -9,6 +9,10 @@ import (
 type builtin struct {
 	min, max int // argument count; max < 0: any number
 	fn       func(args []Value) (Value, error)
+	// one, when not nil, is the function of one single value, the same
+	// as fn of that value alone: the evaluator calls it with the value
+	// held inline, with no argument list and no box (val.go)
+	one func(s Scalar) (Scalar, error)
 }
 
 var builtins map[string]builtin
@@ -17,41 +21,41 @@ func init() {
 	builtins = map[string]builtin{
 		// re, abs and conj do not pass the angle mark on: only the
 		// operations of the angle rule do (LANGUAGE.md section 3)
-		"re":   {1, 1, elementwise(reScalar)},
-		"im":   {1, 1, elementwise(imScalar)},
-		"abs":  {1, 1, elementwise(absScalar)},
-		"conj": {1, 1, elementwise(func(s Scalar) Scalar { return Scalar{Z: canonZ(cmplx.Conj(s.Z)), Dim: s.Dim} })},
-		"arg": {1, 1, scalarFn(func(s *Scalar) (Value, error) {
+		"re":   each(reScalar),
+		"im":   each(imScalar),
+		"abs":  each(absScalar),
+		"conj": each(func(s Scalar) Scalar { return Scalar{Z: canonZ(cmplx.Conj(s.Z)), Dim: s.Dim} }),
+		"arg": single(func(s Scalar) (Scalar, error) {
 			if s.Z == 0 {
-				return nil, fmt.Errorf("the angle of zero is undefined")
+				return Scalar{}, fmt.Errorf("the angle of zero is undefined")
 			}
-			return &Scalar{Z: complex(cmplx.Phase(canonZ(s.Z)), 0), Angle: true}, nil
-		})},
-		"sqrt": {1, 1, scalarFn(func(s *Scalar) (Value, error) {
+			return Scalar{Z: complex(cmplx.Phase(canonZ(s.Z)), 0), Angle: true}, nil
+		}),
+		"sqrt": single(func(s Scalar) (Scalar, error) {
 			var d Dim
 			for i, e := range s.Dim {
 				if e%2 != 0 {
-					return nil, fmt.Errorf("the square root of %s has no unit (the exponents of %s are not all even)", dimWord(s.Dim), s.Dim.SI())
+					return Scalar{}, fmt.Errorf("the square root of %s has no unit (the exponents of %s are not all even)", dimWord(s.Dim), s.Dim.SI())
 				}
 				d[i] = e / 2
 			}
 			if imag(s.Z) == 0 && real(s.Z) >= 0 {
-				return &Scalar{Z: complex(math.Sqrt(real(s.Z)), 0), Dim: d}, nil
+				return Scalar{Z: complex(math.Sqrt(real(s.Z)), 0), Dim: d}, nil
 			}
-			return &Scalar{Z: cmplx.Sqrt(canonZ(s.Z)), Dim: d}, nil
-		})},
-		"exp":   {1, 1, nonZero(plain(cmplx.Exp, false))},
-		"ln":    {1, 1, plainChecked(cmplx.Log, "the logarithm of zero is -∞")},
-		"log10": {1, 1, plainChecked(cmplx.Log10, "the logarithm of zero is -∞")},
-		"sin":   {1, 1, plain(cmplx.Sin, false)},
-		"cos":   {1, 1, plain(cmplx.Cos, false)},
-		"tan":   {1, 1, plain(cmplx.Tan, false)},
-		"asin":  {1, 1, plain(cmplx.Asin, true)},
-		"acos":  {1, 1, plain(cmplx.Acos, true)},
-		"atan":  {1, 1, plain(cmplx.Atan, true)},
-		"sinh":  {1, 1, plain(cmplx.Sinh, false)},
-		"cosh":  {1, 1, plain(cmplx.Cosh, false)},
-		"tanh":  {1, 1, plain(cmplx.Tanh, false)},
+			return Scalar{Z: cmplx.Sqrt(canonZ(s.Z)), Dim: d}, nil
+		}),
+		"exp":   single(nonZero(plain(cmplx.Exp, false))),
+		"ln":    single(plainChecked(cmplx.Log, "the logarithm of zero is -∞")),
+		"log10": single(plainChecked(cmplx.Log10, "the logarithm of zero is -∞")),
+		"sin":   single(plain(cmplx.Sin, false)),
+		"cos":   single(plain(cmplx.Cos, false)),
+		"tan":   single(plain(cmplx.Tan, false)),
+		"asin":  single(plain(cmplx.Asin, true)),
+		"acos":  single(plain(cmplx.Acos, true)),
+		"atan":  single(plain(cmplx.Atan, true)),
+		"sinh":  single(plain(cmplx.Sinh, false)),
+		"cosh":  single(plain(cmplx.Cosh, false)),
+		"tanh":  single(plain(cmplx.Tanh, false)),
 		"atan2": {2, 2, func(a []Value) (Value, error) {
 			y, x, err := twoScalars(a)
 			if err != nil {
@@ -64,7 +68,7 @@ func init() {
 				return nil, fmt.Errorf("both arguments must be real")
 			}
 			return &Scalar{Z: complex(math.Atan2(real(y.Z), real(x.Z)), 0), Angle: true}, nil
-		}},
+		}, nil},
 		"polar": {2, 2, func(a []Value) (Value, error) {
 			m, ang, err := twoScalars(a)
 			if err != nil {
@@ -77,26 +81,26 @@ func init() {
 				return nil, fmt.Errorf("the magnitude must be real, not %s (use abs() for a magnitude)", Describe(m))
 			}
 			return &Scalar{Z: complex(real(m.Z), 0) * cmplx.Rect(1, real(ang.Z)), Dim: m.Dim}, nil
-		}},
-		"min": {1, -1, minMax(false)},
-		"max": {1, -1, minMax(true)},
+		}, nil},
+		"min": {1, -1, minMax(false), nil},
+		"max": {1, -1, minMax(true), nil},
 		// vectors and matrices
-		"inv":       {1, 1, matInv},
-		"det":       {1, 1, matDet},
-		"transpose": {1, 1, matTranspose},
-		"diag":      {1, 1, matDiag},
-		"seq":       {1, 3, seqFn},
-		"abc":       {1, 3, abcFn},
+		"inv":       {1, 1, matInv, nil},
+		"det":       {1, 1, matDet, nil},
+		"transpose": {1, 1, matTranspose, nil},
+		"diag":      {1, 1, matDiag, nil},
+		"seq":       {1, 3, seqFn, nil},
+		"abc":       {1, 3, abcFn, nil},
 		// power
-		"powerfactor": {1, 1, powerFactorFn},
+		"powerfactor": {1, 1, powerFactorFn, nil},
 		// rounding to a step (rounding.go)
-		"round": {1, 2, roundFn(roundHalfAway)},
-		"ceil":  {1, 2, roundFn(roundUp)},
-		"floor": {1, 2, roundFn(roundDown)},
+		"round": {1, 2, roundFn(roundHalfAway), nil},
+		"ceil":  {1, 2, roundFn(roundUp), nil},
+		"floor": {1, 2, roundFn(roundDown), nil},
 		// look-ups in tables of data (tables.go)
-		"interp": {2, 2, noTableCall("interp")},
-		"up":     {2, 2, noTableCall("up")},
-		"down":   {2, 2, noTableCall("down")},
+		"interp": {2, 2, noTableCall("interp"), nil},
+		"up":     {2, 2, noTableCall("up"), nil},
+		"down":   {2, 2, noTableCall("down"), nil},
 	}
 }
 
@@ -125,14 +129,28 @@ func twoScalars(a []Value) (*Scalar, *Scalar, error) {
 	return x, y, nil
 }
 
-func scalarFn(f func(*Scalar) (Value, error)) func([]Value) (Value, error) {
+func scalarFn(f func(Scalar) (Scalar, error)) func([]Value) (Value, error) {
 	return func(a []Value) (Value, error) {
 		s, err := oneScalar(a)
 		if err != nil {
 			return nil, err
 		}
-		return f(s)
+		r, err := f(*s)
+		if err != nil {
+			return nil, err
+		}
+		return &r, nil
 	}
+}
+
+// single is a built-in of one single value (a matrix is refused).
+func single(f func(Scalar) (Scalar, error)) builtin {
+	return builtin{1, 1, scalarFn(f), f}
+}
+
+// each is a built-in of one value applied entry by entry to a matrix.
+func each(f func(Scalar) Scalar) builtin {
+	return builtin{1, 1, elementwise(f), func(s Scalar) (Scalar, error) { return f(s), nil }}
 }
 
 func elementwise(f func(Scalar) Scalar) func([]Value) (Value, error) {
@@ -157,40 +175,40 @@ func elementwise(f func(Scalar) Scalar) func([]Value) (Value, error) {
 // plain wraps a complex function of a dimensionless argument. angle marks
 // the inverse trigonometric functions, whose results for a real argument
 // (within their domain, so that the result is real too) are angles.
-func plain(f func(complex128) complex128, angle bool) func([]Value) (Value, error) {
-	return scalarFn(func(s *Scalar) (Value, error) {
+func plain(f func(complex128) complex128, angle bool) func(Scalar) (Scalar, error) {
+	return func(s Scalar) (Scalar, error) {
 		if !s.Dim.IsZero() {
-			return nil, fmt.Errorf("needs a plain number or an angle, not %s (divide by a unit first, e.g. x / (1 V))", Describe(s))
+			return Scalar{}, fmt.Errorf("needs a plain number or an angle, not %s (divide by a unit first, e.g. x / (1 V))", describeScalar(s))
 		}
 		z := f(canonZ(s.Z))
 		if cmplx.IsNaN(z) || cmplx.IsInf(z) {
-			return nil, fmt.Errorf("the result is not finite for %s", Describe(s))
+			return Scalar{}, fmt.Errorf("the result is not finite for %s", describeScalar(s))
 		}
-		r := &Scalar{Z: z}
-		r.Angle = angle && s.IsReal() && r.IsReal()
+		r := Scalar{Z: z}
+		r.Angle = angle && isRealZ(s.Z) && isRealZ(r.Z)
 		return r, nil
-	})
+	}
 }
 
 // nonZero wraps a function whose true value is never zero (exp): a zero
 // result is underflow (LANGUAGE.md section 4), not a value.
-func nonZero(f func([]Value) (Value, error)) func([]Value) (Value, error) {
-	return func(a []Value) (Value, error) {
-		v, err := f(a)
-		if s, ok := v.(*Scalar); err == nil && ok && s.Z == 0 {
-			return nil, fmt.Errorf("the result underflows: it is not zero, but below %.2g, the smallest number calcdoc can hold", math.SmallestNonzeroFloat64)
+func nonZero(f func(Scalar) (Scalar, error)) func(Scalar) (Scalar, error) {
+	return func(s Scalar) (Scalar, error) {
+		r, err := f(s)
+		if err == nil && r.Z == 0 {
+			return Scalar{}, fmt.Errorf("the result underflows: it is not zero, but below %.2g, the smallest number calcdoc can hold", math.SmallestNonzeroFloat64)
 		}
-		return v, err
+		return r, err
 	}
 }
 
-func plainChecked(f func(complex128) complex128, zeroMsg string) func([]Value) (Value, error) {
+func plainChecked(f func(complex128) complex128, zeroMsg string) func(Scalar) (Scalar, error) {
 	g := plain(f, false)
-	return func(a []Value) (Value, error) {
-		if s, ok := a[0].(*Scalar); ok && s.Z == 0 && s.Dim.IsZero() {
-			return nil, fmt.Errorf("%s", zeroMsg)
+	return func(s Scalar) (Scalar, error) {
+		if s.Z == 0 && s.Dim.IsZero() {
+			return Scalar{}, fmt.Errorf("%s", zeroMsg)
 		}
-		return g(a)
+		return g(s)
 	}
 }
 

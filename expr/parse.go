@@ -32,10 +32,21 @@ func ParseBlock(src *Source, mode Mode, errs *ErrorList) []Stmt {
 		// use statements (use.go) are read line by line before scanning
 		src, uses = splitUses(src, errs)
 	}
-	toks := Scan(src, errs)
+	sc := scratchPool.Get().(*scratch)
+	defer sc.release()
+	if need := len(src.Text)/4 + 8; cap(sc.toks) < need {
+		sc.toks = make([]Token, 0, need)
+	}
+	toks := scanInto(src, errs, sc.toks)
+	sc.toks = toks
 	p := &parser{src: src, errs: errs}
+	p.a.size(toks, mode)
+	sc.stmts = p.split(toks, sc.stmts[:0])
 	var out []Stmt
-	for _, st := range p.split(toks) {
+	if n := len(sc.stmts) + len(uses); n > 0 {
+		out = make([]Stmt, 0, n)
+	}
+	for _, st := range sc.stmts {
 		if s := p.stmt(st, mode); s != nil {
 			for len(uses) > 0 && uses[0].Pos().Before(s.Pos()) {
 				out, uses = append(out, uses[0]), uses[1:]
@@ -82,23 +93,28 @@ type parser struct {
 	depth int
 	bad   bool
 	opPos Pos
+	a     arena // the slabs the nodes are allocated in (arena.go)
+	line  int   // the line of the last position made (pos)
 }
 
 type bail struct{}
 
-func (p *parser) pos(off int) Pos { return p.src.PosAt(off) }
+func (p *parser) pos(off int) Pos {
+	pos, line := p.src.posNear(off, p.line)
+	p.line = line
+	return pos
+}
 
 func (p *parser) fail(off int, format string, args ...any) {
 	p.errs.Add(p.pos(off), fmt.Sprintf(format, args...))
 	panic(bail{})
 }
 
-// split cuts the token stream into statements at line breaks outside
-// parentheses and brackets. An unclosed parenthesis is reported where it
+// split cuts the token stream into statements (appended to out) at line
+// breaks outside parentheses and brackets. An unclosed parenthesis is reported where it
 // opened, and the statement is cut at the end of that line so that the
 // lines after it are still read.
-func (p *parser) split(toks []Token) [][]Token {
-	var out [][]Token
+func (p *parser) split(toks []Token, out [][]Token) [][]Token {
 	i := 0
 	var open []Token // the brackets open at j, reused from statement to statement
 	for i < len(toks) {
@@ -230,7 +246,9 @@ func (p *parser) stmt(toks []Token, mode Mode) (s Stmt) {
 		in := p.checkIn()
 		cmp := p.comparison()
 		p.expectEnd()
-		return &Check{span: sp, desc: d, Cmp: cmp, In: in}
+		c := p.a.checks.one()
+		*c = Check{span: sp, desc: d, Cmp: cmp, In: in}
+		return c
 	}
 	if eq := p.topAssign(); eq >= 0 {
 		return p.assignment(eq, sp, d)
@@ -324,12 +342,27 @@ func (p *parser) firstComparison() int {
 }
 
 func (p *parser) ident(t Token) *Ident {
+	id := p.a.idents.one()
 	// the key is computed once here, for every later lookup of the node
 	if dot := strings.IndexByte(t.Text, '.'); dot > 0 {
 		// a column of a table: the key of each part, joined by "."
-		return &Ident{span: span{p.pos(t.Off), p.pos(t.End)}, Name: t.Text, Key: NameKey(t.Text[:dot]) + "." + NameKey(t.Text[dot+1:]), Dot: dot}
+		*id = Ident{span: span{p.pos(t.Off), p.pos(t.End)}, Name: t.Text, Key: NameKey(t.Text[:dot]) + "." + NameKey(t.Text[dot+1:]), Dot: dot}
+		return id
 	}
-	return &Ident{span: span{p.pos(t.Off), p.pos(t.End)}, Name: t.Text, Key: NameKey(t.Text)}
+	*id = Ident{span: span{p.pos(t.Off), p.pos(t.End)}, Name: t.Text, Key: NameKey(t.Text)}
+	return id
+}
+
+// names is a list of one name.
+func (p *parser) names(id *Ident) []*Ident {
+	return p.a.names.list([]*Ident{id})
+}
+
+// assign allocates an assignment.
+func (p *parser) assign(a Assign) *Assign {
+	n := p.a.assigns.one()
+	*n = a
+	return n
 }
 
 func (p *parser) assignment(eq int, sp span, d desc) Stmt {
@@ -351,13 +384,13 @@ func (p *parser) assignment(eq int, sp span, d desc) Stmt {
 	}
 	switch {
 	case len(lhs) == 1:
-		return &Assign{span: sp, desc: d, Names: []*Ident{p.ident(lhs[0])}, X: parseRHS()}
+		return p.assign(Assign{span: sp, desc: d, Names: p.names(p.ident(lhs[0])), X: parseRHS()})
 	case lhs[1].Kind == DISPLAY:
 		if len(lhs) != 2 {
 			p.fail(lhs[2].Off, "unexpected %q after the display bracket: write name[unit] = ...", lhs[2].Text)
 		}
 		disp := p.display(lhs[1])
-		return &Assign{span: sp, desc: d, Names: []*Ident{p.ident(lhs[0])}, Display: disp, X: parseRHS()}
+		return p.assign(Assign{span: sp, desc: d, Names: p.names(p.ident(lhs[0])), Display: disp, X: parseRHS()})
 	case lhs[1].Kind == LBRACK:
 		if lhs[1].SpaceBefore {
 			p.spaceBeforeDisplay(lhs[0], lhs[1])
@@ -491,12 +524,16 @@ func (p *parser) expr() Node { return p.add() }
 
 func (p *parser) comparison() *Compare {
 	x := p.add()
-	c := &Compare{X: []Node{x}}
+	var xbuf [4]Node
+	var obuf [3]Kind
+	xs, ops := append(xbuf[:0], x), obuf[:0]
 	for p.peek().IsComparison() {
-		c.Ops = append(c.Ops, p.peek())
+		ops = append(ops, p.peek())
 		p.i++
-		c.X = append(c.X, p.add())
+		xs = append(xs, p.add())
 	}
+	c := p.a.compares.one()
+	c.X, c.Ops = p.a.nodes.list(xs), p.a.ops.list(ops)
 	if len(c.Ops) == 0 {
 		if p.peek() == ASSIGN {
 			p.fail(p.tok().Off, "a check compares with ==, not =")
@@ -508,7 +545,16 @@ func (p *parser) comparison() *Compare {
 }
 
 func (p *parser) binary(op Kind, x, y Node) Node {
-	return &Binary{span: span{x.Pos(), y.End()}, Op: op, OpPos: p.opPos, X: x, Y: y}
+	b := p.a.binaries.one()
+	*b = Binary{span: span{x.Pos(), y.End()}, Op: op, OpPos: p.opPos, X: x, Y: y}
+	return b
+}
+
+// withUnit allocates x written with a unit.
+func (p *parser) withUnit(w WithUnit) *WithUnit {
+	n := p.a.units.one()
+	*n = w
+	return n
 }
 
 func (p *parser) add() Node {
@@ -579,7 +625,9 @@ func (p *parser) unary() Node {
 		p.enter(t.Off)
 		defer p.leave()
 		x := p.unary()
-		return &Unary{span: span{p.pos(t.Off), x.End()}, Op: k, X: x}
+		u := p.a.unaries.one()
+		*u = Unary{span: span{p.pos(t.Off), x.End()}, Op: k, X: x}
+		return u
 	}
 	return p.angle()
 }
@@ -592,7 +640,9 @@ func (p *parser) signed(next func() Node) Node {
 		p.enter(t.Off)
 		defer p.leave()
 		x := p.signed(next)
-		return &Unary{span: span{p.pos(t.Off), x.End()}, Op: k, X: x}
+		u := p.a.unaries.one()
+		*u = Unary{span: span{p.pos(t.Off), x.End()}, Op: k, X: x}
+		return u
 	}
 	return next()
 }
@@ -608,7 +658,7 @@ func (p *parser) angle() Node {
 		p.opPos = op
 		x = p.binary(ANGLE, x, y)
 		if u != nil {
-			x = &WithUnit{span: span{x.Pos(), u.E}, X: x, Unit: u.Unit, UPos: u.UPos}
+			x = p.withUnit(WithUnit{span: span{x.Pos(), u.E}, X: x, Unit: u.Unit, UPos: u.UPos})
 		}
 	}
 	return x
@@ -659,120 +709,7 @@ func (p *parser) postfix() Node {
 			}
 			p.fail(t.Off, "%s", msg)
 		}
-		x = &WithUnit{span: span{x.Pos(), p.pos(t.End)}, X: x, Unit: u, UPos: p.pos(t.Off)}
+		x = p.withUnit(WithUnit{span: span{x.Pos(), p.pos(t.End)}, X: x, Unit: u, UPos: p.pos(t.Off)})
 	}
 	return x
-}
-
-func (p *parser) primary() Node {
-	t := p.tok()
-	switch t.Kind {
-	case NUMBER:
-		p.i++
-		return &Number{span: span{p.pos(t.Off), p.pos(t.End)}, Text: t.Text, Value: t.Num, Imag: t.Imag}
-	case IDENT:
-		p.i++
-		id := p.ident(t)
-		if p.peek() == LPAREN {
-			return p.call(id)
-		}
-		return id
-	case LPAREN:
-		p.i++
-		p.enter(t.Off)
-		defer p.leave()
-		x := p.expr()
-		if p.peek() != RPAREN {
-			p.closeErr(t, ")")
-		}
-		e := p.tok()
-		p.i++
-		return &Paren{span: span{p.pos(t.Off), p.pos(e.End)}, X: x}
-	case BAR:
-		p.i++
-		p.enter(t.Off)
-		defer p.leave()
-		x := p.expr()
-		if p.peek() != BAR {
-			p.closeErr(t, "|")
-		}
-		e := p.tok()
-		p.i++
-		return &Abs{span: span{p.pos(t.Off), p.pos(e.End)}, X: x}
-	case LBRACK:
-		return p.matrix()
-	case LBRACE:
-		return p.caseLit()
-	case EOF:
-		p.fail(t.Off, "expression ends too soon: a value is missing")
-	case RPAREN:
-		p.fail(t.Off, "unexpected \")\": a value is missing before it")
-	case UNIT:
-		p.fail(t.Off, "unexpected unit %q", t.Text)
-	}
-	p.fail(t.Off, "unexpected %q: a value is missing here", t.Text)
-	return nil
-}
-
-func (p *parser) call(id *Ident) Node {
-	open := p.tok()
-	p.i++
-	p.enter(open.Off)
-	defer p.leave()
-	c := &Call{Fun: id}
-	if p.peek() != RPAREN {
-		for {
-			c.Args = append(c.Args, p.expr())
-			if p.peek() == COMMA {
-				p.i++
-				continue
-			}
-			break
-		}
-	}
-	if p.peek() != RPAREN {
-		p.closeErr(open, ")")
-	}
-	e := p.tok()
-	p.i++
-	c.span = span{id.P, p.pos(e.End)}
-	return c
-}
-
-func (p *parser) matrix() Node {
-	open := p.tok()
-	p.i++
-	p.enter(open.Off)
-	defer p.leave()
-	m := &MatrixLit{}
-	row := []Node{}
-	for {
-		if p.peek() == RBRACK && len(row) == 0 && len(m.Rows) == 0 {
-			p.fail(open.Off, "empty matrix []")
-		}
-		row = append(row, p.expr())
-		switch p.peek() {
-		case COMMA:
-			p.i++
-			continue
-		case SEMI:
-			p.i++
-			m.Rows = append(m.Rows, row)
-			row = []Node{}
-			continue
-		case RBRACK:
-			m.Rows = append(m.Rows, row)
-			e := p.tok()
-			p.i++
-			m.span = span{p.pos(open.Off), p.pos(e.End)}
-			for i, r := range m.Rows {
-				if len(r) != len(m.Rows[0]) {
-					p.errs.Add(r[0].Pos(), fmt.Sprintf("row %d of the matrix has %d entries, row 1 has %d: every row needs as many", i+1, len(r), len(m.Rows[0])))
-					panic(bail{})
-				}
-			}
-			return m
-		}
-		p.closeErr(open, "]")
-	}
 }

@@ -71,6 +71,9 @@ func (f *File) Name() string { return f.name }
 // Size is the file's length in bytes.
 func (f *File) Size() int { return len(f.text) }
 
+// Text is the file's text.
+func (f *File) Text() string { return f.text }
+
 // LineCount is the number of lines of the file.
 func (f *File) LineCount() int { return len(f.lines) }
 

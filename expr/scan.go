@@ -5,6 +5,7 @@ import (
 	"sort"
 	"strconv"
 	"strings"
+	"sync"
 	"unicode"
 	"unicode/utf8"
 )
@@ -38,17 +39,44 @@ func NewSource(text string, first Pos) *Source {
 // position in the file (where the line stands verbatim). Without a
 // position for every line, the lines are a file of their own.
 func NewSourceLines(lines []string, pos []Pos) *Source {
-	text := strings.Join(lines, "\n")
 	if len(pos) < len(lines) {
-		return NewSource(text, Pos{})
+		return NewSource(strings.Join(lines, "\n"), Pos{})
+	}
+	text, ok := inFile(lines, pos)
+	if !ok {
+		text = strings.Join(lines, "\n")
 	}
 	s := &Source{Text: text, Lines: append([]Pos(nil), pos[:len(lines)]...)}
 	s.index()
 	return s
 }
 
+// inFile returns the lines joined by line breaks as a piece of their
+// file's text, with no copy, when they stand in it so: one after the
+// other, each followed by "\n" (the text of a fenced block outside a
+// list or a quotation). The names and numbers parsed from the source
+// keep pieces of it, so a copy would stay alive as long as they do.
+func inFile(lines []string, pos []Pos) (string, bool) {
+	if len(lines) == 0 || pos[0].File == nil {
+		return "", false
+	}
+	f := pos[0].File
+	for i, l := range lines {
+		p := pos[i]
+		end := p.Off + len(l)
+		if p.File != f || end > len(f.text) || f.text[p.Off:end] != l {
+			return "", false
+		}
+		if i+1 < len(lines) && (pos[i+1].Off != end+1 || end >= len(f.text) || f.text[end] != '\n') {
+			return "", false
+		}
+	}
+	last := len(lines) - 1
+	return f.text[pos[0].Off : pos[last].Off+len(lines[last])], true
+}
+
 func (s *Source) index() {
-	s.starts = []int{0}
+	s.starts = make([]int, 1, strings.Count(s.Text, "\n")+1)
 	for i := 0; i < len(s.Text); i++ {
 		if s.Text[i] == '\n' {
 			s.starts = append(s.starts, i+1)
@@ -58,12 +86,23 @@ func (s *Source) index() {
 
 // PosAt converts a byte offset into Text to a position in the file.
 func (s *Source) PosAt(off int) Pos {
+	p, _ := s.posNear(off, 0)
+	return p
+}
+
+// posNear is PosAt that looks at line hint first (the line of the last
+// position asked for, when positions come in order, as the parser asks
+// for them), and returns the line it found.
+func (s *Source) posNear(off, hint int) (Pos, int) {
 	off = max(0, min(off, len(s.Text)))
-	i := max(0, sort.Search(len(s.starts), func(i int) bool { return s.starts[i] > off })-1)
-	if i >= len(s.Lines) {
-		return Pos{}
+	i := hint
+	if i < 0 || i >= len(s.starts) || s.starts[i] > off || i+1 < len(s.starts) && s.starts[i+1] <= off {
+		i = max(0, sort.Search(len(s.starts), func(i int) bool { return s.starts[i] > off })-1)
 	}
-	return s.Lines[i].Add(off - s.starts[i])
+	if i >= len(s.Lines) {
+		return Pos{}, i
+	}
+	return s.Lines[i].Add(off - s.starts[i]), i
 }
 
 // Kind is the kind of a token.
@@ -142,8 +181,40 @@ const (
 func Scan(src *Source, errs *ErrorList) []Token {
 	// about one token for every four bytes of a calc block: room for
 	// them all at once instead of growing (and copying) the slice
-	sc := scanner{src: src, text: src.Text, errs: errs, toks: make([]Token, 0, len(src.Text)/4+8)}
+	return scanInto(src, errs, make([]Token, 0, len(src.Text)/4+8))
+}
+
+// scanInto is Scan appending to buf[:0].
+func scanInto(src *Source, errs *ErrorList, buf []Token) []Token {
+	sc := scanner{src: src, text: src.Text, errs: errs, toks: buf[:0]}
 	return sc.run()
+}
+
+// scratch is what one ParseBlock uses and drops: the tokens and the
+// statements cut from them. Nothing parsed keeps a token (names and
+// numbers keep strings of the source text), so the buffers go back to
+// scratchPool, cleared, for the next block.
+type scratch struct {
+	toks  []Token
+	stmts [][]Token
+}
+
+var scratchPool = sync.Pool{New: func() any { return new(scratch) }}
+
+// release clears the buffers (they must not keep a source text alive)
+// and returns them to the pool; a buffer grown very large is dropped.
+func (sc *scratch) release() {
+	if cap(sc.toks) > 1<<16 {
+		sc.toks = nil
+	}
+	if cap(sc.stmts) > 1<<14 {
+		sc.stmts = nil
+	}
+	// only the used part: what lies beyond it was cleared before
+	clear(sc.toks)
+	clear(sc.stmts)
+	sc.toks, sc.stmts = sc.toks[:0], sc.stmts[:0]
+	scratchPool.Put(sc)
 }
 
 type scanner struct {

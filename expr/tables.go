@@ -83,7 +83,10 @@ func (t *Trace) Lookups() []Lookup {
 	if t == nil {
 		return nil
 	}
-	return append([]Lookup(nil), t.lookups...)
+	if t.more == nil {
+		return nil
+	}
+	return append([]Lookup(nil), t.more.lookups...)
 }
 
 // tableRef is the error of a table or a column of one written where a
@@ -103,7 +106,7 @@ func (ev *evaluator) table(at Pos, name string) (*tableBinding, error) {
 	if b := ev.env.tables[NameKey(name)]; b != nil {
 		return b, nil
 	}
-	if ev.env.vars[NameKey(name)] != nil || ev.locals[NameKey(name)] != nil {
+	if ev.env.vars[NameKey(name)] != nil || ev.isLocal(NameKey(name)) {
 		return nil, Errorf(at, "%s is a value, not a table: a look-up reads a table defined by a table block above", name)
 	}
 	var names []string
@@ -123,39 +126,38 @@ func (ev *evaluator) lookupArg(a Node) (*Scalar, error) {
 	if err != nil {
 		return nil, err
 	}
-	s, ok := v.(*Scalar)
-	if !ok {
-		return nil, Errorf(a.Pos(), "a key to look up must be a single value, not %s", Describe(v))
+	if v.m != nil {
+		return nil, Errorf(a.Pos(), "a key to look up must be a single value, not %s", Describe(v.m))
 	}
-	return s, nil
+	return v.value().(*Scalar), nil
 }
 
 // lookup evaluates a look-up: NAME.COL(x) (fn "col", col set), or a call
 // of interp, up or down.
-func (ev *evaluator) lookup(n *Call) (Value, error) {
+func (ev *evaluator) lookup(n *Call) (val, error) {
 	rec := Lookup{Node: n}
 	var tabName string
 	var xNode Node
 	if tab, col, ok := n.Fun.Column(); ok {
 		if len(n.Args) != 1 {
-			return nil, Errorf(n.P, "%s(x) takes one key, not %d", n.Fun.Name, len(n.Args))
+			return val{}, Errorf(n.P, "%s(x) takes one key, not %d", n.Fun.Name, len(n.Args))
 		}
 		rec.Func, rec.Col, tabName, xNode = "col", col, tab, n.Args[0]
 	} else {
 		rec.Func = n.Fun.key()
 		if len(n.Args) != 2 {
-			return nil, Errorf(n.P, "%s takes 2 arguments, %s, not %d", n.Fun.Name, tableFuncUsage(rec.Func), len(n.Args))
+			return val{}, Errorf(n.P, "%s takes 2 arguments, %s, not %d", n.Fun.Name, tableFuncUsage(rec.Func), len(n.Args))
 		}
 		id, ok := n.Args[0].(*Ident)
 		if !ok {
-			return nil, Errorf(n.Args[0].Pos(), "the first argument of %s names %s: %s", n.Fun.Name, tableFuncWhat(rec.Func), tableFuncUsage(rec.Func))
+			return val{}, Errorf(n.Args[0].Pos(), "the first argument of %s names %s: %s", n.Fun.Name, tableFuncWhat(rec.Func), tableFuncUsage(rec.Func))
 		}
 		tab, col, isCol := id.Column()
 		switch {
 		case rec.Func == "interp" && !isCol:
-			return nil, Errorf(id.P, "interp reads a column of a table: write interp(%s.COLUMN, x)", id.Name)
+			return val{}, Errorf(id.P, "interp reads a column of a table: write interp(%s.COLUMN, x)", id.Name)
 		case rec.Func != "interp" && isCol:
-			return nil, Errorf(id.P, "%s gives a key of a table, not of a column: write %s(%s, x)", rec.Func, rec.Func, tab)
+			return val{}, Errorf(id.P, "%s gives a key of a table, not of a column: write %s(%s, x)", rec.Func, rec.Func, tab)
 		case isCol:
 			tabName, rec.Col = tab, col
 		default:
@@ -165,12 +167,12 @@ func (ev *evaluator) lookup(n *Call) (Value, error) {
 	}
 	b, err := ev.table(n.Fun.P, tabName)
 	if err != nil {
-		return nil, err
+		return val{}, err
 	}
 	rec.Table = b.name
 	x, err := ev.lookupArg(xNode)
 	if err != nil {
-		return nil, err
+		return val{}, err
 	}
 	rec.X = x
 	var v *Scalar
@@ -186,13 +188,14 @@ func (ev *evaluator) lookup(n *Call) (Value, error) {
 		v, rows, err = b.t.Down(x)
 	}
 	if err != nil {
-		return nil, Errorf(n.P, "%s: %s", lookupText(&rec), err.Error())
+		return val{}, Errorf(n.P, "%s: %s", lookupText(&rec), err.Error())
 	}
 	rec.Rows, rec.Value = rows, v
 	if ev.trace != nil {
-		ev.trace.lookups = append(ev.trace.lookups, rec)
+		m := ev.trace.extra()
+		m.lookups = append(m.lookups, rec)
 	}
-	return v, nil
+	return unbox(v), nil
 }
 
 // lookupText writes a look-up for a message: "cu.R_20(x)", "up(cu, x)".

@@ -91,8 +91,8 @@ func hasTemp(v Value) bool {
 // quotient, power or function as its value in K: the trace's entry for n
 // (a name, or an entry picked from a matrix, in parentheses or not) loses
 // the absolute-temperature mark, so that the sheet substitutes it in K.
-func (ev *evaluator) inKelvin(n Node, v Value) Value {
-	if !hasTemp(v) {
+func (ev *evaluator) inKelvin(n Node, v val) val {
+	if !v.hasTemp() {
 		return v
 	}
 	for {
@@ -102,11 +102,11 @@ func (ev *evaluator) inKelvin(n Node, v Value) Value {
 		}
 		n = p.X
 	}
-	k := withoutTemp(v)
+	k := v.withoutTemp()
 	if ev.trace != nil {
 		for i := len(ev.trace.entries) - 1; i >= 0; i-- {
 			if ev.trace.entries[i].n == n {
-				ev.trace.entries[i].v = k
+				ev.trace.entries[i].v = k.value()
 				break
 			}
 		}
@@ -114,43 +114,41 @@ func (ev *evaluator) inKelvin(n Node, v Value) Value {
 	return k
 }
 
+// offsetScalar is the single value s written in n's unit with an offset
+// (°C): s must be a real plain number; the result is an absolute
+// temperature. neg is set for "-20 °C", read as (-20) °C.
+func offsetScalar(n *WithUnit, s Scalar, neg bool) (Scalar, error) {
+	if !s.Dim.IsZero() || s.Angle || !isRealZ(s.Z) {
+		return Scalar{}, Errorf(n.UPos, "%s is a temperature scale: it follows a real plain number (70 %s), not %s", n.Unit.Text, n.Unit.Text, describeScalar(s))
+	}
+	v := real(s.Z)
+	if neg {
+		v = -v
+	}
+	t := v*n.Unit.Scale + n.Unit.Offset
+	if t < 0 {
+		return Scalar{}, Errorf(n.UPos, "%s %s is below absolute zero (%.2f %s)", fmtNum(v, 6), n.Unit.Text, -n.Unit.Offset/n.Unit.Scale, n.Unit.Text)
+	}
+	return Scalar{Z: complex(t, 0), Dim: n.Unit.Dim, AbsTemp: true}, nil
+}
+
 // withOffsetUnit is x written in a unit with an offset (°C): x must be a
 // real plain number (or a matrix of them); the result is an absolute
 // temperature. neg is set for "-20 °C", read as (-20) °C.
-func withOffsetUnit(n *WithUnit, x Value, neg bool) (Value, error) {
-	one := func(s Scalar) (Scalar, error) {
-		if !s.Dim.IsZero() || s.Angle || !s.IsReal() {
-			return Scalar{}, Errorf(n.UPos, "%s is a temperature scale: it follows a real plain number (70 %s), not %s", n.Unit.Text, n.Unit.Text, Describe(&s))
-		}
-		v := real(s.Z)
-		if neg {
-			v = -v
-		}
-		t := v*n.Unit.Scale + n.Unit.Offset
-		if t < 0 {
-			return Scalar{}, Errorf(n.UPos, "%s %s is below absolute zero (%.2f %s)", fmtNum(v, 6), n.Unit.Text, -n.Unit.Offset/n.Unit.Scale, n.Unit.Text)
-		}
-		return Scalar{Z: complex(t, 0), Dim: n.Unit.Dim, AbsTemp: true}, nil
+func (ev *evaluator) withOffsetUnit(n *WithUnit, x val, neg bool) (val, error) {
+	if x.m == nil {
+		s, err := offsetScalar(n, x.s, neg)
+		return val{s: s}, err
 	}
-	switch s := x.(type) {
-	case *Scalar:
-		r, err := one(*s)
+	out := NewMatrix(x.m.Rows, x.m.Cols)
+	for i, e := range x.m.E {
+		r, err := offsetScalar(n, e, neg)
 		if err != nil {
-			return nil, err
+			return val{}, err
 		}
-		return &r, nil
-	case *Matrix:
-		out := NewMatrix(s.Rows, s.Cols)
-		for i, e := range s.E {
-			r, err := one(e)
-			if err != nil {
-				return nil, err
-			}
-			out.E[i] = r
-		}
-		return out, nil
+		out.E[i] = r
 	}
-	return nil, Errorf(n.UPos, "cannot write %s in %s", Describe(x), n.Unit.Text)
+	return val{m: out}, nil
 }
 
 // checkTempDisplay is the error of showing s in u: a temperature

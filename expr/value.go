@@ -92,18 +92,24 @@ func (s *Scalar) KindNotStated() bool {
 // s is not a power, apparent when it is a power that is not real (IEEE
 // 1459: S = P + jQ). s itself is never changed (it may be a bound value).
 func settleKind(s *Scalar) *Scalar {
-	k := s.Kind
-	if s.Dim != DimPower {
-		k = PowerNone
-	} else if !s.IsReal() {
-		k = PowerApparent
-	}
+	k := settledKind(s)
 	if k == s.Kind {
 		return s
 	}
 	c := *s
 	c.Kind = k
 	return &c
+}
+
+// settledKind is the power kind s settles to (settleKind).
+func settledKind(s *Scalar) PowerKind {
+	if s.Dim != DimPower {
+		return PowerNone
+	}
+	if !s.IsReal() {
+		return PowerApparent
+	}
+	return s.Kind
 }
 
 // settleKinds applies settleKind to a value, entry by entry for a matrix.
