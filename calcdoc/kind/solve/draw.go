@@ -3,11 +3,13 @@ package solve
 import (
 	"fmt"
 	"math"
+	"strconv"
 	"strings"
 
 	"calcdoc/calcdoc"
 	numeric "calcdoc/calcdoc/kind/solve/numeric"
 	"calcdoc/expr"
+	"calcdoc/expr/linalg/sparse"
 	"calcdoc/render/markup"
 )
 
@@ -207,8 +209,8 @@ func solvedParts(w *markup.Writer, b *calcdoc.Block, set *SolveSet) {
 		if set.ComplexLU {
 			form = " and complex-linear: the complex matrix (one row per equation, one column per complex unknown) is solved"
 		}
-		fmt.Fprintf(w, "<strong>Linear, solved directly.</strong> The equations are affine in the unknowns (confirmed at %d further points to within %s)%s by LU factorisation with partial pivoting of the scaled matrix; condition number estimate κ₁ = %s.",
-			numeric.LinearProbes, sci(numeric.LinearTol), form, sci(set.Cond))
+		fmt.Fprintf(w, "<strong>Linear, solved directly.</strong> The equations are affine in the unknowns (confirmed at %d further points to within %s)%s %s; condition number estimate κ₁ = %s.",
+			numeric.LinearProbes, sci(numeric.LinearTol), form, markup.Esc(factorText(set.Factorization)), sci(set.Cond))
 		if set.Refined {
 			fmt.Fprintf(w, " The direct solution was refined by %d Newton iteration%s.", set.Iterations, markup.Plural(set.Iterations))
 		}
@@ -299,6 +301,39 @@ func solvedParts(w *markup.Writer, b *calcdoc.Block, set *SolveSet) {
 	w.WriteString("</table></div>\n")
 	partClose(w)
 }
+
+// factorText names the factorisation of a linear set: dense or sparse LU,
+// the size of the matrix and its non-zero entries, and for the sparse LU
+// why it was chosen (numeric.UseSparse), its pivot order and the entries
+// of its factors.
+func factorText(f numeric.Factorization) string {
+	size := fmt.Sprintf("%d×%d, %s non-zero entr%s", f.Order, f.Order, group(f.NNZ), ies(f.NNZ))
+	if !f.Sparse {
+		return "by dense LU factorisation with partial pivoting of the scaled matrix (" + size + ")"
+	}
+	return fmt.Sprintf("by sparse LU factorisation of the scaled matrix (%s; sparse, as it has at least %d rows and at most %s of its entries are non-zero): pivots in Markowitz order (fewest new entries) under threshold partial pivoting (each pivot at least %s of the largest entry of its column), %s entries in the factors L and U, the solution refined against the matrix while that lowers its backward error",
+		size, numeric.SparseMinOrder, pct(numeric.SparseMaxDensity), sci(sparse.Threshold), group(f.Fill))
+}
+
+// group writes a count with a comma between groups of three digits:
+// "1,498".
+func group(n int) string {
+	s := strconv.Itoa(n)
+	for i := len(s) - 3; i > 0; i -= 3 {
+		s = s[:i] + "," + s[i:]
+	}
+	return s
+}
+
+func ies(n int) string {
+	if n == 1 {
+		return "y"
+	}
+	return "ies"
+}
+
+// pct writes a fraction as a percentage: "10 %".
+func pct(f float64) string { return strconv.FormatFloat(100*f, 'g', -1, 64) + " %" }
 
 // diffML typesets a difference; an exact zero is "0" in the unit.
 func diffML(v *expr.Scalar, digits int) string {

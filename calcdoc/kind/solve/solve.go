@@ -160,6 +160,10 @@ type SolveSet struct {
 	// numeric.Linear.ComplexLinear): its complex matrix was factored rather
 	// than the real form, and Cond is that matrix's.
 	ComplexLU bool
+	// Factorization says how a linear set was factored: dense or sparse
+	// LU, complex or real form, the order and non-zero entries of the
+	// matrix and the entries of its sparse factors.
+	Factorization numeric.Factorization
 	// Refined is true for a linear set whose direct solution did not meet
 	// the residual tolerance and was refined by Newton iterations.
 	Refined bool
@@ -235,7 +239,7 @@ func (s *SolveSet) System() *SolveSystem {
 		return nil
 	}
 	r := s.run
-	a, bv := s.lin.A, s.lin.B
+	a, bv := s.lin.Dense(), s.lin.B
 	flipped := make([]bool, len(s.Equations))
 	sign := make([]float64, len(s.Equations))
 	for i, e := range s.Equations {
@@ -364,6 +368,10 @@ type solveRun struct {
 	// real is real at the trial point (see TrialImagTol), for the
 	// acceptance, which makes its own test
 	lenient bool
+
+	blk *numeric.Blocks // the structure of the residual (see blocks)
+	// verified is the point verify last evaluated every equation at
+	verified []float64
 
 	// the residual cache (see residual)
 	memo   []eqMemo
