@@ -18,6 +18,13 @@ import (
 // history, go to the appendix at the end of the sheet.
 const InlineSystemLimit = 12
 
+// FullTableLimit is the largest number of rows or columns of a linear
+// set's matrix that the appendix draws as a whole table, zeros included;
+// a larger matrix is listed by its non-zero entries, row by row, and b by
+// its non-zero entries (as a network block lists its matrix), so that the
+// appendix grows with the entries of the set and not with its square.
+const FullTableLimit = 40
+
 // renderSolve draws a solve block: the unknowns, each equation as
 // written, how the set was solved, the matrix of a linear set, the
 // solution and a table that evaluates both sides of every equation at it.
@@ -235,12 +242,19 @@ func solvedParts(w *markup.Writer, b *calcdoc.Block, set *SolveSet) {
 			form = "real form: Re and Im are the real and imaginary parts"
 		}
 		intro := fmt.Sprintf("As a linear system A·x = b (%s; A is %d×%d; for each equation, A·x − b is the side that holds the unknowns minus the other side, left minus right when both hold unknowns):", form, len(sys.Rows), len(sys.Cols))
-		if big {
+		switch {
+		case sys.A == nil:
+			intro = fmt.Sprintf("As a linear system A·x = b (%s; A is %d×%d with %s non-zero entr%s; for each equation, A·x − b is the side that holds the unknowns minus the other side, left minus right when both hold unknowns):", form, len(sys.Rows), len(sys.Cols), group(len(sys.Entries)), ies(len(sys.Entries)))
+			fmt.Fprintf(w, "<p>%s its non-zero entries and b are listed in the appendix, <a href=\"#%s\">equation set at line %d</a>.</p>", markup.Esc(intro), anchor, line)
+			fmt.Fprintf(&w.Appendix, "<section class=\"solveapp\" id=\"%s\">\n<h3>Equation set at line %d: the non-zero entries of A and b</h3>\n<p>%s</p>\n", anchor, line, markup.Esc(intro))
+			entryList(&w.Appendix, set, sys, w.Digits())
+			w.Appendix.WriteString("</section>\n")
+		case big:
 			fmt.Fprintf(w, "<p>%s the matrix and vector are in the appendix, <a href=\"#%s\">equation set at line %d</a>.</p>", markup.Esc(intro), anchor, line)
 			fmt.Fprintf(&w.Appendix, "<section class=\"solveapp\" id=\"%s\">\n<h3>Equation set at line %d: A and b</h3>\n<p>%s</p>\n", anchor, line, markup.Esc(intro))
 			systemTable(&w.Appendix, set, sys, w.Digits(), false)
 			w.Appendix.WriteString("</section>\n")
-		} else {
+		default:
 			fmt.Fprintf(w, "<p>%s</p>", markup.Esc(intro))
 			var sb strings.Builder
 			systemTable(&sb, set, sys, w.Digits(), true)
@@ -407,6 +421,27 @@ func systemTable(out markup.StringWriter, set *SolveSet, sys *SolveSystem, digit
 		sb.WriteString("<td>" + cell(sys.B.At(i, 0)) + "</td></tr>\n")
 	}
 	sb.WriteString("</table></div>\n")
+	out.WriteString(sb.String())
+}
+
+// entryList writes the non-zero entries of A row by row, and b's, as
+// plain text: the appendix of a system larger than FullTableLimit.
+func entryList(out markup.StringWriter, set *SolveSet, sys *SolveSystem, digits int) {
+	var sb strings.Builder
+	sb.WriteString("<div class=\"grid\"><table class=\"data system\" style=\"white-space: nowrap;\">\n<tr><th>row</th><th>equation</th><th>column</th><th>unknown</th><th>entry of A</th></tr>\n")
+	txt := func(s expr.Scalar) string { return markup.Esc(expr.FormatScalar(&s, nil, digits).String()) }
+	for _, e := range sys.Entries {
+		fmt.Fprintf(&sb, "<tr><td>%d</td><td>%s</td><td>%d</td><td>%s</td><td>%s</td></tr>\n", e.Row+1, rowLabel(set, sys.Rows[e.Row]), e.Col+1, colLabel(set, sys.Cols[e.Col], false), txt(e.V))
+	}
+	sb.WriteString("</table></div>\n<div class=\"grid\"><table class=\"data system\" style=\"white-space: nowrap;\">\n<tr><th>row</th><th>equation</th><th>b</th></tr>\n")
+	for i, r := range sys.Rows {
+		v := sys.B.At(i, 0)
+		if v.Z == 0 {
+			continue
+		}
+		fmt.Fprintf(&sb, "<tr><td>%d</td><td>%s</td><td>%s</td></tr>\n", i+1, rowLabel(set, r), txt(v))
+	}
+	sb.WriteString("</table></div>\n<p>Every entry of A and b not listed is 0.</p>\n")
 	out.WriteString(sb.String())
 }
 
