@@ -3,6 +3,7 @@ package solve
 import (
 	"fmt"
 	"math"
+	"strings"
 	"testing"
 
 	"calcdoc/calcdoc"
@@ -16,7 +17,14 @@ import (
 // solving it, for timing the solver's phases on their own.
 func preparedLadder(b *testing.B, n int) *solveRun {
 	b.Helper()
-	d := calcdoc.Parse("ladder.md", []byte(ladderDoc(n)), testKinds)
+	return preparedRun(b, ladderDoc(n))
+}
+
+// preparedRun evaluates what stands above the (one) solve block of a
+// document and prepares the block without solving it.
+func preparedRun(t testing.TB, src string) *solveRun {
+	t.Helper()
+	d := calcdoc.Parse("set.md", []byte(src), testKinds)
 	var blk *calcdoc.Block
 	for _, x := range d.Blocks {
 		if x.Kind == "solve" {
@@ -24,18 +32,18 @@ func preparedLadder(b *testing.B, n int) *solveRun {
 		}
 	}
 	if blk == nil {
-		b.Fatal("no solve block")
+		t.Fatal("no solve block")
 	}
-	// a fresh document in which the parameters are defined but not the
-	// unknowns: evaluate only the calc block
-	d2 := calcdoc.Parse("params.md", []byte(ladderParams()), testKinds)
+	// a fresh document in which the values are defined but not the
+	// unknowns: evaluate only what stands above the solve block
+	d2 := calcdoc.Parse("params.md", []byte(src[:strings.Index(src, "```solve")]), testKinds)
 	copyBlk := d2.Attach(&calcdoc.Block{Kind: "solve", Arg: blk.Arg, ArgPos: blk.ArgPos, InfoPos: blk.InfoPos, Pos: blk.Pos,
 		Lines: blk.Lines, LinePos: blk.LinePos})
 	// the phases are timed over many runs: a budget that does not run out
 	d2.Env.Budget = expr.NewBudget(math.MaxInt64)
 	r := &solveRun{b: copyBlk, set: &SolveSet{}, env: d2.Env}
 	if !r.prepare() {
-		b.Fatalf("prepare failed: %v", copyBlk.Errors)
+		t.Fatalf("prepare failed: %v", copyBlk.Errors)
 	}
 	return r
 }

@@ -35,6 +35,8 @@ type LU struct {
 	norm1  float64 // 1-norm of R·A·C
 	fill   int     // entries of L and U (diagonal included)
 	cond   float64 // Cond1, once computed
+	// condGiven is Cond1Given, once computed
+	condGiven float64
 }
 
 // SingularError reports a matrix without a usable pivot: at elimination
@@ -486,6 +488,27 @@ func (f *LU) Cond1() float64 {
 }
 
 func (f *LU) cond1() float64 {
+	inv := f.invNorm1(func(w []complex128) []complex128 { return f.solveScaled(append([]complex128(nil), w...)) }, f.solveScaledH)
+	return f.norm1 * inv
+}
+
+// Cond1Given estimates the 1-norm condition number ‖A‖₁‖A⁻¹‖₁ of the
+// matrix A as given to Factor, before its equilibration, by the same
+// estimator, its solves made with the factors through the scales (Solve
+// and SolveH): for a caller that has scaled A itself and states the
+// condition of its own scaled matrix, as a dense factorisation of it
+// would. The result is kept.
+func (f *LU) Cond1Given() float64 {
+	if f.condGiven == 0 {
+		f.condGiven = f.a.Norm1() * f.invNorm1(f.Solve, f.SolveH)
+	}
+	return f.condGiven
+}
+
+// invNorm1 estimates ‖M⁻¹‖₁ from solve (M⁻¹w, w kept) and solveH (M⁻ᴴc,
+// c may be overwritten): Higham's algorithm 4.1 with the alternative
+// estimate, as zlacn2.
+func (f *LU) invNorm1(solve, solveH func([]complex128) []complex128) float64 {
 	n := f.n
 	x := make([]complex128, n)
 	for i := range x {
@@ -494,7 +517,7 @@ func (f *LU) cond1() float64 {
 	est := 0.0
 	last := -1
 	for it := 0; it < 5; it++ {
-		y := f.solveScaled(append([]complex128(nil), x...))
+		y := solve(x)
 		s := norm1(y)
 		if it > 0 && s <= est {
 			break
@@ -508,7 +531,7 @@ func (f *LU) cond1() float64 {
 				xi[i] = 1
 			}
 		}
-		z := f.solveScaledH(xi)
+		z := solveH(xi)
 		j, zj := 0, 0.0
 		for i, v := range z {
 			if a := cmplx.Abs(v); a > zj {
@@ -541,18 +564,18 @@ func (f *LU) cond1() float64 {
 		}
 		alt[i] = complex(sign*(1+float64(i)/den), 0)
 	}
-	if t := 2 * norm1(f.solveScaled(alt)) / (3 * float64(n)); t > est {
+	if t := 2 * norm1(solve(alt)) / (3 * float64(n)); t > est {
 		est = t
 	}
-	return f.norm1 * est
+	return est
 }
 
-// CheckCond returns a *linalg.IllConditioned when Cond1 exceeds limit (or
+// CheckCond returns a *linalg.IllConditioned when cond exceeds limit (or
 // is NaN), and nil otherwise: the typed condition of the dense LU, so that
-// a caller tells the two apart in one way.
-func (f *LU) CheckCond(limit float64) error {
-	if c := f.Cond1(); !(c <= limit) {
-		return &linalg.IllConditioned{Cond: c, Limit: limit}
+// a caller tells the two apart in one way. cond is Cond1 or Cond1Given.
+func CheckCond(cond, limit float64) error {
+	if !(cond <= limit) {
+		return &linalg.IllConditioned{Cond: cond, Limit: limit}
 	}
 	return nil
 }

@@ -89,12 +89,26 @@ func SolveLinear(lin *Linear) (x []float64, cond float64, err error) {
 
 // SolveLinearBy is SolveLinear, saying which factorisation was used.
 func SolveLinearBy(lin *Linear) (*LinearSolution, error) {
+	return solveLinear(lin, nil)
+}
+
+// SolveLinearForced is SolveLinearBy with the factorisation chosen by the
+// caller, the sparse LU or the dense one, whatever UseSparse says: for
+// comparing the two on the same set.
+func SolveLinearForced(lin *Linear, sparse bool) (*LinearSolution, error) {
+	return solveLinear(lin, &sparse)
+}
+
+func solveLinear(lin *Linear, force *bool) (*LinearSolution, error) {
 	s, q, err := checkLinear(lin)
 	if err != nil {
 		return nil, err
 	}
 	n := len(s)
 	sol := &LinearSolution{Method: lin.Plan()}
+	if force != nil {
+		sol.Method.Sparse = *force
+	}
 	cf := lin.complexForm()
 	if sol.Method.Sparse {
 		return sol, solveSparse(lin, cf, s, q, sol)
@@ -162,12 +176,17 @@ func solveSparse(lin *Linear, cf *complexSystem, s, q []float64, sol *LinearSolu
 	}
 	f, ferr := sparse.Factor(a)
 	if ferr != nil {
+		// no non-zero pivot left: exactly singular
 		sol.Cond = math.Inf(1)
-		return singularOf(n, denseReal(lin), s, q, lin.B, sol.Cond, ferr)
+		se := singularOf(n, denseReal(lin), s, q, lin.B, sol.Cond, ferr)
+		se.ZeroPivot, se.Cond = true, sol.Cond
+		return se
 	}
 	sol.Method.Fill = f.Fill()
-	sol.Cond = f.Cond1()
-	if ferr = f.CheckCond(CondLimit); ferr != nil {
+	// κ₁ of the matrix given, Â, as the dense LU states it, not of the
+	// sparse LU's own power-of-two scaling of it
+	sol.Cond = f.Cond1Given()
+	if ferr = sparse.CheckCond(sol.Cond, CondLimit); ferr != nil {
 		return singularOf(n, denseReal(lin), s, q, lin.B, sol.Cond, ferr)
 	}
 	y, _ := f.SolveRefined(bs)
