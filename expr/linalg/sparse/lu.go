@@ -118,7 +118,7 @@ func Factor(a *Matrix) (*LU, error) {
 	for j := range pos {
 		pos[j] = -1
 	}
-	el := &elim{rows: rows, cols: cols, rowDone: rowDone, colDone: colDone, colMax: make([]float64, n)}
+	el := &elim{rows: rows, cols: cols, rowDone: rowDone, colDone: colDone, colMax: make([]float64, n), colStamp: make([]int, n)}
 
 	for k := 0; k < n; k++ {
 		p, q, ok := el.pivot()
@@ -183,7 +183,10 @@ type elim struct {
 	rows             [][]Entry
 	cols             [][]int
 	rowDone, colDone []bool
-	colMax           []float64 // largest squared modulus of each active column, set by pivot
+	colMax           []float64 // largest squared modulus of each active column (colMaxOf)
+	colStamp         []int     // the step at which colMax was found
+	stamp            int       // the current step, counted by pivot
+	cc, rr           []int     // pivot's candidate columns and rows, kept for their memory
 }
 
 func entryAt(r []Entry, j int) complex128 {
@@ -228,28 +231,33 @@ func (c cand) better(d cand) bool {
 	return c.i < d.i
 }
 
-// pivot chooses the pivot of the current step. One pass over the active
-// entries gives every column's largest modulus; a second tries the entries
-// of the sparsest columns and rows.
+// pivot chooses the pivot of the current step: among the entries of the
+// searchWidth sparsest active columns and rows, one whose modulus is at
+// least Threshold of the largest of its column, of smallest Markowitz
+// cost. One pass over the active columns and rows finds the sparsest; the
+// largest modulus of a column is found only for the columns of the
+// candidates (colMaxOf), so that a step costs the order of the matrix plus
+// the entries near the candidates, not every active entry.
 func (el *elim) pivot() (p, q int, ok bool) {
-	var cc, rr []int
+	cc, rr := el.cc[:0], el.rr[:0]
+	colCount := func(a int) int { return len(el.cols[a]) }
+	rowCount := func(a int) int { return len(el.rows[a]) }
+	last := 0 // the count of the last of searchWidth kept: a larger or equal one is not kept
 	for j, done := range el.colDone {
-		if !done {
-			cc = insertSmall(cc, j, func(a int) int { return len(el.cols[a]) })
-			el.colMax[j] = 0
+		if c := len(el.cols[j]); !done && (len(cc) < searchWidth || c < last) {
+			cc = insertSmall(cc, j, c, colCount)
+			last = len(el.cols[cc[len(cc)-1]])
 		}
 	}
+	last = 0
 	for i, done := range el.rowDone {
-		if done {
-			continue
-		}
-		rr = insertSmall(rr, i, func(a int) int { return len(el.rows[a]) })
-		for _, e := range el.rows[i] {
-			if m := abs2(e.V); m > el.colMax[e.Col] {
-				el.colMax[e.Col] = m
-			}
+		if c := len(el.rows[i]); !done && (len(rr) < searchWidth || c < last) {
+			rr = insertSmall(rr, i, c, rowCount)
+			last = len(el.rows[rr[len(rr)-1]])
 		}
 	}
+	el.cc, el.rr = cc, rr
+	el.stamp++
 	best := cand{i: -1}
 	try := func(i, j int, v complex128) {
 		if v == 0 {
@@ -259,7 +267,7 @@ func (el *elim) pivot() (p, q int, ok bool) {
 		if best.i >= 0 && cost > best.cost {
 			return
 		}
-		big := el.colMax[j] // squared moduli
+		big := el.colMaxOf(j) // squared moduli
 		m := abs2(v)
 		if m < Threshold*Threshold*big {
 			return
@@ -269,14 +277,6 @@ func (el *elim) pivot() (p, q int, ok bool) {
 			best = c
 		}
 	}
-	isCand := func(j int) bool {
-		for _, c := range cc {
-			if c == j {
-				return true
-			}
-		}
-		return false
-	}
 	for _, i := range rr {
 		for _, e := range el.rows[i] {
 			try(i, e.Col, e.V)
@@ -284,9 +284,7 @@ func (el *elim) pivot() (p, q int, ok bool) {
 	}
 	for _, j := range cc {
 		for _, i := range el.cols[j] {
-			if isCand(j) {
-				try(i, j, entryAt(el.rows[i], j))
-			}
+			try(i, j, entryAt(el.rows[i], j))
 		}
 	}
 	if best.i < 0 {
@@ -306,10 +304,28 @@ func (el *elim) pivot() (p, q int, ok bool) {
 	return best.i, best.j, true
 }
 
+// colMaxOf returns the largest squared modulus of the active entries of
+// column j, computed once a step (el.stamp).
+func (el *elim) colMaxOf(j int) float64 {
+	if el.colStamp[j] == el.stamp {
+		return el.colMax[j]
+	}
+	big := 0.0
+	for _, i := range el.cols[j] {
+		if m := abs2(entryAt(el.rows[i], j)); m > big {
+			big = m
+		}
+	}
+	el.colMax[j], el.colStamp[j] = big, el.stamp
+	return big
+}
+
 // insertSmall keeps s as the searchWidth indices of smallest count (ties
-// to the smaller index, which comes first in the scan).
-func insertSmall(s []int, x int, count func(int) int) []int {
-	c := count(x)
+// to the smaller index, which comes first in the scan); c is x's count.
+func insertSmall(s []int, x, c int, count func(int) int) []int {
+	if len(s) == searchWidth && count(s[searchWidth-1]) <= c {
+		return s
+	}
 	t := len(s)
 	for t > 0 && count(s[t-1]) > c {
 		t--
@@ -329,7 +345,7 @@ func insertSmall(s []int, x int, count func(int) int) []int {
 func (el *elim) singular(k int) *SingularError {
 	e := &SingularError{Step: k}
 	for j, done := range el.colDone {
-		if !done && el.colMax[j] == 0 {
+		if !done && el.colMaxOf(j) == 0 {
 			e.Cols = append(e.Cols, j)
 		}
 	}
