@@ -67,12 +67,15 @@ const (
 
 	// MaxSolveUnknowns is the largest number of real unknowns of one solve
 	// block, a complex unknown counting two: 1000, such as 500 complex
-	// unknowns. The solver works on the full (dense) matrix of the set:
-	// the direct solution factors the n×n matrix (about 2n³/3 operations,
-	// 6.7·10⁸ at n = 1000), a Newton iteration does so at every step, and
-	// a singular set is diagnosed from a singular value decomposition,
-	// several times dearer; memory grows as n². A larger set is refused
-	// before any of this is done, with an error at the list of unknowns.
+	// unknowns. A linear set that is large and sparse is factored by the
+	// sparse LU (numeric.UseSparse), at a cost about in proportion to its
+	// entries; otherwise the solver works on the full (dense) matrix of the
+	// set: the direct solution factors the n×n matrix (about 2n³/3
+	// operations, 6.7·10⁸ at n = 1000), a Newton iteration does so at every
+	// step, and a singular set, dense or sparse, is diagnosed from a
+	// singular value decomposition of its dense real form, several times
+	// dearer; memory grows as n². A larger set is refused before any of
+	// this is done, with an error at the list of unknowns.
 	MaxSolveUnknowns = 1000
 )
 
