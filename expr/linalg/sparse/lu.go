@@ -235,9 +235,10 @@ func (c cand) better(d cand) bool {
 // searchWidth sparsest active columns and rows, one whose modulus is at
 // least Threshold of the largest of its column, of smallest Markowitz
 // cost. One pass over the active columns and rows finds the sparsest; the
-// largest modulus of a column is found only for the columns of the
-// candidates (colMaxOf), so that a step costs the order of the matrix plus
-// the entries near the candidates, not every active entry.
+// largest modulus of a column is found for the candidates' columns only
+// (colMaxOf) while that is cheaper than one pass over every active entry,
+// so that a step of a sparse elimination costs the order of the matrix
+// plus the entries near the candidates.
 func (el *elim) pivot() (p, q int, ok bool) {
 	cc, rr := el.cc[:0], el.rr[:0]
 	colCount := func(a int) int { return len(el.cols[a]) }
@@ -250,14 +251,47 @@ func (el *elim) pivot() (p, q int, ok bool) {
 		}
 	}
 	last = 0
+	active, nnz := 0, 0
 	for i, done := range el.rowDone {
-		if c := len(el.rows[i]); !done && (len(rr) < searchWidth || c < last) {
+		if done {
+			continue
+		}
+		c := len(el.rows[i])
+		active++
+		nnz += c
+		if len(rr) < searchWidth || c < last {
 			rr = insertSmall(rr, i, c, rowCount)
 			last = len(el.rows[rr[len(rr)-1]])
 		}
 	}
 	el.cc, el.rr = cc, rr
 	el.stamp++
+	// the largest entry of a candidate's column: found column by column
+	// (each entry looked up in its row) while the candidates are few
+	// against the active matrix's density, else in one pass over every
+	// active entry, whichever costs less (an active column has about
+	// nnz/active entries, and so has a row)
+	cands := len(cc)
+	for _, i := range rr {
+		cands += len(el.rows[i])
+	}
+	if active > 0 && cands*nnz > active*active {
+		for j, done := range el.colDone {
+			if !done {
+				el.colMax[j], el.colStamp[j] = 0, el.stamp
+			}
+		}
+		for i, done := range el.rowDone {
+			if done {
+				continue
+			}
+			for _, e := range el.rows[i] {
+				if m := abs2(e.V); m > el.colMax[e.Col] {
+					el.colMax[e.Col] = m
+				}
+			}
+		}
+	}
 	best := cand{i: -1}
 	try := func(i, j int, v complex128) {
 		if v == 0 {
