@@ -186,7 +186,7 @@ func (r *solveRun) problem(x0, rscale []float64) *numeric.Problem {
 // or two real residuals), depending on the real unknowns of the unknowns
 // it involves. Linearize then evaluates an equation only where one of its
 // own unknowns moved, so that classifying and assembling a set costs about
-// (2 + its real unknowns + LinearProbes) evaluations of each equation.
+// (1 + its real unknowns + LinearProbes) evaluations of each equation.
 func (r *solveRun) blocks() *numeric.Blocks {
 	if r.blk != nil {
 		return r.blk
