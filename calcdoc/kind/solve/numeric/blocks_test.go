@@ -1,9 +1,13 @@
 package solve
 
 import (
+	"errors"
 	"math"
 	"math/rand/v2"
 	"testing"
+
+	"calcdoc/expr/linalg"
+	"calcdoc/expr/linalg/sparse"
 )
 
 // sparseComplexSystem is a complex system of n unknowns whose row i has
@@ -112,5 +116,62 @@ func TestLinearizeBlocks(t *testing.T) {
 		if worst > 1e-14 {
 			t.Errorf("n=%d: backward error %.3g of the solution", n, worst)
 		}
+	}
+}
+
+// TestSparseSingularTyped: a singular or ill-conditioned set that the
+// sparse LU factors is reported as a value, a *SingularError whose cause is
+// the typed condition (errors.As): *sparse.SingularError for a matrix with
+// no non-zero pivot left (hand derivation: equation 10 is made 0 = b_10,
+// a row of zeros), *linalg.IllConditioned for equation 11 made equation 10
+// plus 1e-15 of equation 12 (rows nearly dependent: κ far above
+// CondLimit).
+func TestSparseSingularTyped(t *testing.T) {
+	const n = 60
+	for _, c := range []struct {
+		name string
+		edit func(a [][]complex128)
+		zero bool
+	}{
+		{"row of zeros", func(a [][]complex128) {
+			for k := range a[10] {
+				a[10][k] = 0
+			}
+		}, true},
+		{"nearly dependent rows", func(a [][]complex128) {
+			for k := range a[11] {
+				a[11][k] = a[10][k] + 1e-15*a[12][k]
+			}
+		}, false},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			a, b := sparseComplexSystem(n)
+			c.edit(a)
+			lin, ok, err := Linearize(withBlocks(complexProblem(a, b), a, b))
+			if !ok || err != nil {
+				t.Fatalf("Linearize: %v %v", ok, err)
+			}
+			var sol *LinearSolution
+			func() {
+				defer func() {
+					if p := recover(); p != nil {
+						t.Fatalf("panic: %v", p)
+					}
+				}()
+				sol, err = SolveLinearBy(lin)
+			}()
+			var se *SingularError
+			if !errors.As(err, &se) || sol == nil || sol.X != nil || !sol.Method.Sparse {
+				t.Fatalf("err = %v, solution %+v: want a *SingularError from the sparse LU", err, sol)
+			}
+			var ss *sparse.SingularError
+			var ic *linalg.IllConditioned
+			if c.zero && (!errors.As(err, &ss) || !se.ZeroPivot || !math.IsInf(sol.Cond, 1)) {
+				t.Errorf("err = %v (zero pivot %v, cond %v): want a *sparse.SingularError, a zero pivot and cond +Inf", err, se.ZeroPivot, sol.Cond)
+			}
+			if !c.zero && (!errors.As(err, &ic) || !(ic.Cond > CondLimit)) {
+				t.Errorf("err = %v: want a *linalg.IllConditioned above CondLimit", err)
+			}
+		})
 	}
 }
