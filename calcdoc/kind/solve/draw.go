@@ -430,8 +430,21 @@ func entryList(out markup.StringWriter, set *SolveSet, sys *SolveSystem, digits 
 	var sb strings.Builder
 	sb.WriteString("<div class=\"grid\"><table class=\"data system\" style=\"white-space: nowrap;\">\n<tr><th>row</th><th>equation</th><th>column</th><th>unknown</th><th>entry of A</th></tr>\n")
 	txt := func(s expr.Scalar) string { return markup.Esc(expr.FormatScalar(&s, nil, digits).String()) }
+	// each row's and column's cells, made once
+	rows := make([]string, len(sys.Rows))
+	for i, r := range sys.Rows {
+		rows[i] = "<tr><td>" + strconv.Itoa(i+1) + "</td><td>" + rowLabel(set, r) + "</td><td>"
+	}
+	cols := make([]string, len(sys.Cols))
+	for k, c := range sys.Cols {
+		cols[k] = strconv.Itoa(k+1) + "</td><td>" + colLabel(set, c, false) + "</td><td>"
+	}
+	sb.Grow(len(sys.Entries) * 120)
 	for _, e := range sys.Entries {
-		fmt.Fprintf(&sb, "<tr><td>%d</td><td>%s</td><td>%d</td><td>%s</td><td>%s</td></tr>\n", e.Row+1, rowLabel(set, sys.Rows[e.Row]), e.Col+1, colLabel(set, sys.Cols[e.Col], false), txt(e.V))
+		sb.WriteString(rows[e.Row])
+		sb.WriteString(cols[e.Col])
+		sb.WriteString(txt(e.V))
+		sb.WriteString("</td></tr>\n")
 	}
 	sb.WriteString("</table></div>\n<div class=\"grid\"><table class=\"data system\" style=\"white-space: nowrap;\">\n<tr><th>row</th><th>equation</th><th>b</th></tr>\n")
 	for i, r := range sys.Rows {
