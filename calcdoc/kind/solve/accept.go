@@ -74,16 +74,22 @@ func (r *solveRun) solveSet() bool {
 	var x []float64
 	if linear {
 		set.Linear, set.lin, set.MaxDeviation = true, lin, lin.MaxDeviation
-		set.ComplexLU = lin.ComplexLinear()
-		if !r.denseWork(1) { // the work budget (solvework.go)
+		plan := lin.Plan()
+		set.ComplexLU = plan.Complex
+		if !plan.Sparse && !r.denseWork(1) { // the work budget (work.go)
 			return false
 		}
-		xs, cond, err := numeric.SolveLinear(lin)
-		set.Cond = cond
+		sol, err := numeric.SolveLinearBy(lin)
+		if sol != nil {
+			set.Cond, set.Factorization = sol.Cond, sol.Method
+		}
+		if plan.Sparse && !r.sparseWork(set.Factorization) { // the work budget (work.go)
+			return false
+		}
 		if err != nil {
 			return r.coreFailed(err)
 		}
-		x = xs
+		x = sol.X
 	} else {
 		nr, err := numeric.Newton(p, numeric.Options{})
 		if !r.newtonWork(newtonIterations(nr, err)) { // the work budget (solvework.go)
@@ -208,7 +214,11 @@ func (r *solveRun) solveSet() bool {
 // report the set error names the equation that fails worst and its
 // difference in the equation's unit.
 func (r *solveRun) accept(x, d []float64, report bool) bool {
-	if err := r.verify(x, nil); err != nil {
+	if r.verified != nil && sameBits(r.verified, x) {
+		// the backward error of a linear set evaluated every equation at
+		// x already: each equation is evaluated once at the solution
+		r.setX(x)
+	} else if err := r.verify(x, nil); err != nil {
 		return r.coreFailed(&numeric.EvalError{X: x, Equation: -1, Err: err})
 	}
 	worst, worstW, imagFail, nonFinite := -1, 0.0, false, false
@@ -357,10 +367,23 @@ func (r *solveRun) backward(x []float64) (omega, d []float64, err error) {
 	for c := range mags {
 		mags[c] = r.mag(x, c)
 	}
+	omega = make([]float64, r.m)
+	d = make([]float64, r.m)
+	if lin := r.set.lin; lin != nil {
+		// the rows of the linear model: a cost in proportion to its
+		// non-zero entries
+		for i := 0; i < r.m; i++ {
+			s, l := 0.0, 0.0
+			for _, t := range lin.RowEntries(i) {
+				s += math.Abs(t.V) * mags[t.Col]
+				l += t.V * x[t.Col]
+			}
+			d[i], omega[i] = backwardRow(res[i], s, l)
+		}
+		return omega, d, nil
+	}
 	var jac *mat.Dense
-	if r.set.lin != nil {
-		jac = r.set.lin.A
-	} else {
+	{
 		jac = mat.NewDense(r.m, r.n, nil)
 		xp := append([]float64(nil), x...)
 		rp := make([]float64, r.m)
@@ -381,8 +404,6 @@ func (r *solveRun) backward(x []float64) (omega, d []float64, err error) {
 			}
 		}
 	}
-	omega = make([]float64, r.m)
-	d = make([]float64, r.m)
 	for i := 0; i < r.m; i++ {
 		row := jac.RawRowView(i)
 		s, lin := 0.0, 0.0
@@ -390,17 +411,25 @@ func (r *solveRun) backward(x []float64) (omega, d []float64, err error) {
 			s += math.Abs(v) * mags[c]
 			lin += v * x[c]
 		}
-		d[i] = s + math.Abs(res[i]-lin)
-		switch {
-		case res[i] == 0:
-			omega[i] = 0
-		case d[i] > 0:
-			omega[i] = math.Abs(res[i]) / d[i]
-		default:
-			omega[i] = math.Inf(1)
-		}
+		d[i], omega[i] = backwardRow(res[i], s, lin)
 	}
 	return omega, d, nil
+}
+
+// backwardRow is the denominator d = s + |res − lin| of a real residual
+// res, with s = Σ_k |J_ik|·m_k and lin = Σ_k J_ik·x_k, and its backward
+// error ω = |res|/d (0 for a zero residual, +Inf for a zero d).
+func backwardRow(res, s, lin float64) (d, omega float64) {
+	d = s + math.Abs(res-lin)
+	switch {
+	case res == 0:
+		omega = 0
+	case d > 0:
+		omega = math.Abs(res) / d
+	default:
+		omega = math.Inf(1)
+	}
+	return d, omega
 }
 
 // sci3 and sci0 write a ratio in scientific notation with 3 and 1

@@ -3,11 +3,13 @@ package solve
 import (
 	"fmt"
 	"math"
+	"strconv"
 	"strings"
 
 	"calcdoc/calcdoc"
 	numeric "calcdoc/calcdoc/kind/solve/numeric"
 	"calcdoc/expr"
+	"calcdoc/expr/linalg/sparse"
 	"calcdoc/render/markup"
 )
 
@@ -15,6 +17,13 @@ import (
 // set's matrix drawn in place; a larger matrix, and a longer Newton
 // history, go to the appendix at the end of the sheet.
 const InlineSystemLimit = 12
+
+// FullTableLimit is the largest number of rows or columns of a linear
+// set's matrix that the appendix draws as a whole table, zeros included;
+// a larger matrix is listed by its non-zero entries, row by row, and b by
+// its non-zero entries (as a network block lists its matrix), so that the
+// appendix grows with the entries of the set and not with its square.
+const FullTableLimit = 40
 
 // renderSolve draws a solve block: the unknowns, each equation as
 // written, how the set was solved, the matrix of a linear set, the
@@ -207,8 +216,8 @@ func solvedParts(w *markup.Writer, b *calcdoc.Block, set *SolveSet) {
 		if set.ComplexLU {
 			form = " and complex-linear: the complex matrix (one row per equation, one column per complex unknown) is solved"
 		}
-		fmt.Fprintf(w, "<strong>Linear, solved directly.</strong> The equations are affine in the unknowns (confirmed at %d further points to within %s)%s by LU factorisation with partial pivoting of the scaled matrix; condition number estimate κ₁ = %s.",
-			numeric.LinearProbes, sci(numeric.LinearTol), form, sci(set.Cond))
+		fmt.Fprintf(w, "<strong>Linear, solved directly.</strong> The equations are affine in the unknowns (confirmed at %d further points to within %s)%s %s; condition number estimate κ₁ = %s.",
+			numeric.LinearProbes, sci(numeric.LinearTol), form, markup.Esc(factorText(set.Factorization)), sci(set.Cond))
 		if set.Refined {
 			fmt.Fprintf(w, " The direct solution was refined by %d Newton iteration%s.", set.Iterations, markup.Plural(set.Iterations))
 		}
@@ -233,12 +242,19 @@ func solvedParts(w *markup.Writer, b *calcdoc.Block, set *SolveSet) {
 			form = "real form: Re and Im are the real and imaginary parts"
 		}
 		intro := fmt.Sprintf("As a linear system A·x = b (%s; A is %d×%d; for each equation, A·x − b is the side that holds the unknowns minus the other side, left minus right when both hold unknowns):", form, len(sys.Rows), len(sys.Cols))
-		if big {
+		switch {
+		case sys.A == nil:
+			intro = fmt.Sprintf("As a linear system A·x = b (%s; A is %d×%d with %s non-zero entr%s; for each equation, A·x − b is the side that holds the unknowns minus the other side, left minus right when both hold unknowns):", form, len(sys.Rows), len(sys.Cols), group(len(sys.Entries)), ies(len(sys.Entries)))
+			fmt.Fprintf(w, "<p>%s its non-zero entries and b are listed in the appendix, <a href=\"#%s\">equation set at line %d</a>.</p>", markup.Esc(intro), anchor, line)
+			fmt.Fprintf(&w.Appendix, "<section class=\"solveapp\" id=\"%s\">\n<h3>Equation set at line %d: the non-zero entries of A and b</h3>\n<p>%s</p>\n", anchor, line, markup.Esc(intro))
+			entryList(&w.Appendix, set, sys, w.Digits())
+			w.Appendix.WriteString("</section>\n")
+		case big:
 			fmt.Fprintf(w, "<p>%s the matrix and vector are in the appendix, <a href=\"#%s\">equation set at line %d</a>.</p>", markup.Esc(intro), anchor, line)
 			fmt.Fprintf(&w.Appendix, "<section class=\"solveapp\" id=\"%s\">\n<h3>Equation set at line %d: A and b</h3>\n<p>%s</p>\n", anchor, line, markup.Esc(intro))
 			systemTable(&w.Appendix, set, sys, w.Digits(), false)
 			w.Appendix.WriteString("</section>\n")
-		} else {
+		default:
 			fmt.Fprintf(w, "<p>%s</p>", markup.Esc(intro))
 			var sb strings.Builder
 			systemTable(&sb, set, sys, w.Digits(), true)
@@ -299,6 +315,39 @@ func solvedParts(w *markup.Writer, b *calcdoc.Block, set *SolveSet) {
 	w.WriteString("</table></div>\n")
 	partClose(w)
 }
+
+// factorText names the factorisation of a linear set: dense or sparse LU,
+// the size of the matrix and its non-zero entries, and for the sparse LU
+// why it was chosen (numeric.UseSparse), its pivot order and the entries
+// of its factors.
+func factorText(f numeric.Factorization) string {
+	size := fmt.Sprintf("%d×%d, %s non-zero entr%s", f.Order, f.Order, group(f.NNZ), ies(f.NNZ))
+	if !f.Sparse {
+		return "by dense LU factorisation with partial pivoting of the scaled matrix (" + size + ")"
+	}
+	return fmt.Sprintf("by sparse LU factorisation of the scaled matrix (%s; sparse, as it has at least %d rows and at most %s of its entries are non-zero): pivots in Markowitz order (fewest new entries) under threshold partial pivoting (each pivot at least %s of the largest entry of its column), %s entries in the factors L and U, the solution refined against the matrix while that lowers its backward error",
+		size, numeric.SparseMinOrder, pct(numeric.SparseMaxDensity), sci(sparse.Threshold), group(f.Fill))
+}
+
+// group writes a count with a comma between groups of three digits:
+// "1,498".
+func group(n int) string {
+	s := strconv.Itoa(n)
+	for i := len(s) - 3; i > 0; i -= 3 {
+		s = s[:i] + "," + s[i:]
+	}
+	return s
+}
+
+func ies(n int) string {
+	if n == 1 {
+		return "y"
+	}
+	return "ies"
+}
+
+// pct writes a fraction as a percentage: "10 %".
+func pct(f float64) string { return strconv.FormatFloat(100*f, 'g', -1, 64) + " %" }
 
 // diffML typesets a difference; an exact zero is "0" in the unit.
 func diffML(v *expr.Scalar, digits int) string {
@@ -372,6 +421,40 @@ func systemTable(out markup.StringWriter, set *SolveSet, sys *SolveSystem, digit
 		sb.WriteString("<td>" + cell(sys.B.At(i, 0)) + "</td></tr>\n")
 	}
 	sb.WriteString("</table></div>\n")
+	out.WriteString(sb.String())
+}
+
+// entryList writes the non-zero entries of A row by row, and b's, as
+// plain text: the appendix of a system larger than FullTableLimit.
+func entryList(out markup.StringWriter, set *SolveSet, sys *SolveSystem, digits int) {
+	var sb strings.Builder
+	sb.WriteString("<div class=\"grid\"><table class=\"data system\" style=\"white-space: nowrap;\">\n<tr><th>row</th><th>equation</th><th>column</th><th>unknown</th><th>entry of A</th></tr>\n")
+	txt := func(s expr.Scalar) string { return markup.Esc(expr.FormatScalar(&s, nil, digits).String()) }
+	// each row's and column's cells, made once
+	rows := make([]string, len(sys.Rows))
+	for i, r := range sys.Rows {
+		rows[i] = "<tr><td>" + strconv.Itoa(i+1) + "</td><td>" + rowLabel(set, r) + "</td><td>"
+	}
+	cols := make([]string, len(sys.Cols))
+	for k, c := range sys.Cols {
+		cols[k] = strconv.Itoa(k+1) + "</td><td>" + colLabel(set, c, false) + "</td><td>"
+	}
+	sb.Grow(len(sys.Entries) * 120)
+	for _, e := range sys.Entries {
+		sb.WriteString(rows[e.Row])
+		sb.WriteString(cols[e.Col])
+		sb.WriteString(txt(e.V))
+		sb.WriteString("</td></tr>\n")
+	}
+	sb.WriteString("</table></div>\n<div class=\"grid\"><table class=\"data system\" style=\"white-space: nowrap;\">\n<tr><th>row</th><th>equation</th><th>b</th></tr>\n")
+	for i, r := range sys.Rows {
+		v := sys.B.At(i, 0)
+		if v.Z == 0 {
+			continue
+		}
+		fmt.Fprintf(&sb, "<tr><td>%d</td><td>%s</td><td>%s</td></tr>\n", i+1, rowLabel(set, r), txt(v))
+	}
+	sb.WriteString("</table></div>\n<p>Every entry of A and b not listed is 0.</p>\n")
 	out.WriteString(sb.String())
 }
 

@@ -140,6 +140,7 @@ func (r *solveRun) residual(x, out []float64) error {
 // real residuals.
 func (r *solveRun) verify(x, res []float64) error {
 	r.setX(x)
+	r.verified = nil
 	for i, eq := range r.eqs {
 		l, rr, err := r.sides(i)
 		if err != nil {
@@ -154,6 +155,7 @@ func (r *solveRun) verify(x, res []float64) error {
 			}
 		}
 	}
+	r.verified = append(r.verified[:0], x...)
 	return nil
 }
 
@@ -176,6 +178,69 @@ func (r *solveRun) problem(x0, rscale []float64) *numeric.Problem {
 	return &numeric.Problem{
 		N: r.n, M: r.m, Residual: r.residual,
 		X0: x0, XScale: r.xscale, RScale: rscale, Complex: r.pairs,
-		ComplexRows: rows,
+		ComplexRows: rows, Blocks: r.blocks(),
 	}
+}
+
+// blocks is the structure of the residual: a block per equation (its one
+// or two real residuals), depending on the real unknowns of the unknowns
+// it involves. Linearize then evaluates an equation only where one of its
+// own unknowns moved, so that classifying and assembling a set costs about
+// (1 + its real unknowns + LinearProbes) evaluations of each equation.
+func (r *solveRun) blocks() *numeric.Blocks {
+	if r.blk != nil {
+		return r.blk
+	}
+	bl := &numeric.Blocks{Rows: make([][]int, len(r.eqs)), Cols: make([][]int, len(r.eqs))}
+	for i, eq := range r.eqs {
+		row := r.row[i]
+		if eq.RealValued {
+			bl.Rows[i] = []int{row}
+		} else {
+			bl.Rows[i] = []int{row, row + 1}
+		}
+		var cols []int
+		for _, k := range eq.Unknowns {
+			c := r.col[k]
+			cols = append(cols, c)
+			if !r.unk[k].Real {
+				cols = append(cols, c+1)
+			}
+		}
+		bl.Cols[i] = cols
+	}
+	bl.Eval = r.evalEquation
+	r.blk = bl
+	return bl
+}
+
+// evalEquation is the block function of equation i: it sets the trial
+// values of the equation's own unknowns from x and evaluates it, as the
+// residual function does (an equation counted as real must stay real).
+func (r *solveRun) evalEquation(i int, x, out []float64) error {
+	eq := r.eqs[i]
+	for _, k := range eq.Unknowns {
+		c := r.col[k]
+		if r.unk[k].Real {
+			r.vals[k].Z = complex(x[c], 0)
+		} else {
+			r.vals[k].Z = complex(x[c], x[c+1])
+		}
+	}
+	l, rr, err := r.sides(i)
+	if err != nil {
+		return err
+	}
+	d := l.Z - rr.Z
+	if !r.lenient {
+		if err := r.trialReal(i, math.Max(cmplx.Abs(l.Z), cmplx.Abs(rr.Z)), d); err != nil {
+			return err
+		}
+	}
+	row := r.row[i]
+	out[row] = real(d)
+	if !eq.RealValued {
+		out[row+1] = imag(d)
+	}
+	return nil
 }

@@ -2,12 +2,11 @@ package solve
 
 import (
 	"math"
+	"sort"
 
 	"calcdoc/calcdoc"
 	numeric "calcdoc/calcdoc/kind/solve/numeric"
 	"calcdoc/expr"
-
-	"gonum.org/v1/gonum/mat"
 )
 
 // A solve block (LANGUAGE.md section 5) is evaluated in these steps:
@@ -68,12 +67,15 @@ const (
 
 	// MaxSolveUnknowns is the largest number of real unknowns of one solve
 	// block, a complex unknown counting two: 1000, such as 500 complex
-	// unknowns. The solver works on the full (dense) matrix of the set:
-	// the direct solution factors the n×n matrix (about 2n³/3 operations,
-	// 6.7·10⁸ at n = 1000), a Newton iteration does so at every step, and
-	// a singular set is diagnosed from a singular value decomposition,
-	// several times dearer; memory grows as n². A larger set is refused
-	// before any of this is done, with an error at the list of unknowns.
+	// unknowns. A linear set that is large and sparse is factored by the
+	// sparse LU (numeric.UseSparse), at a cost about in proportion to its
+	// entries; otherwise the solver works on the full (dense) matrix of the
+	// set: the direct solution factors the n×n matrix (about 2n³/3
+	// operations, 6.7·10⁸ at n = 1000), a Newton iteration does so at every
+	// step, and a singular set, dense or sparse, is diagnosed from a
+	// singular value decomposition of its dense real form, several times
+	// dearer; memory grows as n². A larger set is refused before any of
+	// this is done, with an error at the list of unknowns.
 	MaxSolveUnknowns = 1000
 )
 
@@ -160,6 +162,10 @@ type SolveSet struct {
 	// numeric.Linear.ComplexLinear): its complex matrix was factored rather
 	// than the real form, and Cond is that matrix's.
 	ComplexLU bool
+	// Factorization says how a linear set was factored: dense or sparse
+	// LU, complex or real form, the order and non-zero entries of the
+	// matrix and the entries of its sparse factors.
+	Factorization numeric.Factorization
 	// Refined is true for a linear set whose direct solution did not meet
 	// the residual tolerance and was refined by Newton iterations.
 	Refined bool
@@ -225,17 +231,31 @@ type SolveSystem struct {
 	Flipped []bool
 	Rows    []SystemIndex
 	Cols    []SystemIndex
-	A       *expr.Matrix
-	B       *expr.Matrix // a column vector
+	// Entries are the non-zero entries of A, row by row, each row by
+	// column.
+	Entries []SystemEntry
+	// A is the whole matrix, zeros included, for a system of at most
+	// FullTableLimit rows and columns (the sheet draws it as a table); nil
+	// for a larger one, of which the sheet lists Entries.
+	A *expr.Matrix
+	B *expr.Matrix // a column vector
 }
 
-// System returns the linear system of a solved linear set, or nil.
+// SystemEntry is a non-zero entry of A.
+type SystemEntry struct {
+	Row, Col int
+	V        expr.Scalar
+}
+
+// System returns the linear system of a solved linear set, or nil. Its
+// cost is in proportion to the non-zero entries of the set's matrix (and
+// to its size, for a system small enough to be drawn whole).
 func (s *SolveSet) System() *SolveSystem {
 	if s == nil || s.lin == nil || s.run == nil {
 		return nil
 	}
 	r := s.run
-	a, bv := s.lin.A, s.lin.B
+	lin, bv := s.lin, s.lin.B
 	flipped := make([]bool, len(s.Equations))
 	sign := make([]float64, len(s.Equations))
 	for i, e := range s.Equations {
@@ -252,27 +272,53 @@ func (s *SolveSet) System() *SolveSystem {
 	for _, e := range s.Equations {
 		allComplex = allComplex && !e.RealValued
 	}
-	if allComplex && complexStructure(a) {
+	if allComplex && complexStructure(lin) {
 		n, m := len(s.Unknowns), len(s.Equations)
-		sys := &SolveSystem{Complex: true, Flipped: flipped, A: expr.NewMatrix(m, n), B: expr.NewMatrix(m, 1)}
+		sys := &SolveSystem{Complex: true, Flipped: flipped, B: expr.NewMatrix(m, 1)}
+		// column c of the real form is part c%2 of unknown c/2 (every
+		// unknown is complex)
+		z := make([]complex128, n)
+		touched := make([]bool, n)
+		var list []int
 		for i, e := range s.Equations {
 			sys.Rows = append(sys.Rows, SystemIndex{i, Whole})
 			ri := r.row[i]
+			list = list[:0]
+			for p, row := range [2][]numeric.Entry{lin.RowEntries(ri), lin.RowEntries(ri + 1)} {
+				for _, t := range row {
+					if t.Col%2 != 0 {
+						continue // the imaginary part's column: a copy of the real part's
+					}
+					k := t.Col / 2
+					if !touched[k] {
+						touched[k], z[k] = true, 0
+						list = append(list, k)
+					}
+					if p == 0 {
+						z[k] += complex(t.V, 0)
+					} else {
+						z[k] += complex(0, t.V)
+					}
+				}
+			}
+			sort.Ints(list)
 			sg := complex(sign[i], 0)
-			for k, u := range s.Unknowns {
-				c := r.col[k]
-				z := complex(a.At(ri, c), a.At(ri+1, c))
-				sys.A.Set(i, k, expr.Scalar{Z: sg * z, Dim: e.Dim.Div(u.Dim)})
+			for _, k := range list {
+				touched[k] = false
+				if z[k] != 0 {
+					sys.Entries = append(sys.Entries, SystemEntry{i, k, expr.Scalar{Z: sg * z[k], Dim: e.Dim.Div(s.Unknowns[k].Dim)}})
+				}
 			}
 			sys.B.Set(i, 0, expr.Scalar{Z: sg * complex(bv[ri], bv[ri+1]), Dim: e.Dim})
 		}
 		for k := range s.Unknowns {
 			sys.Cols = append(sys.Cols, SystemIndex{k, Whole})
 		}
+		sys.fill(s)
 		return sys
 	}
-	m, n := a.Dims()
-	sys := &SolveSystem{Flipped: flipped, A: expr.NewMatrix(m, n), B: expr.NewMatrix(m, 1)}
+	m, _ := lin.Dims()
+	sys := &SolveSystem{Flipped: flipped, B: expr.NewMatrix(m, 1)}
 	for i, e := range s.Equations {
 		if e.RealValued {
 			sys.Rows = append(sys.Rows, SystemIndex{i, Whole})
@@ -290,12 +336,31 @@ func (s *SolveSet) System() *SolveSystem {
 	for i, ri := range sys.Rows {
 		ed := s.Equations[ri.Index].Dim
 		sg := sign[ri.Index]
-		for k, ck := range sys.Cols {
-			sys.A.Set(i, k, expr.Scalar{Z: complex(sg*a.At(i, k), 0), Dim: ed.Div(s.Unknowns[ck.Index].Dim)})
+		for _, t := range lin.RowEntries(i) {
+			sys.Entries = append(sys.Entries, SystemEntry{i, t.Col, expr.Scalar{Z: complex(sg*t.V, 0), Dim: ed.Div(s.Unknowns[sys.Cols[t.Col].Index].Dim)}})
 		}
 		sys.B.Set(i, 0, expr.Scalar{Z: complex(sg*bv[i], 0), Dim: ed})
 	}
+	sys.fill(s)
 	return sys
+}
+
+// fill makes the whole matrix A of a system small enough to be drawn
+// whole: its entries, and zeros in the units of their row and column.
+func (sys *SolveSystem) fill(s *SolveSet) {
+	if len(sys.Rows) > FullTableLimit || len(sys.Cols) > FullTableLimit {
+		return
+	}
+	sys.A = expr.NewMatrix(len(sys.Rows), len(sys.Cols))
+	for i, ri := range sys.Rows {
+		ed := s.Equations[ri.Index].Dim
+		for k, ck := range sys.Cols {
+			sys.A.Set(i, k, expr.Scalar{Dim: ed.Div(s.Unknowns[ck.Index].Dim)})
+		}
+	}
+	for _, e := range sys.Entries {
+		sys.A.Set(e.Row, e.Col, e.V)
+	}
 }
 
 // involves reports whether an expression uses one of the unknowns.
@@ -312,27 +377,55 @@ func (r *solveRun) involves(n expr.Node) bool {
 	return found
 }
 
-// complexStructure reports whether every 2×2 block of a is [[p, −q], [q, p]]
-// within 1e-9 of the block's size (plus 1e-12 of the largest entry of its
-// rows, for entries that are rounding noise).
-func complexStructure(a *mat.Dense) bool {
-	m, n := a.Dims()
+// complexStructure reports whether every 2×2 block of the model's matrix
+// is [[p, −q], [q, p]] within 1e-9 of the block's size (plus 1e-12 of the
+// largest entry of its rows, for entries that are rounding noise). Only
+// the blocks that hold a non-zero entry are looked at: a block of zeros
+// has the structure.
+func complexStructure(lin *numeric.Linear) bool {
+	m, n := lin.Dims()
 	if m%2 != 0 || n%2 != 0 {
 		return false
 	}
+	type block struct{ p, mq, q, p2 float64 }
+	blk := make([]block, n/2)
+	touched := make([]bool, n/2)
+	var list []int
 	for i := 0; i < m; i += 2 {
 		rowMax := 0.0
-		for k := 0; k < n; k++ {
-			rowMax = math.Max(rowMax, math.Max(math.Abs(a.At(i, k)), math.Abs(a.At(i+1, k))))
-		}
-		for k := 0; k < n; k += 2 {
-			p, mq := a.At(i, k), a.At(i, k+1)
-			q, p2 := a.At(i+1, k), a.At(i+1, k+1)
-			size := math.Abs(p) + math.Abs(mq) + math.Abs(q) + math.Abs(p2)
-			tol := 1e-9*size + 1e-12*rowMax
-			if math.Abs(p-p2) > tol || math.Abs(mq+q) > tol {
-				return false
+		list = list[:0]
+		for p, row := range [2][]numeric.Entry{lin.RowEntries(i), lin.RowEntries(i + 1)} {
+			for _, t := range row {
+				rowMax = math.Max(rowMax, math.Abs(t.V))
+				k := t.Col / 2
+				if !touched[k] {
+					touched[k], blk[k] = true, block{}
+					list = append(list, k)
+				}
+				switch {
+				case p == 0 && t.Col%2 == 0:
+					blk[k].p = t.V
+				case p == 0:
+					blk[k].mq = t.V
+				case t.Col%2 == 0:
+					blk[k].q = t.V
+				default:
+					blk[k].p2 = t.V
+				}
 			}
+		}
+		ok := true
+		for _, k := range list {
+			touched[k] = false
+			b := blk[k]
+			size := math.Abs(b.p) + math.Abs(b.mq) + math.Abs(b.q) + math.Abs(b.p2)
+			tol := 1e-9*size + 1e-12*rowMax
+			if math.Abs(b.p-b.p2) > tol || math.Abs(b.mq+b.q) > tol {
+				ok = false
+			}
+		}
+		if !ok {
+			return false
 		}
 	}
 	return true
@@ -364,6 +457,10 @@ type solveRun struct {
 	// real is real at the trial point (see TrialImagTol), for the
 	// acceptance, which makes its own test
 	lenient bool
+
+	blk *numeric.Blocks // the structure of the residual (see blocks)
+	// verified is the point verify last evaluated every equation at
+	verified []float64
 
 	// the residual cache (see residual)
 	memo   []eqMemo

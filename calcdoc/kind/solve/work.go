@@ -54,3 +54,19 @@ func newtonIterations(res *numeric.Result, err error) int {
 	}
 	return 0
 }
+
+// sparseWork charges the sparse factorisation of a linear set after it is
+// done (its cost is known only then): its factors' entries times the
+// matrix's order over denseSpeed, a bound on the multiply-adds of a
+// Markowitz elimination whose pivot rows have at most that many entries,
+// and one unit an entry for the condition estimate and the refinement.
+func (r *solveRun) sparseWork(f numeric.Factorization) bool {
+	units := int64(f.Fill)*int64(f.Order)/denseSpeed + int64(f.NNZ+f.Fill)
+	err := r.env.Budget.Charge(units, r.setPos())
+	if err == nil {
+		return true
+	}
+	r.set.SetErrs = append(r.set.SetErrs, err)
+	r.b.Errors = append(r.b.Errors, err)
+	return false
+}

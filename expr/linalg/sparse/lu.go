@@ -4,6 +4,8 @@ import (
 	"fmt"
 	"math"
 	"math/cmplx"
+
+	"calcdoc/expr/linalg"
 )
 
 // Threshold is the threshold of partial pivoting: a pivot's modulus is at
@@ -32,6 +34,9 @@ type LU struct {
 	diag   []complex128
 	norm1  float64 // 1-norm of R·A·C
 	fill   int     // entries of L and U (diagonal included)
+	cond   float64 // Cond1, once computed
+	// condGiven is Cond1Given, once computed
+	condGiven float64
 }
 
 // SingularError reports a matrix without a usable pivot: at elimination
@@ -113,7 +118,7 @@ func Factor(a *Matrix) (*LU, error) {
 	for j := range pos {
 		pos[j] = -1
 	}
-	el := &elim{rows: rows, cols: cols, rowDone: rowDone, colDone: colDone, colMax: make([]float64, n)}
+	el := &elim{rows: rows, cols: cols, rowDone: rowDone, colDone: colDone, colMax: make([]float64, n), colStamp: make([]int, n)}
 
 	for k := 0; k < n; k++ {
 		p, q, ok := el.pivot()
@@ -178,7 +183,10 @@ type elim struct {
 	rows             [][]Entry
 	cols             [][]int
 	rowDone, colDone []bool
-	colMax           []float64 // largest squared modulus of each active column, set by pivot
+	colMax           []float64 // largest squared modulus of each active column (colMaxOf)
+	colStamp         []int     // the step at which colMax was found
+	stamp            int       // the current step, counted by pivot
+	cc, rr           []int     // pivot's candidate columns and rows, kept for their memory
 }
 
 func entryAt(r []Entry, j int) complex128 {
@@ -223,25 +231,64 @@ func (c cand) better(d cand) bool {
 	return c.i < d.i
 }
 
-// pivot chooses the pivot of the current step. One pass over the active
-// entries gives every column's largest modulus; a second tries the entries
-// of the sparsest columns and rows.
+// pivot chooses the pivot of the current step: among the entries of the
+// searchWidth sparsest active columns and rows, one whose modulus is at
+// least Threshold of the largest of its column, of smallest Markowitz
+// cost. One pass over the active columns and rows finds the sparsest; the
+// largest modulus of a column is found for the candidates' columns only
+// (colMaxOf) while that is cheaper than one pass over every active entry,
+// so that a step of a sparse elimination costs the order of the matrix
+// plus the entries near the candidates.
 func (el *elim) pivot() (p, q int, ok bool) {
-	var cc, rr []int
+	cc, rr := el.cc[:0], el.rr[:0]
+	colCount := func(a int) int { return len(el.cols[a]) }
+	rowCount := func(a int) int { return len(el.rows[a]) }
+	last := 0 // the count of the last of searchWidth kept: a larger or equal one is not kept
 	for j, done := range el.colDone {
-		if !done {
-			cc = insertSmall(cc, j, func(a int) int { return len(el.cols[a]) })
-			el.colMax[j] = 0
+		if c := len(el.cols[j]); !done && (len(cc) < searchWidth || c < last) {
+			cc = insertSmall(cc, j, c, colCount)
+			last = len(el.cols[cc[len(cc)-1]])
 		}
 	}
+	last = 0
+	active, nnz := 0, 0
 	for i, done := range el.rowDone {
 		if done {
 			continue
 		}
-		rr = insertSmall(rr, i, func(a int) int { return len(el.rows[a]) })
-		for _, e := range el.rows[i] {
-			if m := abs2(e.V); m > el.colMax[e.Col] {
-				el.colMax[e.Col] = m
+		c := len(el.rows[i])
+		active++
+		nnz += c
+		if len(rr) < searchWidth || c < last {
+			rr = insertSmall(rr, i, c, rowCount)
+			last = len(el.rows[rr[len(rr)-1]])
+		}
+	}
+	el.cc, el.rr = cc, rr
+	el.stamp++
+	// the largest entry of a candidate's column: found column by column
+	// (each entry looked up in its row) while the candidates are few
+	// against the active matrix's density, else in one pass over every
+	// active entry, whichever costs less (an active column has about
+	// nnz/active entries, and so has a row)
+	cands := len(cc)
+	for _, i := range rr {
+		cands += len(el.rows[i])
+	}
+	if active > 0 && cands*nnz > active*active {
+		for j, done := range el.colDone {
+			if !done {
+				el.colMax[j], el.colStamp[j] = 0, el.stamp
+			}
+		}
+		for i, done := range el.rowDone {
+			if done {
+				continue
+			}
+			for _, e := range el.rows[i] {
+				if m := abs2(e.V); m > el.colMax[e.Col] {
+					el.colMax[e.Col] = m
+				}
 			}
 		}
 	}
@@ -254,7 +301,7 @@ func (el *elim) pivot() (p, q int, ok bool) {
 		if best.i >= 0 && cost > best.cost {
 			return
 		}
-		big := el.colMax[j] // squared moduli
+		big := el.colMaxOf(j) // squared moduli
 		m := abs2(v)
 		if m < Threshold*Threshold*big {
 			return
@@ -264,14 +311,6 @@ func (el *elim) pivot() (p, q int, ok bool) {
 			best = c
 		}
 	}
-	isCand := func(j int) bool {
-		for _, c := range cc {
-			if c == j {
-				return true
-			}
-		}
-		return false
-	}
 	for _, i := range rr {
 		for _, e := range el.rows[i] {
 			try(i, e.Col, e.V)
@@ -279,9 +318,7 @@ func (el *elim) pivot() (p, q int, ok bool) {
 	}
 	for _, j := range cc {
 		for _, i := range el.cols[j] {
-			if isCand(j) {
-				try(i, j, entryAt(el.rows[i], j))
-			}
+			try(i, j, entryAt(el.rows[i], j))
 		}
 	}
 	if best.i < 0 {
@@ -301,10 +338,28 @@ func (el *elim) pivot() (p, q int, ok bool) {
 	return best.i, best.j, true
 }
 
+// colMaxOf returns the largest squared modulus of the active entries of
+// column j, computed once a step (el.stamp).
+func (el *elim) colMaxOf(j int) float64 {
+	if el.colStamp[j] == el.stamp {
+		return el.colMax[j]
+	}
+	big := 0.0
+	for _, i := range el.cols[j] {
+		if m := abs2(entryAt(el.rows[i], j)); m > big {
+			big = m
+		}
+	}
+	el.colMax[j], el.colStamp[j] = big, el.stamp
+	return big
+}
+
 // insertSmall keeps s as the searchWidth indices of smallest count (ties
-// to the smaller index, which comes first in the scan).
-func insertSmall(s []int, x int, count func(int) int) []int {
-	c := count(x)
+// to the smaller index, which comes first in the scan); c is x's count.
+func insertSmall(s []int, x, c int, count func(int) int) []int {
+	if len(s) == searchWidth && count(s[searchWidth-1]) <= c {
+		return s
+	}
 	t := len(s)
 	for t > 0 && count(s[t-1]) > c {
 		t--
@@ -324,7 +379,7 @@ func insertSmall(s []int, x int, count func(int) int) []int {
 func (el *elim) singular(k int) *SingularError {
 	e := &SingularError{Step: k}
 	for j, done := range el.colDone {
-		if !done && el.colMax[j] == 0 {
+		if !done && el.colMaxOf(j) == 0 {
 			e.Cols = append(e.Cols, j)
 		}
 	}
@@ -471,8 +526,39 @@ func (f *LU) SolveRefined(b []complex128) (x []complex128, omega float64) {
 // equilibrated matrix Â = R·A·C, with ‖Â⁻¹‖₁ from Higham's refinement of
 // Hager's estimator (N. J. Higham, "FORTRAN codes for estimating the
 // one-norm of a real or complex matrix", ACM TOMS 14 (1988), algorithm
-// 4.1, as in LAPACK zlacn2), never below the lower bound it finds.
+// 4.1, as in LAPACK zlacn2), never below the lower bound it finds. It
+// takes at most 11 solves with the factors, each costing their number of
+// entries (Fill), so it costs less than the factorisation. The result is
+// kept.
 func (f *LU) Cond1() float64 {
+	if f.cond == 0 {
+		f.cond = f.cond1()
+	}
+	return f.cond
+}
+
+func (f *LU) cond1() float64 {
+	inv := f.invNorm1(func(w []complex128) []complex128 { return f.solveScaled(append([]complex128(nil), w...)) }, f.solveScaledH)
+	return f.norm1 * inv
+}
+
+// Cond1Given estimates the 1-norm condition number ‖A‖₁‖A⁻¹‖₁ of the
+// matrix A as given to Factor, before its equilibration, by the same
+// estimator, its solves made with the factors through the scales (Solve
+// and SolveH): for a caller that has scaled A itself and states the
+// condition of its own scaled matrix, as a dense factorisation of it
+// would. The result is kept.
+func (f *LU) Cond1Given() float64 {
+	if f.condGiven == 0 {
+		f.condGiven = f.a.Norm1() * f.invNorm1(f.Solve, f.SolveH)
+	}
+	return f.condGiven
+}
+
+// invNorm1 estimates ‖M⁻¹‖₁ from solve (M⁻¹w, w kept) and solveH (M⁻ᴴc,
+// c may be overwritten): Higham's algorithm 4.1 with the alternative
+// estimate, as zlacn2.
+func (f *LU) invNorm1(solve, solveH func([]complex128) []complex128) float64 {
 	n := f.n
 	x := make([]complex128, n)
 	for i := range x {
@@ -481,7 +567,7 @@ func (f *LU) Cond1() float64 {
 	est := 0.0
 	last := -1
 	for it := 0; it < 5; it++ {
-		y := f.solveScaled(append([]complex128(nil), x...))
+		y := solve(x)
 		s := norm1(y)
 		if it > 0 && s <= est {
 			break
@@ -495,7 +581,7 @@ func (f *LU) Cond1() float64 {
 				xi[i] = 1
 			}
 		}
-		z := f.solveScaledH(xi)
+		z := solveH(xi)
 		j, zj := 0, 0.0
 		for i, v := range z {
 			if a := cmplx.Abs(v); a > zj {
@@ -528,10 +614,20 @@ func (f *LU) Cond1() float64 {
 		}
 		alt[i] = complex(sign*(1+float64(i)/den), 0)
 	}
-	if t := 2 * norm1(f.solveScaled(alt)) / (3 * float64(n)); t > est {
+	if t := 2 * norm1(solve(alt)) / (3 * float64(n)); t > est {
 		est = t
 	}
-	return f.norm1 * est
+	return est
+}
+
+// CheckCond returns a *linalg.IllConditioned when cond exceeds limit (or
+// is NaN), and nil otherwise: the typed condition of the dense LU, so that
+// a caller tells the two apart in one way. cond is Cond1 or Cond1Given.
+func CheckCond(cond, limit float64) error {
+	if !(cond <= limit) {
+		return &linalg.IllConditioned{Cond: cond, Limit: limit}
+	}
+	return nil
 }
 
 func norm1(v []complex128) float64 {

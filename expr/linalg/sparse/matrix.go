@@ -129,14 +129,33 @@ func (m *Matrix) Norm1() float64 {
 // a part counting 0 where its residual is exactly 0. It returns the
 // largest ω_i and the row where it occurs.
 func (m *Matrix) BackwardError(x, b []complex128) (omega float64, row int) {
+	res := make([]complex128, m.N)
 	for i, r := range m.Rows {
-		res := b[i]
+		v := b[i]
+		for _, e := range r {
+			v -= e.V * x[e.Col]
+		}
+		res[i] = v
+	}
+	return m.BackwardOf(res, x, b)
+}
+
+// BackwardOf is BackwardError with the residual r_i of each row given
+// (its sign does not matter): a residual evaluated otherwise than from A,
+// such as the equations as written, which is what a network block's
+// acceptance tests. It returns the largest ω_i (+Inf for a row whose
+// residual is not a number), at the first row where it occurs (row 0 when
+// every ω_i is 0).
+func (m *Matrix) BackwardOf(res, x, b []complex128) (omega float64, row int) {
+	for i, r := range m.Rows {
 		d := 0.0
 		for _, e := range r {
-			res -= e.V * x[e.Col]
 			d += (math.Abs(real(e.V)) + math.Abs(imag(e.V))) * cmplx.Abs(x[e.Col])
 		}
-		w := math.Max(part(real(res), d+math.Abs(real(b[i]))), part(imag(res), d+math.Abs(imag(b[i]))))
+		w := math.Max(part(real(res[i]), d+math.Abs(real(b[i]))), part(imag(res[i]), d+math.Abs(imag(b[i]))))
+		if math.IsNaN(w) {
+			w = math.Inf(1) // a residual that is not a number is no solution
+		}
 		if w > omega {
 			omega, row = w, i
 		}
@@ -144,11 +163,12 @@ func (m *Matrix) BackwardError(x, b []complex128) (omega float64, row int) {
 	return omega, row
 }
 
+// part is |r|/d, 0 for r = 0 and +Inf where d is 0 or infinite.
 func part(r, d float64) float64 {
 	switch {
 	case r == 0:
 		return 0
-	case d > 0:
+	case d > 0 && !math.IsInf(d, 0):
 		return math.Abs(r) / d
 	}
 	return math.Inf(1)

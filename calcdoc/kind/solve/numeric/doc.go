@@ -12,10 +12,14 @@
 //   - classifies the set ([Linearize]): it builds A and b of the affine model
 //     r(x) = A x − b from N+1 evaluations and confirms the model at
 //     [LinearProbes] further pseudo-random points to the relative tolerance
-//     [LinearTol];
-//   - solves a linear set directly ([SolveLinear]): LU with partial pivoting of
-//     the equilibrated matrix (package expr/linalg; the complex matrix of half
-//     the order when the set is complex-linear, see [Linear.ComplexLinear]),
+//     [LinearTol]; with [Problem.Blocks] it evaluates each block of residuals
+//     only where its own unknowns move and builds A as rows of non-zero
+//     entries;
+//   - solves a linear set directly ([SolveLinear], [SolveLinearBy]): LU of
+//     the equilibrated matrix (the complex matrix of half the order when the
+//     set is complex-linear, see [Linear.ComplexLinear]), dense with partial
+//     pivoting (package expr/linalg) or, for a large sparse matrix
+//     ([UseSparse]), sparse in Markowitz order (package expr/linalg/sparse),
 //     the 1-norm condition number estimate, and for a
 //     singular or badly conditioned matrix (condition number above
 //     [CondLimit]) a [*SingularError] naming, from the SVD null spaces, the

@@ -23,9 +23,16 @@ const (
 // Linear is the affine model r(x) = A x − b of a problem, as built by
 // Linearize.
 type Linear struct {
-	N, M int        // unknowns (columns of A) and equations (rows of A)
-	A    *mat.Dense // M×N: A_ik = ∂r_i/∂x_k
-	B    []float64  // len M: b = A x0 − r(x0)
+	N, M int // unknowns (columns of A) and equations (rows of A)
+	// A is the M×N matrix, A_ik = ∂r_i/∂x_k, as a dense matrix. Linearize
+	// of a Problem with Blocks leaves it nil and gives Rows instead; Dense
+	// builds it from them.
+	A *mat.Dense
+	// Rows are the non-zero entries of A row by row, each row sorted by
+	// column (set by Linearize of a Problem with Blocks; nil otherwise,
+	// when A holds the model).
+	Rows [][]Entry
+	B    []float64 // len M: b = A x0 − r(x0)
 
 	// XScale (s_k, len N) and RScale (q_i, len M) are the scales with which
 	// SolveLinear equilibrates the matrix; ones if nil. Linearize copies them
@@ -35,6 +42,10 @@ type Linear struct {
 	// Complex and ComplexRows are the Problem's pairs of unknowns and of
 	// residuals (see Problem); Linearize copies them.
 	Complex, ComplexRows []int
+
+	// the complex form, once made (see complexForm)
+	cf     *complexSystem
+	cfDone bool
 
 	// MaxDeviation is the largest relative departure from the affine model
 	// seen at the probe points, in the units of LinearTol (the left side of
@@ -54,6 +65,14 @@ type Linear struct {
 // kink such as |x| at x0), in the others each sign is random. Every residual
 // must pass the test stated at LinearTol at every point.
 //
+// With Problem.Blocks the same points are used, but a column step
+// evaluates only the blocks that depend on the unknown stepped (the others
+// keep their value at X0 exactly, so their entries of the column are 0),
+// and A is built as rows of non-zero entries (Linear.Rows, A nil): the
+// model, b and MaxDeviation are the numbers the dense construction gives,
+// at a cost of about Σ_b (1 + |Cols[b]| + LinearProbes) block evaluations
+// and O(non-zeros) arithmetic.
+//
 // ok is false, with lin nil and err nil, when the test fails, or when r
 // cannot be evaluated at one of the points other than X0 (an affine map is
 // defined everywhere). err is non-nil for an invalid problem (M ≠ N gives a
@@ -68,6 +87,9 @@ func Linearize(p *Problem) (lin *Linear, ok bool, err error) {
 
 // linearize is Linearize on a validated problem.
 func (e *evaluator) linearize() (lin *Linear, ok bool, err error) {
+	if e.p.Blocks != nil {
+		return e.linearizeBlocks()
+	}
 	n, m := e.n, e.p.M
 	x0 := e.x0
 	r0 := make([]float64, m)
@@ -224,106 +246,6 @@ func joinInts(v []int) string {
 		s[i] = strconv.Itoa(k)
 	}
 	return strings.Join(s, ", ")
-}
-
-// SolveLinear solves the square system A x = b.
-//
-// It factors the equilibrated matrix Â = diag(1/q) A diag(s) by LU with
-// partial pivoting (package expr/linalg, with the scales s = XScale and
-// q = RScale given), estimates its 1-norm condition number κ₁(Â) =
-// ‖Â‖₁‖Â⁻¹‖₁ (Hager–Higham: a lower bound, usually exact, in practice
-// within a factor 3; see linalg.LU.Cond), solves Â y = b̂ with b̂_i = b_i/q_i
-// and returns x_k = s_k y_k with cond = κ₁(Â).
-//
-// When the set is complex-linear (Linear.ComplexLinear) the same is done
-// on the complex matrix C of half the order, C_ik = Â of the 2×2 block
-// [[Re c, −Im c], [Im c, Re c]] of complex equation i and complex unknown
-// k, and cond is κ₁ of the equilibrated C. Otherwise (real unknowns, or
-// equations that use conj, re or im of an unknown) the real form Â is
-// factored.
-//
-// When a pivot is zero or negligible (linalg.PivotTol) or cond exceeds
-// CondLimit, x is nil and err is a *SingularError, its diagnosis made on
-// the real form; cond is still returned. A non-square A gives a
-// *DimensionError, other bad input an error wrapping ErrBadProblem.
-func SolveLinear(lin *Linear) (x []float64, cond float64, err error) {
-	a, s, q, err := checkLinear(lin)
-	if err != nil {
-		return nil, 0, err
-	}
-	n := len(s)
-	if cf := lin.complexForm(); cf != nil {
-		f, ferr := linalg.Factorize(cf.n, cf.a, &linalg.Options{RowScale: cf.q, ColScale: cf.s})
-		if ferr != nil && f == nil {
-			return nil, 0, badProblem("%v", ferr)
-		}
-		cond = f.Cond()
-		if ferr = f.CheckCond(CondLimit); ferr == nil {
-			z, serr := f.Solve(cf.b)
-			if serr == nil {
-				return cf.unpack(z, n), cond, nil
-			}
-		}
-		return nil, cond, singularOf(n, a, s, q, lin.B, cond, ferr)
-	}
-	f, ferr := linalg.Factorize(n, a, &linalg.Options{RowScale: q, ColScale: s})
-	if ferr != nil && f == nil {
-		return nil, 0, badProblem("%v", ferr)
-	}
-	cond = f.Cond()
-	if ferr = f.CheckCond(CondLimit); ferr == nil {
-		y, serr := f.Solve(lin.B)
-		if serr == nil {
-			return y, cond, nil
-		}
-	}
-	return nil, cond, singularOf(n, a, s, q, lin.B, cond, ferr)
-}
-
-// checkLinear validates lin and returns A row by row with the scales s and
-// q (ones where not given).
-func checkLinear(lin *Linear) (a, s, q []float64, err error) {
-	if lin == nil || lin.A == nil {
-		return nil, nil, nil, badProblem("nil Linear or nil matrix")
-	}
-	if lin.A.IsEmpty() {
-		return nil, nil, nil, badProblem("empty matrix")
-	}
-	m, n := lin.A.Dims()
-	if (lin.N != 0 && lin.N != n) || (lin.M != 0 && lin.M != m) {
-		return nil, nil, nil, badProblem("Linear says %d×%d but A is %d×%d", lin.M, lin.N, m, n)
-	}
-	if m != n {
-		return nil, nil, nil, &DimensionError{N: n, M: m}
-	}
-	if len(lin.B) != m {
-		return nil, nil, nil, badProblem("b has %d entries for %d equations", len(lin.B), m)
-	}
-	s, err = scales(lin.XScale, n, "XScale")
-	if err != nil {
-		return nil, nil, nil, err
-	}
-	q, err = scales(lin.RScale, m, "RScale")
-	if err != nil {
-		return nil, nil, nil, err
-	}
-	a = make([]float64, m*n)
-	for i := 0; i < m; i++ {
-		if !finite(lin.B[i]) {
-			return nil, nil, nil, badProblem("b[%d] = %v is not finite", i, lin.B[i])
-		}
-		for k := 0; k < n; k++ {
-			v := lin.A.At(i, k)
-			if !finite(v) {
-				return nil, nil, nil, badProblem("A[%d][%d] = %v is not finite", i, k, v)
-			}
-			if !finite(v * s[k] / q[i]) {
-				return nil, nil, nil, badProblem("A[%d][%d]·s_%d/q_%d overflows", i, k, k, i)
-			}
-			a[i*n+k] = v
-		}
-	}
-	return a, s, q, nil
 }
 
 // singularOf builds the SingularError of the real form from the condition

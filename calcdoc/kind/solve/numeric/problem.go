@@ -47,6 +47,30 @@ type Problem struct {
 	// Linear.ComplexLinear), SolveLinear factors the complex matrix, of
 	// half the order, instead of the real form. The hint is not required.
 	ComplexRows []int
+
+	// Blocks optionally gives the structure of the residual: which
+	// residuals depend on which unknowns, and a function that evaluates
+	// one block of residuals. With it, Linearize evaluates each block only
+	// at the points where one of its unknowns moved, and builds A by rows
+	// of non-zero entries (Linear.Rows), at a cost proportional to the
+	// size of the equations instead of N·M. Residual is still required
+	// (Newton uses it).
+	Blocks *Blocks
+}
+
+// Blocks splits the M residuals of a Problem into blocks (the real and
+// imaginary parts of one equation, say).
+type Blocks struct {
+	// Rows[b] are the residuals block b sets; every residual is in exactly
+	// one block.
+	Rows [][]int
+	// Cols[b] are the unknowns block b depends on: changing any other
+	// unknown leaves its residuals exactly as they were.
+	Cols [][]int
+	// Eval sets r_i for every i in Rows[b] at x (len N; other entries of
+	// r are left alone). An error means the block could not be evaluated
+	// at x. It must not keep x or r.
+	Eval func(b int, x, r []float64) error
 }
 
 // ErrBadProblem is wrapped by the errors that report an invalid Problem,
@@ -202,6 +226,11 @@ func newEvaluator(p *Problem) (*evaluator, error) {
 		}
 		seenRow[i] = true
 	}
+	if p.Blocks != nil {
+		if err := checkBlocks(p.Blocks, n, p.M); err != nil {
+			return nil, err
+		}
+	}
 	for j := 0; j < len(p.Complex); j += 2 {
 		re, im := p.Complex[j], p.Complex[j+1]
 		e.partner[re], e.partner[im] = im, re
@@ -274,4 +303,83 @@ func (e *evaluator) stepSize(x, dx []float64) float64 {
 		s = math.Max(s, math.Abs(d)/math.Max(e.mag(x, k), e.scale[k]))
 	}
 	return s
+}
+
+// checkBlocks validates the structure of a Problem with Blocks.
+func checkBlocks(bl *Blocks, n, m int) error {
+	if bl.Eval == nil {
+		return badProblem("Blocks without an Eval function")
+	}
+	if len(bl.Rows) != len(bl.Cols) {
+		return badProblem("Blocks has %d row lists and %d column lists", len(bl.Rows), len(bl.Cols))
+	}
+	owner := make([]bool, m)
+	seen := make([]int, n)
+	for b, rows := range bl.Rows {
+		for _, i := range rows {
+			if i < 0 || i >= m {
+				return badProblem("block %d sets residual %d, not a residual index (0..%d)", b, i, m-1)
+			}
+			if owner[i] {
+				return badProblem("residual %d is in more than one block", i)
+			}
+			owner[i] = true
+		}
+		for _, k := range bl.Cols[b] {
+			if k < 0 || k >= n {
+				return badProblem("block %d depends on unknown %d, not an unknown index (0..%d)", b, k, n-1)
+			}
+			if seen[k] == b+1 {
+				return badProblem("block %d names unknown %d twice", b, k)
+			}
+			seen[k] = b + 1
+		}
+	}
+	for i, ok := range owner {
+		if !ok {
+			return badProblem("residual %d is in no block", i)
+		}
+	}
+	return nil
+}
+
+// evalBlock evaluates block b at x into r, as eval does for the whole
+// residual: its entries are filled with NaN first so that an entry Eval
+// does not set is detected.
+func (e *evaluator) evalBlock(b int, x, r []float64) error {
+	bl := e.p.Blocks
+	for _, i := range bl.Rows[b] {
+		r[i] = math.NaN()
+	}
+	e.evals++
+	if err := bl.Eval(b, x, r); err != nil {
+		return &EvalError{X: append([]float64(nil), x...), Equation: -1, Err: err}
+	}
+	for _, i := range bl.Rows[b] {
+		if !finite(r[i]) {
+			return &EvalError{X: append([]float64(nil), x...), Equation: i, Err: ErrNotFinite}
+		}
+	}
+	return nil
+}
+
+// evalBlocks evaluates every block at x into r, in order, as eval does
+// the whole residual: the first block whose Eval fails gives the error,
+// else the first residual that is not finite.
+func (e *evaluator) evalBlocks(x, r []float64) error {
+	for i := range r {
+		r[i] = math.NaN()
+	}
+	e.evals++
+	for b := range e.p.Blocks.Rows {
+		if err := e.p.Blocks.Eval(b, x, r); err != nil {
+			return &EvalError{X: append([]float64(nil), x...), Equation: -1, Err: err}
+		}
+	}
+	for i, v := range r {
+		if !finite(v) {
+			return &EvalError{X: append([]float64(nil), x...), Equation: i, Err: ErrNotFinite}
+		}
+	}
+	return nil
 }
