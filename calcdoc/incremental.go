@@ -227,7 +227,10 @@ func (d *Document) takeOver(prev *Document, k int) bool {
 	if k < len(prev.order) {
 		cut = itemStart(prev.order[k])
 	}
-	env := prev.Env.Fork(func(p expr.Pos) bool { return p.File == prev.File && p.Off < cut })
+	// positions of this document are in prev's text or, for the items
+	// prev took over, in the text of a save before it: all the same file
+	ours := func(p expr.Pos) bool { return p.File != nil && p.File.Name() == prev.File.Name() }
+	env := prev.Env.Fork(func(p expr.Pos) bool { return ours(p) && p.Off < cut })
 	if v, f, tb := env.Counts(); v != m.vars || f != m.funcs || tb != m.tables {
 		return false // a name defined outside its item: evaluate it all
 	}
@@ -261,10 +264,10 @@ func (d *Document) takeOver(prev *Document, k int) bool {
 	d.evalFrom(k, nt)
 	// the names the part evaluated again defines, before and now
 	d.redefined = map[string]bool{}
-	for _, key := range prev.Env.KeysWhere(func(p expr.Pos) bool { return p.File != prev.File || p.Off >= cut }) {
+	for _, key := range prev.Env.KeysWhere(func(p expr.Pos) bool { return !ours(p) || p.Off >= cut }) {
 		d.redefined[key] = true
 	}
-	for _, key := range d.Env.KeysWhere(func(p expr.Pos) bool { return p.File != prev.File }) {
+	for _, key := range d.Env.KeysWhere(func(p expr.Pos) bool { return !ours(p) || p.File == d.File }) {
 		d.redefined[key] = true
 	}
 	return true
