@@ -114,4 +114,3 @@ func (w *Watcher) rescan() {
 	}
 	w.mu.RUnlock()
 }
-
