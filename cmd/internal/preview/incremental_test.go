@@ -359,3 +359,50 @@ func firstDiff(a, b []byte) int {
 func around(b []byte, i int) string {
 	return string(b[max(0, i-150):min(len(b), i+150)])
 }
+
+// TestServedSameAsBuilt checks that the page watch serves after each save,
+// evaluated from the save before (calcdoc.Reevaluate and the block
+// cache), is the sheet build writes for the same source, byte for byte,
+// once the live script's head lines are taken out.
+func TestServedSameAsBuilt(t *testing.T) {
+	dir := t.TempDir()
+	p := filepath.Join(dir, "doc.md")
+	if err := os.WriteFile(p, []byte(longDoc(0, 4, true)), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	h := start(t, Config{Paths: []string{dir}})
+	u := 230
+	for k := 1; k <= 8; k++ {
+		if k%3 == 0 { // an edit in a block above the last
+			u = 200 + k
+		}
+		src := strings.Replace(longDoc(k, 4, true), "U_100 = 230 V", fmt.Sprintf("U_100 = %d V", u), 1)
+		if err := os.WriteFile(p, []byte(src), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		marker := fmt.Sprintf(`<div class="desc">save-%d</div>`, k)
+		body := h.wait("/doc.html", func(st int, body string) string {
+			if st != 200 || !strings.Contains(body, marker) {
+				return "save " + fmt.Sprint(k) + " not shown yet"
+			}
+			return ""
+		})
+		h.w.mu.RLock()
+		reused, cached := h.w.bases["doc.html"].doc.Reused(), h.w.bases["doc.html"].cache.Copied
+		h.w.mu.RUnlock()
+		if want := 3; k%3 != 0 && (reused != want || cached != want) {
+			t.Errorf("save %d (in the last block): %d blocks taken over and %d copied, want %d", k, reused, cached, want)
+		}
+		v, _ := pageVersion(t, body)
+		served := strings.Replace(body, liveHead("/doc.html", v), "", 1)
+		doc := calcdoc.ParseWith(filepath.Join(dir, "doc.md"), []byte(src), kind.Standard(), calcdoc.Inputs{Root: dir})
+		built, err := build.Sheet(doc, build.Options{Version: "test"})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if served != string(built) {
+			i := firstDiff([]byte(served), built)
+			t.Fatalf("save %d: the served page differs from the built sheet at byte %d:\nserved: %q\nbuilt:  %q", k, i, around([]byte(served), i), around(built, i))
+		}
+	}
+}

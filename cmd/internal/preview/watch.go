@@ -134,6 +134,7 @@ type Watcher struct {
 	mu         sync.RWMutex
 	docs       map[string]*page      // by address (the path after "/")
 	evals      map[string]*evalState // by address: a document being evaluated
+	bases      map[string]*base      // by address: what its next evaluation starts from (eval.go)
 	workers    sync.WaitGroup        // the evaluation workers running
 	shadowList map[string][]string   // a copy of shadow, for the listing
 	listVer    string                // version of the listing
@@ -195,6 +196,7 @@ func New(cfg Config) (*Watcher, error) {
 		poke:    make(chan struct{}, 1),
 		docs:    map[string]*page{},
 		evals:   map[string]*evalState{},
+		bases:   map[string]*base{},
 		tick:    make(chan struct{}),
 		done:    make(chan struct{}),
 	}
