@@ -128,6 +128,7 @@ func (w *Watcher) evalWorker(key string, st *evalState) {
 		p, line, next := w.evaluate(j, budget, b)
 
 		w.mu.Lock()
+		st.budget = nil // done: a newer save stops none (and the base stays whole)
 		if !st.dropped {
 			w.bases[key] = next
 		}

@@ -114,7 +114,8 @@ type Watcher struct {
 	roots   []*root
 	outFile bool // Out names one .html file
 	fsw     *fsnotify.Watcher
-	boot    string // distinguishes the versions of this run from an earlier one's
+	cw      *closeWatch // files closed after writing, where the system says (closewrite_linux.go)
+	boot    string      // distinguishes the versions of this run from an earlier one's
 
 	// Owned by the goroutine that runs New and then Run.
 	watched  map[string]bool            // folders being watched
@@ -244,6 +245,7 @@ func New(cfg Config) (*Watcher, error) {
 		return nil, fmt.Errorf("cannot watch for changes: %v", err)
 	}
 	w.fsw = fsw
+	w.cw = newCloseWatch()
 	// Watch first, then read: a save made meanwhile is then seen twice,
 	// never missed.
 	w.watchRoots()
@@ -262,6 +264,7 @@ func (w *Watcher) Close() error {
 	w.once.Do(func() {
 		close(w.done)
 		err = w.fsw.Close()
+		w.cw.close()
 		w.workers.Wait()
 	})
 	return err
@@ -269,7 +272,8 @@ func (w *Watcher) Close() error {
 
 // Run handles file-system events until ctx ends or Close is called, then
 // closes the watcher. A burst of events is handled once it has been quiet
-// for Quiet, or MaxDelay after its first event, whichever comes first.
+// for Quiet, or MaxDelay after its first event, whichever comes first, or
+// at once when a file it names is closed after writing (Linux).
 func (w *Watcher) Run(ctx context.Context) error {
 	defer w.Close()
 	timer := time.NewTimer(time.Hour)
@@ -303,6 +307,10 @@ func (w *Watcher) Run(ctx context.Context) error {
 				first = now
 			}
 			timer.Reset(max(0, min(Quiet, MaxDelay-now.Sub(first))))
+		case ev := <-w.cw.closed():
+			if w.cw.current(ev) && w.closeWritten(ev.name) {
+				timer.Reset(0) // the save is complete: no need to wait
+			}
 		case err, ok := <-w.fsw.Errors:
 			if !ok {
 				return nil
@@ -343,6 +351,7 @@ func (w *Watcher) event(ev fsnotify.Event) bool {
 		for d := range w.watched {
 			if d == name || within(d, name) {
 				_ = w.fsw.Remove(d)
+				w.cw.remove(d)
 				delete(w.watched, d)
 				queued = true
 			}

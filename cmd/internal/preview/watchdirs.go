@@ -22,6 +22,7 @@ func (w *Watcher) addWatch(dir string) {
 	}
 	delete(w.cannot, dir)
 	w.watched[dir] = true
+	w.cw.add(dir)
 }
 
 // addTree watches dir and every folder below it (not following symbolic
@@ -113,4 +114,19 @@ func (w *Watcher) rescan() {
 		w.pending[p.file] = true
 	}
 	w.mu.RUnlock()
+}
+
+// closeWritten notes that an editor closed the file name after writing
+// it: a document or a data file read again at once. It reports whether
+// it asks anything.
+func (w *Watcher) closeWritten(name string) bool {
+	name = filepath.Clean(name)
+	queued := false
+	if filepath.Ext(name) == ".md" {
+		if _, _, ok := w.claim(name); ok {
+			w.pending[name] = true
+			queued = true
+		}
+	}
+	return w.dataSaved(name) || queued
 }
