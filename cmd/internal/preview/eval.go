@@ -141,6 +141,9 @@ func (w *Watcher) evalWorker(key string, st *evalState) {
 			line = fmt.Sprintf("%s: evaluated in %s, but not shown: a newer save is being evaluated", j.display, ms(p.took))
 		default:
 			if cur := w.docs[key]; cur == nil || cur.file == j.file {
+				if cur != nil && cur.status == 200 && p.status == 200 {
+					p.before = &page{version: cur.version, body: cur.body}
+				}
 				w.docs[key] = p
 				// the sheets that use this one are evaluated again when
 				// its values moved (a cycle of uses settles: its values

@@ -37,7 +37,8 @@ const pingEvery = 25 * time.Second
 //   - "/" lists the documents and their state;
 //   - each document's sheet at its address, its path relative to the
 //     PATH it was found under with .md replaced by .html;
-//   - EventsPath, the event streams of the reload script.
+//   - EventsPath, the event streams of the reload script;
+//   - PatchPath, what changed between a page and the one before it.
 //
 // Everything is served from memory: no request reads a file, so no path
 // can reach one. Any other path, and every path with an empty, "." or ".."
@@ -65,6 +66,8 @@ func (w *Watcher) serveHTTP(rw http.ResponseWriter, r *http.Request) {
 		w.serveListing(rw)
 	case EventsPath:
 		w.serveEvents(rw, r)
+	case PatchPath:
+		w.servePatch(rw, r)
 	default:
 		key, ok := docKey(p)
 		if !ok {

@@ -151,6 +151,7 @@ type page struct {
 	display string // the path shown: the PATH given joined with the file's path below it
 	src     []byte // the bytes evaluated; nil when the file could not be read
 	body    []byte // the HTML served
+	before  *page  // the page before it (version and body only), for patches (patch.go)
 	status  int    // HTTP status of body
 	version string
 	at      time.Time
