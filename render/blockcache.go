@@ -23,6 +23,7 @@ type BlockCache struct {
 	// Copied and Drawn count the blocks of the last sheet copied from
 	// the cache and drawn (of LocalDrawer kinds).
 	Copied, Drawn int
+	size          int // the length of the last sheet: the next one's buffer
 }
 
 // LocalDrawer is a kind whose drawing of a block reads nothing but the
@@ -41,11 +42,20 @@ func (c *BlockCache) begin() {
 	}
 }
 
-// end keeps the drawings of the sheet of doc, drawn whole.
-func (c *BlockCache) end(doc *calcdoc.Document) {
+// end keeps the drawings of the sheet of doc, drawn whole, of size bytes.
+func (c *BlockCache) end(doc *calcdoc.Document, size int) {
 	if c != nil {
-		c.prev, c.next, c.doc = c.next, nil, doc
+		c.prev, c.next, c.doc, c.size = c.next, nil, doc, size
 	}
+}
+
+// sizeHint is the length the sheet is likely to have: that of the last
+// one, with room to grow; 0 when there is none.
+func (c *BlockCache) sizeHint() int {
+	if c == nil || c.size == 0 {
+		return 0
+	}
+	return c.size + c.size/8 + 4096
 }
 
 // draw draws block b by its kind d into out, through the cache.

@@ -46,7 +46,7 @@ type Options struct {
 func Sheet(doc *calcdoc.Document, opt Options) ([]byte, error) {
 	w := markup.NewWriter(doc)
 	// a sheet is about fifteen times its source: grow once, not by doubling
-	w.Grow(64<<10 + 20*len(doc.Source))
+	w.Grow(max(64<<10+20*len(doc.Source), opt.Blocks.sizeHint()))
 	w.WriteString("<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n")
 	w.Printf("<meta name=\"generator\" content=\"calcdoc %s\">\n", esc(opt.Version))
 	w.Printf("<title>%s</title>\n", esc(HeadTitle(doc)))
@@ -60,8 +60,8 @@ func Sheet(doc *calcdoc.Document, opt Options) ([]byte, error) {
 	if err := body(w, doc, opt); err != nil {
 		return nil, err
 	}
-	opt.Blocks.end(doc)
 	w.WriteString("</body>\n</html>\n")
+	opt.Blocks.end(doc, w.Len())
 	return w.Bytes(), nil
 }
 

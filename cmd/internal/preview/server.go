@@ -12,6 +12,7 @@ import (
 	"net/url"
 	"path/filepath"
 	"sort"
+	"strconv"
 	"strings"
 	"time"
 	"unicode/utf8"
@@ -167,6 +168,7 @@ func writeHTML(rw http.ResponseWriter, status int, body []byte) {
 	h := rw.Header()
 	h.Set("Content-Type", "text/html; charset=utf-8")
 	h.Set("Content-Security-Policy", csp)
+	h.Set("Content-Length", strconv.Itoa(len(body)))
 	rw.WriteHeader(status)
 	rw.Write(body)
 }
