@@ -264,6 +264,10 @@ func newEditDoc(r *rand.Rand) *editDoc {
 	d := &editDoc{title: "Feeder"}
 	d.secs = append(d.secs, &editSec{prose: []string{"## Supply", "The supply is taken from the supply sheet."}, info: "calc", lines: []string{"use v_ext from other.md"}})
 	d.secs = append(d.secs, &editSec{prose: []string{"## Conductor data"}, info: "table cu from cu.csv", lines: []string{"source: test data of our own"}})
+	// the other kinds, taken over and drawn again
+	d.secs = append(d.secs, &editSec{prose: []string{"## Supply current"}, info: "solve I_s[A]", lines: []string{"supply: v_ext = I_s * (2 + j1) Ω"}})
+	d.secs = append(d.secs, &editSec{prose: []string{"Its phasors."}, info: "phasors v_ext, I_s * 1 Ω", lines: []string{"Supply voltage and current"}})
+	d.secs = append(d.secs, &editSec{prose: []string{"The supply impedance over frequency."}, info: "sweep f = 10 Hz .. 1 kHz log 12", lines: []string{"Z_f = 1 Ω + j*2*pi*f*1 mH", "|Z_f|"}})
 	for i := 0; i < 6; i++ {
 		sec := &editSec{prose: []string{fmt.Sprintf("## Section %d", i+1), "Branch values."}, info: "calc"}
 		d.secs = append(d.secs, sec)
@@ -311,12 +315,14 @@ func TestIncrementalSameBytes(t *testing.T) {
 		}
 		src := []byte(d.text())
 		full := calcdoc.ParseWith(path, src, reg, in)
-		want, err := build.Sheet(full, build.Options{Version: "test"})
+		// the sheet as build writes it, carrying its source, data files and
+		// used values (the stamp's git facts are not of this test)
+		want, err := build.Sheet(full, build.Options{Version: "test", EmbedSource: true})
 		if err != nil {
 			t.Fatal(err)
 		}
 		inc := calcdoc.Reevaluate(prev, path, src, reg, in)
-		got, err := build.Sheet(inc, build.Options{Version: "test", Blocks: cache})
+		got, err := build.Sheet(inc, build.Options{Version: "test", EmbedSource: true, Blocks: cache})
 		if err != nil {
 			t.Fatal(err)
 		}
@@ -326,7 +332,7 @@ func TestIncrementalSameBytes(t *testing.T) {
 		}
 		if prev != nil && step%20 == 0 {
 			// the evaluation taken over from is not changed
-			again, _ := build.Sheet(prev, build.Options{Version: "test"})
+			again, _ := build.Sheet(prev, build.Options{Version: "test", EmbedSource: true})
 			if !bytes.Equal(again, prevSheet) {
 				t.Fatalf("step %d (%s): Reevaluate changed the document it took over from", step, what)
 			}
