@@ -50,25 +50,36 @@ func (w *Watcher) servePatch(rw http.ResponseWriter, r *http.Request) {
 		http.Error(rw, "409 no patch from that version: reload the page", http.StatusConflict)
 		return
 	}
-	pt, ok := diffPages(p.before.body, p.body, p.before.version, p.version)
-	if !ok {
+	out := p.before.patchTo(p)
+	if out == nil {
 		http.Error(rw, "409 the pages differ outside their body's elements: reload the page", http.StatusConflict)
-		return
-	}
-	pt.V = p.version
-	var out bytes.Buffer
-	enc := json.NewEncoder(&out)
-	enc.SetEscapeHTML(false) // HTML as it is: the patch is read as JSON, never as HTML
-	if err := enc.Encode(pt); err != nil {
-		http.Error(rw, "500 "+err.Error(), http.StatusInternalServerError)
 		return
 	}
 	h := rw.Header()
 	h.Set("Content-Type", "application/json")
 	rw.WriteHeader(http.StatusOK)
 	if r.Method != http.MethodHead {
-		rw.Write(out.Bytes())
+		rw.Write(out)
 	}
+}
+
+// patchTo is the JSON patch from b (the page before p) to p, or nil when
+// none can say it; made once, for every open page that asks.
+func (b *page) patchTo(p *page) []byte {
+	b.patchOnce.Do(func() {
+		pt, ok := diffPages(b.body, p.body, b.version, p.version)
+		if !ok {
+			return
+		}
+		pt.V = p.version
+		var out bytes.Buffer
+		enc := json.NewEncoder(&out)
+		enc.SetEscapeHTML(false) // HTML as it is: the patch is read as JSON, never as HTML
+		if enc.Encode(pt) == nil {
+			b.patch = out.Bytes()
+		}
+	})
+	return b.patch
 }
 
 // shown is a page as a patch sees it: its head (with the version written

@@ -152,10 +152,13 @@ type page struct {
 	src     []byte // the bytes evaluated; nil when the file could not be read
 	body    []byte // the HTML served
 	before  *page  // the page before it (version and body only), for patches (patch.go)
-	status  int    // HTTP status of body
-	version string
-	at      time.Time
-	took    time.Duration
+
+	patchOnce sync.Once // of a page before: the patch to the page after it, made once
+	patch     []byte
+	status    int // HTTP status of body
+	version   string
+	at        time.Time
+	took      time.Duration
 
 	usedFiles []string            // real paths of the documents it uses
 	dataFiles []*calcdoc.DataFile // the data files its blocks read (a table's CSV)
