@@ -27,6 +27,8 @@ type Block struct {
 	DrawErrors []*expr.Error
 	doc        *Document
 	kind       Kind
+	memo       *blockMemo // shared with the block it was taken over from (incremental.go)
+	takenOver  bool
 }
 
 // KindOf returns the kind that evaluated the block.

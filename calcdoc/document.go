@@ -60,6 +60,10 @@ type Document struct {
 	inlineN   map[ast.Node]*Inline
 	order     []any // the blocks and inline values in document order
 	evaluated bool
+	trail     *trail // what each item of order added (incremental.go)
+	serial    uint64 // this reading's number; basis: the one Reevaluate took over from
+	basis     uint64
+	redefined map[string]bool // the names defined below the first change (Redefines)
 }
 
 // NamedValue is a defined name with its value, as the values JSON and the
@@ -212,7 +216,7 @@ func parseOnly(path string, src []byte, reg *Registry, in Inputs) *Document {
 		}
 		in.Sheets = NewLoader(reg, roots...).Sheets(path)
 	}
-	d := &Document{Path: path, Source: src, Env: expr.NewEnv(), Kinds: reg, Files: &expr.FileSet{}, inputs: in, sheets: in.Sheets, byNode: map[ast.Node]*Block{}, inlineN: map[ast.Node]*Inline{}}
+	d := &Document{Path: path, Source: src, Env: expr.NewEnv(), Kinds: reg, Files: &expr.FileSet{}, inputs: in, sheets: in.Sheets, serial: docSerials.Add(1), byNode: map[ast.Node]*Block{}, inlineN: map[ast.Node]*Inline{}}
 	d.Env.Budget = expr.NewBudget(expr.DefaultBudget)
 	txt := readerLines(src)
 	var bad []int
@@ -261,16 +265,7 @@ func (d *Document) Evaluate() {
 		return
 	}
 	d.evaluated = true
-	for _, it := range d.order {
-		switch it := it.(type) {
-		case *Block:
-			d.evalBlock(it)
-		case *Inline:
-			d.evalInline(it)
-		}
-	}
-	d.Errors.Sort()
-	d.Warnings.Sort()
+	d.evalFrom(0, newTrail(d))
 }
 
 // readerLines returns the file's text as a reader sees it, so that the

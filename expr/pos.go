@@ -160,7 +160,8 @@ func (p Pos) LineStart() Pos {
 
 // Before reports whether p comes strictly before q: no position comes
 // first, then the files in the order of their set (by name when they are
-// in none), then the offsets.
+// in none), then the offsets (also of two texts of one file: the same
+// place in the set and the same name).
 func (p Pos) Before(q Pos) bool {
 	if p.File != q.File {
 		switch {
@@ -171,7 +172,9 @@ func (p Pos) Before(q Pos) bool {
 		case p.File.name != q.File.name:
 			return p.File.name < q.File.name
 		}
-		return false
+		// two texts of one file (an incremental evaluation keeps the
+		// positions of the blocks above the first change in the text
+		// before it): by offset
 	}
 	return p.Off < q.Off
 }

@@ -37,13 +37,16 @@ type Options struct {
 	// HeadExtra is raw HTML added at the end of <head> (the live preview's
 	// reload script); built files leave it empty.
 	HeadExtra string
+	// Blocks, when set, keeps the drawing of blocks for the next sheet of
+	// the same document (the live preview); the bytes do not change.
+	Blocks *BlockCache
 }
 
 // Sheet writes the HTML sheet of a document.
 func Sheet(doc *calcdoc.Document, opt Options) ([]byte, error) {
 	w := markup.NewWriter(doc)
 	// a sheet is about fifteen times its source: grow once, not by doubling
-	w.Grow(64<<10 + 20*len(doc.Source))
+	w.Grow(max(64<<10+20*len(doc.Source), opt.Blocks.sizeHint()))
 	w.WriteString("<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n")
 	w.Printf("<meta name=\"generator\" content=\"calcdoc %s\">\n", esc(opt.Version))
 	w.Printf("<title>%s</title>\n", esc(HeadTitle(doc)))
@@ -53,10 +56,12 @@ func Sheet(doc *calcdoc.Document, opt Options) ([]byte, error) {
 	w.WriteString("</style>\n")
 	w.WriteString(opt.HeadExtra)
 	w.WriteString("</head>\n<body>\n")
+	opt.Blocks.begin()
 	if err := body(w, doc, opt); err != nil {
 		return nil, err
 	}
 	w.WriteString("</body>\n</html>\n")
+	opt.Blocks.end(doc, w.Len())
 	return w.Bytes(), nil
 }
 
@@ -82,7 +87,7 @@ func body(w *markup.Writer, doc *calcdoc.Document, opt Options) error {
 	titleBlock(w, doc.Front, SheetTitle(doc))
 	summary(w, doc)
 	w.WriteString("<main class=\"body\">\n")
-	if err := prose(w, doc); err != nil {
+	if err := prose(w, doc, opt.Blocks); err != nil {
 		return err
 	}
 	w.WriteString("</main>\n")
@@ -276,12 +281,12 @@ func plural(n int) string {
 
 // prose renders the Markdown body with goldmark, drawing evaluated blocks
 // and inline values through calcdoc's node renderers.
-func prose(w *markup.Writer, doc *calcdoc.Document) error {
+func prose(w *markup.Writer, doc *calcdoc.Document, cache *BlockCache) error {
 	r := renderer.NewRenderer(renderer.WithNodeRenderers(
 		util.Prioritized(ghtml.NewRenderer(), 1000),
 		util.Prioritized(gfmhtml.NewTableHTMLRenderer(), 500),
 		util.Prioritized(gfmhtml.NewStrikethroughHTMLRenderer(), 500),
-		util.Prioritized(&nodes{w: w}, 100),
+		util.Prioritized(&nodes{w: w, cache: cache}, 100),
 	))
 	// the node renderers write into the writer goldmark hands them
 	// (SetOutput); after the body the page's own buffer again
@@ -292,7 +297,10 @@ func prose(w *markup.Writer, doc *calcdoc.Document) error {
 
 // nodes renders the node kinds calcdoc changes: evaluated fenced blocks,
 // inline values, raw HTML (shown as text) and images (not loaded).
-type nodes struct{ w *markup.Writer }
+type nodes struct {
+	w     *markup.Writer
+	cache *BlockCache // nil: every block drawn
+}
 
 func (n *nodes) RegisterFuncs(reg renderer.NodeRendererFuncRegisterer) {
 	reg.Register(ast.KindFencedCodeBlock, n.fenced)
@@ -310,7 +318,7 @@ func (n *nodes) fenced(out util.BufWriter, src []byte, node ast.Node, entering b
 	w := n.w
 	if b := w.Doc.BlockFor(node); b != nil {
 		if d, ok := b.KindOf().(markup.Drawer); ok {
-			d.Draw(w, b)
+			n.cache.draw(w, out, d, b)
 			return ast.WalkSkipChildren, nil
 		}
 	}

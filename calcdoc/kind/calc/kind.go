@@ -19,3 +19,9 @@ func (kind) Eval(b *calcdoc.Block) { evalCalc(b) }
 
 // Draw draws an evaluated calc block into the sheet.
 func (kind) Draw(w *markup.Writer, b *calcdoc.Block) { renderCalc(w, b) }
+
+// LocalDrawing says that a calc block's drawing reads only the block, its
+// evaluation, the front matter and the definitions of the names its text
+// mentions, and writes only in its place (render.LocalDrawer): the live
+// preview copies it from the sheet before while none of these changed.
+func (kind) LocalDrawing() {}

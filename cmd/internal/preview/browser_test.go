@@ -25,12 +25,13 @@ import (
 const browserDeadline = 60 * time.Second
 
 // TestBrowserReloads opens a document's page in headless Chromium, saves
-// the document, and checks that the browser fetched the page again by
-// itself and ran the new page's script: the server sees the browser's
-// event stream open with the first page's version, then, after the save, a
-// second GET of the page and a stream opened with the new version. Over
-// the DevTools protocol (on a pipe) it scrolls the page down before the
-// save and reads the scroll position after the reload.
+// the document, and checks that the browser brought the page up to date by
+// itself: the server sees the browser's event stream open with the first
+// page's version, then, after the save, a request for the patch, and no
+// second GET of the page. Over the DevTools protocol (on a pipe) it scrolls
+// the page down before the save, reads the scroll position after the
+// patch, and compares the patched body with the new sheet's, as the
+// browser reads both.
 //
 // Skipped when Chromium is missing, unless CALCDOC_REQUIRE_BROWSER=1.
 func TestBrowserReloads(t *testing.T) {
@@ -42,8 +43,8 @@ func TestBrowserReloads(t *testing.T) {
 	write(t, p, docSrc(1)+long)
 
 	var mu sync.Mutex
-	gets := 0         // the browser's GETs of /a.html
-	var seen []string // the versions its streams for /a.html were opened with
+	gets, patches := 0, 0 // the browser's GETs of /a.html and of its patches
+	var seen []string     // the versions its streams for /a.html were opened with
 	wrap := func(next http.Handler) http.Handler {
 		return http.HandlerFunc(func(rw http.ResponseWriter, r *http.Request) {
 			if strings.Contains(r.UserAgent(), "Chrome") {
@@ -51,6 +52,8 @@ func TestBrowserReloads(t *testing.T) {
 				switch {
 				case r.URL.Path == "/a.html" && r.Method == http.MethodGet:
 					gets++
+				case r.URL.Path == PatchPath && r.URL.Query().Get("doc") == "/a.html":
+					patches++
 				case r.URL.Path == EventsPath && r.URL.Query().Get("doc") == "/a.html":
 					seen = append(seen, r.URL.Query().Get("v"))
 				}
@@ -148,8 +151,9 @@ func TestBrowserReloads(t *testing.T) {
 	saveRenameOver(t, p, docSrc(2)+long)
 	body = h.wait("/a.html", showsSave(2))
 	v2, _ := pageVersion(t, body)
-	waitBrowser("the browser reloads the page by itself and runs the new page's script", func(g int, s []string) bool {
-		return g >= 2 && has(s, v2)
+	_ = v2
+	waitBrowser("the browser asks for what changed", func(g int, s []string) bool {
+		return patches >= 1 // mu is held
 	})
 	end := time.Now().Add(browserDeadline)
 	for {
@@ -159,9 +163,24 @@ func TestBrowserReloads(t *testing.T) {
 			break
 		}
 		if time.Now().After(end) {
-			t.Fatalf("after the reload: the page shows %q and is scrolled to %v, want save-2 at %d", note, got, y)
+			t.Fatalf("after the patch: the page shows %q and is scrolled to %v, want save-2 at %d", note, got, y)
 		}
 		time.Sleep(20 * time.Millisecond)
+	}
+	// patched, not loaded again: the page's DOM is the new sheet's
+	mu.Lock()
+	g := gets
+	mu.Unlock()
+	if g != 1 {
+		t.Errorf("the browser loaded the page %d times, want once (the save patched in)", g)
+	}
+	if got := dt.evalString(t, session, `document.querySelector('meta[name="calcdoc-live"]').getAttribute("content")`); got != v2 {
+		t.Errorf("the patched page says it is version %q, want %q", got, v2)
+	}
+	want := dt.evalString(t, session, `(function () { var r = new XMLHttpRequest(); r.open("GET", location.href, false); r.send();
+		var d = new DOMParser().parseFromString(r.responseText, "text/html"); return d.body.innerHTML.replace(/\s+/g, " "); })()`)
+	if got := dt.evalString(t, session, `document.body.innerHTML.replace(/\s+/g, " ")`); got != want {
+		t.Errorf("the patched page's body differs from the new sheet's:\n%.300s\n%.300s", got, want)
 	}
 }
 

@@ -11,6 +11,7 @@ import (
 	blockkind "calcdoc/calcdoc/kind"
 	"calcdoc/cmd/internal/build"
 	"calcdoc/expr"
+	"calcdoc/render"
 )
 
 // Each document is evaluated on a worker of its own, so that one whose
@@ -75,9 +76,20 @@ func (w *Watcher) startEval(j *evalJob) {
 	go w.evalWorker(j.key, st)
 }
 
-// dropEval makes the running evaluation of key drop its result; w.mu is
-// held.
+// base is what the next evaluation of a document starts from: its last
+// evaluation, taken over where the new save is unchanged
+// (calcdoc.Reevaluate), and the drawings of its last sheet
+// (render.BlockCache). It belongs to the document's worker.
+type base struct {
+	file, root string
+	doc        *calcdoc.Document
+	cache      *render.BlockCache
+}
+
+// dropEval makes the running evaluation of key drop its result, and
+// forgets what its next evaluation would start from; w.mu is held.
 func (w *Watcher) dropEval(key string) {
+	delete(w.bases, key)
 	if st := w.evals[key]; st != nil {
 		st.next, st.dropped = nil, true
 		st.budget.Stop()
@@ -110,11 +122,16 @@ func (w *Watcher) evalWorker(key string, st *evalState) {
 		w.wakeLocked() // the banner comes
 		budget := expr.NewBudget(expr.DefaultBudget)
 		st.budget = budget
+		b := w.bases[key]
 		w.mu.Unlock()
 
-		p, line := w.evaluate(j, budget)
+		p, line, next := w.evaluate(j, budget, b)
 
 		w.mu.Lock()
+		st.budget = nil // done: a newer save stops none (and the base stays whole)
+		if !st.dropped {
+			w.bases[key] = next
+		}
 		switch {
 		case st.dropped:
 			line = ""
@@ -124,11 +141,14 @@ func (w *Watcher) evalWorker(key string, st *evalState) {
 			line = fmt.Sprintf("%s: evaluated in %s, but not shown: a newer save is being evaluated", j.display, ms(p.took))
 		default:
 			if cur := w.docs[key]; cur == nil || cur.file == j.file {
+				if cur != nil && cur.status == 200 && p.status == 200 {
+					p.before = &page{version: cur.version, body: cur.body}
+				}
 				w.docs[key] = p
 				// the sheets that use this one are evaluated again when
 				// its values moved (a cycle of uses settles: its values
 				// stop moving)
-				w.queueReads(j.file, p.dataFiles, cur == nil || cur.fp != p.fp)
+				w.queueReads(j.file, p.dataFiles, cur == nil || p.fp == "" || cur.fp != p.fp)
 			}
 		}
 		w.mu.Unlock()
@@ -138,9 +158,10 @@ func (w *Watcher) evalWorker(key string, st *evalState) {
 	}
 }
 
-// evaluate evaluates and draws one save, writes the sheet when Out is set,
-// and returns its page and the log line.
-func (w *Watcher) evaluate(j *evalJob, budget *expr.Budget) (*page, string) {
+// evaluate evaluates and draws one save, from the evaluation before (b,
+// or nil) where the save is unchanged, writes the sheet when Out is set,
+// and returns its page, the log line and what the next save starts from.
+func (w *Watcher) evaluate(j *evalJob, budget *expr.Budget, b *base) (*page, string, *base) {
 	if f := beforeEval.Load(); f != nil {
 		(*f)(j)
 	}
@@ -148,7 +169,13 @@ func (w *Watcher) evaluate(j *evalJob, budget *expr.Budget) (*page, string) {
 	if j.loader != nil {
 		in.Sheets = j.loader.Sheets(j.display)
 	}
-	doc := calcdoc.ParseWith(j.display, j.src, blockkind.Standard(), in)
+	next := &base{file: j.file, root: j.root, cache: &render.BlockCache{}}
+	var prev *calcdoc.Document
+	if b != nil && b.file == j.file && b.root == j.root {
+		prev, next.cache = b.doc, b.cache
+	}
+	doc := calcdoc.Reevaluate(prev, j.display, j.src, blockkind.Standard(), in)
+	next.doc = doc
 	p := &page{key: j.key, file: j.file, display: j.display, src: j.src, status: 200, version: w.nextVersion(), at: j.at,
 		values: len(doc.Values), checks: len(doc.Checks), failed: doc.FailedChecks(),
 		errors: len(doc.Errors), warning: len(doc.Warnings)}
@@ -158,7 +185,7 @@ func (w *Watcher) evaluate(j *evalJob, budget *expr.Budget) (*page, string) {
 	case p.failed > 0:
 		p.state = stFail
 	}
-	body, err := build.Sheet(doc, build.Options{Version: w.cfg.Version, HeadExtra: liveHead("/"+j.key, p.version)})
+	body, err := build.Sheet(doc, build.Options{Version: w.cfg.Version, HeadExtra: liveHead("/"+j.key, p.version), Blocks: next.cache})
 	if err != nil {
 		p.state, p.problem, p.status = stUndrawn, err.Error(), 500
 		body = problemPage(j.key, p.version, "Cannot draw "+j.display,
@@ -168,8 +195,12 @@ func (w *Watcher) evaluate(j *evalJob, budget *expr.Budget) (*page, string) {
 	p.took = time.Since(j.at)
 	p.usedFiles, p.uses = usedFiles(doc, j.file)
 	p.dataFiles = doc.DataFiles
-	fp := sha256.Sum256(doc.MarshalValues())
-	p.fp = string(fp[:])
+	if w.hasUsers(j.file) {
+		// whether its values moved, for the sheets that use it (the
+		// values JSON of a long sheet takes a while: only then)
+		fp := sha256.Sum256(doc.MarshalValues())
+		p.fp = string(fp[:])
+	}
 	line := fmt.Sprintf("%s: evaluated in %s; %d of %d checks not satisfied, %d error%s",
 		j.display, ms(p.took), p.failed, p.checks, p.errors, plural(p.errors))
 	if p.warning > 0 {
@@ -179,7 +210,22 @@ func (w *Watcher) evaluate(j *evalJob, budget *expr.Budget) (*page, string) {
 		line += "; cannot draw the sheet: " + p.problem
 	}
 	line += w.writeOut(doc, j.file, j.rel)
-	return p, line
+	return p, line, next
+}
+
+// hasUsers reports whether a page served uses the document in file.
+func (w *Watcher) hasUsers(file string) bool {
+	real := calcdoc.RealPath(file)
+	w.mu.RLock()
+	defer w.mu.RUnlock()
+	for _, p := range w.docs {
+		for _, u := range p.usedFiles {
+			if u == real {
+				return true
+			}
+		}
+	}
+	return false
 }
 
 // pendingVersion is the version of a page served while a newer save of

@@ -7,10 +7,15 @@ import (
 )
 
 // liveScript is the script of a served page (never of a built file). It
-// reads the page's version and address from the calcdoc-live meta element,
-// opens an EventSource on /_events?doc=ADDRESS&v=VERSION and reloads the
-// page on a "change" event, saving the scroll position in sessionStorage
-// first and restoring it once the reloaded page has loaded. The server
+// reads the page's version and address from the calcdoc-live meta element
+// and opens an EventSource on /_events?doc=ADDRESS&v=VERSION. On a
+// "change" event to a version being evaluated it shows a banner saying so;
+// on one to a new version it asks PatchPath for what changed since the
+// page it shows and replaces only those elements (the rows of a calc
+// block, the summary, ...), keeping the scroll position; when no patch can
+// be had (a version missed, the head changed) it reloads the page, saving
+// the scroll position in sessionStorage first and restoring it once the
+// reloaded page has loaded. The server
 // compares v with the document's current version as soon as the stream
 // opens, so a save that happened between loading the page and opening the
 // stream is not missed. The stream is open only while the page is visible
@@ -39,6 +44,45 @@ const liveScript = `(function () {
     try { window.sessionStorage.setItem(key, window.scrollX + " " + window.scrollY); } catch (e) {}
     window.location.reload();
   }
+  var pending = null;
+  function busy(on) {
+    if (on && !pending && document.body) {
+      pending = document.createElement("div");
+      pending.className = "calcdoc-pending";
+      pending.setAttribute("role", "status");
+      pending.textContent = "A newer save of this document is being evaluated: this page shows the one before it, " +
+        "and changes by itself when the new sheet is ready.";
+      document.body.insertBefore(pending, document.body.firstChild);
+    } else if (!on && pending) {
+      pending.parentNode.removeChild(pending);
+      pending = null;
+    }
+  }
+  function patch(to) {
+    if (to === version) { busy(false); return; }
+    if (/-evaluating$/.test(to) && !/-evaluating$/.test(version)) { busy(true); return; }
+    if (!window.fetch || /-evaluating$/.test(version)) { reload(); return; }
+    window.fetch("/_patch?doc=" + encodeURIComponent(doc) + "&from=" + encodeURIComponent(version), { cache: "no-store" })
+      .then(function (r) { if (!r.ok) { throw new Error("no patch"); } return r.json(); })
+      .then(function (p) {
+        p.ops.forEach(function (op) {
+          var where = op["in"];
+          var parent = where === "body" ? document.body : where === "main" ? document.querySelector("main.body") : document.getElementById(where.slice(1));
+          if (!parent) { throw new Error("no " + where); }
+          var kids = Array.prototype.filter.call(parent.children, function (e) { return e !== notice && e !== pending; });
+          if (op.at + op.del > kids.length) { throw new Error("the page is not the one the patch is from"); }
+          var before = kids[op.at + op.del] || null;
+          for (var i = 0; i < op.del; i++) { parent.removeChild(kids[op.at + i]); }
+          var range = document.createRange();
+          range.selectNodeContents(parent);
+          parent.insertBefore(range.createContextualFragment(op.html), before);
+        });
+        version = p.v;
+        meta.setAttribute("content", version);
+        busy(false);
+      })
+      ["catch"](reload);
+  }
   function warn(on) {
     if (on && !notice && document.body) {
       notice = document.createElement("div");
@@ -55,7 +99,7 @@ const liveScript = `(function () {
   function connect() {
     if (source) { return; }
     source = new EventSource("/_events?doc=" + encodeURIComponent(doc) + "&v=" + encodeURIComponent(version));
-    source.addEventListener("change", reload);
+    source.addEventListener("change", function (e) { patch(e.data); });
     source.onopen = function () { window.clearTimeout(timer); timer = null; warn(false); };
     source.onerror = function () {
       if (!timer) { timer = window.setTimeout(function () { warn(true); }, 2000); }

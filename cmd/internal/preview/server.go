@@ -12,6 +12,7 @@ import (
 	"net/url"
 	"path/filepath"
 	"sort"
+	"strconv"
 	"strings"
 	"time"
 	"unicode/utf8"
@@ -37,7 +38,8 @@ const pingEvery = 25 * time.Second
 //   - "/" lists the documents and their state;
 //   - each document's sheet at its address, its path relative to the
 //     PATH it was found under with .md replaced by .html;
-//   - EventsPath, the event streams of the reload script.
+//   - EventsPath, the event streams of the reload script;
+//   - PatchPath, what changed between a page and the one before it.
 //
 // Everything is served from memory: no request reads a file, so no path
 // can reach one. Any other path, and every path with an empty, "." or ".."
@@ -65,6 +67,8 @@ func (w *Watcher) serveHTTP(rw http.ResponseWriter, r *http.Request) {
 		w.serveListing(rw)
 	case EventsPath:
 		w.serveEvents(rw, r)
+	case PatchPath:
+		w.servePatch(rw, r)
 	default:
 		key, ok := docKey(p)
 		if !ok {
@@ -164,6 +168,7 @@ func writeHTML(rw http.ResponseWriter, status int, body []byte) {
 	h := rw.Header()
 	h.Set("Content-Type", "text/html; charset=utf-8")
 	h.Set("Content-Security-Policy", csp)
+	h.Set("Content-Length", strconv.Itoa(len(body)))
 	rw.WriteHeader(status)
 	rw.Write(body)
 }

@@ -24,7 +24,6 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"io/fs"
 	"os"
 	"path/filepath"
 	"sort"
@@ -115,7 +114,8 @@ type Watcher struct {
 	roots   []*root
 	outFile bool // Out names one .html file
 	fsw     *fsnotify.Watcher
-	boot    string // distinguishes the versions of this run from an earlier one's
+	cw      *closeWatch // files closed after writing, where the system says (closewrite_linux.go)
+	boot    string      // distinguishes the versions of this run from an earlier one's
 
 	// Owned by the goroutine that runs New and then Run.
 	watched  map[string]bool            // folders being watched
@@ -135,6 +135,7 @@ type Watcher struct {
 	mu         sync.RWMutex
 	docs       map[string]*page      // by address (the path after "/")
 	evals      map[string]*evalState // by address: a document being evaluated
+	bases      map[string]*base      // by address: what its next evaluation starts from (eval.go)
 	workers    sync.WaitGroup        // the evaluation workers running
 	shadowList map[string][]string   // a copy of shadow, for the listing
 	listVer    string                // version of the listing
@@ -150,10 +151,14 @@ type page struct {
 	display string // the path shown: the PATH given joined with the file's path below it
 	src     []byte // the bytes evaluated; nil when the file could not be read
 	body    []byte // the HTML served
-	status  int    // HTTP status of body
-	version string
-	at      time.Time
-	took    time.Duration
+	before  *page  // the page before it (version and body only), for patches (patch.go)
+
+	patchOnce sync.Once // of a page before: the patch to the page after it, made once
+	patch     []byte
+	status    int // HTTP status of body
+	version   string
+	at        time.Time
+	took      time.Duration
 
 	usedFiles []string            // real paths of the documents it uses
 	dataFiles []*calcdoc.DataFile // the data files its blocks read (a table's CSV)
@@ -196,6 +201,7 @@ func New(cfg Config) (*Watcher, error) {
 		poke:    make(chan struct{}, 1),
 		docs:    map[string]*page{},
 		evals:   map[string]*evalState{},
+		bases:   map[string]*base{},
 		tick:    make(chan struct{}),
 		done:    make(chan struct{}),
 	}
@@ -243,6 +249,7 @@ func New(cfg Config) (*Watcher, error) {
 		return nil, fmt.Errorf("cannot watch for changes: %v", err)
 	}
 	w.fsw = fsw
+	w.cw = newCloseWatch()
 	// Watch first, then read: a save made meanwhile is then seen twice,
 	// never missed.
 	w.watchRoots()
@@ -261,6 +268,7 @@ func (w *Watcher) Close() error {
 	w.once.Do(func() {
 		close(w.done)
 		err = w.fsw.Close()
+		w.cw.close()
 		w.workers.Wait()
 	})
 	return err
@@ -268,7 +276,8 @@ func (w *Watcher) Close() error {
 
 // Run handles file-system events until ctx ends or Close is called, then
 // closes the watcher. A burst of events is handled once it has been quiet
-// for Quiet, or MaxDelay after its first event, whichever comes first.
+// for Quiet, or MaxDelay after its first event, whichever comes first, or
+// at once when a file it names is closed after writing (Linux).
 func (w *Watcher) Run(ctx context.Context) error {
 	defer w.Close()
 	timer := time.NewTimer(time.Hour)
@@ -302,6 +311,10 @@ func (w *Watcher) Run(ctx context.Context) error {
 				first = now
 			}
 			timer.Reset(max(0, min(Quiet, MaxDelay-now.Sub(first))))
+		case ev := <-w.cw.closed():
+			if w.cw.current(ev) && w.closeWritten(ev.name) {
+				timer.Reset(0) // the save is complete: no need to wait
+			}
 		case err, ok := <-w.fsw.Errors:
 			if !ok {
 				return nil
@@ -342,6 +355,7 @@ func (w *Watcher) event(ev fsnotify.Event) bool {
 		for d := range w.watched {
 			if d == name || within(d, name) {
 				_ = w.fsw.Remove(d)
+				w.cw.remove(d)
 				delete(w.watched, d)
 				queued = true
 			}
@@ -460,112 +474,6 @@ func (w *Watcher) claim(file string) (*root, string, bool) {
 		}
 	}
 	return nil, "", false
-}
-
-func (w *Watcher) addWatch(dir string) {
-	if w.watched[dir] {
-		return
-	}
-	if err := w.fsw.Add(dir); err != nil {
-		if msg := err.Error(); w.cannot[dir] != msg { // said once, not at every Retry
-			w.cannot[dir] = msg
-			w.logf("cannot watch %s: %v; changes in it will not be seen", dir, err)
-		}
-		return
-	}
-	delete(w.cannot, dir)
-	w.watched[dir] = true
-}
-
-// addTree watches dir and every folder below it (not following symbolic
-// links, skipping .git and node_modules) and queues every .md file found.
-func (w *Watcher) addTree(dir string) {
-	_ = filepath.WalkDir(dir, func(p string, d fs.DirEntry, err error) error {
-		if err != nil {
-			return nil // an unreadable entry is skipped
-		}
-		if d.IsDir() {
-			if p != dir && skipDir(d.Name()) {
-				return filepath.SkipDir
-			}
-			w.addWatch(p)
-			return nil
-		}
-		if filepath.Ext(p) == ".md" {
-			w.pending[p] = true
-		}
-		return nil
-	})
-}
-
-// recover watches again the folder of each PATH that went away and is
-// back (a folder again, not a symbolic link), and queues its documents. It
-// reports whether it queued anything.
-func (w *Watcher) recover() bool {
-	queued := false
-	for _, r := range w.roots {
-		if !r.lost || w.watched[r.dir] {
-			continue
-		}
-		fi, err := os.Lstat(r.dir)
-		if err != nil || !fi.IsDir() {
-			continue
-		}
-		if real, err := filepath.EvalSymlinks(r.dir); err != nil || real != r.dir {
-			continue
-		}
-		if r.file != "" {
-			w.addWatch(r.dir)
-			w.pending[filepath.Join(r.dir, r.file)] = true
-		} else {
-			w.addTree(r.dir)
-		}
-		if !w.watched[r.dir] {
-			continue // cannot be watched (said by addWatch): tried again at the next Retry
-		}
-		r.lost = false
-		w.logf("%s: its folder is back; watching it again", r.given)
-		queued = true
-	}
-	// other PATHs in the same folder come back with it
-	for _, r := range w.roots {
-		if r.lost && w.watched[r.dir] {
-			r.lost = false
-			if r.file != "" {
-				w.pending[filepath.Join(r.dir, r.file)] = true
-			}
-			queued = true
-		}
-	}
-	return queued
-}
-
-// watchRoots watches every PATH (a file's folder, a folder's tree) and
-// queues its documents.
-func (w *Watcher) watchRoots() {
-	for _, r := range w.roots {
-		if r.file != "" {
-			w.addWatch(r.dir)
-			w.pending[filepath.Join(r.dir, r.file)] = true
-		} else {
-			w.addTree(r.dir)
-		}
-	}
-}
-
-// rescan queues every file under every PATH, and every document known.
-func (w *Watcher) rescan() {
-	w.watchRoots()
-	for _, fs := range w.shadow {
-		for f := range fs {
-			w.pending[f] = true
-		}
-	}
-	w.mu.RLock()
-	for _, p := range w.docs {
-		w.pending[p.file] = true
-	}
-	w.mu.RUnlock()
 }
 
 // flush does what the events since the last rebuild asked: it watches the
