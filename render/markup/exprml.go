@@ -34,10 +34,13 @@ type valueKey struct {
 	digits int
 }
 
-// shownValue is a value's MathML, without brackets, and its level.
+// shownValue is a value's MathML, without brackets, and its level; bare:
+// it may stand among an mrow's children without an <mrow> of its own
+// (group); one: it is one element.
 type shownValue struct {
-	ml string
-	f  form
+	ml        string
+	f         form
+	bare, one bool
 }
 
 // The typesetting levels, loosest first: the operators of LANGUAGE.md
@@ -93,10 +96,11 @@ func (m *ExprML) value(v expr.Value, d *expr.Display) shownValue {
 	switch x := v.(type) {
 	case *expr.Scalar:
 		sh := expr.FormatScalar(x, d, m.Digits)
-		s = shownValue{shownML(sh), shownForm(sh)}
+		s = shownValue{ml: shownML(sh), f: shownForm(sh)}
 	default:
-		s = shownValue{ValueML(v, d, m.Digits, false), form{lv: lvAtom, after: lvAtom}}
+		s = shownValue{ml: ValueML(v, d, m.Digits, false), f: form{lv: lvAtom, after: lvAtom}}
 	}
+	s.bare, s.one = bare(s.ml), single(s.ml)
 	if m.cache != nil {
 		m.cache[k] = s
 	}
@@ -109,6 +113,9 @@ func (m *ExprML) valueML(v expr.Value, d *expr.Display, paren bool) string {
 	s := m.value(v, d)
 	if paren && (s.f.lv < lvPostfix || s.f.signed) {
 		return "<mrow><mo>(</mo>" + s.ml + "<mo>)</mo></mrow>"
+	}
+	if s.bare {
+		return s.ml
 	}
 	return "<mrow>" + s.ml + "</mrow>"
 }
@@ -264,8 +271,9 @@ func rightNeed(op expr.Kind) int {
 	return lvPow
 }
 
-// operand writes n where a form of level need stands, bracketed when its
-// own form is looser, or when it starts with a sign and noSign is set.
+// operand writes n where a form of level need stands among an mrow's
+// children, bracketed when its own form is looser, or when it starts with
+// a sign and noSign is set.
 func (m *ExprML) operand(b StringWriter, n expr.Node, need int, noSign bool) {
 	f := m.form(n)
 	if f.lv < need || noSign && m.leadSign(n) {
@@ -275,6 +283,48 @@ func (m *ExprML) operand(b StringWriter, n expr.Node, need int, noSign bool) {
 		return
 	}
 	m.write(b, n)
+}
+
+// operandOne is operand where MathML takes exactly one element (the base
+// of a <msup>): what write puts as several is grouped in an <mrow>.
+func (m *ExprML) operandOne(b StringWriter, n expr.Node, need int, noSign bool) {
+	f := m.form(n)
+	if f.lv < need || noSign && m.leadSign(n) {
+		m.operand(b, n, need, noSign)
+		return
+	}
+	m.one(b, n)
+}
+
+// one writes n as exactly one element: in an <mrow> when write puts it as
+// several (the slots of <mfrac> and <msup>).
+func (m *ExprML) one(b StringWriter, n expr.Node) {
+	if !m.several(n) {
+		m.write(b, n)
+		return
+	}
+	b.WriteString("<mrow>")
+	m.write(b, n)
+	b.WriteString("</mrow>")
+}
+
+// several reports whether write puts n as more than one element.
+func (m *ExprML) several(n expr.Node) bool {
+	n = expr.Unparen(n)
+	if s, ok := m.substituted(n); ok {
+		return s.bare && !s.one
+	}
+	switch n := n.(type) {
+	case *expr.Number:
+		return n.Imag || strings.ContainsAny(n.Text, "eE")
+	case *expr.WithUnit:
+		return n.Unit.Text != "°"
+	case *expr.Binary:
+		return n.Op != expr.DIV && n.Op != expr.POW
+	case *expr.Compare:
+		return len(n.X) > 1
+	}
+	return false
 }
 
 // signedOperand writes the right operand of ∠, which may carry one sign
@@ -342,6 +392,10 @@ func unitAfterAngleUnit(n expr.Node) bool {
 func (m *ExprML) write(b StringWriter, n expr.Node) {
 	n = expr.Unparen(n)
 	if s, ok := m.substituted(n); ok {
+		if s.bare {
+			b.WriteString(s.ml)
+			return
+		}
 		b.WriteString("<mrow>")
 		b.WriteString(s.ml)
 		b.WriteString("</mrow>")
@@ -350,9 +404,8 @@ func (m *ExprML) write(b StringWriter, n expr.Node) {
 	switch n := n.(type) {
 	case *expr.Number:
 		if n.Imag {
-			b.WriteString("<mrow><mi>j</mi>")
+			b.WriteString("<mi>j</mi>")
 			b.WriteString(numLiteral(strings.TrimPrefix(n.Text, "j")))
-			b.WriteString("</mrow>")
 			return
 		}
 		b.WriteString(numLiteral(n.Text))
@@ -367,14 +420,22 @@ func (m *ExprML) write(b StringWriter, n expr.Node) {
 		}
 		b.WriteString(NameML(n.Name))
 	case *expr.WithUnit:
-		b.WriteString("<mrow>")
+		// a unit stands after its number with no mrow around the two
+		// (a value with a unit starts and ends with no operator); the
+		// degree mark, an operator, keeps it
+		deg := n.Unit.Text == "°"
+		if deg {
+			b.WriteString("<mrow>")
+		}
 		if a, ok := liftedAngle(n); ok {
 			m.write(b, a)
 		} else {
 			m.operand(b, n.X, lvPow, true)
 		}
 		b.WriteString(UnitML(n.Unit.Text))
-		b.WriteString("</mrow>")
+		if deg {
+			b.WriteString("</mrow>")
+		}
 	case *expr.Unary:
 		if n.Op == expr.ADD {
 			b.WriteString("<mrow><mo>+</mo>")
@@ -390,21 +451,22 @@ func (m *ExprML) write(b StringWriter, n expr.Node) {
 	case *expr.Binary:
 		switch n.Op {
 		case expr.DIV:
-			b.WriteString("<mfrac><mrow>")
-			m.write(b, n.X)
-			b.WriteString("</mrow><mrow>")
-			m.write(b, n.Y)
-			b.WriteString("</mrow></mfrac>")
+			b.WriteString("<mfrac>")
+			m.one(b, n.X)
+			m.one(b, n.Y)
+			b.WriteString("</mfrac>")
 			return
 		case expr.POW:
 			b.WriteString("<msup>")
-			m.operand(b, n.X, lvAtom, true)
-			b.WriteString("<mrow>")
-			m.write(b, n.Y)
-			b.WriteString("</mrow></msup>")
+			m.operandOne(b, n.X, lvAtom, true)
+			m.one(b, n.Y)
+			b.WriteString("</msup>")
 			return
 		}
-		b.WriteString("<mrow>")
+		// an operation's operands and operator stand among the children
+		// of the mrow around it (no mrow of its own: no operand starts or
+		// ends with a bare operator, so the operator stays infix, and
+		// none of + − · ∥ ∠ stretches)
 		m.operand(b, n.X, m.leftNeed(n.Op), false)
 		b.WriteString("<mo>")
 		b.WriteString(OpML[n.Op])
@@ -414,7 +476,6 @@ func (m *ExprML) write(b StringWriter, n expr.Node) {
 		} else {
 			m.operand(b, n.Y, rightNeed(n.Op), true)
 		}
-		b.WriteString("</mrow>")
 	case *expr.Call:
 		m.call(b, n)
 	case *expr.MatrixLit:
@@ -441,7 +502,6 @@ func (m *ExprML) write(b StringWriter, n expr.Node) {
 		}
 		b.WriteString("<mo>}</mo></mrow>")
 	case *expr.Compare:
-		b.WriteString("<mrow>")
 		for i, x := range n.X {
 			if i > 0 {
 				b.WriteString("<mo>")
@@ -450,7 +510,6 @@ func (m *ExprML) write(b StringWriter, n expr.Node) {
 			}
 			m.write(b, x)
 		}
-		b.WriteString("</mrow>")
 	default:
 		b.WriteString("<merror><mtext>?</mtext></merror>")
 	}
@@ -511,7 +570,7 @@ func numLiteral(text string) string {
 	if m, e, ok := strings.Cut(strings.ToLower(text), "e"); ok {
 		e = strings.TrimPrefix(e, "+")
 		e = strings.Replace(e, "-", "−", 1)
-		return "<mrow><mn>" + Esc(m) + "</mn><mo>×</mo><msup><mn>10</mn><mn>" + Esc(e) + "</mn></msup></mrow>"
+		return "<mn>" + Esc(m) + "</mn><mo>×</mo><msup><mn>10</mn><mn>" + Esc(e) + "</mn></msup>"
 	}
 	return "<mn>" + Esc(text) + "</mn>"
 }
@@ -527,7 +586,7 @@ func (m *ExprML) call(b StringWriter, n *expr.Call) {
 		case "conj", "transpose":
 			// a postfix mark: the conjugate star, the transpose T
 			b.WriteString("<msup>")
-			m.operand(b, n.Args[0], lvAtom, true)
+			m.operandOne(b, n.Args[0], lvAtom, true)
 			if n.Fun.Name == "conj" {
 				b.WriteString("<mo>*</mo></msup>")
 			} else {

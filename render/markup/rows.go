@@ -40,9 +40,9 @@ func (w *Writer) MathDiv(class, attrs string, body func()) {
 	w.WriteString(class)
 	w.WriteString("\"")
 	w.WriteString(attrs)
-	w.WriteString("><math display=\"inline\"><mrow>")
+	w.WriteString("><math>")
 	body()
-	w.WriteString("</mrow></math></div>")
+	w.WriteString("</math></div>")
 }
 
 // mathRow writes a formula or substitution row: prefix (the "name =")
@@ -58,10 +58,14 @@ func (w *Writer) MathRow(class, prefix string, m *ExprML, x expr.Node) {
 // mathRowTail is mathRow with HTML written after the formula (a tag).
 func (w *Writer) MathRowTail(class, prefix string, m *ExprML, x expr.Node, tail string) {
 	if !m.Splits(x) {
-		w.WriteString("<div class=\"" + class + "\"><math display=\"inline\"><mrow>")
+		w.WriteString("<div class=\"")
+		w.WriteString(class)
+		w.WriteString("\"><math>")
 		w.WriteString(prefix)
 		m.WriteNode(w, x, false)
-		w.WriteString("</mrow></math>" + tail + "</div>")
+		w.WriteString("</math>")
+		w.WriteString(tail)
+		w.WriteString("</div>")
 		return
 	}
 	cut, end := w.StartPieces(class, "")
@@ -95,10 +99,10 @@ func (w *Writer) StartPieces(class, head string) (cut func(newTerm bool), end fu
 	w.WriteString(class)
 	w.WriteString(" brk\">")
 	w.WriteString(head)
-	w.WriteString("<math display=\"inline\"><mrow>")
+	w.WriteString("<math>")
 	inTerm := false
 	cut = func(newTerm bool) {
-		w.WriteString("</mrow></math>")
+		w.WriteString("</math>")
 		if newTerm {
 			if inTerm {
 				w.WriteString("</span>")
@@ -106,10 +110,10 @@ func (w *Writer) StartPieces(class, head string) (cut func(newTerm bool), end fu
 			w.WriteString("<span class=\"t\">")
 			inTerm = true
 		}
-		w.WriteString("<math display=\"inline\"><mrow>")
+		w.WriteString("<math>")
 	}
 	end = func(tail string) {
-		w.WriteString("</mrow></math>")
+		w.WriteString("</math>")
 		if inTerm {
 			w.WriteString("</span>")
 		}
