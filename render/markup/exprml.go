@@ -526,24 +526,39 @@ func (m *ExprML) Splits(n expr.Node) bool {
 	return ok && (bin.Op == expr.ADD || bin.Op == expr.SUB || bin.Op == expr.MUL)
 }
 
+// A Cut is what follows a cut between two pieces of a row (WritePieces,
+// Writer.StartPieces).
+type Cut int
+
+const (
+	// Factor: the next factor of the term, after its ·
+	Factor Cut = iota
+	// Term: a term, after its + or − (or a side after its = or ≤), that
+	// may break into more pieces: it gets a box of its own
+	Term
+	// WholeTerm: a term of one piece, which needs no box (one <math>
+	// breaks as a whole)
+	WholeTerm
+)
+
 // WritePieces typesets n into b as the pieces a long row may break
 // between: its top-level terms, each after its + or −, and within each
-// term its factors, each after its ·. Between two pieces it calls cut,
-// with newTerm set before a + or −. Joined, the pieces are n's MathML.
-func (m *ExprML) WritePieces(b StringWriter, n expr.Node, cut func(newTerm bool)) {
+// term its factors, each after its ·. Between two pieces it calls cut
+// with what follows. Joined, the pieces are n's MathML.
+func (m *ExprML) WritePieces(b StringWriter, n expr.Node, cut func(Cut)) {
 	// factors of a term that stands unbracketed at level need
 	var factors func(n expr.Node, need int, noSign bool)
 	factors = func(n expr.Node, need int, noSign bool) {
-		f := m.form(n)
-		bin, isBin := expr.Unparen(n).(*expr.Binary)
-		_, subst := m.substituted(expr.Unparen(n))
-		if f.lv < need || !isBin || subst || bin.Op != expr.MUL || noSign && m.leadSign(n) {
+		if !m.splitsFactors(n, need, noSign) {
 			m.operand(b, n, need, noSign)
 			return
 		}
+		bin := expr.Unparen(n).(*expr.Binary)
 		factors(bin.X, lvMul, false)
-		cut(false)
-		b.WriteString("<mo form=\"infix\">·</mo>")
+		cut(Factor)
+		// "·" is an infix operator only (MathML Core's operator
+		// dictionary): first in its <math> it needs no form="infix"
+		b.WriteString("<mo>·</mo>")
 		m.operand(b, bin.Y, lvUnary, true)
 	}
 	var terms func(n expr.Node)
@@ -555,13 +570,32 @@ func (m *ExprML) WritePieces(b StringWriter, n expr.Node, cut func(newTerm bool)
 			return
 		}
 		terms(bin.X)
-		cut(true)
+		if m.splitsFactors(bin.Y, lvPar, true) {
+			cut(Term)
+		} else {
+			cut(WholeTerm)
+		}
+		// + and − have a prefix form too, which the first child of a
+		// <math> would take
 		b.WriteString("<mo form=\"infix\">")
 		b.WriteString(OpML[bin.Op])
 		b.WriteString("</mo>")
 		factors(bin.Y, lvPar, true)
 	}
 	terms(n)
+}
+
+// splitsFactors reports whether WritePieces writes n, a term standing at
+// level need, as its factors in pieces.
+func (m *ExprML) splitsFactors(n expr.Node, need int, noSign bool) bool {
+	bin, isBin := expr.Unparen(n).(*expr.Binary)
+	if !isBin || bin.Op != expr.MUL {
+		return false
+	}
+	if _, subst := m.substituted(expr.Unparen(n)); subst {
+		return false
+	}
+	return m.form(n).lv >= need && !(noSign && m.leadSign(n))
 }
 
 func IsConstant(name string) bool { return name == "pi" || name == "π" || name == "j" }

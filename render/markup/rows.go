@@ -80,7 +80,7 @@ func (w *Writer) CheckRow(m *ExprML, c *expr.Compare) {
 	cut, end := w.StartPieces("f", "<span class=\"kindtag\">check</span> ")
 	for i, x := range c.X {
 		if i > 0 {
-			cut(true)
+			cut(Term)
 			w.WriteString("<mo>" + OpML[c.Ops[i-1]] + "</mo>")
 		}
 		m.WritePieces(w, x, cut)
@@ -90,25 +90,28 @@ func (w *Writer) CheckRow(m *ExprML, c *expr.Compare) {
 
 // startPieces opens a row written in pieces: one <math> per piece in the
 // wrapping container (class "brk"), the first term's factors in the row
-// itself and each later term in a box of its own, so that a line breaks
-// before a + or − and, inside a term, before a · only when the term is
-// longer than a line (style.go). It returns the cut between pieces and the
-// end of the row (with HTML after the formula).
-func (w *Writer) StartPieces(class, head string) (cut func(newTerm bool), end func(tail string)) {
+// itself and each later term of several pieces in a box of its own, so
+// that a line breaks before a + or − and, inside a term, before a · only
+// when the term is longer than a line (style.go); a term of one piece is
+// one <math>, which breaks as a whole without a box. It returns the cut
+// between pieces and the end of the row (with HTML after the formula).
+func (w *Writer) StartPieces(class, head string) (cut func(Cut), end func(tail string)) {
 	w.WriteString("<div class=\"")
 	w.WriteString(class)
 	w.WriteString(" brk\">")
 	w.WriteString(head)
 	w.WriteString("<math>")
 	inTerm := false
-	cut = func(newTerm bool) {
+	cut = func(c Cut) {
 		w.WriteString("</math>")
-		if newTerm {
+		if c != Factor {
 			if inTerm {
 				w.WriteString("</span>")
 			}
-			w.WriteString("<span class=\"t\">")
-			inTerm = true
+			inTerm = c == Term
+			if inTerm {
+				w.WriteString("<span class=\"t\">")
+			}
 		}
 		w.WriteString("<math>")
 	}

@@ -72,7 +72,7 @@ func renderSolve(w *markup.Writer, b *calcdoc.Block) {
 				// top-level + or − of either side, and before its =
 				cut, end := w.StartPieces("f", label)
 				f.WritePieces(w, s.LHS, cut)
-				cut(true)
+				cut(markup.Term)
 				w.WriteString("<mo>=</mo>")
 				f.WritePieces(w, s.RHS, cut)
 				end(tail)
