@@ -546,43 +546,55 @@ const (
 // term its factors, each after its ·. Between two pieces it calls cut
 // with what follows. Joined, the pieces are n's MathML.
 func (m *ExprML) WritePieces(b StringWriter, n expr.Node, cut func(Cut)) {
-	// factors of a term that stands unbracketed at level need
-	var factors func(n expr.Node, need int, noSign bool)
-	factors = func(n expr.Node, need int, noSign bool) {
-		if !m.splitsFactors(n, need, noSign) {
-			m.operand(b, n, need, noSign)
-			return
-		}
-		bin := expr.Unparen(n).(*expr.Binary)
-		factors(bin.X, lvMul, false)
-		cut(Factor)
-		// "·" is an infix operator only (MathML Core's operator
-		// dictionary): first in its <math> it needs no form="infix"
-		b.WriteString("<mo>·</mo>")
-		m.operand(b, bin.Y, lvUnary, true)
+	p := piecer{m: m, b: b, cut: cut}
+	p.terms(n)
+}
+
+// piecer writes the pieces of one formula (WritePieces).
+type piecer struct {
+	m   *ExprML
+	b   StringWriter
+	cut func(Cut)
+}
+
+// terms writes n's top-level terms, each after its + or −.
+func (p *piecer) terms(n expr.Node) {
+	m := p.m
+	bin, isBin := expr.Unparen(n).(*expr.Binary)
+	_, subst := m.substituted(expr.Unparen(n))
+	if !isBin || subst || bin.Op != expr.ADD && bin.Op != expr.SUB {
+		p.factors(n, lvAdd, false)
+		return
 	}
-	var terms func(n expr.Node)
-	terms = func(n expr.Node) {
-		bin, isBin := expr.Unparen(n).(*expr.Binary)
-		_, subst := m.substituted(expr.Unparen(n))
-		if !isBin || subst || bin.Op != expr.ADD && bin.Op != expr.SUB {
-			factors(n, lvAdd, false)
-			return
-		}
-		terms(bin.X)
-		if m.splitsFactors(bin.Y, lvPar, true) {
-			cut(Term)
-		} else {
-			cut(WholeTerm)
-		}
-		// + and − have a prefix form too, which the first child of a
-		// <math> would take
-		b.WriteString("<mo form=\"infix\">")
-		b.WriteString(OpML[bin.Op])
-		b.WriteString("</mo>")
-		factors(bin.Y, lvPar, true)
+	p.terms(bin.X)
+	if m.splitsFactors(bin.Y, lvPar, true) {
+		p.cut(Term)
+	} else {
+		p.cut(WholeTerm)
 	}
-	terms(n)
+	// + and − have a prefix form too, which the first child of a <math>
+	// would take
+	p.b.WriteString("<mo form=\"infix\">")
+	p.b.WriteString(OpML[bin.Op])
+	p.b.WriteString("</mo>")
+	p.factors(bin.Y, lvPar, true)
+}
+
+// factors writes the factors of a term that stands unbracketed at level
+// need, each after its ·.
+func (p *piecer) factors(n expr.Node, need int, noSign bool) {
+	m := p.m
+	if !m.splitsFactors(n, need, noSign) {
+		m.operand(p.b, n, need, noSign)
+		return
+	}
+	bin := expr.Unparen(n).(*expr.Binary)
+	p.factors(bin.X, lvMul, false)
+	p.cut(Factor)
+	// "·" is an infix operator only (MathML Core's operator dictionary):
+	// first in its <math> it needs no form="infix"
+	p.b.WriteString("<mo>·</mo>")
+	m.operand(p.b, bin.Y, lvUnary, true)
 }
 
 // splitsFactors reports whether WritePieces writes n, a term standing at

@@ -80,22 +80,32 @@ func NameHTML(name string) string {
 // numML typesets a number written by the formatter: "-" becomes a minus
 // sign and "1.2e-5" becomes 1.2×10⁻⁵.
 func numML(s string) string {
-	neg := strings.HasPrefix(s, "-")
-	if neg {
+	var b strings.Builder
+	writeNum(&b, s)
+	return b.String()
+}
+
+// writeNum writes numML(s) into b.
+func writeNum(b *strings.Builder, s string) {
+	b.WriteString("<mn>")
+	if strings.HasPrefix(s, "-") {
+		// the sign belongs to the number: no operator spacing
+		b.WriteString("−")
 		s = s[1:]
 	}
-	var out string
-	if m, e, ok := strings.Cut(s, "e"); ok {
-		e = strings.Replace(e, "-", "−", 1)
-		out = "<mn>" + Esc(m) + "</mn><mo>×</mo><msup><mn>10</mn><mn>" + Esc(e) + "</mn></msup>"
-	} else {
-		out = "<mn>" + Esc(s) + "</mn>"
+	m, e, sci := strings.Cut(s, "e")
+	b.WriteString(Esc(m))
+	b.WriteString("</mn>")
+	if !sci {
+		return
 	}
-	if neg {
-		// the sign belongs to the number: no operator spacing
-		return strings.Replace(out, "<mn>", "<mn>−", 1)
+	b.WriteString("<mo>×</mo><msup><mn>10</mn><mn>")
+	if strings.HasPrefix(e, "-") {
+		b.WriteString("−")
+		e = e[1:]
 	}
-	return out
+	b.WriteString(Esc(e))
+	b.WriteString("</mn></msup>")
 }
 
 // unitText writes a unit for display: "mm^2" becomes "mm²", "*" becomes "·".
@@ -201,14 +211,19 @@ func single(ml string) bool {
 	return false
 }
 
-// shownML is the bare MathML of a shown value, without brackets around it.
+// shownML is the bare MathML of a shown value, without brackets around it,
+// built in one string.
 func shownML(s expr.Shown) string {
-	var num string
+	var b strings.Builder
+	b.Grow(96 + 2*(len(s.A)+len(s.B)+len(s.Unit)))
 	switch s.Kind {
 	case expr.ShownReal:
-		num = numML(s.A)
+		writeNum(&b, s.A)
 	case expr.ShownPolar:
-		num = numML(s.A) + "<mo>∠</mo>" + numML(s.B) + "<mo>°</mo>"
+		writeNum(&b, s.A)
+		b.WriteString("<mo>∠</mo>")
+		writeNum(&b, s.B)
+		b.WriteString("<mo>°</mo>")
 	case expr.ShownRect:
 		im := s.B
 		op := "+"
@@ -217,17 +232,27 @@ func shownML(s expr.Shown) string {
 		}
 		if s.A == "" {
 			if op == "−" {
-				num = "<mo>−</mo>"
+				b.WriteString("<mo>−</mo>")
 			}
-			num += "<mi>j</mi>" + numML(im)
-		} else {
-			num = numML(s.A) + "<mo>" + op + "</mo><mi>j</mi>" + numML(im)
+			b.WriteString("<mi>j</mi>")
+			writeNum(&b, im)
+			break
 		}
-		if s.Unit != "" && s.A != "" {
-			num = "<mo>(</mo>" + num + "<mo>)</mo>"
+		paren := s.Unit != ""
+		if paren {
+			b.WriteString("<mo>(</mo>")
+		}
+		writeNum(&b, s.A)
+		b.WriteString("<mo>")
+		b.WriteString(op)
+		b.WriteString("</mo><mi>j</mi>")
+		writeNum(&b, im)
+		if paren {
+			b.WriteString("<mo>)</mo>")
 		}
 	}
-	return num + UnitML(s.Unit)
+	b.WriteString(UnitML(s.Unit))
+	return b.String()
 }
 
 // shownForm is the typesetting level of a shown value (see form).

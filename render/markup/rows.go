@@ -57,35 +57,42 @@ func (w *Writer) MathRow(class, prefix string, m *ExprML, x expr.Node) {
 
 // mathRowTail is mathRow with HTML written after the formula (a tag).
 func (w *Writer) MathRowTail(class, prefix string, m *ExprML, x expr.Node, tail string) {
+	w.mathRow(class, m, x, tail, func() { w.WriteString(prefix) })
+}
+
+// mathRow is MathRowTail with the prefix written by prefix.
+func (w *Writer) mathRow(class string, m *ExprML, x expr.Node, tail string, prefix func()) {
 	if !m.Splits(x) {
 		w.WriteString("<div class=\"")
 		w.WriteString(class)
 		w.WriteString("\"><math>")
-		w.WriteString(prefix)
+		prefix()
 		m.WriteNode(w, x, false)
 		w.WriteString("</math>")
 		w.WriteString(tail)
 		w.WriteString("</div>")
 		return
 	}
-	cut, end := w.StartPieces(class, "")
-	w.WriteString(prefix)
-	m.WritePieces(w, x, cut)
-	end(tail)
+	p := w.startPieces(class, "")
+	prefix()
+	m.WritePieces(w, x, p.cut)
+	p.end(tail)
 }
 
 // checkRow writes a check's formula: the chain's sides, each in its
 // pieces, a side after its comparison.
 func (w *Writer) CheckRow(m *ExprML, c *expr.Compare) {
-	cut, end := w.StartPieces("f", "<span class=\"kindtag\">check</span> ")
+	p := w.startPieces("f", "<span class=\"kindtag\">check</span> ")
 	for i, x := range c.X {
 		if i > 0 {
-			cut(Term)
-			w.WriteString("<mo>" + OpML[c.Ops[i-1]] + "</mo>")
+			p.cut(Term)
+			w.WriteString("<mo>")
+			w.WriteString(OpML[c.Ops[i-1]])
+			w.WriteString("</mo>")
 		}
-		m.WritePieces(w, x, cut)
+		m.WritePieces(w, x, p.cut)
 	}
-	end("")
+	p.end("")
 }
 
 // startPieces opens a row written in pieces: one <math> per piece in the
@@ -96,38 +103,77 @@ func (w *Writer) CheckRow(m *ExprML, c *expr.Compare) {
 // one <math>, which breaks as a whole without a box. It returns the cut
 // between pieces and the end of the row (with HTML after the formula).
 func (w *Writer) StartPieces(class, head string) (cut func(Cut), end func(tail string)) {
+	p := w.startPieces(class, head)
+	return p.cut, p.end
+}
+
+// pieces is a row being written in pieces (StartPieces).
+type pieces struct {
+	w      *Writer
+	inTerm bool
+}
+
+// startPieces is StartPieces, with the cut and the end as methods.
+func (w *Writer) startPieces(class, head string) *pieces {
 	w.WriteString("<div class=\"")
 	w.WriteString(class)
 	w.WriteString(" brk\">")
 	w.WriteString(head)
 	w.WriteString("<math>")
-	inTerm := false
-	cut = func(c Cut) {
-		w.WriteString("</math>")
-		if c != Factor {
-			if inTerm {
-				w.WriteString("</span>")
-			}
-			inTerm = c == Term
-			if inTerm {
-				w.WriteString("<span class=\"t\">")
-			}
-		}
-		w.WriteString("<math>")
-	}
-	end = func(tail string) {
-		w.WriteString("</math>")
-		if inTerm {
+	return &pieces{w: w}
+}
+
+// cut ends a piece and starts the next, with what follows it.
+func (p *pieces) cut(c Cut) {
+	w := p.w
+	w.WriteString("</math>")
+	if c != Factor {
+		if p.inTerm {
 			w.WriteString("</span>")
 		}
-		w.WriteString(tail)
-		w.WriteString("</div>")
+		p.inTerm = c == Term
+		if p.inTerm {
+			w.WriteString("<span class=\"t\">")
+		}
 	}
-	return cut, end
+	w.WriteString("<math>")
+}
+
+// end ends the last piece and the row, with HTML after the formula.
+func (p *pieces) end(tail string) {
+	w := p.w
+	w.WriteString("</math>")
+	if p.inTerm {
+		w.WriteString("</span>")
+	}
+	w.WriteString(tail)
+	w.WriteString("</div>")
 }
 
 func resultAttrs(name string, line int) string {
 	return " data-value=\"" + Esc(name) + "\" data-line=\"" + strconv.Itoa(line) + "\""
+}
+
+// resultOpen opens a result row: <div class="r" data-value=NAME
+// data-line=LINE>.
+func (w *Writer) resultOpen(name string, line int) {
+	w.WriteString("<div class=\"r\" data-value=\"")
+	w.WriteString(Esc(name))
+	w.WriteString("\" data-line=\"")
+	w.writeInt(line)
+	w.WriteString("\">")
+}
+
+// writeValue writes m.valueML(v, d, false) straight into the page.
+func (w *Writer) writeValue(m *ExprML, v expr.Value, d *expr.Display) {
+	sv := m.value(v, d)
+	if sv.bare {
+		w.WriteString(sv.ml)
+		return
+	}
+	w.WriteString("<mrow>")
+	w.WriteString(sv.ml)
+	w.WriteString("</mrow>")
 }
 
 // hasNames reports whether an expression uses any name other than a
@@ -161,19 +207,27 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 	if wideRow(res) {
 		class = "row wide" // matrices: the description goes below the working
 	}
-	ls := strconv.Itoa(line)
-	w.WriteString("<div class=\"" + class + "\" id=\"L" + ls + "\"><div class=\"ln\">" + ls + "</div><div class=\"math\">")
+	w.WriteString("<div class=\"")
+	w.WriteString(class)
+	w.WriteString("\" id=\"L")
+	w.writeInt(line)
+	w.WriteString("\"><div class=\"ln\">")
+	w.writeInt(line)
+	w.WriteString("</div><div class=\"math\">")
 	ok := len(st.Errs) == 0 && st.Unavailable == nil
 	f := w.ExprMLFor(false, nil)
 	s := w.ExprMLFor(true, res.Trace)
 	switch x := st.Stmt.(type) {
 	case *expr.Assign:
-		var lhs []string
-		for _, id := range x.Names {
-			lhs = append(lhs, NameML(id.Name))
-		}
-		l := strings.Join(lhs, "<mo>,</mo>")
-		w.MathRow("f", l+"<mo>=</mo>", f, x.X)
+		w.mathRow("f", f, x.X, "", func() {
+			for i, id := range x.Names {
+				if i > 0 {
+					w.WriteString("<mo>,</mo>")
+				}
+				w.WriteString(NameML(id.Name))
+			}
+			w.WriteString("<mo>=</mo>")
+		})
 		if ok && res.Value != nil {
 			if hasNames(x.X) {
 				w.MathRow("s", "<mo>=</mo>", s, x.X)
@@ -194,11 +248,11 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 				if res.Cases != nil {
 					w.caseResults(x.Names[0].Name, line, res.Cases, disp)
 				} else {
-					w.MathDiv("r", resultAttrs(x.Names[0].Name, line), func() {
-						w.WriteString("<mo>=</mo>")
-						w.WriteString(s.valueML(res.Value, disp, false))
-						w.WriteString(SenseML(res.Value))
-					})
+					w.resultOpen(x.Names[0].Name, line)
+					w.WriteString("<math><mo>=</mo>")
+					w.writeValue(s, res.Value, disp)
+					w.WriteString(SenseML(res.Value))
+					w.WriteString("</math></div>")
 				}
 				w.governingNote(res.Trace)
 				w.KindNote(res.Value)
@@ -222,33 +276,40 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 			c := res.Check
 			disp := checkDisplay(w, x.Cmp)
 			dg := CheckRowDigits(c.Values, x.Cmp.Ops, disp, w.Digits())
-			var parts []string
+			w.WriteString("<div class=\"s\" data-check=\"")
+			w.writeInt(line)
+			w.WriteString("\"><math>")
 			for i, v := range c.Values {
 				if i > 0 {
-					parts = append(parts, "<mo>"+OpML[x.Cmp.Ops[i-1]]+"</mo>")
+					w.WriteString("<mo>")
+					w.WriteString(OpML[x.Cmp.Ops[i-1]])
+					w.WriteString("</mo>")
 				}
 				if dg != w.Digits() {
-					parts = append(parts, ValueML(v, disp, dg, false))
-					continue
+					w.WriteString(ValueML(v, disp, dg, false))
+				} else {
+					w.writeValue(s, v, disp)
 				}
-				parts = append(parts, s.valueML(v, disp, false))
+				w.WriteString(SenseML(v)) // as WithSense
 			}
-			parts = WithSense(parts, c.Values)
-			verdict := "<span class=\"verdict pass\">satisfied</span>"
-			if !c.Pass {
-				verdict = "<span class=\"verdict fail\">NOT SATISFIED</span>"
+			w.WriteString("</math>")
+			if c.Pass {
+				w.WriteString("<span class=\"verdict pass\">satisfied</span>")
+			} else {
+				w.WriteString("<span class=\"verdict fail\">NOT SATISFIED</span>")
 			}
-			util := ""
 			if c.HasUtil {
-				util = "<span class=\"util\">utilisation " + Esc(percent(c.Utilisation)) + " of the limit</span>"
+				w.WriteString("<span class=\"util\">utilisation ")
+				w.WriteString(Esc(percent(c.Utilisation)))
+				w.WriteString(" of the limit</span>")
 			}
-			tol := ""
 			for _, op := range x.Cmp.Ops {
 				if op == expr.EQ || op == expr.NE {
-					tol = " <span class=\"tol\">(equal within a relative tolerance of 1e-9)</span>"
+					w.WriteString(" <span class=\"tol\">(equal within a relative tolerance of 1e-9)</span>")
+					break
 				}
 			}
-			w.Printf("<div class=\"s\" data-check=\"%d\">%s%s%s%s</div>", line, Math(strings.Join(parts, "")), verdict, util, tol)
+			w.WriteString("</div>")
 		}
 	case *expr.ExprStmt:
 		w.MathRow("f", "", f, x.X)
@@ -259,7 +320,11 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 			if res.Cases != nil {
 				w.caseResults("", line, res.Cases, res.Display)
 			} else {
-				w.Printf("<div class=\"r\" data-value=\"\" data-line=\"%d\">%s</div>", line, Math("<mo>=</mo>"+ValueML(res.Value, res.Display, w.Digits(), false)+SenseML(res.Value)))
+				w.resultOpen("", line)
+				w.WriteString("<math><mo>=</mo>")
+				w.WriteString(ValueML(res.Value, res.Display, w.Digits(), false))
+				w.WriteString(SenseML(res.Value))
+				w.WriteString("</math></div>")
 			}
 			w.governingNote(res.Trace)
 			w.KindNote(res.Value)
