@@ -405,10 +405,10 @@ func (m *ExprML) write(b StringWriter, n expr.Node) {
 	case *expr.Number:
 		if n.Imag {
 			b.WriteString("<mi>j</mi>")
-			b.WriteString(numLiteral(strings.TrimPrefix(n.Text, "j")))
+			writeNumLiteral(b, strings.TrimPrefix(n.Text, "j"))
 			return
 		}
-		b.WriteString(numLiteral(n.Text))
+		writeNumLiteral(b, n.Text)
 	case *expr.Ident:
 		if n.Name == "pi" {
 			b.WriteString("<mi>π</mi>")
@@ -541,21 +541,23 @@ const (
 	WholeTerm
 )
 
-// WritePieces typesets n into b as the pieces a long row may break
-// between: its top-level terms, each after its + or −, and within each
-// term its factors, each after its ·. Between two pieces it calls cut
-// with what follows. Joined, the pieces are n's MathML.
-func (m *ExprML) WritePieces(b StringWriter, n expr.Node, cut func(Cut)) {
-	p := piecer{m: m, b: b, cut: cut}
-	p.terms(n)
+// WritePieces typesets n into the row p as the pieces a long row may
+// break between: its top-level terms, each after its + or −, and within
+// each term its factors, each after its ·. Between two pieces it calls
+// p.Cut with what follows. Joined, the pieces are n's MathML.
+func (m *ExprML) WritePieces(p *Pieces, n expr.Node) {
+	pc := piecer{m: m, b: p.w, row: p}
+	pc.terms(n)
 }
 
 // piecer writes the pieces of one formula (WritePieces).
 type piecer struct {
 	m   *ExprML
-	b   StringWriter
-	cut func(Cut)
+	b   *Writer
+	row *Pieces
 }
+
+func (p *piecer) cut(c Cut) { p.row.Cut(c) }
 
 // terms writes n's top-level terms, each after its + or −.
 func (p *piecer) terms(n expr.Node) {
@@ -612,13 +614,27 @@ func (m *ExprML) splitsFactors(n expr.Node, need int, noSign bool) bool {
 
 func IsConstant(name string) bool { return name == "pi" || name == "π" || name == "j" }
 
-func numLiteral(text string) string {
-	if m, e, ok := strings.Cut(strings.ToLower(text), "e"); ok {
-		e = strings.TrimPrefix(e, "+")
-		e = strings.Replace(e, "-", "−", 1)
-		return "<mn>" + Esc(m) + "</mn><mo>×</mo><msup><mn>10</mn><mn>" + Esc(e) + "</mn></msup>"
+// writeNumLiteral writes a number as the source writes it, 1.2e-5 as
+// 1.2×10⁻⁵.
+func writeNumLiteral(b StringWriter, text string) {
+	b.WriteString("<mn>")
+	m, e, ok := strings.Cut(text, "e")
+	if !ok {
+		m, e, ok = strings.Cut(text, "E")
 	}
-	return "<mn>" + Esc(text) + "</mn>"
+	b.WriteString(Esc(m))
+	b.WriteString("</mn>")
+	if !ok {
+		return
+	}
+	e = strings.TrimPrefix(e, "+")
+	b.WriteString("<mo>×</mo><msup><mn>10</mn><mn>")
+	if rest, neg := strings.CutPrefix(e, "-"); neg {
+		b.WriteString("−")
+		e = rest
+	}
+	b.WriteString(Esc(e))
+	b.WriteString("</mn></msup>")
 }
 
 func (m *ExprML) call(b StringWriter, n *expr.Call) {

@@ -73,58 +73,54 @@ func (w *Writer) mathRow(class string, m *ExprML, x expr.Node, tail string, pref
 		w.WriteString("</div>")
 		return
 	}
-	p := w.startPieces(class, "")
+	p := w.StartPieces(class, "")
 	prefix()
-	m.WritePieces(w, x, p.cut)
-	p.end(tail)
+	m.WritePieces(p, x)
+	p.End(tail)
 }
 
 // checkRow writes a check's formula: the chain's sides, each in its
 // pieces, a side after its comparison.
 func (w *Writer) CheckRow(m *ExprML, c *expr.Compare) {
-	p := w.startPieces("f", "<span class=\"kindtag\">check</span> ")
+	p := w.StartPieces("f", "<span class=\"kindtag\">check</span> ")
 	for i, x := range c.X {
 		if i > 0 {
-			p.cut(Term)
+			p.Cut(Term)
 			w.WriteString("<mo>")
 			w.WriteString(OpML[c.Ops[i-1]])
 			w.WriteString("</mo>")
 		}
-		m.WritePieces(w, x, p.cut)
+		m.WritePieces(p, x)
 	}
-	p.end("")
+	p.End("")
 }
 
-// startPieces opens a row written in pieces: one <math> per piece in the
+// StartPieces opens a row written in pieces: one <math> per piece in the
 // wrapping container (class "brk"), the first term's factors in the row
 // itself and each later term of several pieces in a box of its own, so
 // that a line breaks before a + or − and, inside a term, before a · only
 // when the term is longer than a line (style.go); a term of one piece is
-// one <math>, which breaks as a whole without a box. It returns the cut
-// between pieces and the end of the row (with HTML after the formula).
-func (w *Writer) StartPieces(class, head string) (cut func(Cut), end func(tail string)) {
-	p := w.startPieces(class, head)
-	return p.cut, p.end
-}
-
-// pieces is a row being written in pieces (StartPieces).
-type pieces struct {
-	w      *Writer
-	inTerm bool
-}
-
-// startPieces is StartPieces, with the cut and the end as methods.
-func (w *Writer) startPieces(class, head string) *pieces {
+// one <math>, which breaks as a whole without a box. Pieces.Cut ends a
+// piece and starts the next, Pieces.End ends the row. A writer has one
+// row in pieces at a time: StartPieces reuses it.
+func (w *Writer) StartPieces(class, head string) *Pieces {
 	w.WriteString("<div class=\"")
 	w.WriteString(class)
 	w.WriteString(" brk\">")
 	w.WriteString(head)
 	w.WriteString("<math>")
-	return &pieces{w: w}
+	w.pieces = Pieces{w: w}
+	return &w.pieces
 }
 
-// cut ends a piece and starts the next, with what follows it.
-func (p *pieces) cut(c Cut) {
+// Pieces is a row being written in pieces (Writer.StartPieces).
+type Pieces struct {
+	w      *Writer
+	inTerm bool
+}
+
+// Cut ends a piece and starts the next, with what follows it.
+func (p *Pieces) Cut(c Cut) {
 	w := p.w
 	w.WriteString("</math>")
 	if c != Factor {
@@ -139,8 +135,8 @@ func (p *pieces) cut(c Cut) {
 	w.WriteString("<math>")
 }
 
-// end ends the last piece and the row, with HTML after the formula.
-func (p *pieces) end(tail string) {
+// End ends the last piece and the row, with HTML after the formula.
+func (p *Pieces) End(tail string) {
 	w := p.w
 	w.WriteString("</math>")
 	if p.inTerm {

@@ -27,6 +27,8 @@ type Writer struct {
 	typesetters [2]*ExprML
 	// num holds the digits of a number being written (writeInt)
 	num [20]byte
+	// pieces is the row being written in pieces (StartPieces)
+	pieces Pieces
 }
 
 // writeInt writes n in decimal, with no string made for it.
