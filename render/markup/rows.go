@@ -296,7 +296,7 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 			}
 			if c.HasUtil {
 				w.WriteString("<span class=\"util\">utilisation ")
-				w.WriteString(Esc(percent(c.Utilisation)))
+				w.writePercent(c.Utilisation)
 				w.WriteString(" of the limit</span>")
 			}
 			for _, op := range x.Cmp.Ops {
@@ -361,6 +361,16 @@ func percent(u float64) string {
 	return sh.A + " %"
 }
 
+// writePercent writes Esc(percent(u)) with no string made for it.
+func (w *Writer) writePercent(u float64) {
+	if u < 0.001 {
+		w.WriteString("below 0.1 %")
+		return
+	}
+	w.WriteString(Esc(expr.FormatScalar(expr.Real(u*100), nil, 3).A))
+	w.WriteString(" %")
+}
+
 // wideRow reports whether a statement's working holds a matrix, which
 // needs the full width of the page.
 func wideRow(res *expr.Result) bool {
@@ -381,20 +391,36 @@ func wideRow(res *expr.Result) bool {
 // checkDisplay is the unit both sides of a check are shown in: that of the
 // first side written as a literal with a unit ("3 %", "6 kA"), else that of
 // the first bare name with a display of its own; nil for the defaults.
+//
+// The display of a unit is made once a sheet, so that the sheet's cache of
+// typeset values (keyed by the display) serves every check in that unit.
 func checkDisplay(w *Writer, c *expr.Compare) *expr.Display {
 	for _, x := range c.X {
 		if u := expr.LiteralUnit(x); u != nil {
-			return &expr.Display{Text: u.Text, Unit: u}
+			return w.unitDisplay(u)
 		}
 	}
 	for _, x := range c.X {
 		if id, ok := x.(*expr.Ident); ok {
 			if b := w.Doc.Env.Lookup(id.Name); b != nil && b.Display != nil && b.Display.Unit != nil {
-				return &expr.Display{Text: b.Display.Unit.Text, Unit: b.Display.Unit}
+				return w.unitDisplay(b.Display.Unit)
 			}
 		}
 	}
 	return nil
+}
+
+// unitDisplay is the display in unit u, one for each unit a sheet.
+func (w *Writer) unitDisplay(u *expr.Unit) *expr.Display {
+	if d, ok := w.displays[u]; ok {
+		return d
+	}
+	d := &expr.Display{Text: u.Text, Unit: u}
+	if w.displays == nil {
+		w.displays = map[*expr.Unit]*expr.Display{}
+	}
+	w.displays[u] = d
+	return d
 }
 
 // kindNote writes the words "kind not stated" under the result of a real

@@ -29,6 +29,9 @@ type Writer struct {
 	num [20]byte
 	// pieces is the row being written in pieces (StartPieces)
 	pieces Pieces
+	// displays are the displays of the units checks are shown in
+	// (checkDisplay)
+	displays map[*expr.Unit]*expr.Display
 }
 
 // writeInt writes n in decimal, with no string made for it.
