@@ -156,7 +156,7 @@ func (w *Writer) resultOpen(name string, line int) {
 	w.WriteString("<div class=\"r\" data-value=\"")
 	w.WriteString(Esc(name))
 	w.WriteString("\" data-line=\"")
-	w.writeInt(line)
+	w.WriteInt(line)
 	w.WriteString("\">")
 }
 
@@ -206,9 +206,9 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 	w.WriteString("<div class=\"")
 	w.WriteString(class)
 	w.WriteString("\" id=\"L")
-	w.writeInt(line)
+	w.WriteInt(line)
 	w.WriteString("\"><div class=\"ln\">")
-	w.writeInt(line)
+	w.WriteInt(line)
 	w.WriteString("</div><div class=\"math\">")
 	ok := len(st.Errs) == 0 && st.Unavailable == nil
 	f := w.ExprMLFor(false, nil)
@@ -273,7 +273,7 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 			disp := checkDisplay(w, x.Cmp)
 			dg := CheckRowDigits(c.Values, x.Cmp.Ops, disp, w.Digits())
 			w.WriteString("<div class=\"s\" data-check=\"")
-			w.writeInt(line)
+			w.WriteInt(line)
 			w.WriteString("\"><math>")
 			for i, v := range c.Values {
 				if i > 0 {

@@ -25,7 +25,7 @@ type Writer struct {
 	values   map[valueKey]shownValue
 	// typesetters are the formula and substitution typesetters of calc rows
 	typesetters [2]*ExprML
-	// num holds the digits of a number being written (writeInt)
+	// num holds the digits of a number being written (WriteInt)
 	num [20]byte
 	// pieces is the row being written in pieces (StartPieces)
 	pieces Pieces
@@ -34,8 +34,8 @@ type Writer struct {
 	displays map[*expr.Unit]*expr.Display
 }
 
-// writeInt writes n in decimal, with no string made for it.
-func (w *Writer) writeInt(n int) {
+// WriteInt writes n in decimal, with no string made for it.
+func (w *Writer) WriteInt(n int) {
 	w.Write(strconv.AppendInt(w.num[:0], int64(n), 10))
 }
 
