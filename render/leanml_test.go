@@ -15,6 +15,7 @@ import (
 
 	"calcdoc/calcdoc"
 	"calcdoc/calcdoc/kind"
+	"calcdoc/render/pdf"
 	"calcdoc/render/pdf/pdftest"
 )
 
@@ -220,4 +221,62 @@ func screenshot(t *testing.T, chrome, dir, name string, page []byte) []byte {
 		}
 	}
 	return img
+}
+
+// TestLeanMarkupPrintsAsBefore prints the scenario sheet as the writer
+// writes it now and as the writer before the lean markup wrote it to PDF
+// (pdf.Print, print media: the sheet's @page rules and print styles) and
+// compares every page, rasterised by poppler's pdftoppm, byte for byte.
+func TestLeanMarkupPrintsAsBefore(t *testing.T) {
+	pdftest.Chromium(t)
+	pdftest.Pdftotext(t) // pdftoppm comes with it, in poppler-utils
+	toppm, err := exec.LookPath("pdftoppm")
+	if err != nil {
+		if os.Getenv(pdftest.RequireEnv) == "1" {
+			t.Fatalf("no pdftoppm (poppler-utils): %v", err)
+		}
+		t.Skipf("no pdftoppm (poppler-utils): %v", err)
+	}
+	before, err := os.ReadFile(filepath.Join("testdata", "leanml", "sheet.before.html"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	dir := t.TempDir()
+	pages := func(name string, page []byte) [][]byte {
+		htmlPath := filepath.Join(dir, name+".html")
+		pdfPath := filepath.Join(dir, name+".pdf")
+		if err := os.WriteFile(htmlPath, page, 0o644); err != nil {
+			t.Fatal(err)
+		}
+		if err := pdf.Print(context.Background(), htmlPath, pdfPath); err != nil {
+			t.Fatal(err)
+		}
+		prefix := filepath.Join(dir, name)
+		if out, err := exec.Command(toppm, "-r", "150", "-png", pdfPath, prefix).CombinedOutput(); err != nil {
+			t.Fatalf("pdftoppm: %v\n%s", err, out)
+		}
+		files, _ := filepath.Glob(prefix + "-*.png")
+		var out [][]byte
+		for _, f := range files {
+			b, err := os.ReadFile(f)
+			if err != nil {
+				t.Fatal(err)
+			}
+			out = append(out, b)
+		}
+		if len(out) == 0 {
+			t.Fatalf("pdftoppm wrote no page of %s", pdfPath)
+		}
+		return out
+	}
+	now := pages("now", leanSheet(t, "sheet"))
+	was := pages("before", before)
+	if len(now) != len(was) {
+		t.Fatalf("the sheet prints on %d pages, before on %d", len(now), len(was))
+	}
+	for i := range now {
+		if !bytes.Equal(now[i], was[i]) {
+			t.Errorf("printed page %d differs from the page the previous markup printed", i+1)
+		}
+	}
 }
