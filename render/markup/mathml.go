@@ -77,15 +77,8 @@ func NameHTML(name string) string {
 	return "<var>" + b + "<sub>" + Esc(strings.Join(parts, ",")) + "</sub></var>"
 }
 
-// numML typesets a number written by the formatter: "-" becomes a minus
-// sign and "1.2e-5" becomes 1.2×10⁻⁵.
-func numML(s string) string {
-	var b strings.Builder
-	writeNum(&b, s)
-	return b.String()
-}
-
-// writeNum writes numML(s) into b.
+// writeNum typesets into b a number written by the formatter: "-" becomes
+// a minus sign and "1.2e-5" becomes 1.2×10⁻⁵.
 func writeNum(b *strings.Builder, s string) {
 	b.WriteString("<mn>")
 	if strings.HasPrefix(s, "-") {
