@@ -556,7 +556,7 @@ func gvElement(page, attr, val string) (string, error) {
 }
 
 var (
-	gvMspaceRE = regexp.MustCompile(`<mspace[^>]*/>`)
+	gvMspaceRE = regexp.MustCompile(`<mi class="u">|<mtext class="pfsense">`)
 	gvPow10RE  = regexp.MustCompile(`<msup>\s*<mn>10</mn>\s*<mn>([^<]*)</mn>\s*</msup>`)
 	gvTagRE    = regexp.MustCompile(`<[^>]*>`)
 	gvCellRE   = regexp.MustCompile(`(?s)<mtd>(.*?)</mtd>`)
@@ -564,10 +564,11 @@ var (
 	gvSpacesRE = regexp.MustCompile(`\s+`)
 )
 
-// gvText is the plain text of a piece of MathML: spaces for <mspace>, 10^n for
+// gvText is the plain text of a piece of MathML: a space before a unit or a
+// power factor's sense (the style's, classes "u" and "pfsense"), 10^n for
 // a power of ten, tags dropped, entities decoded, U+2212 read as '-'.
 func gvText(frag string) string {
-	s := gvMspaceRE.ReplaceAllString(frag, " ")
+	s := gvMspaceRE.ReplaceAllStringFunc(frag, func(tag string) string { return " " + tag })
 	s = gvPow10RE.ReplaceAllString(s, "10^$1")
 	s = gvTagRE.ReplaceAllString(s, "")
 	s = html.UnescapeString(s)

@@ -31,7 +31,7 @@ func TestExamplesShowPowersByKind(t *testing.T) {
 	if err != nil || len(files) == 0 {
 		t.Fatalf("no examples: %v", err)
 	}
-	rowUnit := regexp.MustCompile(`<mi mathvariant="normal">([^<]*)</mi></mrow></mrow></math>`)
+	rowUnit := regexp.MustCompile(`<mi class="u">([^<]*)</mi>(?:</mrow>)?</math>`)
 	powers := 0
 	for _, f := range files {
 		src, err := os.ReadFile(f)

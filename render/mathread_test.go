@@ -129,11 +129,13 @@ func flatten(n *mlNode) ([]mlTok, error) {
 		return flattenKids(n.kids)
 	case "math", "mtd", "root":
 		return flattenKids(n.kids)
-	case "mspace":
-		return nil, nil
 	case "mi":
-		if n.attrs["mathvariant"] == "normal" {
+		if n.attrs["class"] == "u" {
+			// a unit: upright after a quarter em by its class (style.go)
 			return []mlTok{{kind: tUnit, text: n.text}}, nil
+		}
+		if len(n.attrs) != 0 {
+			return nil, fmt.Errorf("<mi> with attributes %v", n.attrs)
 		}
 		return []mlTok{{kind: tName, text: n.text}}, nil // "A_" stays "A_"
 	case "mn":

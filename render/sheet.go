@@ -45,8 +45,9 @@ type Options struct {
 // Sheet writes the HTML sheet of a document.
 func Sheet(doc *calcdoc.Document, opt Options) ([]byte, error) {
 	w := markup.NewWriter(doc)
-	// a sheet is about fifteen times its source: grow once, not by doubling
-	w.Grow(max(64<<10+20*len(doc.Source), opt.Blocks.sizeHint()))
+	// the page buffer is grown once: from the source (pageSize), or from
+	// the last sheet of this document when the preview keeps one
+	w.Grow(max(pageSize(doc), opt.Blocks.sizeHint()))
 	w.WriteString("<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n")
 	w.Printf("<meta name=\"generator\" content=\"calcdoc %s\">\n", esc(opt.Version))
 	w.Printf("<title>%s</title>\n", esc(HeadTitle(doc)))
@@ -65,6 +66,34 @@ func Sheet(doc *calcdoc.Document, opt Options) ([]byte, error) {
 	return w.Bytes(), nil
 }
 
+// pageSize is the size the page buffer is given once, before anything is
+// written, from the document's source, so that writing the page never grows
+// it again (each growth copies the page written so far). The rule: 24 KiB
+// for the parts every sheet has (stylesheet, title block, summary, stamp,
+// caution: 16 to 20 KiB on the examples) and 17 bytes a byte of source. A
+// source of statements gives the most sheet a byte: 16.4 on the
+// 2,000-statement sheet of cmd/calcbench with its source embedded (a
+// statement of about 46 source bytes becomes about 760 bytes of rows);
+// the examples, with their prose, give 1.5 to 14. A kind that makes more
+// of a byte of its block says how much (markup.PageBytes: a network, 32).
+// Only what a few source bytes can make large (a sweep of many points,
+// the matrices of a large equation set in the appendix) outgrows it, and
+// the buffer then grows as it must.
+func pageSize(doc *calcdoc.Document) int {
+	const fixed, perByte = 24 << 10, 17
+	size := fixed + perByte*len(doc.Source)
+	for _, b := range doc.Blocks {
+		if k, ok := b.KindOf().(markup.PageBytes); ok {
+			n := 0
+			for _, l := range b.Lines {
+				n += len(l) + 1
+			}
+			size += (k.PageBytesPerSourceByte() - perByte) * n
+		}
+	}
+	return size
+}
+
 // Body writes what a sheet holds in its <body>: the marker of a sheet not
 // fit for issue, the title block, the summary, the body, the appendix, the
 // stamp, the caution and the embedded source. A page that holds several
@@ -72,7 +101,7 @@ func Sheet(doc *calcdoc.Document, opt Options) ([]byte, error) {
 // does.
 func Body(doc *calcdoc.Document, opt Options) ([]byte, error) {
 	w := markup.NewWriter(doc)
-	w.Grow(32<<10 + 20*len(doc.Source))
+	w.Grow(pageSize(doc))
 	if err := body(w, doc, opt); err != nil {
 		return nil, err
 	}

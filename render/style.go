@@ -9,6 +9,8 @@ html { background: #f4f4f0; }
 body { font: 10pt/1.35 "DejaVu Sans", "Liberation Sans", Arial, sans-serif; color: #111; background: #fff;
   max-width: 200mm; margin: 6mm auto; padding: 8mm 10mm; border: var(--thin); }
 math { font-size: 1.05em; }
+mi.u { text-transform: none; padding-left: 0.25em; }
+mtext.pfsense { padding-left: 0.3em; }
 .math math { math-style: normal; }
 h1, h2, h3, h4 { font-weight: bold; margin: 1.1em 0 0.4em; break-after: avoid; }
 h1 { font-size: 13pt; border-bottom: var(--rule); padding-bottom: 2pt; }

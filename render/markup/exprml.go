@@ -34,10 +34,13 @@ type valueKey struct {
 	digits int
 }
 
-// shownValue is a value's MathML, without brackets, and its level.
+// shownValue is a value's MathML, without brackets, and its level; bare:
+// it may stand among an mrow's children without an <mrow> of its own
+// (group); one: it is one element.
 type shownValue struct {
-	ml string
-	f  form
+	ml        string
+	f         form
+	bare, one bool
 }
 
 // The typesetting levels, loosest first: the operators of LANGUAGE.md
@@ -93,10 +96,11 @@ func (m *ExprML) value(v expr.Value, d *expr.Display) shownValue {
 	switch x := v.(type) {
 	case *expr.Scalar:
 		sh := expr.FormatScalar(x, d, m.Digits)
-		s = shownValue{shownML(sh), shownForm(sh)}
+		s = shownValue{ml: shownML(sh), f: shownForm(sh)}
 	default:
-		s = shownValue{ValueML(v, d, m.Digits, false), form{lv: lvAtom, after: lvAtom}}
+		s = shownValue{ml: ValueML(v, d, m.Digits, false), f: form{lv: lvAtom, after: lvAtom}}
 	}
+	s.bare, s.one = bare(s.ml), single(s.ml)
 	if m.cache != nil {
 		m.cache[k] = s
 	}
@@ -109,6 +113,9 @@ func (m *ExprML) valueML(v expr.Value, d *expr.Display, paren bool) string {
 	s := m.value(v, d)
 	if paren && (s.f.lv < lvPostfix || s.f.signed) {
 		return "<mrow><mo>(</mo>" + s.ml + "<mo>)</mo></mrow>"
+	}
+	if s.bare {
+		return s.ml
 	}
 	return "<mrow>" + s.ml + "</mrow>"
 }
@@ -264,8 +271,9 @@ func rightNeed(op expr.Kind) int {
 	return lvPow
 }
 
-// operand writes n where a form of level need stands, bracketed when its
-// own form is looser, or when it starts with a sign and noSign is set.
+// operand writes n where a form of level need stands among an mrow's
+// children, bracketed when its own form is looser, or when it starts with
+// a sign and noSign is set.
 func (m *ExprML) operand(b StringWriter, n expr.Node, need int, noSign bool) {
 	f := m.form(n)
 	if f.lv < need || noSign && m.leadSign(n) {
@@ -275,6 +283,48 @@ func (m *ExprML) operand(b StringWriter, n expr.Node, need int, noSign bool) {
 		return
 	}
 	m.write(b, n)
+}
+
+// operandOne is operand where MathML takes exactly one element (the base
+// of a <msup>): what write puts as several is grouped in an <mrow>.
+func (m *ExprML) operandOne(b StringWriter, n expr.Node, need int, noSign bool) {
+	f := m.form(n)
+	if f.lv < need || noSign && m.leadSign(n) {
+		m.operand(b, n, need, noSign)
+		return
+	}
+	m.one(b, n)
+}
+
+// one writes n as exactly one element: in an <mrow> when write puts it as
+// several (the slots of <mfrac> and <msup>).
+func (m *ExprML) one(b StringWriter, n expr.Node) {
+	if !m.several(n) {
+		m.write(b, n)
+		return
+	}
+	b.WriteString("<mrow>")
+	m.write(b, n)
+	b.WriteString("</mrow>")
+}
+
+// several reports whether write puts n as more than one element.
+func (m *ExprML) several(n expr.Node) bool {
+	n = expr.Unparen(n)
+	if s, ok := m.substituted(n); ok {
+		return s.bare && !s.one
+	}
+	switch n := n.(type) {
+	case *expr.Number:
+		return n.Imag || strings.ContainsAny(n.Text, "eE")
+	case *expr.WithUnit:
+		return n.Unit.Text != "°"
+	case *expr.Binary:
+		return n.Op != expr.DIV && n.Op != expr.POW
+	case *expr.Compare:
+		return len(n.X) > 1
+	}
+	return false
 }
 
 // signedOperand writes the right operand of ∠, which may carry one sign
@@ -342,6 +392,10 @@ func unitAfterAngleUnit(n expr.Node) bool {
 func (m *ExprML) write(b StringWriter, n expr.Node) {
 	n = expr.Unparen(n)
 	if s, ok := m.substituted(n); ok {
+		if s.bare {
+			b.WriteString(s.ml)
+			return
+		}
 		b.WriteString("<mrow>")
 		b.WriteString(s.ml)
 		b.WriteString("</mrow>")
@@ -350,12 +404,11 @@ func (m *ExprML) write(b StringWriter, n expr.Node) {
 	switch n := n.(type) {
 	case *expr.Number:
 		if n.Imag {
-			b.WriteString("<mrow><mi>j</mi>")
-			b.WriteString(numLiteral(strings.TrimPrefix(n.Text, "j")))
-			b.WriteString("</mrow>")
+			b.WriteString("<mi>j</mi>")
+			writeNumLiteral(b, strings.TrimPrefix(n.Text, "j"))
 			return
 		}
-		b.WriteString(numLiteral(n.Text))
+		writeNumLiteral(b, n.Text)
 	case *expr.Ident:
 		if n.Name == "pi" {
 			b.WriteString("<mi>π</mi>")
@@ -367,14 +420,22 @@ func (m *ExprML) write(b StringWriter, n expr.Node) {
 		}
 		b.WriteString(NameML(n.Name))
 	case *expr.WithUnit:
-		b.WriteString("<mrow>")
+		// a unit stands after its number with no mrow around the two
+		// (a value with a unit starts and ends with no operator); the
+		// degree mark, an operator, keeps it
+		deg := n.Unit.Text == "°"
+		if deg {
+			b.WriteString("<mrow>")
+		}
 		if a, ok := liftedAngle(n); ok {
 			m.write(b, a)
 		} else {
 			m.operand(b, n.X, lvPow, true)
 		}
 		b.WriteString(UnitML(n.Unit.Text))
-		b.WriteString("</mrow>")
+		if deg {
+			b.WriteString("</mrow>")
+		}
 	case *expr.Unary:
 		if n.Op == expr.ADD {
 			b.WriteString("<mrow><mo>+</mo>")
@@ -390,21 +451,22 @@ func (m *ExprML) write(b StringWriter, n expr.Node) {
 	case *expr.Binary:
 		switch n.Op {
 		case expr.DIV:
-			b.WriteString("<mfrac><mrow>")
-			m.write(b, n.X)
-			b.WriteString("</mrow><mrow>")
-			m.write(b, n.Y)
-			b.WriteString("</mrow></mfrac>")
+			b.WriteString("<mfrac>")
+			m.one(b, n.X)
+			m.one(b, n.Y)
+			b.WriteString("</mfrac>")
 			return
 		case expr.POW:
 			b.WriteString("<msup>")
-			m.operand(b, n.X, lvAtom, true)
-			b.WriteString("<mrow>")
-			m.write(b, n.Y)
-			b.WriteString("</mrow></msup>")
+			m.operandOne(b, n.X, lvAtom, true)
+			m.one(b, n.Y)
+			b.WriteString("</msup>")
 			return
 		}
-		b.WriteString("<mrow>")
+		// an operation's operands and operator stand among the children
+		// of the mrow around it (no mrow of its own: no operand starts or
+		// ends with a bare operator, so the operator stays infix, and
+		// none of + − · ∥ ∠ stretches)
 		m.operand(b, n.X, m.leftNeed(n.Op), false)
 		b.WriteString("<mo>")
 		b.WriteString(OpML[n.Op])
@@ -414,7 +476,6 @@ func (m *ExprML) write(b StringWriter, n expr.Node) {
 		} else {
 			m.operand(b, n.Y, rightNeed(n.Op), true)
 		}
-		b.WriteString("</mrow>")
 	case *expr.Call:
 		m.call(b, n)
 	case *expr.MatrixLit:
@@ -441,7 +502,6 @@ func (m *ExprML) write(b StringWriter, n expr.Node) {
 		}
 		b.WriteString("<mo>}</mo></mrow>")
 	case *expr.Compare:
-		b.WriteString("<mrow>")
 		for i, x := range n.X {
 			if i > 0 {
 				b.WriteString("<mo>")
@@ -450,7 +510,6 @@ func (m *ExprML) write(b StringWriter, n expr.Node) {
 			}
 			m.write(b, x)
 		}
-		b.WriteString("</mrow>")
 	default:
 		b.WriteString("<merror><mtext>?</mtext></merror>")
 	}
@@ -467,53 +526,115 @@ func (m *ExprML) Splits(n expr.Node) bool {
 	return ok && (bin.Op == expr.ADD || bin.Op == expr.SUB || bin.Op == expr.MUL)
 }
 
-// WritePieces typesets n into b as the pieces a long row may break
-// between: its top-level terms, each after its + or −, and within each
-// term its factors, each after its ·. Between two pieces it calls cut,
-// with newTerm set before a + or −. Joined, the pieces are n's MathML.
-func (m *ExprML) WritePieces(b StringWriter, n expr.Node, cut func(newTerm bool)) {
-	// factors of a term that stands unbracketed at level need
-	var factors func(n expr.Node, need int, noSign bool)
-	factors = func(n expr.Node, need int, noSign bool) {
-		f := m.form(n)
-		bin, isBin := expr.Unparen(n).(*expr.Binary)
-		_, subst := m.substituted(expr.Unparen(n))
-		if f.lv < need || !isBin || subst || bin.Op != expr.MUL || noSign && m.leadSign(n) {
-			m.operand(b, n, need, noSign)
-			return
-		}
-		factors(bin.X, lvMul, false)
-		cut(false)
-		b.WriteString("<mo form=\"infix\">·</mo>")
-		m.operand(b, bin.Y, lvUnary, true)
+// A Cut is what follows a cut between two pieces of a row (WritePieces,
+// Writer.StartPieces).
+type Cut int
+
+const (
+	// Factor: the next factor of the term, after its ·
+	Factor Cut = iota
+	// Term: a term, after its + or − (or a side after its = or ≤), that
+	// may break into more pieces: it gets a box of its own
+	Term
+	// WholeTerm: a term of one piece, which needs no box (one <math>
+	// breaks as a whole)
+	WholeTerm
+)
+
+// WritePieces typesets n into the row p as the pieces a long row may
+// break between: its top-level terms, each after its + or −, and within
+// each term its factors, each after its ·. Between two pieces it calls
+// p.Cut with what follows. Joined, the pieces are n's MathML.
+func (m *ExprML) WritePieces(p *Pieces, n expr.Node) {
+	pc := piecer{m: m, b: p.w, row: p}
+	pc.terms(n)
+}
+
+// piecer writes the pieces of one formula (WritePieces).
+type piecer struct {
+	m   *ExprML
+	b   *Writer
+	row *Pieces
+}
+
+func (p *piecer) cut(c Cut) { p.row.Cut(c) }
+
+// terms writes n's top-level terms, each after its + or −.
+func (p *piecer) terms(n expr.Node) {
+	m := p.m
+	bin, isBin := expr.Unparen(n).(*expr.Binary)
+	_, subst := m.substituted(expr.Unparen(n))
+	if !isBin || subst || bin.Op != expr.ADD && bin.Op != expr.SUB {
+		p.factors(n, lvAdd, false)
+		return
 	}
-	var terms func(n expr.Node)
-	terms = func(n expr.Node) {
-		bin, isBin := expr.Unparen(n).(*expr.Binary)
-		_, subst := m.substituted(expr.Unparen(n))
-		if !isBin || subst || bin.Op != expr.ADD && bin.Op != expr.SUB {
-			factors(n, lvAdd, false)
-			return
-		}
-		terms(bin.X)
-		cut(true)
-		b.WriteString("<mo form=\"infix\">")
-		b.WriteString(OpML[bin.Op])
-		b.WriteString("</mo>")
-		factors(bin.Y, lvPar, true)
+	p.terms(bin.X)
+	if m.splitsFactors(bin.Y, lvPar, true) {
+		p.cut(Term)
+	} else {
+		p.cut(WholeTerm)
 	}
-	terms(n)
+	// + and − have a prefix form too, which the first child of a <math>
+	// would take
+	p.b.WriteString("<mo form=\"infix\">")
+	p.b.WriteString(OpML[bin.Op])
+	p.b.WriteString("</mo>")
+	p.factors(bin.Y, lvPar, true)
+}
+
+// factors writes the factors of a term that stands unbracketed at level
+// need, each after its ·.
+func (p *piecer) factors(n expr.Node, need int, noSign bool) {
+	m := p.m
+	if !m.splitsFactors(n, need, noSign) {
+		m.operand(p.b, n, need, noSign)
+		return
+	}
+	bin := expr.Unparen(n).(*expr.Binary)
+	p.factors(bin.X, lvMul, false)
+	p.cut(Factor)
+	// "·" is an infix operator only (MathML Core's operator dictionary):
+	// first in its <math> it needs no form="infix"
+	p.b.WriteString("<mo>·</mo>")
+	m.operand(p.b, bin.Y, lvUnary, true)
+}
+
+// splitsFactors reports whether WritePieces writes n, a term standing at
+// level need, as its factors in pieces.
+func (m *ExprML) splitsFactors(n expr.Node, need int, noSign bool) bool {
+	bin, isBin := expr.Unparen(n).(*expr.Binary)
+	if !isBin || bin.Op != expr.MUL {
+		return false
+	}
+	if _, subst := m.substituted(expr.Unparen(n)); subst {
+		return false
+	}
+	return m.form(n).lv >= need && !(noSign && m.leadSign(n))
 }
 
 func IsConstant(name string) bool { return name == "pi" || name == "π" || name == "j" }
 
-func numLiteral(text string) string {
-	if m, e, ok := strings.Cut(strings.ToLower(text), "e"); ok {
-		e = strings.TrimPrefix(e, "+")
-		e = strings.Replace(e, "-", "−", 1)
-		return "<mrow><mn>" + Esc(m) + "</mn><mo>×</mo><msup><mn>10</mn><mn>" + Esc(e) + "</mn></msup></mrow>"
+// writeNumLiteral writes a number as the source writes it, 1.2e-5 as
+// 1.2×10⁻⁵.
+func writeNumLiteral(b StringWriter, text string) {
+	b.WriteString("<mn>")
+	m, e, ok := strings.Cut(text, "e")
+	if !ok {
+		m, e, ok = strings.Cut(text, "E")
 	}
-	return "<mn>" + Esc(text) + "</mn>"
+	b.WriteString(Esc(m))
+	b.WriteString("</mn>")
+	if !ok {
+		return
+	}
+	e = strings.TrimPrefix(e, "+")
+	b.WriteString("<mo>×</mo><msup><mn>10</mn><mn>")
+	if rest, neg := strings.CutPrefix(e, "-"); neg {
+		b.WriteString("−")
+		e = rest
+	}
+	b.WriteString(Esc(e))
+	b.WriteString("</mn></msup>")
 }
 
 func (m *ExprML) call(b StringWriter, n *expr.Call) {
@@ -527,7 +648,7 @@ func (m *ExprML) call(b StringWriter, n *expr.Call) {
 		case "conj", "transpose":
 			// a postfix mark: the conjugate star, the transpose T
 			b.WriteString("<msup>")
-			m.operand(b, n.Args[0], lvAtom, true)
+			m.operandOne(b, n.Args[0], lvAtom, true)
 			if n.Fun.Name == "conj" {
 				b.WriteString("<mo>*</mo></msup>")
 			} else {

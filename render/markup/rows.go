@@ -40,9 +40,9 @@ func (w *Writer) MathDiv(class, attrs string, body func()) {
 	w.WriteString(class)
 	w.WriteString("\"")
 	w.WriteString(attrs)
-	w.WriteString("><math display=\"inline\"><mrow>")
+	w.WriteString("><math>")
 	body()
-	w.WriteString("</mrow></math></div>")
+	w.WriteString("</math></div>")
 }
 
 // mathRow writes a formula or substitution row: prefix (the "name =")
@@ -57,70 +57,119 @@ func (w *Writer) MathRow(class, prefix string, m *ExprML, x expr.Node) {
 
 // mathRowTail is mathRow with HTML written after the formula (a tag).
 func (w *Writer) MathRowTail(class, prefix string, m *ExprML, x expr.Node, tail string) {
+	w.mathRow(class, m, x, tail, func() { w.WriteString(prefix) })
+}
+
+// mathRow is MathRowTail with the prefix written by prefix.
+func (w *Writer) mathRow(class string, m *ExprML, x expr.Node, tail string, prefix func()) {
 	if !m.Splits(x) {
-		w.WriteString("<div class=\"" + class + "\"><math display=\"inline\"><mrow>")
-		w.WriteString(prefix)
+		w.WriteString("<div class=\"")
+		w.WriteString(class)
+		w.WriteString("\"><math>")
+		prefix()
 		m.WriteNode(w, x, false)
-		w.WriteString("</mrow></math>" + tail + "</div>")
+		w.WriteString("</math>")
+		w.WriteString(tail)
+		w.WriteString("</div>")
 		return
 	}
-	cut, end := w.StartPieces(class, "")
-	w.WriteString(prefix)
-	m.WritePieces(w, x, cut)
-	end(tail)
+	p := w.StartPieces(class, "")
+	prefix()
+	m.WritePieces(p, x)
+	p.End(tail)
 }
 
 // checkRow writes a check's formula: the chain's sides, each in its
 // pieces, a side after its comparison.
 func (w *Writer) CheckRow(m *ExprML, c *expr.Compare) {
-	cut, end := w.StartPieces("f", "<span class=\"kindtag\">check</span> ")
+	p := w.StartPieces("f", "<span class=\"kindtag\">check</span> ")
 	for i, x := range c.X {
 		if i > 0 {
-			cut(true)
-			w.WriteString("<mo>" + OpML[c.Ops[i-1]] + "</mo>")
+			p.Cut(Term)
+			w.WriteString("<mo>")
+			w.WriteString(OpML[c.Ops[i-1]])
+			w.WriteString("</mo>")
 		}
-		m.WritePieces(w, x, cut)
+		m.WritePieces(p, x)
 	}
-	end("")
+	p.End("")
 }
 
-// startPieces opens a row written in pieces: one <math> per piece in the
+// StartPieces opens a row written in pieces: one <math> per piece in the
 // wrapping container (class "brk"), the first term's factors in the row
-// itself and each later term in a box of its own, so that a line breaks
-// before a + or − and, inside a term, before a · only when the term is
-// longer than a line (style.go). It returns the cut between pieces and the
-// end of the row (with HTML after the formula).
-func (w *Writer) StartPieces(class, head string) (cut func(newTerm bool), end func(tail string)) {
+// itself and each later term of several pieces in a box of its own, so
+// that a line breaks before a + or − and, inside a term, before a · only
+// when the term is longer than a line (style.go); a term of one piece is
+// one <math>, which breaks as a whole without a box. Pieces.Cut ends a
+// piece and starts the next, Pieces.End ends the row. A writer has one
+// row in pieces at a time: StartPieces reuses it.
+func (w *Writer) StartPieces(class, head string) *Pieces {
 	w.WriteString("<div class=\"")
 	w.WriteString(class)
 	w.WriteString(" brk\">")
 	w.WriteString(head)
-	w.WriteString("<math display=\"inline\"><mrow>")
-	inTerm := false
-	cut = func(newTerm bool) {
-		w.WriteString("</mrow></math>")
-		if newTerm {
-			if inTerm {
-				w.WriteString("</span>")
-			}
-			w.WriteString("<span class=\"t\">")
-			inTerm = true
-		}
-		w.WriteString("<math display=\"inline\"><mrow>")
-	}
-	end = func(tail string) {
-		w.WriteString("</mrow></math>")
-		if inTerm {
+	w.WriteString("<math>")
+	w.pieces = Pieces{w: w}
+	return &w.pieces
+}
+
+// Pieces is a row being written in pieces (Writer.StartPieces).
+type Pieces struct {
+	w      *Writer
+	inTerm bool
+}
+
+// Cut ends a piece and starts the next, with what follows it.
+func (p *Pieces) Cut(c Cut) {
+	w := p.w
+	w.WriteString("</math>")
+	if c != Factor {
+		if p.inTerm {
 			w.WriteString("</span>")
 		}
-		w.WriteString(tail)
-		w.WriteString("</div>")
+		p.inTerm = c == Term
+		if p.inTerm {
+			w.WriteString("<span class=\"t\">")
+		}
 	}
-	return cut, end
+	w.WriteString("<math>")
+}
+
+// End ends the last piece and the row, with HTML after the formula.
+func (p *Pieces) End(tail string) {
+	w := p.w
+	w.WriteString("</math>")
+	if p.inTerm {
+		w.WriteString("</span>")
+	}
+	w.WriteString(tail)
+	w.WriteString("</div>")
 }
 
 func resultAttrs(name string, line int) string {
 	return " data-value=\"" + Esc(name) + "\" data-line=\"" + strconv.Itoa(line) + "\""
+}
+
+// resultOpen opens a result row: <div class="r" data-value=NAME
+// data-line=LINE>.
+func (w *Writer) resultOpen(name string, line int) {
+	w.WriteString("<div class=\"r\" data-value=\"")
+	w.WriteString(Esc(name))
+	w.WriteString("\" data-line=\"")
+	w.WriteInt(line)
+	w.WriteString("\">")
+}
+
+// writeValue writes m.valueML(v, d, false) straight into the page.
+func (w *Writer) writeValue(m *ExprML, v expr.Value, d *expr.Display) {
+	sv := m.value(v, d)
+	if sv.bare {
+		w.WriteString(sv.ml)
+		return
+	}
+	w.WriteString("<mrow>")
+	w.WriteString(sv.ml)
+	w.WriteString("</mrow>")
 }
 
 // hasNames reports whether an expression uses any name other than a
@@ -154,19 +203,27 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 	if wideRow(res) {
 		class = "row wide" // matrices: the description goes below the working
 	}
-	ls := strconv.Itoa(line)
-	w.WriteString("<div class=\"" + class + "\" id=\"L" + ls + "\"><div class=\"ln\">" + ls + "</div><div class=\"math\">")
+	w.WriteString("<div class=\"")
+	w.WriteString(class)
+	w.WriteString("\" id=\"L")
+	w.WriteInt(line)
+	w.WriteString("\"><div class=\"ln\">")
+	w.WriteInt(line)
+	w.WriteString("</div><div class=\"math\">")
 	ok := len(st.Errs) == 0 && st.Unavailable == nil
 	f := w.ExprMLFor(false, nil)
 	s := w.ExprMLFor(true, res.Trace)
 	switch x := st.Stmt.(type) {
 	case *expr.Assign:
-		var lhs []string
-		for _, id := range x.Names {
-			lhs = append(lhs, NameML(id.Name))
-		}
-		l := strings.Join(lhs, "<mo>,</mo>")
-		w.MathRow("f", l+"<mo>=</mo>", f, x.X)
+		w.mathRow("f", f, x.X, "", func() {
+			for i, id := range x.Names {
+				if i > 0 {
+					w.WriteString("<mo>,</mo>")
+				}
+				w.WriteString(NameML(id.Name))
+			}
+			w.WriteString("<mo>=</mo>")
+		})
 		if ok && res.Value != nil {
 			if hasNames(x.X) {
 				w.MathRow("s", "<mo>=</mo>", s, x.X)
@@ -187,11 +244,11 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 				if res.Cases != nil {
 					w.caseResults(x.Names[0].Name, line, res.Cases, disp)
 				} else {
-					w.MathDiv("r", resultAttrs(x.Names[0].Name, line), func() {
-						w.WriteString("<mo>=</mo>")
-						w.WriteString(s.valueML(res.Value, disp, false))
-						w.WriteString(SenseML(res.Value))
-					})
+					w.resultOpen(x.Names[0].Name, line)
+					w.WriteString("<math><mo>=</mo>")
+					w.writeValue(s, res.Value, disp)
+					w.WriteString(SenseML(res.Value))
+					w.WriteString("</math></div>")
 				}
 				w.governingNote(res.Trace)
 				w.KindNote(res.Value)
@@ -215,33 +272,40 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 			c := res.Check
 			disp := checkDisplay(w, x.Cmp)
 			dg := CheckRowDigits(c.Values, x.Cmp.Ops, disp, w.Digits())
-			var parts []string
+			w.WriteString("<div class=\"s\" data-check=\"")
+			w.WriteInt(line)
+			w.WriteString("\"><math>")
 			for i, v := range c.Values {
 				if i > 0 {
-					parts = append(parts, "<mo>"+OpML[x.Cmp.Ops[i-1]]+"</mo>")
+					w.WriteString("<mo>")
+					w.WriteString(OpML[x.Cmp.Ops[i-1]])
+					w.WriteString("</mo>")
 				}
 				if dg != w.Digits() {
-					parts = append(parts, ValueML(v, disp, dg, false))
-					continue
+					w.WriteString(ValueML(v, disp, dg, false))
+				} else {
+					w.writeValue(s, v, disp)
 				}
-				parts = append(parts, s.valueML(v, disp, false))
+				w.WriteString(SenseML(v)) // as WithSense
 			}
-			parts = WithSense(parts, c.Values)
-			verdict := "<span class=\"verdict pass\">satisfied</span>"
-			if !c.Pass {
-				verdict = "<span class=\"verdict fail\">NOT SATISFIED</span>"
+			w.WriteString("</math>")
+			if c.Pass {
+				w.WriteString("<span class=\"verdict pass\">satisfied</span>")
+			} else {
+				w.WriteString("<span class=\"verdict fail\">NOT SATISFIED</span>")
 			}
-			util := ""
 			if c.HasUtil {
-				util = "<span class=\"util\">utilisation " + Esc(percent(c.Utilisation)) + " of the limit</span>"
+				w.WriteString("<span class=\"util\">utilisation ")
+				w.writePercent(c.Utilisation)
+				w.WriteString(" of the limit</span>")
 			}
-			tol := ""
 			for _, op := range x.Cmp.Ops {
 				if op == expr.EQ || op == expr.NE {
-					tol = " <span class=\"tol\">(equal within a relative tolerance of 1e-9)</span>"
+					w.WriteString(" <span class=\"tol\">(equal within a relative tolerance of 1e-9)</span>")
+					break
 				}
 			}
-			w.Printf("<div class=\"s\" data-check=\"%d\">%s%s%s%s</div>", line, Math(strings.Join(parts, "")), verdict, util, tol)
+			w.WriteString("</div>")
 		}
 	case *expr.ExprStmt:
 		w.MathRow("f", "", f, x.X)
@@ -252,7 +316,11 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 			if res.Cases != nil {
 				w.caseResults("", line, res.Cases, res.Display)
 			} else {
-				w.Printf("<div class=\"r\" data-value=\"\" data-line=\"%d\">%s</div>", line, Math("<mo>=</mo>"+ValueML(res.Value, res.Display, w.Digits(), false)+SenseML(res.Value)))
+				w.resultOpen("", line)
+				w.WriteString("<math><mo>=</mo>")
+				w.WriteString(ValueML(res.Value, res.Display, w.Digits(), false))
+				w.WriteString(SenseML(res.Value))
+				w.WriteString("</math></div>")
 			}
 			w.governingNote(res.Trace)
 			w.KindNote(res.Value)
@@ -293,6 +361,16 @@ func percent(u float64) string {
 	return sh.A + " %"
 }
 
+// writePercent writes Esc(percent(u)) with no string made for it.
+func (w *Writer) writePercent(u float64) {
+	if u < 0.001 {
+		w.WriteString("below 0.1 %")
+		return
+	}
+	w.WriteString(Esc(expr.FormatScalar(expr.Real(u*100), nil, 3).A))
+	w.WriteString(" %")
+}
+
 // wideRow reports whether a statement's working holds a matrix, which
 // needs the full width of the page.
 func wideRow(res *expr.Result) bool {
@@ -313,20 +391,36 @@ func wideRow(res *expr.Result) bool {
 // checkDisplay is the unit both sides of a check are shown in: that of the
 // first side written as a literal with a unit ("3 %", "6 kA"), else that of
 // the first bare name with a display of its own; nil for the defaults.
+//
+// The display of a unit is made once a sheet, so that the sheet's cache of
+// typeset values (keyed by the display) serves every check in that unit.
 func checkDisplay(w *Writer, c *expr.Compare) *expr.Display {
 	for _, x := range c.X {
 		if u := expr.LiteralUnit(x); u != nil {
-			return &expr.Display{Text: u.Text, Unit: u}
+			return w.unitDisplay(u)
 		}
 	}
 	for _, x := range c.X {
 		if id, ok := x.(*expr.Ident); ok {
 			if b := w.Doc.Env.Lookup(id.Name); b != nil && b.Display != nil && b.Display.Unit != nil {
-				return &expr.Display{Text: b.Display.Unit.Text, Unit: b.Display.Unit}
+				return w.unitDisplay(b.Display.Unit)
 			}
 		}
 	}
 	return nil
+}
+
+// unitDisplay is the display in unit u, one for each unit a sheet.
+func (w *Writer) unitDisplay(u *expr.Unit) *expr.Display {
+	if d, ok := w.displays[u]; ok {
+		return d
+	}
+	d := &expr.Display{Text: u.Text, Unit: u}
+	if w.displays == nil {
+		w.displays = map[*expr.Unit]*expr.Display{}
+	}
+	w.displays[u] = d
+	return d
 }
 
 // kindNote writes the words "kind not stated" under the result of a real

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"fmt"
 	"io"
+	"strconv"
 
 	"calcdoc/calcdoc"
 	"calcdoc/expr"
@@ -24,6 +25,18 @@ type Writer struct {
 	values   map[valueKey]shownValue
 	// typesetters are the formula and substitution typesetters of calc rows
 	typesetters [2]*ExprML
+	// num holds the digits of a number being written (WriteInt)
+	num [20]byte
+	// pieces is the row being written in pieces (StartPieces)
+	pieces Pieces
+	// displays are the displays of the units checks are shown in
+	// (checkDisplay)
+	displays map[*expr.Unit]*expr.Display
+}
+
+// WriteInt writes n in decimal, with no string made for it.
+func (w *Writer) WriteInt(n int) {
+	w.Write(strconv.AppendInt(w.num[:0], int64(n), 10))
 }
 
 // Digits is the number of significant figures of the document.

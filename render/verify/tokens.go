@@ -105,7 +105,9 @@ func find(els []*element, ok func(*element) bool) *element {
 
 // plainText is the text of an HTML fragment, read with the tokenizer: tags
 // removed, entities undone, a space where MathML or HTML separates things
-// (mspace, table cells, spans, divisions), rows of a matrix separated by
+// (a unit or a power factor's sense, which the sheet's style spaces from
+// its number: <mi class="u">, <mtext class="pfsense">; table cells,
+// spans, divisions), rows of a matrix separated by
 // "; ", whitespace collapsed.
 func plainText(frag []byte) string {
 	var b strings.Builder
@@ -123,10 +125,27 @@ func plainText(frag []byte) string {
 			switch n := string(name); {
 			case tt == html.EndTagToken && n == "mtr":
 				b.WriteString("; ")
-			case n == "mspace" || n == "mtd" || n == "span" || n == "div" || n == "td" || n == "th":
+			case n == "mtd" || n == "span" || n == "div" || n == "td" || n == "th":
+				b.WriteByte(' ')
+			case tt == html.StartTagToken && (n == "mi" || n == "mtext") && spacedClass(z):
 				b.WriteByte(' ')
 			}
 		}
 	}
 	return strings.TrimSpace(strings.TrimSuffix(strings.Join(strings.Fields(b.String()), " "), ";"))
+}
+
+// spacedClass reports whether the tag z has just read carries the class
+// of a unit ("u") or of a power factor's sense ("pfsense"), which the
+// sheet's style puts a space before.
+func spacedClass(z *html.Tokenizer) bool {
+	for {
+		k, v, more := z.TagAttr()
+		if string(k) == "class" && (string(v) == "u" || string(v) == "pfsense") {
+			return true
+		}
+		if !more {
+			return false
+		}
+	}
 }

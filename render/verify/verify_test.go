@@ -256,7 +256,8 @@ func TestVerifyNotASheet(t *testing.T) {
 
 func TestPlainText(t *testing.T) {
 	for _, c := range []struct{ name, in, want string }{
-		{"scalar with unit", `<math display="inline"><mrow><mo>=</mo><mrow><mn>119.3</mn><mo>∠</mo><mn>−16.26</mn><mo>°</mo><mspace width="0.25em"/><mi mathvariant="normal">A</mi></mrow></mrow></math>`, "=119.3∠−16.26° A"},
+		{"scalar with unit", `<math><mo>=</mo><mn>119.3</mn><mo>∠</mo><mn>−16.26</mn><mo>°</mo><mi class="u">A</mi></math>`, "=119.3∠−16.26° A"},
+		{"power factor with its sense", `<math><mo>=</mo><mn>0.8000</mn><mtext class="pfsense">lagging</mtext></math>`, "=0.8000 lagging"},
 		{"matrix rows", `<mtable><mtr><mtd><mn>1</mn></mtd><mtd><mn>2</mn></mtd></mtr><mtr><mtd><mn>3</mn></mtd><mtd><mn>4</mn></mtd></mtr></mtable>`, "1 2 ; 3 4"},
 		{"entities", `<span>a &lt; b &amp; c</span>`, "a < b & c"},
 		// WHATWG HTML, tokenization, "tag open state": a "<" not followed

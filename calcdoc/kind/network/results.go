@@ -172,9 +172,25 @@ func solutionRow(w *markup.Writer, b *calcdoc.Block, res *Result) {
 		}
 		name := n.VoltageName(nd.Name)
 		v := &expr.Scalar{Z: s.V[i], Dim: expr.DimVoltage}
-		w.Printf("<div class=\"r\" data-value=\"%s\" data-line=\"%d\">%s</div>", markup.Esc(name), lines[name], markup.Math(markup.NameML(name)+"<mo>=</mo>"+valueML(w, name, v)))
+		w.WriteString("<div class=\"r\"")
+		valueCell(w, name, lines[name], v)
+		w.WriteString("</div>")
 	}
 	w.WriteString("</div><div class=\"desc\">solution: the node voltages</div></div>\n")
+}
+
+// valueCell writes the rest of the start tag of a result (data-value,
+// data-line) and its value, NAME = VALUE, straight into the page.
+func valueCell(w *markup.Writer, name string, line int, v *expr.Scalar) {
+	w.WriteString(" data-value=\"")
+	w.WriteString(markup.Esc(name))
+	w.WriteString("\" data-line=\"")
+	w.WriteInt(line)
+	w.WriteString("\"><math>")
+	w.WriteString(markup.NameML(name))
+	w.WriteString("<mo>=</mo>")
+	w.WriteString(valueML(w, name, v))
+	w.WriteString("</math>")
 }
 
 // branchResults writes every branch's current and complex power.
@@ -190,13 +206,21 @@ func branchResults(w *markup.Writer, res *Result) {
 			continue
 		}
 		seen[br.Key] = true
+		w.WriteString("<tr>")
 		in, sn := n.CurrentName(br.Name), n.PowerName(br.Name)
 		iv := &expr.Scalar{Z: s.I[i], Dim: expr.DimCurrent}
 		sv := &expr.Scalar{Z: s.S[i], Dim: expr.DimPower, Kind: expr.PowerApparent}
-		w.Printf("<tr><td>%s</td><td>%s</td><td>%s</td><td>%s</td><td data-value=\"%s\" data-line=\"%d\">%s</td><td data-value=\"%s\" data-line=\"%d\">%s</td></tr>\n",
-			markup.Esc(br.Name), markup.Esc(br.From.Name), markup.Esc(br.To.Name), markup.Esc(br.Element.Word()),
-			markup.Esc(in), lines[in], markup.Math(markup.NameML(in)+"<mo>=</mo>"+valueML(w, in, iv)),
-			markup.Esc(sn), lines[sn], markup.Math(markup.NameML(sn)+"<mo>=</mo>"+valueML(w, sn, sv)))
+		// each cell straight into the page
+		for _, t := range [...]string{br.Name, br.From.Name, br.To.Name, br.Element.Word()} {
+			w.WriteString("<td>")
+			w.WriteString(markup.Esc(t))
+			w.WriteString("</td>")
+		}
+		w.WriteString("<td")
+		valueCell(w, in, lines[in], iv)
+		w.WriteString("</td><td")
+		valueCell(w, sn, lines[sn], sv)
+		w.WriteString("</td></tr>\n")
 	}
 	w.WriteString("</table></div>\n")
 	partClose(w)

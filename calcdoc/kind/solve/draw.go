@@ -79,12 +79,12 @@ func renderSolve(w *markup.Writer, b *calcdoc.Block) {
 			if f.Splits(s.LHS) || f.Splits(s.RHS) {
 				// a long equation breaks like a long formula row: before a
 				// top-level + or − of either side, and before its =
-				cut, end := w.StartPieces("f", label)
-				f.WritePieces(w, s.LHS, cut)
-				cut(true)
+				p := w.StartPieces("f", label)
+				f.WritePieces(p, s.LHS)
+				p.Cut(markup.Term)
 				w.WriteString("<mo>=</mo>")
-				f.WritePieces(w, s.RHS, cut)
-				end(tail)
+				f.WritePieces(p, s.RHS)
+				p.End(tail)
 			} else {
 				w.WriteString("<div class=\"f\">" + label)
 				w.WriteString(markup.Math(f.Node(s.LHS, false) + "<mo>=</mo>" + f.Node(s.RHS, false)))

@@ -178,7 +178,12 @@ func sweepTable(w *markup.Writer, sw *Sweep, cols []*SweepLine) {
 	varS := &expr.Scalar{Dim: sw.Dim, Angle: sw.Angle, Kind: sw.Kind, AbsTemp: sw.AbsTemp}
 	for _, i := range rows {
 		varS.Z = complex(sw.X[i], 0)
-		w.Printf("<tr><td>%d</td><td>%s</td>", i+1, markup.Math(markup.ShownML(expr.FormatScalar(varS, nil, w.Digits()), false)))
+		// each cell straight into the page
+		w.WriteString("<tr><td>")
+		w.WriteInt(i + 1)
+		w.WriteString("</td><td><math>")
+		w.WriteString(markup.ShownML(expr.FormatScalar(varS, nil, w.Digits()), false))
+		w.WriteString("</math></td>")
 		for _, l := range cols {
 			z := l.Z[i]
 			if cmplx.IsNaN(z) {
@@ -186,9 +191,16 @@ func sweepTable(w *markup.Writer, sw *Sweep, cols []*SweepLine) {
 				continue
 			}
 			s := l.At(i)
-			w.Printf("<td>%s</td>", markup.Math(markup.ShownML(expr.FormatScalar(s, l.Display, w.Digits()), false)+markup.SenseML(s)))
+			w.WriteString("<td><math>")
+			w.WriteString(markup.ShownML(expr.FormatScalar(s, l.Display, w.Digits()), false))
+			w.WriteString(markup.SenseML(s))
+			w.WriteString("</math></td>")
 		}
-		w.Printf("<td class=\"why\">%s</td></tr>\n", markup.Esc(strings.Join(uniq(why[i]), ", ")))
+		w.WriteString("<td class=\"why\">")
+		if len(why[i]) > 0 {
+			w.WriteString(markup.Esc(strings.Join(uniq(why[i]), ", ")))
+		}
+		w.WriteString("</td></tr>\n")
 	}
 	w.WriteString("</tbody>\n</table>\n")
 	w.Printf("<p class=\"sweepnote\">The table shows %d of the %d points: points spread evenly over the sweep, the first and the last, and the smallest and largest value of each line", len(rows), len(sw.X))
