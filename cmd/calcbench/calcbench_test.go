@@ -116,6 +116,8 @@ func TestGenerate(t *testing.T) {
 		{"a one-node ladder", Params{Statements: ladderStatements, Nodes: 1}},
 		{"the schedule's header alone", Params{Statements: headerStatements, Nodes: 0}},
 		{"feeders without a ladder", Params{Statements: 500, Nodes: 0}},
+		{"the meshed feeder alone", Params{Statements: meshStatements, Nodes: 500, Mesh: true}},
+		{"feeders and a small meshed feeder", Params{Statements: 300, Nodes: 10, Mesh: true}},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -193,6 +195,8 @@ func TestGenerateRefuses(t *testing.T) {
 		{"negative nodes", Params{Statements: 100, Nodes: -1}, "must be 0"},
 		{"too many nodes", Params{Statements: 100, Nodes: MaxNodes + 1}, "must be 0"},
 		{"too many statements", Params{Statements: MaxStatements + 1, Nodes: 0}, "must be 1 to"},
+		{"a meshed feeder not a multiple of 5", Params{Statements: meshStatements, Nodes: 12, Mesh: true}, "multiple of 5"},
+		{"fewer statements than the meshed feeder needs", Params{Statements: meshStatements - 1, Nodes: 10, Mesh: true}, "needs 10 statements"},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {

@@ -333,10 +333,23 @@ func (b *bench) main() error {
 	return nil
 }
 
+// pythonProbe prints Python's and NumPy's versions and, where
+// /proc/self/maps shows them (Linux), the BLAS and LAPACK libraries NumPy
+// loaded: numpy.linalg.solve's speed depends on them.
+const pythonProbe = `import sys, numpy, numpy.linalg
+libs = []
+try:
+    with open("/proc/self/maps") as f:
+        libs = sorted({l.split()[-1] for l in f if "blas" in l.lower() or "lapack" in l.lower()})
+except OSError:
+    pass
+print(sys.version.split()[0], "with NumPy", numpy.__version__, "(" + (", ".join(libs) or "BLAS not seen") + ")")
+`
+
 // pythonVersion confirms that the Python has NumPy and returns both
-// versions.
+// versions and NumPy's BLAS and LAPACK libraries.
 func (b *bench) pythonVersion() (string, error) {
-	out, stderr, err := b.capture(b.o.python, "-c", "import sys, numpy; print(sys.version.split()[0], 'with NumPy', numpy.__version__)")
+	out, stderr, err := b.capture(b.o.python, "-c", pythonProbe)
 	if err != nil {
 		return "", fmt.Errorf("the script needs Python 3 with NumPy at %s (on Debian: apt-get install python3-numpy), or give -python PATH: %v\n%s", b.o.python, err, stderr)
 	}
