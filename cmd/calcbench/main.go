@@ -440,8 +440,8 @@ func (b *bench) verify(c *config) error {
 	if c.p.Nodes > 0 {
 		names = append(names, fmt.Sprintf("V_%d", c.p.Nodes), "I_in")
 	}
-	fmt.Fprintf(b.out, "   %d statements, %d nodes: both give the same %s and %s (within %.0e relative); in SI units, e.g.\n     calcdoc: %s\n     script:  %s\n",
-		c.p.Statements, c.p.Nodes, plural(len(cd.Values), "value"), plural(len(cd.Checks), "check result"), Tolerance, pick(cd, names...), pick(py, names...))
+	fmt.Fprintf(b.out, "   %s statements, %d nodes: both give the same %s and %s (within %.0e relative); in SI units, e.g.\n     calcdoc: %s\n     script:  %s\n",
+		thousands(c.p.Statements), c.p.Nodes, plural(len(cd.Values), "value"), plural(len(cd.Checks), "check result"), Tolerance, pick(cd, names...), pick(py, names...))
 	return nil
 }
 
@@ -536,7 +536,7 @@ func plural(n int, what string) string {
 	if n == 1 {
 		return "1 " + what
 	}
-	return fmt.Sprintf("%d %ss", n, what)
+	return thousands(n) + " " + what + "s"
 }
 
 func contains(xs []int, x int) bool { return indexOf(xs, x) >= 0 }
