@@ -154,7 +154,7 @@ func (b *bench) figure4() ([]target, error) {
 		fmt.Fprintf(b.out, "   %s statements: p50 %s, p95 %s, max %s; %d change events for %d saves; load average %s at the start, %s at the end\n",
 			thousands(n), ms(p50), ms(p95), ms(pmax), r.events, len(r.lat), r.loadStart, r.loadEnd)
 		t := target{fig: "4", what: fmt.Sprintf("watch save to page p95, %s statements, edit in the last block", thousands(n)),
-			measured: fmt.Sprintf("p50 %s, p95 %s, max %s (%d saves)", ms(p50), ms(p95), ms(pmax), len(r.lat)),
+			measured: fmt.Sprintf("p50 %s, p95 %s, max %s (%d saves, %s)", ms(p50), ms(p95), ms(pmax), len(r.lat), o.watchWrite),
 			ratio:    "—", load: loadSpan(r.loadStart, r.loadEnd), command: figureCommand("4")}
 		if g, ok := watchGoals[n]; ok {
 			t.goal = fmt.Sprintf("≤ %.0f ms", g*1000)
