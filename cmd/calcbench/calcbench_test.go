@@ -110,12 +110,14 @@ func TestGenerate(t *testing.T) {
 		name string
 		p    Params
 	}{
-		{"the comparison: 2,000 statements and 60 nodes", Params{2000, 60}},
-		{"a count that ends inside a feeder's group", Params{1004, 7}},
-		{"the ladder alone", Params{ladderStatements, 300}},
-		{"a one-node ladder", Params{ladderStatements, 1}},
-		{"the schedule's header alone", Params{headerStatements, 0}},
-		{"feeders without a ladder", Params{500, 0}},
+		{"the comparison: 2,000 statements and 60 nodes", Params{Statements: 2000, Nodes: 60}},
+		{"a count that ends inside a feeder's group", Params{Statements: 1004, Nodes: 7}},
+		{"the ladder alone", Params{Statements: ladderStatements, Nodes: 300}},
+		{"a one-node ladder", Params{Statements: ladderStatements, Nodes: 1}},
+		{"the schedule's header alone", Params{Statements: headerStatements, Nodes: 0}},
+		{"feeders without a ladder", Params{Statements: 500, Nodes: 0}},
+		{"the meshed feeder alone", Params{Statements: meshStatements, Nodes: 500, Mesh: true}},
+		{"feeders and a small meshed feeder", Params{Statements: 300, Nodes: 10, Mesh: true}},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -187,12 +189,14 @@ func TestGenerateRefuses(t *testing.T) {
 		p    Params
 		want string
 	}{
-		{"no statements", Params{0, 0}, "must be 1 to"},
-		{"fewer statements than the ladder needs", Params{ladderStatements - 1, 60}, "needs 8 statements"},
-		{"a schedule shorter than its header", Params{ladderStatements + 2, 60}, "at least 3"},
-		{"negative nodes", Params{100, -1}, "must be 0"},
-		{"too many nodes", Params{100, MaxNodes + 1}, "must be 0"},
-		{"too many statements", Params{MaxStatements + 1, 0}, "must be 1 to"},
+		{"no statements", Params{Statements: 0, Nodes: 0}, "must be 1 to"},
+		{"fewer statements than the ladder needs", Params{Statements: ladderStatements - 1, Nodes: 60}, "needs 8 statements"},
+		{"a schedule shorter than its header", Params{Statements: ladderStatements + 2, Nodes: 60}, "at least 3"},
+		{"negative nodes", Params{Statements: 100, Nodes: -1}, "must be 0"},
+		{"too many nodes", Params{Statements: 100, Nodes: MaxNodes + 1}, "must be 0"},
+		{"too many statements", Params{Statements: MaxStatements + 1, Nodes: 0}, "must be 1 to"},
+		{"a meshed feeder not a multiple of 5", Params{Statements: meshStatements, Nodes: 12, Mesh: true}, "multiple of 5"},
+		{"fewer statements than the meshed feeder needs", Params{Statements: meshStatements - 1, Nodes: 10, Mesh: true}, "needs 10 statements"},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -231,7 +235,7 @@ func near(t *testing.T, name string, got, want complex128) {
 // evaluated with Go's math/cmplx; a∥b = ab/(a+b) and S = V·conj(I) are
 // common practice.
 func TestFeederArithmetic(t *testing.T) {
-	doc, _, err := Generate(Params{600, 0})
+	doc, _, err := Generate(Params{Statements: 600, Nodes: 0})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -265,7 +269,7 @@ func TestFeederArithmetic(t *testing.T) {
 func TestLadder(t *testing.T) {
 	for _, n := range []int{1, 2, 60, 300} {
 		t.Run(fmt.Sprintf("%d nodes", n), func(t *testing.T) {
-			doc, _, err := Generate(Params{ladderStatements, n})
+			doc, _, err := Generate(Params{Statements: ladderStatements, Nodes: n})
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -413,12 +417,21 @@ func TestCompare(t *testing.T) {
 
 // TestOptions: the flags and the refusals of bad ones.
 func TestOptions(t *testing.T) {
-	o, err := parseOptions([]string{"-runs", "3", "-scaling", "2000, 20000", "-solve-nodes", "", "-memory", "0"}, io.Discard)
+	o, err := parseOptions([]string{"-runs", "3", "-scaling", "2000, 20000", "-solve-nodes", "", "-figures", "1,4", "-watch-sizes", "500"}, io.Discard)
 	if err != nil {
 		t.Fatal(err)
 	}
-	if o.runs != 3 || fmt.Sprint(o.scaling) != "[2000 20000]" || len(o.solveNodes) != 0 || o.memory != 0 || o.statements != 2000 || o.nodes != 60 {
+	if o.runs != 3 || fmt.Sprint(o.scaling) != "[2000 20000]" || len(o.solveNodes) != 0 || o.statements != 2000 || o.nodes != 60 ||
+		fmt.Sprint(o.figures) != "map[1:true 4:true]" || fmt.Sprint(o.watchSizes) != "[500]" {
 		t.Errorf("options %+v", o)
+	}
+	d, err := parseOptions(nil, io.Discard)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(d.figures) != 5 || d.large != 20000 || d.meshNodes != 500 || fmt.Sprint(d.watchSizes) != "[1000 10000]" || d.watchWrite != "atomic" ||
+		len(d.scaling) != 0 || len(d.solveNodes) != 0 {
+		t.Errorf("default options %+v", d)
 	}
 	bad := []struct {
 		name string
@@ -427,7 +440,14 @@ func TestOptions(t *testing.T) {
 		{"no runs", []string{"-runs", "0"}},
 		{"a list entry that is not a number", []string{"-scaling", "2000,lots"}},
 		{"a zero in a list", []string{"-solve-nodes", "0"}},
-		{"a memory size too small for the ladder", []string{"-memory", "5"}},
+		{"a large size too small for the ladder", []string{"-large", "5"}},
+		{"a figure that does not exist", []string{"-figures", "6"}},
+		{"no figure", []string{"-figures", ""}},
+		{"a mesh that is not a multiple of 5", []string{"-mesh-nodes", "502"}},
+		{"a watch document without a value to edit", []string{"-watch-sizes", "3"}},
+		{"an unknown way to save", []string{"-watch-write", "sync"}},
+		{"no saves", []string{"-saves", "0"}},
+		{"no solve runs", []string{"-solve-runs", "0"}},
 		{"a statement count too small for the ladder", []string{"-statements", "9"}},
 		{"an argument", []string{"extra"}},
 		{"an unknown flag", []string{"-fast"}},

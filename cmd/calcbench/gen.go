@@ -13,9 +13,13 @@ type Params struct {
 	// blocks, the ladder's parameters and results included (checks count
 	// as statements; notes, prose and the solve block's equations do not).
 	Statements int
-	// Nodes is the number of nodes of the ladder network solved by the
-	// solve block; 0 for a document without it.
+	// Nodes is the number of nodes of the network solved by the solve
+	// block; 0 for a document without it.
 	Nodes int
+	// Mesh makes the network the meshed feeder (trunk, laterals and ties;
+	// see meshBranches) instead of the ladder; Nodes must then be a
+	// multiple of 5.
+	Mesh bool
 }
 
 const (
@@ -44,9 +48,12 @@ func (p Params) Validate() error {
 	if p.Statements < 1 || p.Statements > MaxStatements {
 		return fmt.Errorf("statements %d: must be 1 to %d", p.Statements, MaxStatements)
 	}
+	if p.Mesh && (p.Nodes < 5 || p.Nodes%5 != 0) {
+		return fmt.Errorf("nodes %d: a meshed feeder has 5 nodes for each trunk node (a multiple of 5, at least 5)", p.Nodes)
+	}
 	f := p.feederPart()
 	if f < 0 {
-		return fmt.Errorf("statements %d: a %d-node ladder needs %d statements of its own", p.Statements, p.Nodes, ladderStatements)
+		return fmt.Errorf("statements %d: a %d-node %s needs %d statements of its own", p.Statements, p.Nodes, p.netName(), p.netStatements())
 	}
 	if f > 0 && f < headerStatements {
 		return fmt.Errorf("statements %d: the feeder schedule needs at least %d statements (or none)", p.Statements, headerStatements)
@@ -55,11 +62,27 @@ func (p Params) Validate() error {
 }
 
 // feederPart is the number of statements of the feeder schedule.
-func (p Params) feederPart() int {
-	if p.Nodes > 0 {
-		return p.Statements - ladderStatements
+func (p Params) feederPart() int { return p.Statements - p.netStatements() }
+
+// netStatements is the number of statements of the network part: the
+// ladder's or the meshed feeder's parameters and results, none without a
+// network.
+func (p Params) netStatements() int {
+	switch {
+	case p.Nodes == 0:
+		return 0
+	case p.Mesh:
+		return meshStatements
 	}
-	return p.Statements
+	return ladderStatements
+}
+
+// netName names the network in messages.
+func (p Params) netName() string {
+	if p.Mesh {
+		return "meshed feeder"
+	}
+	return "ladder"
 }
 
 // shown is one value of the Python script's results table: its name, the
@@ -103,7 +126,7 @@ func (g *gen) check(text, cond, comment string) {
 // Generate writes the calculation document (Markdown) and the Python +
 // NumPy script that does the same work: the same statements, as complex
 // numbers in coherent SI units, the same checks, and the same ladder
-// network solved with numpy.linalg.solve on its nodal admittance matrix.
+// network (or the meshed feeder of meshBranches, with Mesh) solved with numpy.linalg.solve on its nodal admittance matrix.
 // The script takes the path of the HTML table it writes as its one
 // argument.
 //
@@ -136,7 +159,11 @@ func Generate(p Params) (doc, script string, err error) {
 		return "", "", err
 	}
 	g := &gen{}
-	fmt.Fprintf(&g.doc, "---\ntitle: Generated feeder schedule and ladder network\nproject: calcbench\nnumber: BENCH-E-%d-%d\nrevision: A\nprepared: calcbench\ndate: 2026-11-30\n---\n\n", p.Statements, p.Nodes)
+	title := "ladder network"
+	if p.Mesh {
+		title = "meshed feeder"
+	}
+	fmt.Fprintf(&g.doc, "---\ntitle: Generated feeder schedule and %s\nproject: calcbench\nnumber: BENCH-E-%d-%d\nrevision: A\nprepared: calcbench\ndate: 2026-11-30\n---\n\n", title, p.Statements, p.Nodes)
 	fmt.Fprintf(&g.py, pyHeader, p.Statements, p.Nodes)
 
 	if f := p.feederPart(); f > 0 {
@@ -198,7 +225,9 @@ func Generate(p Params) (doc, script string, err error) {
 		g.doc.WriteString("```\n\n")
 	}
 
-	if n := p.Nodes; n > 0 {
+	if p.Nodes > 0 && p.Mesh {
+		g.mesh(p.Nodes)
+	} else if n := p.Nodes; n > 0 {
 		g.doc.WriteString("# Ladder network\n\nA radial line of equal sections, each node loaded by the same constant impedance.\n\n```calc\n")
 		g.py.WriteString("\n# Ladder network\n")
 		g.stmt("V_s = 11 kV / sqrt(3)            # source phase voltage", "V_s = 11e3 / math.sqrt(3)", &shown{"V_s", "kV", "1e3", "polar"})

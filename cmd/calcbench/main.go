@@ -1,45 +1,60 @@
-// Command calcbench measures calcdoc against the program an engineer
-// would write instead: a Python script with NumPy doing the same
-// arithmetic and the same network solve and writing an HTML table of the
-// results.
+// Command calcbench measures calcdoc against issue 20's targets, side by
+// side in one run with the program an engineer would write instead: a
+// Python script with NumPy doing the same arithmetic and the same network
+// solve and writing an HTML table of the results.
 //
 //	go run ./cmd/calcbench [flags]
 //
 // It builds the calcdoc binary from this tree once (go build, into a
-// temporary folder), generates a calculation document and its Python
-// twin from the same parameters (see Generate), checks that the two give
-// the same values and check results (every value, from `calcdoc values`
-// JSON and from the script's table, within a relative 1e-9), and then
-// times both as whole processes, alternating them (calcdoc, script,
-// calcdoc, script, ...) after one untimed warm-up run of each. It reports
-// the medians, the quartiles, the median CPU time, the peak resident set
-// size and the ratio of the medians, with the load average before and
-// after each figure. It does, in order:
+// temporary folder) and generates calculation documents and their Python
+// twins from the same parameters (see Generate). Before timing a pair it
+// checks that the two give the same values and check results (every
+// value, from `calcdoc values` JSON and from the script's table, within
+// a relative 1e-9). Whole processes are timed alternating (calcdoc,
+// script, calcdoc, script, ...) after one untimed run of each. Every
+// figure gives medians, and the load average at its start and end. The
+// figures (select with -figures):
 //
-//  1. the comparison: -statements statements with a -nodes node ladder;
-//  2. statement scaling: the same document at each count of -scaling (and
-//     at -memory), and the ratio of the largest count's time to the
-//     smallest's;
-//  3. peak memory: the largest RSS of `calcdoc build` at -memory
-//     statements;
-//  4. solve scaling: the ladder alone at each node count of -solve-nodes.
+//  1. -statements statements with a -nodes node ladder solve: `calcdoc
+//     build` against the script, ratio of the medians (goal 0.15 or less,
+//     aim 0.1);
+//  2. the same at -large statements (goal 0.3 or less);
+//  3. a -mesh-nodes meshed feeder solve (meshBranches): calcdoc's
+//     in-process time to parse, evaluate and draw its sheet against
+//     numpy.linalg.solve of the same dense complex system timed inside
+//     Python, medians of -solve-runs, the two solutions compared first
+//     (goal 3 or less); both whole processes reported beside it;
+//  4. `calcdoc watch` save-to-page latency at each of -watch-sizes
+//     statements, an edit in the last block, -saves saves: p50, p95, max
+//     (goal p95 50 ms at 1,000 statements, 80 ms at 10,000);
+//  5. the peak memory (max RSS) of `calcdoc build` at -large statements,
+//     from figure 2's runs (goal 80 MB or less).
+//
+// The report ends with one summary table: figure, goal, measured, ratio,
+// met or missed, load; -markdown prints it as Markdown table rows for
+// docs/performance.md.
 //
 // Flags:
 //
-//	-runs N            timed alternations per figure (default 15)
-//	-compare=false     skip the comparison (figure 1)
-//	-statements N      statements of the comparison document (default 2000)
-//	-nodes N           nodes of its ladder solve (default 60)
-//	-scaling LIST      statement counts for the scaling runs, comma-separated
-//	                   (default 2000,5000,10000,20000; "" to skip)
-//	-solve-nodes LIST  node counts for the solve runs (default 60,120,300; "" to skip)
-//	-memory N          statements at which peak memory is reported (default 20000; 0 to skip)
+//	-figures LIST      the figures to measure (default 1,2,3,4,5)
+//	-runs N            timed alternations of whole processes (default 15)
+//	-statements N      statements of figure 1's document (default 2000)
+//	-nodes N           nodes of its ladder (default 60; figure 2's too)
+//	-large N           statements of figures 2 and 5 (default 20000)
+//	-mesh-nodes N      nodes of figure 3's meshed feeder (default 500, a multiple of 5)
+//	-solve-runs N      in-process runs of figure 3, each side (default 21)
+//	-watch-sizes LIST  statement counts of figure 4 (default 1000,10000)
+//	-saves N           timed saves of figure 4 at each size (default 40)
+//	-watch-write HOW   how figure 4 saves: atomic (a new file renamed over) or inplace
+//	-scaling LIST      also: statement scaling runs at these counts (default none)
+//	-solve-nodes LIST  also: the ladder alone at these node counts (default none)
+//	-markdown          print the summary as Markdown table rows too
 //	-python PATH       the Python with NumPy (default /usr/bin/python3)
 //	-calcdoc PATH      time this calcdoc binary instead of building one
 //	-keep DIR          write the documents, scripts and outputs into DIR and keep them
-//	-timeout D         longest time one child process may take (default 5m)
+//	-timeout D         longest time one child process or one save may take (default 5m)
 //
-// The script needs Python 3 with NumPy; on Debian, apt-get install
+// The scripts need Python 3 with NumPy; on Debian, apt-get install
 // python3-numpy (which gives /usr/bin/python3 its numpy).
 //
 // Exit status: 0 when every figure was measured (whether or not it meets
@@ -73,24 +88,22 @@ const (
 	exitError    = 3
 )
 
-// Goals (issue 9).
-const (
-	goalRatio     = 0.25 // calcdoc's median time over the script's, at most
-	aimRatio      = 0.1
-	goalLinearity = 1.1   // time ratio over count ratio, at most (11 for 2,000 to 20,000)
-	goalMemory    = 200e6 // bytes of peak RSS at -memory statements, at most
-)
-
 func main() { os.Exit(run(os.Args[1:], os.Stdout, os.Stderr)) }
 
 // options are the parsed flags.
 type options struct {
+	figures           map[int]bool
 	runs              int
-	compare           bool
 	statements, nodes int
+	large             int
+	meshNodes         int
+	solveRuns         int
+	watchSizes        []int
+	saves             int
+	watchWrite        string
 	scaling           []int
 	solveNodes        []int
-	memory            int
+	markdown          bool
 	python, calcdoc   string
 	keep              string
 	timeout           time.Duration
@@ -118,50 +131,78 @@ func parseOptions(args []string, stderr io.Writer) (*options, error) {
 	fs := flag.NewFlagSet("calcbench", flag.ContinueOnError)
 	fs.SetOutput(stderr)
 	o := &options{}
-	var scaling, solveNodes string
-	fs.IntVar(&o.runs, "runs", 15, "timed alternations per figure")
-	fs.BoolVar(&o.compare, "compare", true, "run the comparison (false: only the scaling, memory and solve figures)")
-	fs.IntVar(&o.statements, "statements", 2000, "statements of the comparison document")
-	fs.IntVar(&o.nodes, "nodes", 60, "nodes of its ladder solve")
-	fs.StringVar(&scaling, "scaling", "2000,5000,10000,20000", "statement counts for the scaling runs (\"\" to skip)")
-	fs.StringVar(&solveNodes, "solve-nodes", "60,120,300", "node counts for the solve runs (\"\" to skip)")
-	fs.IntVar(&o.memory, "memory", 20000, "statements at which peak memory is reported (0 to skip)")
+	var figures, watchSizes, scaling, solveNodes string
+	fs.StringVar(&figures, "figures", "1,2,3,4,5", "the figures to measure, comma-separated")
+	fs.IntVar(&o.runs, "runs", 15, "timed alternations of whole processes")
+	fs.IntVar(&o.statements, "statements", 2000, "statements of figure 1's document")
+	fs.IntVar(&o.nodes, "nodes", 60, "nodes of its ladder solve (figure 2's too)")
+	fs.IntVar(&o.large, "large", 20000, "statements of figures 2 and 5")
+	fs.IntVar(&o.meshNodes, "mesh-nodes", 500, "nodes of figure 3's meshed feeder (a multiple of 5)")
+	fs.IntVar(&o.solveRuns, "solve-runs", 21, "in-process runs of figure 3, each side")
+	fs.StringVar(&watchSizes, "watch-sizes", "1000,10000", "statement counts of figure 4")
+	fs.IntVar(&o.saves, "saves", 40, "timed saves of figure 4 at each size")
+	fs.StringVar(&o.watchWrite, "watch-write", "atomic", "how figure 4 saves: atomic (a new file renamed over the old) or inplace")
+	fs.StringVar(&scaling, "scaling", "", "also: statement counts for scaling runs, each with the -nodes ladder")
+	fs.StringVar(&solveNodes, "solve-nodes", "", "also: node counts for runs of the ladder alone")
+	fs.BoolVar(&o.markdown, "markdown", false, "print the summary as Markdown table rows too")
 	fs.StringVar(&o.python, "python", "/usr/bin/python3", "the Python with NumPy")
 	fs.StringVar(&o.calcdoc, "calcdoc", "", "time this calcdoc binary instead of building one")
 	fs.StringVar(&o.keep, "keep", "", "write the generated files into this folder and keep them")
-	fs.DurationVar(&o.timeout, "timeout", 5*time.Minute, "longest time one child process may take")
+	fs.DurationVar(&o.timeout, "timeout", 5*time.Minute, "longest time one child process or one save may take")
 	if err := fs.Parse(args); err != nil {
 		return nil, err
 	}
 	if fs.NArg() > 0 {
 		return nil, fmt.Errorf("unexpected argument %q", fs.Arg(0))
 	}
-	var err error
+	figs, err := parseList(figures)
+	if err != nil {
+		return nil, fmt.Errorf("-figures: %v", err)
+	}
+	o.figures = map[int]bool{}
+	for _, f := range figs {
+		if f > 5 {
+			return nil, fmt.Errorf("-figures: there is no figure %d (1 to 5)", f)
+		}
+		o.figures[f] = true
+	}
+	if o.watchSizes, err = parseList(watchSizes); err != nil {
+		return nil, fmt.Errorf("-watch-sizes: %v", err)
+	}
 	if o.scaling, err = parseList(scaling); err != nil {
 		return nil, fmt.Errorf("-scaling: %v", err)
 	}
 	if o.solveNodes, err = parseList(solveNodes); err != nil {
 		return nil, fmt.Errorf("-solve-nodes: %v", err)
 	}
-	if o.runs < 1 {
+	switch {
+	case len(o.figures) == 0 && len(o.scaling) == 0 && len(o.solveNodes) == 0:
+		return nil, errors.New("-figures: nothing to measure")
+	case o.runs < 1:
 		return nil, fmt.Errorf("-runs %d: at least 1", o.runs)
-	}
-	if o.memory < 0 {
-		return nil, fmt.Errorf("-memory %d: 0 (skip) or a statement count", o.memory)
-	}
-	if o.timeout <= 0 {
+	case o.solveRuns < 1:
+		return nil, fmt.Errorf("-solve-runs %d: at least 1", o.solveRuns)
+	case o.saves < 1:
+		return nil, fmt.Errorf("-saves %d: at least 1", o.saves)
+	case o.watchWrite != "atomic" && o.watchWrite != "inplace":
+		return nil, fmt.Errorf("-watch-write %q: atomic or inplace", o.watchWrite)
+	case o.timeout <= 0:
 		return nil, fmt.Errorf("-timeout %v: must be positive", o.timeout)
 	}
 	// every document must be one the generator can write
-	check := []Params{{o.statements, o.nodes}}
+	check := []Params{{Statements: o.statements, Nodes: o.nodes}, {Statements: o.large, Nodes: o.nodes},
+		{Statements: meshStatements, Nodes: o.meshNodes, Mesh: true}}
 	for _, s := range o.scaling {
-		check = append(check, Params{s, o.nodes})
-	}
-	if o.memory > 0 {
-		check = append(check, Params{o.memory, o.nodes})
+		check = append(check, Params{Statements: s, Nodes: o.nodes})
 	}
 	for _, n := range o.solveNodes {
-		check = append(check, Params{ladderStatements, n})
+		check = append(check, Params{Statements: ladderStatements, Nodes: n})
+	}
+	for _, s := range o.watchSizes {
+		if s <= headerStatements {
+			return nil, fmt.Errorf("-watch-sizes %d: a watch document needs more than %d statements", s, headerStatements)
+		}
+		check = append(check, Params{Statements: s})
 	}
 	for _, p := range check {
 		if err := p.Validate(); err != nil {
@@ -239,92 +280,51 @@ func (b *bench) main() error {
 	fmt.Fprintf(b.out, "calcbench %s; %s/%s, %d CPUs; %s (%s); Python %s\n",
 		time.Now().UTC().Format("2006-01-02 15:04 UTC"), runtime.GOOS, runtime.GOARCH, runtime.NumCPU(),
 		strings.TrimSpace(string(cdv)), runtime.Version(), pyv)
-	fmt.Fprintf(b.out, "each figure: %d timed alternations (calcdoc, script, calcdoc, script, ...) after one untimed run of each; whole processes, wall time\n", o.runs)
+	fmt.Fprintf(b.out, "whole processes: %d timed alternations (calcdoc, script, calcdoc, script, ...) after one untimed run of each, wall time\n", o.runs)
 	fmt.Fprintf(b.out, "calcdoc: %s build -o sheet.html doc.md; script: %s script.py table.html\n", b.calcdoc, o.python)
-
-	// 1. the comparison
-	if o.compare {
-		cmp, err := b.prepare("compare", Params{o.statements, o.nodes})
+	var targets []target
+	if o.figures[1] {
+		t, err := b.figure1()
 		if err != nil {
 			return err
 		}
-		fmt.Fprintf(b.out, "\n1. Comparison: %d statements and a %d-node ladder solve\n", o.statements, o.nodes)
-		if err := b.verify(cmp); err != nil {
-			return err
-		}
-		cd, py, loads, err := b.measure([]*config{cmp})
-		if err != nil {
-			return err
-		}
-		if err := b.reportComparison(cd[0], py[0], loads); err != nil {
-			return err
-		}
+		targets = append(targets, t)
 	}
-
-	// 2. statement scaling, 3. memory
-	sizes := append([]int(nil), o.scaling...)
-	if o.memory > 0 && !contains(sizes, o.memory) {
-		sizes = append(sizes, o.memory)
-	}
-	sort.Ints(sizes)
-	sizes = dedup(sizes)
-	if len(sizes) > 0 {
-		fmt.Fprintf(b.out, "\n2. Statement scaling: %s statements, each with the %d-node ladder\n", joinInts(sizes), o.nodes)
-		var cfgs []*config
-		for _, s := range sizes {
-			c, err := b.prepare(fmt.Sprintf("statements-%d", s), Params{s, o.nodes})
-			if err != nil {
-				return err
-			}
-			if err := b.verify(c); err != nil {
-				return err
-			}
-			cfgs = append(cfgs, c)
-		}
-		cd, py, loads, err := b.measure(cfgs)
+	if o.figures[2] || o.figures[5] {
+		ts, err := b.figure2and5()
 		if err != nil {
 			return err
 		}
-		if err := b.reportScaling(cfgs, cd, py, loads, "statements", func(c *config) int { return c.p.Statements }); err != nil {
-			return err
-		}
-		if len(sizes) >= 2 {
-			first, _ := summarize(cd[0])
-			last, _ := summarize(cd[len(cd)-1])
-			r := last.median / first.median
-			f := float64(sizes[len(sizes)-1]) / float64(sizes[0])
-			fmt.Fprintf(b.out, "   time ratio %d/%d statements: %.2f for %.0f× the statements (goal: %.1f or less): %s\n",
-				sizes[len(sizes)-1], sizes[0], r, f, goalLinearity*f, verdict(r <= goalLinearity*f))
-		}
-		if o.memory > 0 {
-			i := indexOf(sizes, o.memory)
-			s, _ := summarize(cd[i])
-			fmt.Fprintf(b.out, "\n3. Peak memory of calcdoc build at %d statements: %s (the largest max RSS of %d runs; median %s) (goal: %s or less): %s\n",
-				o.memory, mb(s.rssPeak), s.n, mb(s.rssMedian), mb(goalMemory), verdict(s.rssPeak <= goalMemory))
-		}
+		targets = append(targets, ts...)
 	}
-
-	// 4. solve scaling
-	if len(o.solveNodes) > 0 {
-		nodes := dedup(sortedCopy(o.solveNodes))
-		fmt.Fprintf(b.out, "\n4. Solve scaling: the ladder alone (%d statements) with %s nodes\n", ladderStatements, joinInts(nodes))
-		var cfgs []*config
-		for _, n := range nodes {
-			c, err := b.prepare(fmt.Sprintf("nodes-%d", n), Params{ladderStatements, n})
-			if err != nil {
-				return err
-			}
-			if err := b.verify(c); err != nil {
-				return err
-			}
-			cfgs = append(cfgs, c)
-		}
-		cd, py, loads, err := b.measure(cfgs)
+	if o.figures[3] {
+		t, err := b.figure3()
 		if err != nil {
 			return err
 		}
-		if err := b.reportScaling(cfgs, cd, py, loads, "nodes", func(c *config) int { return c.p.Nodes }); err != nil {
+		targets = append(targets, t)
+	}
+	if o.figures[4] {
+		ts, err := b.figure4()
+		if err != nil {
 			return err
+		}
+		targets = append(targets, ts...)
+	}
+	if err := b.extras(); err != nil {
+		return err
+	}
+	sortTargets(targets)
+	if len(targets) > 0 {
+		fmt.Fprintf(b.out, "\nSummary (issue 20's targets; load: the 1-minute load average at the start and at the end of each figure)\n")
+		if err := writeSummary(b.out, targets); err != nil {
+			return err
+		}
+		if o.markdown {
+			fmt.Fprintln(b.out)
+			if err := writeMarkdown(b.out, targets); err != nil {
+				return err
+			}
 		}
 	}
 	if o.keep != "" {
@@ -333,10 +333,23 @@ func (b *bench) main() error {
 	return nil
 }
 
+// pythonProbe prints Python's and NumPy's versions and, where
+// /proc/self/maps shows them (Linux), the BLAS and LAPACK libraries NumPy
+// loaded: numpy.linalg.solve's speed depends on them.
+const pythonProbe = `import sys, numpy, numpy.linalg
+libs = []
+try:
+    with open("/proc/self/maps") as f:
+        libs = sorted({l.split()[-1] for l in f if "blas" in l.lower() or "lapack" in l.lower()})
+except OSError:
+    pass
+print(sys.version.split()[0], "with NumPy", numpy.__version__, "(" + (", ".join(libs) or "BLAS not seen") + ")")
+`
+
 // pythonVersion confirms that the Python has NumPy and returns both
-// versions.
+// versions and NumPy's BLAS and LAPACK libraries.
 func (b *bench) pythonVersion() (string, error) {
-	out, stderr, err := b.capture(b.o.python, "-c", "import sys, numpy; print(sys.version.split()[0], 'with NumPy', numpy.__version__)")
+	out, stderr, err := b.capture(b.o.python, "-c", pythonProbe)
 	if err != nil {
 		return "", fmt.Errorf("the script needs Python 3 with NumPy at %s (on Debian: apt-get install python3-numpy), or give -python PATH: %v\n%s", b.o.python, err, stderr)
 	}
@@ -427,8 +440,8 @@ func (b *bench) verify(c *config) error {
 	if c.p.Nodes > 0 {
 		names = append(names, fmt.Sprintf("V_%d", c.p.Nodes), "I_in")
 	}
-	fmt.Fprintf(b.out, "   %d statements, %d nodes: both give the same %s and %s (within %.0e relative); in SI units, e.g.\n     calcdoc: %s\n     script:  %s\n",
-		c.p.Statements, c.p.Nodes, plural(len(cd.Values), "value"), plural(len(cd.Checks), "check result"), Tolerance, pick(cd, names...), pick(py, names...))
+	fmt.Fprintf(b.out, "   %s statements, %d nodes: both give the same %s and %s (within %.0e relative); in SI units, e.g.\n     calcdoc: %s\n     script:  %s\n",
+		thousands(c.p.Statements), c.p.Nodes, plural(len(cd.Values), "value"), plural(len(cd.Checks), "check result"), Tolerance, pick(cd, names...), pick(py, names...))
 	return nil
 }
 
@@ -499,31 +512,6 @@ func exitCode(err error) int {
 	return -1
 }
 
-func (b *bench) reportComparison(cd, py series, loads [2]string) error {
-	c, err := summarize(cd)
-	if err != nil {
-		return err
-	}
-	p, err := summarize(py)
-	if err != nil {
-		return err
-	}
-	fmt.Fprintf(b.out, "   load average (1, 5, 15 min): %s at the start, %s at the end\n", loads[0], loads[1])
-	tw := tabwriter.NewWriter(b.out, 0, 0, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprintf(tw, "   \tprogram\tmedian\tquartiles\tCPU (median)\tmax RSS (median)\t\n")
-	fmt.Fprintf(tw, "   \tcalcdoc build\t%s\t%s to %s\t%s\t%s\t\n", ms(c.median), ms(c.q1), ms(c.q3), ms(c.cpuMedian), mb(c.rssMedian))
-	fmt.Fprintf(tw, "   \tPython + NumPy script\t%s\t%s to %s\t%s\t%s\t\n", ms(p.median), ms(p.q1), ms(p.q3), ms(p.cpuMedian), mb(p.rssMedian))
-	tw.Flush()
-	r := c.median / p.median
-	aim := "the aim of 0.1 is met"
-	if r > aimRatio {
-		aim = "the aim of 0.1 is not met"
-	}
-	fmt.Fprintf(b.out, "   ratio of the medians, calcdoc / script: %.3f (goal: 0.25 or less): %s; %s. CPU ratio: %.3f\n",
-		r, verdict(r <= goalRatio), aim, c.cpuMedian/p.cpuMedian)
-	return nil
-}
-
 func (b *bench) reportScaling(cfgs []*config, cd, py []series, loads [2]string, what string, size func(*config) int) error {
 	fmt.Fprintf(b.out, "   load average (1, 5, 15 min): %s at the start, %s at the end\n", loads[0], loads[1])
 	tw := tabwriter.NewWriter(b.out, 0, 0, 2, ' ', tabwriter.AlignRight)
@@ -548,14 +536,7 @@ func plural(n int, what string) string {
 	if n == 1 {
 		return "1 " + what
 	}
-	return fmt.Sprintf("%d %ss", n, what)
-}
-
-func verdict(ok bool) string {
-	if ok {
-		return "met"
-	}
-	return "MISSED"
+	return thousands(n) + " " + what + "s"
 }
 
 func contains(xs []int, x int) bool { return indexOf(xs, x) >= 0 }
