@@ -41,7 +41,8 @@ ol.errlist, ul.warnlist { margin: 2pt 0 2pt 1.4em; padding: 0; }
 .row.wide { grid-template-columns: 8mm minmax(0, 1fr); }
 .row.wide .math { overflow-x: auto; font-size: 0.92em; }
 .row.wide .desc { grid-column: 2; }
-.ln { font: 7.5pt "DejaVu Sans Mono", monospace; color: #555; text-align: right; padding-top: 2pt; border-right: var(--thin); padding-right: 2mm; }
+.ln, .row[data-line]::before { font: 7.5pt "DejaVu Sans Mono", monospace; color: #555; text-align: right; padding-top: 2pt; border-right: var(--thin); padding-right: 2mm; }
+.row[data-line]::before { content: attr(data-line); }
 .math > div { margin: 1pt 0; }
 .math .s, .math .r { padding-left: 6mm; }
 .math .r { font-weight: bold; }
