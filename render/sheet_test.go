@@ -93,7 +93,7 @@ func TestDeterministic(t *testing.T) {
 var (
 	// a statement row: its line as id and data-line (the gutter's number,
 	// style.go), its working, then its description or, with none, its end
-	rowRE    = regexp.MustCompile(`(?s)<div class="row(?: wide)?" id="L(\d+)" data-line="(\d+)"><div class="math">(.*?)</div>(?:<div class="desc">|</div>\n)`)
+	rowRE    = regexp.MustCompile(`(?s)<div class="row(?: wide)?" id="L(\d+)" data-line="(\d+)"><div>(.*?)</div>(?:<div class="desc">|</div>\n)`)
 	resultRE = regexp.MustCompile(`<div class="r" data-value="([^"]*)" data-line="(\d+)">`)
 )
 

@@ -234,7 +234,7 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 		class = "row wide" // matrices: the description goes below the working
 	}
 	w.RowOpen(class, line)
-	w.WriteString("<div class=\"math\">")
+	w.WriteString("<div>")
 	ok := len(st.Errs) == 0 && st.Unavailable == nil
 	f := w.ExprMLFor(false, nil)
 	s := w.ExprMLFor(true, res.Trace)
