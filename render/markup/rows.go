@@ -188,6 +188,25 @@ func (w *Writer) RowClose(desc string, wide bool) {
 	w.WriteString("</div>\n")
 }
 
+// writeResult writes the value of a result line, after its "=" (and
+// its name), straight into the page: as writeValue, but a value that
+// group would put in an <mrow> only because it opens with a bracket
+// stands bare. The bracket is then no longer its mrow's first child, but
+// MathML Core's operator dictionary holds "(" in the prefix form alone,
+// so its spacing is the same in any place; and the line's other children
+// (the "=", the name, the power factor's sense) are no taller than the
+// value's, so the bracket stretches to the same size.
+func (w *Writer) writeResult(m *ExprML, v expr.Value, d *expr.Display) {
+	sv := m.value(v, d)
+	if sv.bare || strings.HasPrefix(sv.ml, "<mo>(</mo>") && !strings.HasSuffix(sv.ml, "</mo>") {
+		w.WriteString(sv.ml)
+		return
+	}
+	w.WriteString("<mrow>")
+	w.WriteString(sv.ml)
+	w.WriteString("</mrow>")
+}
+
 // writeValue writes m.valueML(v, d, false) straight into the page.
 func (w *Writer) writeValue(m *ExprML, v expr.Value, d *expr.Display) {
 	sv := m.value(v, d)
@@ -271,7 +290,7 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 				} else {
 					w.resultOpen(x.Names[0].Name)
 					w.WriteString("<math><mo>=</mo>")
-					w.writeValue(s, res.Value, disp)
+					w.writeResult(s, res.Value, disp)
 					w.WriteString(SenseML(res.Value))
 					w.WriteString("</math></div>")
 				}
