@@ -77,7 +77,7 @@ func TestExamplesShowPowersByKind(t *testing.T) {
 				}
 			}
 			// the sheet's result row for the name
-			re := regexp.MustCompile(`id="L` + itoa(v.Pos.Line()) + `" data-line="` + itoa(v.Pos.Line()) + `">[^\n]*?<div class="r" data-value="` + regexp.QuoteMeta(v.Name) + `">(.*?)</div>`)
+			re := regexp.MustCompile(`id="L` + itoa(v.Pos.Line()) + `" data-line="` + itoa(v.Pos.Line()) + `">[^\n]*?<div data-value="` + regexp.QuoteMeta(v.Name) + `">(.*?)</div>`)
 			m := re.FindSubmatch(html)
 			if m == nil {
 				continue // a solve unknown or a value in prose: checked through the values JSON

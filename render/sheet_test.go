@@ -93,8 +93,7 @@ func TestDeterministic(t *testing.T) {
 var (
 	// a statement row: its line as id and data-line (the gutter's number,
 	// style.go), its working, then its description or, with none, its end
-	rowRE    = regexp.MustCompile(`(?s)<div class="row(?: wide)?" id="L(\d+)" data-line="(\d+)"><div>(.*?)</div>(?:<div class="desc">|</div>\n)`)
-	resultRE = regexp.MustCompile(`<div class="r" data-value="([^"]*)" data-line="(\d+)">`)
+	rowRE = regexp.MustCompile(`(?s)<div class="row(?: wide)?" id="L(\d+)" data-line="(\d+)"><div>(.*?)</div>(?:<div class="desc">|</div>\n)`)
 )
 
 func TestStructure(t *testing.T) {
@@ -137,7 +136,7 @@ func TestStructure(t *testing.T) {
 				}
 				isCheck := strings.Contains(body, "kindtag\">check")
 				isFunc := strings.Contains(body, "kindtag\">function")
-				if !isCheck && !isFunc && !strings.Contains(body, `<div class="r"`) {
+				if !isCheck && !isFunc && !strings.Contains(body, `<div data-value=`) {
 					t.Errorf("line %s: no result", r[1])
 				}
 				if isCheck && !strings.Contains(body, "satisfied") {
@@ -153,7 +152,7 @@ func TestStructure(t *testing.T) {
 			}
 			for _, v := range doc.Values {
 				want := fmt.Sprintf(`data-value="%s" data-line="%d"`, v.Name, v.Pos.Line())
-				inRow := strings.Contains(rowOf[strconv.Itoa(v.Pos.Line())], fmt.Sprintf(`<div class="r" data-value="%s">`, v.Name))
+				inRow := strings.Contains(rowOf[strconv.Itoa(v.Pos.Line())], fmt.Sprintf(`<div data-value="%s">`, v.Name))
 				if !inRow && !strings.Contains(s, want) {
 					t.Errorf("no result row for %s at line %d", v.Name, v.Pos.Line())
 				}

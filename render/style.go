@@ -44,8 +44,8 @@ ol.errlist, ul.warnlist { margin: 2pt 0 2pt 1.4em; padding: 0; }
 .ln, .row[data-line]::before { font: 7.5pt "DejaVu Sans Mono", monospace; color: #555; text-align: right; padding-top: 2pt; border-right: var(--thin); padding-right: 2mm; }
 .row[data-line]::before { content: attr(data-line); }
 .row > div:not([class]) > div { margin: 1pt 0; }
-.row > div:not([class]) .s, .row > div:not([class]) .r { padding-left: 6mm; }
-.row > div:not([class]) .r { font-weight: bold; }
+.row > div:not([class]) .s, .row > div:not([class]) .r, .row > div:not([class]) > div[data-value] { padding-left: 6mm; }
+.row > div:not([class]) .r, .row > div:not([class]) > div[data-value] { font-weight: bold; }
 .row > div:not([class]) .brk { padding-left: 10mm; text-indent: -10mm; }
 .row > div:not([class]) .brk > .t { display: inline-block; max-width: 100%; text-indent: 0; }
 .row > div:not([class]) .brk > .kindtag { margin-right: 2mm; }

@@ -152,10 +152,11 @@ func resultAttrs(name string) string {
 	return " data-value=\"" + Esc(name) + "\""
 }
 
-// resultOpen opens a statement's result line: <div class="r"
-// data-value=NAME>.
+// resultOpen opens a statement's result line: <div data-value=NAME>
+// (the stylesheet styles it as class "r", the result lines of other
+// kinds).
 func (w *Writer) resultOpen(name string) {
-	w.WriteString("<div class=\"r\" data-value=\"")
+	w.WriteString("<div data-value=\"")
 	w.WriteString(Esc(name))
 	w.WriteString("\">")
 }
@@ -273,11 +274,11 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 				w.MathRow("s", "<mo>=</mo>", s, x.X)
 			}
 			if len(x.Names) > 1 {
-				w.Printf("<div class=\"r\" data-value=\"%s\">%s</div>", Esc(joinNames(x.Names)), Math("<mo>=</mo>"+ValueML(res.Value, x.Display, w.Digits(), false)))
+				w.Printf("<div data-value=\"%s\">%s</div>", Esc(joinNames(x.Names)), Math("<mo>=</mo>"+ValueML(res.Value, x.Display, w.Digits(), false)))
 				if m, isM := res.Value.(*expr.Matrix); isM {
 					for i, id := range x.Names {
 						e := m.E[i]
-						w.Printf("<div class=\"r\" data-value=\"%s\">%s</div>", Esc(id.Name), Math(NameML(id.Name)+"<mo>=</mo>"+ValueML(&e, x.Display, w.Digits(), false)+SenseML(&e)))
+						w.Printf("<div data-value=\"%s\">%s</div>", Esc(id.Name), Math(NameML(id.Name)+"<mo>=</mo>"+ValueML(&e, x.Display, w.Digits(), false)+SenseML(&e)))
 					}
 				}
 			} else {

@@ -22,11 +22,11 @@ func (w *Writer) useRows(st *calcdoc.Stmt) {
 			continue
 		}
 		v := b.Value
-		w.MathDiv("r", resultAttrs(b.Local), func() {
-			w.WriteString(NameML(b.Local) + "<mo>=</mo>")
-			w.WriteString(ValueML(v.Value, v.Display, w.Digits(), false))
-			w.WriteString(SenseML(v.Value))
-		})
+		w.WriteString("<div" + resultAttrs(b.Local) + "><math>")
+		w.WriteString(NameML(b.Local) + "<mo>=</mo>")
+		w.WriteString(ValueML(v.Value, v.Display, w.Digits(), false))
+		w.WriteString(SenseML(v.Value))
+		w.WriteString("</math></div>")
 		w.KindNote(v.Value)
 		named := ""
 		if b.Name != b.Local {
