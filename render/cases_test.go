@@ -27,7 +27,7 @@ func TestSheetWithCases(t *testing.T) {
 	}
 	page := string(out)
 	for _, want := range []string{
-		`data-value="I_k3" data-line="7" data-case="max"><span class="case">max</span>`,
+		`data-value="I_k3" data-case="max"><span class="case">max</span>`,
 		`<mn>14.04</mn>`, `<mn>8.066</mn>`,
 		`data-check="8" data-case="max"><span class="case">max</span>`,
 		`utilisation 28.1 % of the limit`,

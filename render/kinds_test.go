@@ -77,7 +77,7 @@ func TestExamplesShowPowersByKind(t *testing.T) {
 				}
 			}
 			// the sheet's result row for the name
-			re := regexp.MustCompile(`<div class="r" data-value="` + regexp.QuoteMeta(v.Name) + `" data-line="` + itoa(v.Pos.Line()) + `">(.*?)</div>`)
+			re := regexp.MustCompile(`id="L` + itoa(v.Pos.Line()) + `" data-line="` + itoa(v.Pos.Line()) + `">[^\n]*?<div data-value="` + regexp.QuoteMeta(v.Name) + `">(.*?)</div>`)
 			m := re.FindSubmatch(html)
 			if m == nil {
 				continue // a solve unknown or a value in prose: checked through the values JSON
@@ -114,7 +114,7 @@ func TestKindNotStatedRow(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	rows := regexp.MustCompile(`(?s)<div class="row[^"]*" id="L(\d+)">(.*?)<div class="desc">`).FindAllSubmatch(html, -1)
+	rows := regexp.MustCompile(`(?s)<div class="row[^"]*" id="L(\d+)" data-line="\d+">(.*?)(?:<div class="desc">|</div>\n)`).FindAllSubmatch(html, -1)
 	want := map[string]bool{"3": true, "4": false, "5": false, "6": true}
 	seen := 0
 	for _, r := range rows {

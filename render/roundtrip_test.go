@@ -97,7 +97,7 @@ func roundTrip(t testing.TB, stmts []string) rtStats {
 }
 
 var (
-	rowBodyRE = regexp.MustCompile(`(?s)<div class="row[^"]*" id="L(\d+)">(.*?)<div class="desc">`)
+	rowBodyRE = regexp.MustCompile(`(?s)<div class="row[^"]*" id="L(\d+)" data-line="\d+">(.*?)(?:<div class="desc">|</div>\n)`)
 	fRowRE    = regexp.MustCompile(`(?s)<div class="f(?: brk)?">(.*?)</div>`)
 	sRowRE    = regexp.MustCompile(`(?s)<div class="s(?: brk)?">(.*?)</div>`)
 )

@@ -11,7 +11,7 @@ body { font: 10pt/1.35 "DejaVu Sans", "Liberation Sans", Arial, sans-serif; colo
 math { font-size: 1.05em; }
 mi.u { text-transform: none; padding-left: 0.25em; }
 mtext.pfsense { padding-left: 0.3em; }
-.math math { math-style: normal; }
+.row > div:not([class]) math { math-style: normal; }
 h1, h2, h3, h4 { font-weight: bold; margin: 1.1em 0 0.4em; break-after: avoid; }
 h1 { font-size: 13pt; border-bottom: var(--rule); padding-bottom: 2pt; }
 h2 { font-size: 11.5pt; } h3, h4 { font-size: 10.5pt; }
@@ -39,16 +39,17 @@ ol.errlist, ul.warnlist { margin: 2pt 0 2pt 1.4em; padding: 0; }
 .row { display: grid; grid-template-columns: 8mm minmax(0, 1fr) 52mm; column-gap: 3mm; padding: 2pt 0; border-bottom: var(--thin); break-inside: avoid; page-break-inside: avoid; }
 .row:last-child { border-bottom: none; }
 .row.wide { grid-template-columns: 8mm minmax(0, 1fr); }
-.row.wide .math { overflow-x: auto; font-size: 0.92em; }
+.row.wide > div:not([class]) { overflow-x: auto; font-size: 0.92em; }
 .row.wide .desc { grid-column: 2; }
-.ln { font: 7.5pt "DejaVu Sans Mono", monospace; color: #555; text-align: right; padding-top: 2pt; border-right: var(--thin); padding-right: 2mm; }
-.math > div { margin: 1pt 0; }
-.math .s, .math .r { padding-left: 6mm; }
-.math .r { font-weight: bold; }
-.math .brk { padding-left: 10mm; text-indent: -10mm; }
-.math .brk > .t { display: inline-block; max-width: 100%; text-indent: 0; }
-.math .brk > .kindtag { margin-right: 2mm; }
-.math .s.brk { padding-left: 16mm; }
+.ln, .row[data-line]::before { font: 7.5pt "DejaVu Sans Mono", monospace; color: #555; text-align: right; padding-top: 2pt; border-right: var(--thin); padding-right: 2mm; }
+.row[data-line]::before { content: attr(data-line); }
+.row > div:not([class]) > div { margin: 1pt 0; }
+.row > div:not([class]) .s, .row > div:not([class]) .r, .row > div:not([class]) > div[data-value] { padding-left: 6mm; }
+.row > div:not([class]) .r, .row > div:not([class]) > div[data-value] { font-weight: bold; }
+.row > div:not([class]) .brk { padding-left: 10mm; text-indent: -10mm; }
+.row > div:not([class]) .brk > .t { display: inline-block; max-width: 100%; text-indent: 0; }
+.row > div:not([class]) .brk > .kindtag { margin-right: 2mm; }
+.row > div:not([class]) .s.brk { padding-left: 16mm; }
 .desc { font-size: 8.5pt; color: #222; padding-top: 1pt; }
 .row.note { grid-template-columns: 8mm minmax(0, 1fr); }
 .row.note .txt { font-style: italic; }
@@ -89,6 +90,6 @@ figure svg { max-width: 100%; height: auto; }
   body { max-width: none; margin: 0; padding: 0; border: none; }
   a { color: inherit; text-decoration: none; }
   .err, .na { border-style: solid; }
-  .row.wide .math { overflow: visible; font-size: 0.8em; }
+  .row.wide > div:not([class]) { overflow: visible; font-size: 0.8em; }
 }
 `

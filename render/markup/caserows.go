@@ -16,7 +16,7 @@ func caseTag(name string) string {
 }
 
 // caseResults writes one result line per case.
-func (w *Writer) caseResults(name string, line int, cases []expr.Value, disp *expr.Display) {
+func (w *Writer) caseResults(name string, cases []expr.Value, disp *expr.Display) {
 	for k, c := range w.Doc.Front.Cases {
 		if k >= len(cases) {
 			break
@@ -26,7 +26,7 @@ func (w *Writer) caseResults(name string, line int, cases []expr.Value, disp *ex
 			w.Printf("<div class=\"r\" data-case=\"%s\">%s<span class=\"verdict none\">no value in this case</span></div>", Esc(c), caseTag(c))
 			continue
 		}
-		w.Printf("<div class=\"r\" data-value=\"%s\" data-line=\"%d\" data-case=\"%s\">%s%s</div>", Esc(name), line, Esc(c), caseTag(c), Math("<mo>=</mo>"+ValueML(v, disp, w.Digits(), false)+SenseML(v)))
+		w.Printf("<div data-value=\"%s\" data-case=\"%s\">%s%s</div>", Esc(name), Esc(c), caseTag(c), Math("<mo>=</mo>"+ValueML(v, disp, w.Digits(), false)+SenseML(v)))
 	}
 }
 

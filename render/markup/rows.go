@@ -1,7 +1,6 @@
 package markup
 
 import (
-	"strconv"
 	"strings"
 
 	"calcdoc/calcdoc"
@@ -146,18 +145,67 @@ func (p *Pieces) End(tail string) {
 	w.WriteString("</div>")
 }
 
-func resultAttrs(name string, line int) string {
-	return " data-value=\"" + Esc(name) + "\" data-line=\"" + strconv.Itoa(line) + "\""
+// resultAttrs are the attributes of a statement's result line: its name.
+// Its source line is the statement row's data-line, which the line's
+// <div class="r"> leaves out (render/verify reads it from the row).
+func resultAttrs(name string) string {
+	return " data-value=\"" + Esc(name) + "\""
 }
 
-// resultOpen opens a result row: <div class="r" data-value=NAME
-// data-line=LINE>.
-func (w *Writer) resultOpen(name string, line int) {
-	w.WriteString("<div class=\"r\" data-value=\"")
+// resultOpen opens a statement's result line: <div data-value=NAME>
+// (the stylesheet styles it as class "r", the result lines of other
+// kinds).
+func (w *Writer) resultOpen(name string) {
+	w.WriteString("<div data-value=\"")
 	w.WriteString(Esc(name))
+	w.WriteString("\">")
+}
+
+// RowOpen opens the row of source line line: <div class="CLASS"
+// id="LLINE" data-line="LINE">. The gutter's line number is the row's
+// ::before (style.go: content: attr(data-line)), not an element.
+func (w *Writer) RowOpen(class string, line int) {
+	w.WriteString("<div class=\"")
+	w.WriteString(class)
+	w.WriteString("\" id=\"L")
+	w.WriteInt(line)
 	w.WriteString("\" data-line=\"")
 	w.WriteInt(line)
 	w.WriteString("\">")
+}
+
+// RowClose closes a row's <div class="math"> and the row, with the
+// description in its cell when there is one. An empty cell is left out
+// (the grid leaves its column empty), except in a wide row (wide true),
+// where the cell is a grid row of its own below the working, whose 1pt
+// of padding counts.
+func (w *Writer) RowClose(desc string, wide bool) {
+	w.WriteString("</div>")
+	if desc != "" || wide {
+		w.WriteString("<div class=\"desc\">")
+		w.WriteString(Esc(desc))
+		w.WriteString("</div>")
+	}
+	w.WriteString("</div>\n")
+}
+
+// writeResult writes the value of a result line, after its "=" (and
+// its name), straight into the page: as writeValue, but a value that
+// group would put in an <mrow> only because it opens with a bracket
+// stands bare. The bracket is then no longer its mrow's first child, but
+// MathML Core's operator dictionary holds "(" in the prefix form alone,
+// so its spacing is the same in any place; and the line's other children
+// (the "=", the name, the power factor's sense) are no taller than the
+// value's, so the bracket stretches to the same size.
+func (w *Writer) writeResult(m *ExprML, v expr.Value, d *expr.Display) {
+	sv := m.value(v, d)
+	if sv.bare || strings.HasPrefix(sv.ml, "<mo>(</mo>") && !strings.HasSuffix(sv.ml, "</mo>") {
+		w.WriteString(sv.ml)
+		return
+	}
+	w.WriteString("<mrow>")
+	w.WriteString(sv.ml)
+	w.WriteString("</mrow>")
 }
 
 // writeValue writes m.valueML(v, d, false) straight into the page.
@@ -195,21 +243,18 @@ func hasNames(n expr.Node) bool {
 func (w *Writer) Stmt(st *calcdoc.Stmt) {
 	line := st.Stmt.Pos().Line()
 	if n, ok := st.Stmt.(*expr.Note); ok {
-		w.Printf("<div class=\"row note\" id=\"L%d\"><div class=\"ln\">%d</div><div class=\"txt\">%s</div></div>\n", line, line, Esc(n.Text))
+		w.RowOpen("row note", line)
+		w.Printf("<div class=\"txt\">%s</div></div>\n", Esc(n.Text))
 		return
 	}
 	res := st.Res
 	class := "row"
-	if wideRow(res) {
+	wide := wideRow(res)
+	if wide {
 		class = "row wide" // matrices: the description goes below the working
 	}
-	w.WriteString("<div class=\"")
-	w.WriteString(class)
-	w.WriteString("\" id=\"L")
-	w.WriteInt(line)
-	w.WriteString("\"><div class=\"ln\">")
-	w.WriteInt(line)
-	w.WriteString("</div><div class=\"math\">")
+	w.RowOpen(class, line)
+	w.WriteString("<div>")
 	ok := len(st.Errs) == 0 && st.Unavailable == nil
 	f := w.ExprMLFor(false, nil)
 	s := w.ExprMLFor(true, res.Trace)
@@ -229,11 +274,11 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 				w.MathRow("s", "<mo>=</mo>", s, x.X)
 			}
 			if len(x.Names) > 1 {
-				w.Printf("<div class=\"r\" data-value=\"%s\" data-line=\"%d\">%s</div>", Esc(joinNames(x.Names)), line, Math("<mo>=</mo>"+ValueML(res.Value, x.Display, w.Digits(), false)))
+				w.Printf("<div data-value=\"%s\">%s</div>", Esc(joinNames(x.Names)), Math("<mo>=</mo>"+ValueML(res.Value, x.Display, w.Digits(), false)))
 				if m, isM := res.Value.(*expr.Matrix); isM {
 					for i, id := range x.Names {
 						e := m.E[i]
-						w.Printf("<div class=\"r\" data-value=\"%s\" data-line=\"%d\">%s</div>", Esc(id.Name), line, Math(NameML(id.Name)+"<mo>=</mo>"+ValueML(&e, x.Display, w.Digits(), false)+SenseML(&e)))
+						w.Printf("<div data-value=\"%s\">%s</div>", Esc(id.Name), Math(NameML(id.Name)+"<mo>=</mo>"+ValueML(&e, x.Display, w.Digits(), false)+SenseML(&e)))
 					}
 				}
 			} else {
@@ -242,11 +287,11 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 					disp = bd.Display
 				}
 				if res.Cases != nil {
-					w.caseResults(x.Names[0].Name, line, res.Cases, disp)
+					w.caseResults(x.Names[0].Name, res.Cases, disp)
 				} else {
-					w.resultOpen(x.Names[0].Name, line)
+					w.resultOpen(x.Names[0].Name)
 					w.WriteString("<math><mo>=</mo>")
-					w.writeValue(s, res.Value, disp)
+					w.writeResult(s, res.Value, disp)
 					w.WriteString(SenseML(res.Value))
 					w.WriteString("</math></div>")
 				}
@@ -314,9 +359,9 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 				w.MathRow("s", "<mo>=</mo>", s, x.X)
 			}
 			if res.Cases != nil {
-				w.caseResults("", line, res.Cases, res.Display)
+				w.caseResults("", res.Cases, res.Display)
 			} else {
-				w.resultOpen("", line)
+				w.resultOpen("")
 				w.WriteString("<math><mo>=</mo>")
 				w.WriteString(ValueML(res.Value, res.Display, w.Digits(), false))
 				w.WriteString(SenseML(res.Value))
@@ -328,7 +373,7 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 	case *expr.BadStmt:
 		w.Printf("<div class=\"f\"><code>%s</code></div>", Esc(st.Text))
 	case *expr.Use:
-		w.useRows(st, line)
+		w.useRows(st)
 	}
 	if ok && res != nil {
 		w.LookupRows(res.Trace)
@@ -339,9 +384,7 @@ func (w *Writer) Stmt(st *calcdoc.Stmt) {
 	if st.Unavailable != nil {
 		w.UnavailableRow(st.Unavailable)
 	}
-	w.WriteString("</div><div class=\"desc\">")
-	w.WriteString(Esc(st.Stmt.Desc()))
-	w.WriteString("</div></div>\n")
+	w.RowClose(st.Stmt.Desc(), wide)
 }
 
 func joinNames(ids []*expr.Ident) string {

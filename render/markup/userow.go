@@ -10,7 +10,7 @@ import (
 // shown as the other sheet shows it, and where it comes from (the other
 // sheet's number, revision and title, the line of the definition, the
 // first 12 hex digits of its source's SHA-256, and a link to its sheet).
-func (w *Writer) useRows(st *calcdoc.Stmt, line int) {
+func (w *Writer) useRows(st *calcdoc.Stmt) {
 	w.Printf("<div class=\"f\"><code>%s</code></div>", Esc(st.Text))
 	u := st.Use
 	if u == nil || u.Sheet == nil {
@@ -22,11 +22,11 @@ func (w *Writer) useRows(st *calcdoc.Stmt, line int) {
 			continue
 		}
 		v := b.Value
-		w.MathDiv("r", resultAttrs(b.Local, line), func() {
-			w.WriteString(NameML(b.Local) + "<mo>=</mo>")
-			w.WriteString(ValueML(v.Value, v.Display, w.Digits(), false))
-			w.WriteString(SenseML(v.Value))
-		})
+		w.WriteString("<div" + resultAttrs(b.Local) + "><math>")
+		w.WriteString(NameML(b.Local) + "<mo>=</mo>")
+		w.WriteString(ValueML(v.Value, v.Display, w.Digits(), false))
+		w.WriteString(SenseML(v.Value))
+		w.WriteString("</math></div>")
 		w.KindNote(v.Value)
 		named := ""
 		if b.Name != b.Local {

@@ -367,14 +367,25 @@ type item struct {
 
 func (it item) key() string { return it.kind + "\x00" + it.name + "\x00" + strconv.Itoa(it.line) }
 
-// items lists the page's result rows (data-value with data-line) and check
-// rows (data-check, whose value is the line) in page order, each with the
-// plain text of its content.
+// items lists the page's result rows (data-value with data-line, or
+// within a row carrying data-line: a statement's result lines leave the
+// line to their row) and check rows (data-check, whose value is the
+// line) in page order, each with the plain text of its content.
 func items(page []byte) []item {
 	var out []item
+	rowLine, rowEnd := "", 0 // the data-line of the row the elements are in
 	for _, e := range elements(page) {
+		if e.start >= rowEnd {
+			rowLine = ""
+		}
+		if e.name == "div" && strings.HasPrefix(e.attr["class"], "row") {
+			rowLine, rowEnd = e.attr["data-line"], e.content+len(e.raw)
+		}
 		it := item{kind: "value", name: e.attr["data-value"]}
-		lineAttr := e.attr["data-line"]
+		lineAttr, own := e.attr["data-line"]
+		if !own {
+			lineAttr = rowLine
+		}
 		switch {
 		case e.hasAttr("data-check"):
 			it = item{kind: "check"}

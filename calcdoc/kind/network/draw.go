@@ -31,7 +31,7 @@ func drawNetwork(w *markup.Writer, b *calcdoc.Block) {
 	w.Printf("<div class=\"block network\" id=\"B%d\">\n", b.Pos.Line())
 	w.WriteString("<div class=\"bhead\">network</div>\n")
 	line := b.InfoPos.Line()
-	w.Printf("<div class=\"row unk\" id=\"L%d\"><div class=\"ln\">%d</div><div class=\"math\"><div class=\"f\"><span class=\"kindtag\">network</span>", line, line)
+	w.Printf("<div class=\"row unk\" id=\"L%d\"><div class=\"ln\">%d</div><div><div class=\"f\"><span class=\"kindtag\">network</span>", line, line)
 	if b.Arg != "" {
 		w.WriteString(" <code>" + markup.Esc(b.Arg) + "</code>")
 	}

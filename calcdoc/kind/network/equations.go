@@ -92,7 +92,7 @@ func sum(terms []string, negs []bool) string {
 
 // eqRow writes one equation row: its line, its MathML and what it is.
 func eqRow(w *markup.Writer, line int, ml, desc string) {
-	w.Printf("<div class=\"row eq\"><div class=\"ln\">%d</div><div class=\"math\"><div class=\"f\">", line)
+	w.Printf("<div class=\"row eq\"><div class=\"ln\">%d</div><div><div class=\"f\">", line)
 	w.WriteString(markup.Math(ml))
 	w.WriteString("</div></div><div class=\"desc\">")
 	w.WriteString(markup.Esc(desc))

@@ -165,7 +165,7 @@ func valueML(w *markup.Writer, name string, v *expr.Scalar) string {
 func solutionRow(w *markup.Writer, b *calcdoc.Block, res *Result) {
 	lines := defLines(res)
 	s, t, n := res.Solution, res.Topo, res.Net
-	w.Printf("<div class=\"row sol\"><div class=\"ln\">%d</div><div class=\"math\">", b.InfoPos.Line())
+	w.Printf("<div class=\"row sol\"><div class=\"ln\">%d</div><div>", b.InfoPos.Line())
 	for i, nd := range t.Nodes {
 		if t.Ground[i] {
 			continue

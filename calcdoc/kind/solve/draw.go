@@ -39,7 +39,7 @@ func renderSolve(w *markup.Writer, b *calcdoc.Block) {
 
 	// the unknowns
 	line := b.InfoPos.Line()
-	w.Printf("<div class=\"row unk\" id=\"L%d\"><div class=\"ln\">%d</div><div class=\"math\"><div class=\"f\">", line, line)
+	w.Printf("<div class=\"row unk\" id=\"L%d\"><div class=\"ln\">%d</div><div><div class=\"f\">", line, line)
 	if len(set.Unknowns) == 0 {
 		w.WriteString("<span class=\"kindtag\">solve</span> <code>" + markup.Esc(b.Arg) + "</code>")
 	} else {
@@ -66,7 +66,7 @@ func renderSolve(w *markup.Writer, b *calcdoc.Block) {
 			w.Printf("<div class=\"row note\" id=\"L%d\"><div class=\"ln\">%d</div><div class=\"txt\">%s</div></div>\n", ln, ln, markup.Esc(s.Text))
 			continue
 		case *expr.Equation:
-			w.Printf("<div class=\"row eq\" id=\"L%d\"><div class=\"ln\">%d</div><div class=\"math\">", ln, ln)
+			w.Printf("<div class=\"row eq\" id=\"L%d\"><div class=\"ln\">%d</div><div>", ln, ln)
 			label := ""
 			if s.Label != nil {
 				label = "<b class=\"eqlabel\">" + markup.Esc(s.Label.Name) + ":</b> "
@@ -91,7 +91,7 @@ func renderSolve(w *markup.Writer, b *calcdoc.Block) {
 				w.WriteString(tail + "</div>")
 			}
 		default:
-			w.Printf("<div class=\"row eq\" id=\"L%d\"><div class=\"ln\">%d</div><div class=\"math\"><div class=\"f\"><code>%s</code></div>", ln, ln, markup.Esc(l.Text))
+			w.Printf("<div class=\"row eq\" id=\"L%d\"><div class=\"ln\">%d</div><div><div class=\"f\"><code>%s</code></div>", ln, ln, markup.Esc(l.Text))
 		}
 		for _, e := range l.Errs {
 			w.ErrorRow(e)
@@ -276,7 +276,7 @@ func solvedParts(w *markup.Writer, b *calcdoc.Block, set *SolveSet) {
 	partClose(w)
 
 	// the solution
-	w.Printf("<div class=\"row sol\"><div class=\"ln\">%d</div><div class=\"math\">", line)
+	w.Printf("<div class=\"row sol\"><div class=\"ln\">%d</div><div>", line)
 	for _, u := range set.Unknowns {
 		disp := u.Display
 		if b := w.Doc.Env.Lookup(u.Name); b != nil && b.Cases != nil {

@@ -115,7 +115,7 @@ func sweepLineRow(w *markup.Writer, l *SweepLine) {
 		w.Printf("<div class=\"row note\" id=\"L%d\"><div class=\"ln\">%d</div><div class=\"txt\">%s</div></div>\n", line, line, markup.Esc(n.Text))
 		return
 	}
-	w.Printf("<div class=\"row\" id=\"L%d\"><div class=\"ln\">%d</div><div class=\"math\">", line, line)
+	w.Printf("<div class=\"row\" id=\"L%d\"><div class=\"ln\">%d</div><div>", line, line)
 	f := w.ExprMLFor(false, nil)
 	switch {
 	case l.X != nil && l.Name != "":
