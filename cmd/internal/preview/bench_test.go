@@ -15,6 +15,7 @@ import (
 	"calcdoc/calcdoc"
 	"calcdoc/calcdoc/kind"
 	"calcdoc/cmd/internal/build"
+	"calcdoc/expr"
 )
 
 // bigDoc is a document of exactly 1,000 statements in ten calc blocks with
@@ -185,4 +186,27 @@ func (h *harness) getSized(path string) (int, []byte) {
 		h.t.Fatalf("GET %s: reading the body: %v", path, err)
 	}
 	return resp.StatusCode, buf.Bytes()
+}
+
+// BenchmarkRebuild is the preview's work for one save of a
+// 10,000-statement document whose last block changed, without the file
+// system and HTTP: calcdoc.Reevaluate from the save before, the sheet
+// with the drawings of the blocks taken over, and the patch from the page
+// before.
+//
+//	go test -run '^$' -bench Rebuild -cpuprofile cpu.out ./cmd/internal/preview/
+func BenchmarkRebuild(b *testing.B) {
+	w := &Watcher{boot: "bench"}
+	j := &evalJob{key: "big.html", file: "/bench/big.md", rel: "big.md", display: "big.md", src: []byte(longDoc(0, 100, true))}
+	p, _, next := w.evaluate(j, expr.NewBudget(expr.DefaultBudget), nil)
+	b.ResetTimer()
+	for k := 1; k <= b.N; k++ {
+		j := &evalJob{key: j.key, file: j.file, rel: j.rel, display: j.display, src: []byte(longDoc(k, 100, true))}
+		q, _, nb := w.evaluate(j, expr.NewBudget(expr.DefaultBudget), next)
+		q.before = &page{version: p.version, body: p.body, lay: p.lay}
+		if q.before.patchTo(q) == nil {
+			b.Fatal("no patch")
+		}
+		p, next = q, nb
+	}
 }

@@ -127,6 +127,7 @@ func (w *Watcher) evalWorker(key string, st *evalState) {
 
 		p, line, next := w.evaluate(j, budget, b)
 
+		var shown *page // the page served now, when a patch can lead to it
 		w.mu.Lock()
 		st.budget = nil // done: a newer save stops none (and the base stays whole)
 		if !st.dropped {
@@ -142,7 +143,8 @@ func (w *Watcher) evalWorker(key string, st *evalState) {
 		default:
 			if cur := w.docs[key]; cur == nil || cur.file == j.file {
 				if cur != nil && cur.status == 200 && p.status == 200 {
-					p.before = &page{version: cur.version, body: cur.body}
+					p.before = &page{version: cur.version, body: cur.body, lay: cur.lay}
+					shown = p
 				}
 				w.docs[key] = p
 				// the sheets that use this one are evaluated again when
@@ -154,6 +156,11 @@ func (w *Watcher) evalWorker(key string, st *evalState) {
 		w.mu.Unlock()
 		if line != "" {
 			w.logf("%s", line)
+		}
+		if shown != nil && shown.before.lay.known.Load() {
+			// the patch an open page asks for next reads only the
+			// part of the page that changed (layout.go)
+			shown.layoutOf(shown.before)
 		}
 	}
 }
@@ -176,7 +183,7 @@ func (w *Watcher) evaluate(j *evalJob, budget *expr.Budget, b *base) (*page, str
 	}
 	doc := calcdoc.Reevaluate(prev, j.display, j.src, blockkind.Standard(), in)
 	next.doc = doc
-	p := &page{key: j.key, file: j.file, display: j.display, src: j.src, status: 200, version: w.nextVersion(), at: j.at,
+	p := &page{key: j.key, file: j.file, display: j.display, src: j.src, status: 200, version: w.nextVersion(), at: j.at, lay: &layoutCell{},
 		values: len(doc.Values), checks: len(doc.Checks), failed: doc.FailedChecks(),
 		errors: len(doc.Errors), warning: len(doc.Warnings)}
 	switch {

@@ -146,12 +146,13 @@ type Watcher struct {
 
 // page is what is served for one document: its latest evaluation.
 type page struct {
-	key     string // address, e.g. "sub/feeder.html"
-	file    string // absolute path of the file
-	display string // the path shown: the PATH given joined with the file's path below it
-	src     []byte // the bytes evaluated; nil when the file could not be read
-	body    []byte // the HTML served
-	before  *page  // the page before it (version and body only), for patches (patch.go)
+	key     string      // address, e.g. "sub/feeder.html"
+	file    string      // absolute path of the file
+	display string      // the path shown: the PATH given joined with the file's path below it
+	src     []byte      // the bytes evaluated; nil when the file could not be read
+	body    []byte      // the HTML served
+	before  *page       // the page before it (version, body and layout only), for patches (patch.go)
+	lay     *layoutCell // its elements, for patches (layout.go); nil for a page no patch says
 
 	patchOnce sync.Once // of a page before: the patch to the page after it, made once
 	patch     []byte
