@@ -278,7 +278,8 @@ func (w *Watcher) Close() error {
 // Run handles file-system events until ctx ends or Close is called, then
 // closes the watcher. A burst of events is handled once it has been quiet
 // for Quiet, or MaxDelay after its first event, whichever comes first, or
-// at once when a file it names is closed after writing (Linux).
+// at once when a file it names is closed after writing or renamed into
+// place (Linux).
 func (w *Watcher) Run(ctx context.Context) error {
 	defer w.Close()
 	timer := time.NewTimer(time.Hour)
