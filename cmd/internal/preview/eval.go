@@ -48,12 +48,17 @@ type evalState struct {
 }
 
 // sameAsLatest reports whether src is what the document's newest save,
-// evaluated or being evaluated, holds.
+// evaluated or being evaluated, holds. cur is the page served when the
+// file was about to be read; an evaluation may have ended since, its page
+// now served (for the same file): the newest then.
 func (w *Watcher) sameAsLatest(key string, cur *page, src []byte) bool {
 	w.mu.RLock()
 	defer w.mu.RUnlock()
 	if st := w.evals[key]; st != nil {
 		return bytes.Equal(st.latest, src)
+	}
+	if p := w.docs[key]; p != nil && cur != nil && p.file == cur.file {
+		cur = p
 	}
 	return cur != nil && cur.src != nil && bytes.Equal(cur.src, src)
 }

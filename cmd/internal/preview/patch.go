@@ -177,11 +177,11 @@ func children(elem []byte) (tag, id string, kids [][]byte, ok bool) {
 			return "", "", nil, false
 		}
 		raw := z.Raw()
-		name, _ := z.TagName()
 		switch tt {
 		case html.StartTagToken, html.SelfClosingTagToken:
+			name := tagName(raw)
 			if depth == 0 {
-				if tt != html.StartTagToken || voids[string(name)] {
+				if tt != html.StartTagToken || isVoid(name) {
 					return "", "", nil, false
 				}
 				tag = string(raw)
@@ -198,7 +198,7 @@ func children(elem []byte) (tag, id string, kids [][]byte, ok bool) {
 				}
 				start = off
 			}
-			if tt == html.StartTagToken && !voids[string(name)] {
+			if tt == html.StartTagToken && !isVoid(name) {
 				depth++
 			}
 		case html.EndTagToken:
