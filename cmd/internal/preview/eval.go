@@ -77,6 +77,7 @@ func (w *Watcher) startEval(j *evalJob) {
 	}
 	st = &evalState{next: j, latest: j.src, since: j.at, file: j.file, display: j.display}
 	w.evals[j.key] = st
+	w.busyLocked()
 	w.workers.Add(1)
 	go w.evalWorker(j.key, st)
 }
@@ -121,6 +122,7 @@ func (w *Watcher) evalWorker(key string, st *evalState) {
 		if j == nil {
 			delete(w.evals, key)
 			w.wakeLocked() // the banner goes
+			w.idleLocked()
 			w.mu.Unlock()
 			return
 		}

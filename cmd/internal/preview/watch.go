@@ -87,6 +87,10 @@ type Config struct {
 	// from reading the sheets through a host name that it points at this
 	// machine (DNS rebinding), on loopback and on the network alike.
 	AllowHosts []string
+	// CollectWhenIdle makes the watcher collect garbage once every
+	// evaluation is done and it has been idle for IdleGC (idlegc.go), so
+	// that the collector runs between saves rather than during one.
+	CollectWhenIdle bool
 }
 
 // ConfigError is a bad Config: a missing PATH, a file that is not .md, an
@@ -140,6 +144,9 @@ type Watcher struct {
 	shadowList map[string][]string   // a copy of shadow, for the listing
 	listVer    string                // version of the listing
 	tick       chan struct{}         // closed and replaced on every change
+	gcTimer    *time.Timer           // the idle collection (idlegc.go)
+	gcAllocs   atomic.Uint64         // the bytes allocated at the last idle collection
+	idleGCs    atomic.Int64          // the idle collections made
 	done       chan struct{}         // closed by Close
 	once       sync.Once
 }
@@ -268,6 +275,9 @@ func (w *Watcher) Close() error {
 	var err error
 	w.once.Do(func() {
 		close(w.done)
+		w.mu.Lock()
+		w.busyLocked() // no idle collection after the end
+		w.mu.Unlock()
 		err = w.fsw.Close()
 		w.cw.close()
 		w.workers.Wait()
