@@ -13,7 +13,6 @@ import (
 	"os/exec"
 	"path/filepath"
 	"regexp"
-	"runtime"
 	"strconv"
 	"strings"
 	"sync"
@@ -407,10 +406,6 @@ func runWatch(calcdoc, dir string, d *watchDoc, saves int, write string, timeout
 				res.reloads++
 			}
 		}
-		// the tool's own garbage (the page just read) is collected now,
-		// between saves, not during the next one's timing
-		page = ""
-		runtime.GC()
 		time.Sleep(settle)
 		for drained := false; !drained; { // late events of this save: followed, untimed
 			select {
