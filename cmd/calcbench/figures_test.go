@@ -301,8 +301,13 @@ func TestWatchDriver(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			if len(r.lat) != 3 || len(r.full) != 3 || r.events < 3 || r.statements != 60 {
-				t.Errorf("%d latencies, %d page GETs, %d events, %d statements; want 3, 3, at least 3, 60", len(r.lat), len(r.full), r.events, r.statements)
+			if len(r.lat) != 3 || len(r.full) != 3 || len(r.writes) != 3 || r.events < 3 || r.statements != 60 {
+				t.Errorf("%d latencies, %d page GETs, %d writes, %d events, %d statements; want 3, 3, 3, at least 3, 60", len(r.lat), len(r.full), len(r.writes), r.events, r.statements)
+			}
+			for i := range r.writes {
+				if !(r.writes[i] > 0 && r.writes[i] <= r.lat[i]) {
+					t.Errorf("save %d: writing took %v of a latency of %v", i, r.writes[i], r.lat[i])
+				}
 			}
 			if r.reloads != 0 || r.pageBytes == 0 {
 				t.Errorf("%d reloads, a page of %d bytes; want none, and the page", r.reloads, r.pageBytes)

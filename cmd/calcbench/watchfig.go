@@ -237,6 +237,7 @@ type watchResult struct {
 	reloads            int       // timed saves whose patch was refused, so that the page was fetched whole
 	late               int       // new versions announced after the one that showed a timed save
 	full               []float64 // seconds, one a timed save: a GET of the whole page after it, for information
+	writes             []float64 // seconds, one a timed save: writing the file (part of lat), for information
 	pageBytes          int       // the size of the page, at the last save
 	loadStart, loadEnd string
 }
@@ -342,6 +343,7 @@ func runWatch(calcdoc, dir string, d *watchDoc, saves int, write string, timeout
 		if err := saveFile(path, src, write); err != nil {
 			return nil, err
 		}
+		wrote := time.Since(began)
 		events, pending, reloaded := 0, 0, false
 		for shown := false; !shown; {
 			var to string
@@ -399,6 +401,7 @@ func runWatch(calcdoc, dir string, d *watchDoc, saves int, write string, timeout
 		if s > watchWarmups {
 			res.lat = append(res.lat, took.Seconds())
 			res.full = append(res.full, full.Seconds())
+			res.writes = append(res.writes, wrote.Seconds())
 			res.events += events
 			res.pending += pending
 			res.pageBytes = len(page)
