@@ -123,8 +123,14 @@ func (d *Document) Redefines(b *Block) bool {
 	if len(d.redefined) == 0 {
 		return false
 	}
-	for k := range b.mentions() {
-		if d.redefined[k] {
+	// the smaller set is walked, the larger looked up
+	m := b.mentions()
+	small, large := m, d.redefined
+	if len(large) < len(small) {
+		small, large = large, small
+	}
+	for k := range small {
+		if large[k] {
 			return true
 		}
 	}

@@ -1,5 +1,7 @@
 package expr
 
+import "maps"
+
 // An incremental evaluation (calcdoc) starts again from the first block of
 // a document that changed, with the names defined above it. Names are
 // defined once and never removed, and a block defines its names at
@@ -13,16 +15,32 @@ package expr
 // and cases; its budget is nil (the caller gives one) and its current
 // case the first. e is not changed.
 func (e *Env) Fork(keep func(Pos) bool) *Env {
-	f := &Env{vars: make(map[string]*Binding, len(e.vars)), funcs: map[string]*Func{}, Preferred: e.Preferred, Cases: e.Cases}
+	// Cloned whole and thinned: a copy of the table is cheaper than
+	// inserting every name again, and an edit near the end leaves out few.
+	f := &Env{vars: maps.Clone(e.vars), funcs: map[string]*Func{}, Preferred: e.Preferred, Cases: e.Cases}
+	if f.vars == nil {
+		f.vars = map[string]*Binding{}
+	}
+	// the names left out, as written: Define gives each key one name in
+	// order, so a name written alike is the same binding
+	var out map[string]bool
 	for k, b := range e.vars {
-		if keep(b.Pos) {
-			f.vars[k] = b
+		if !keep(b.Pos) {
+			delete(f.vars, k)
+			if out == nil {
+				out = map[string]bool{}
+			}
+			out[b.Name] = true
 		}
 	}
-	f.order = make([]string, 0, len(f.vars))
-	for _, n := range e.order {
-		if b := e.vars[NameKey(n)]; b != nil && keep(b.Pos) {
-			f.order = append(f.order, n)
+	if out == nil {
+		f.order = append(make([]string, 0, len(e.order)), e.order...)
+	} else {
+		f.order = make([]string, 0, len(f.vars))
+		for _, n := range e.order {
+			if !out[n] {
+				f.order = append(f.order, n)
+			}
 		}
 	}
 	for k, fn := range e.funcs {

@@ -140,7 +140,7 @@ func (b *bench) figure3() (target, error) {
 
 func (b *bench) figure4() ([]target, error) {
 	o := b.o
-	fmt.Fprintf(b.out, "\n4. calcdoc watch, save to page: %d saves (%s) of the last block's route length, after %d untimed; each until the change event and a GET showing the new value\n",
+	fmt.Fprintf(b.out, "\n4. calcdoc watch, save to page: %d saves (%s) of the last block's route length, after %d untimed; each until the change event and the patch the page then fetches (/_patch) showing the new value\n",
 		o.saves, o.watchWrite, watchWarmups)
 	var out []target
 	for _, n := range o.watchSizes {
@@ -151,8 +151,14 @@ func (b *bench) figure4() ([]target, error) {
 		p50, _ := Quantile(r.lat, 0.5)
 		p95, _ := Quantile(r.lat, 0.95)
 		pmax, _ := Quantile(r.lat, 1)
-		fmt.Fprintf(b.out, "   %s statements: p50 %s, p95 %s, max %s; %d change events for %d saves; load average %s at the start, %s at the end\n",
-			thousands(n), ms(p50), ms(p95), ms(pmax), r.events, len(r.lat), r.loadStart, r.loadEnd)
+		fmt.Fprintf(b.out, "   %s statements: p50 %s, p95 %s, max %s; %d change events to a new version and %d to a save being evaluated for %d saves, %d reloads, %d late versions; load average %s at the start, %s at the end\n",
+			thousands(n), ms(p50), ms(p95), ms(pmax), r.events, r.pending, len(r.lat), r.reloads, r.late, r.loadStart, r.loadEnd)
+		f50, _ := Quantile(r.full, 0.5)
+		f95, _ := Quantile(r.full, 0.95)
+		w95, _ := Quantile(r.writes, 0.95)
+		wmax, _ := Quantile(r.writes, 1)
+		fmt.Fprintf(b.out, "     for information, a GET of the whole page (%s) after each save: p50 %s, p95 %s; writing the file (timed in the latency): p95 %s, max %s\n",
+			mbBytes(r.pageBytes), ms(f50), ms(f95), ms(w95), ms(wmax))
 		t := target{fig: "4", what: fmt.Sprintf("watch save to page p95, %s statements, edit in the last block", thousands(n)),
 			measured: fmt.Sprintf("p50 %s, p95 %s, max %s (%d saves, %s)", ms(p50), ms(p95), ms(pmax), len(r.lat), o.watchWrite),
 			ratio:    "—", load: loadSpan(r.loadStart, r.loadEnd), command: figureCommand("4")}

@@ -283,8 +283,9 @@ func buildCalcdocBinary(t *testing.T) string {
 
 // TestWatchDriver runs the watch figure's driver against a real `calcdoc
 // watch` child process on a small document, with both ways of saving:
-// every save is seen through the event stream and the page, one
-// latency a timed save.
+// every save is seen through the event stream and shown by the patch the
+// page's script fetches (never by a reload: the version before is always
+// the one shown), one latency and one whole-page GET a timed save.
 func TestWatchDriver(t *testing.T) {
 	if testing.Short() {
 		t.Skip("builds calcdoc and runs calcdoc watch")
@@ -300,12 +301,20 @@ func TestWatchDriver(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			if len(r.lat) != 3 || r.events < 3 || r.statements != 60 {
-				t.Errorf("%d latencies, %d events, %d statements; want 3, at least 3, 60", len(r.lat), r.events, r.statements)
+			if len(r.lat) != 3 || len(r.full) != 3 || len(r.writes) != 3 || r.events < 3 || r.statements != 60 {
+				t.Errorf("%d latencies, %d page GETs, %d writes, %d events, %d statements; want 3, 3, 3, at least 3, 60", len(r.lat), len(r.full), len(r.writes), r.events, r.statements)
 			}
-			for _, l := range r.lat {
-				if !(l > 0) {
-					t.Errorf("latency %v", l)
+			for i := range r.writes {
+				if !(r.writes[i] > 0 && r.writes[i] <= r.lat[i]) {
+					t.Errorf("save %d: writing took %v of a latency of %v", i, r.writes[i], r.lat[i])
+				}
+			}
+			if r.reloads != 0 || r.pageBytes == 0 {
+				t.Errorf("%d reloads, a page of %d bytes; want none, and the page", r.reloads, r.pageBytes)
+			}
+			for i, l := range r.lat {
+				if !(l > 0) || !(r.full[i] > 0) {
+					t.Errorf("save %d: latency %v, page GET %v", i, l, r.full[i])
 				}
 			}
 		})

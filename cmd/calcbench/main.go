@@ -25,8 +25,10 @@
 //     Python, medians of -solve-runs, the two solutions compared first
 //     (goal 3 or less); both whole processes reported beside it;
 //  4. `calcdoc watch` save-to-page latency at each of -watch-sizes
-//     statements, an edit in the last block, -saves saves: p50, p95, max
-//     (goal p95 50 ms at 1,000 statements, 80 ms at 10,000);
+//     statements, an edit in the last block, -saves saves, each until the
+//     patch the page's script fetches shows it: p50, p95, max (goal p95
+//     50 ms at 1,000 statements, 80 ms at 10,000), and a GET of the whole
+//     page for information;
 //  5. the peak memory (max RSS) of `calcdoc build` at -large statements,
 //     from figure 2's runs (goal 80 MB or less).
 //

@@ -3,6 +3,7 @@ package main
 import (
 	"bufio"
 	"context"
+	"encoding/json"
 	"errors"
 	"fmt"
 	"io"
@@ -21,8 +22,9 @@ import (
 // Figure 4 drives the real `calcdoc watch` as a child process, as an
 // editor and a browser would: it saves the document (atomically, a new
 // file renamed over the old one, or in place) and times each save until
-// the page's event stream has announced a change and a GET of the page
-// returns the sheet showing the edited value.
+// the page's event stream has announced the new version and the patch the
+// page's script then fetches (/_patch) shows the edited value. A GET of
+// the whole page after each save is timed apart, for information.
 
 // watchDoc is a document of n statements for the watch figure: the feeder
 // schedule alone (Generate with no network), whose last calc block holds
@@ -229,8 +231,14 @@ func (w *watchChild) events(ctx context.Context, doc, version string) (<-chan st
 // watchResult is what figure 4 measured at one size.
 type watchResult struct {
 	statements         int
-	lat                []float64 // seconds, one a timed save
-	events             int       // "change" events received during the timed saves
+	lat                []float64 // seconds, one a timed save: from the save to the patch showing it
+	events             int       // "change" events to a new version received during the timed saves
+	pending            int       // "change" events that a newer save is being evaluated (no fetch)
+	reloads            int       // timed saves whose patch was refused, so that the page was fetched whole
+	late               int       // new versions announced after the one that showed a timed save
+	full               []float64 // seconds, one a timed save: a GET of the whole page after it, for information
+	writes             []float64 // seconds, one a timed save: writing the file (part of lat), for information
+	pageBytes          int       // the size of the page, at the last save
 	loadStart, loadEnd string
 }
 
@@ -255,9 +263,53 @@ func (b *bench) watchFigure(n, saves int) (*watchResult, error) {
 	return runWatch(b.calcdoc, dir, d, saves, b.o.watchWrite, b.o.timeout)
 }
 
+// pendingSuffix ends the data of a "change" event that says a newer save
+// is being evaluated (the page's script then shows a banner and fetches
+// nothing): cmd/internal/preview's pendingVersion.
+const pendingSuffix = "-evaluating"
+
+// livePatch is the answer of /_patch: the version it leads to and the
+// elements it replaces (cmd/internal/preview's patch).
+type livePatch struct {
+	V   string `json:"v"`
+	Ops []struct {
+		In   string `json:"in"`
+		At   int    `json:"at"`
+		Del  int    `json:"del"`
+		HTML string `json:"html"`
+	} `json:"ops"`
+}
+
+// patch asks for the patch from the version a page shows, as the page's
+// script does on a "change" event: the patch, or nil when the server
+// refuses it (409: the script then reloads the page).
+func (w *watchChild) patch(ctx context.Context, doc, from string, timeout time.Duration) (*livePatch, error) {
+	st, body, err := w.get(ctx, "/_patch?doc="+url.QueryEscape(doc)+"&from="+url.QueryEscape(from), timeout)
+	if err != nil {
+		return nil, err
+	}
+	switch st {
+	case http.StatusOK:
+		var p livePatch
+		if err := json.Unmarshal([]byte(body), &p); err != nil {
+			return nil, fmt.Errorf("the patch from %s: %v", from, err)
+		}
+		return &p, nil
+	case http.StatusConflict:
+		return nil, nil
+	}
+	return nil, fmt.Errorf("the patch from %s: status %d: %s", from, st, body)
+}
+
 // runWatch writes d into dir, starts `calcdoc watch` on dir and times
 // saves saves (after watchWarmups untimed ones), each written the way
-// write says ("atomic" or "inplace").
+// write says ("atomic" or "inplace"). Each save is followed as the page's
+// script follows it: a "change" event whose data marks a newer save being
+// evaluated is passed over; on one to a new version the patch from the
+// version shown is fetched, and the clock stops once a patch shows the
+// edited value (where the server refuses the patch, the script reloads:
+// the page is fetched whole and must show it). After each save the whole
+// page is fetched once more, and that GET timed on its own.
 func runWatch(calcdoc, dir string, d *watchDoc, saves int, write string, timeout time.Duration) (*watchResult, error) {
 	path := filepath.Join(dir, "doc.md")
 	if err := os.WriteFile(path, []byte(d.edit(editValue(0))), 0o644); err != nil {
@@ -278,7 +330,8 @@ func runWatch(calcdoc, dir string, d *watchDoc, saves int, write string, timeout
 	if st != http.StatusOK || m == nil || !d.shows(page, editValue(0)) {
 		return nil, fmt.Errorf("calcdoc watch does not serve the document at /doc.html (status %d):\n%s", st, w.lastOutput())
 	}
-	ch, err := w.events(ctx, "/doc.html", m[1])
+	version := m[1] // the version the page shows
+	ch, err := w.events(ctx, "/doc.html", version)
 	if err != nil {
 		return nil, err
 	}
@@ -290,32 +343,93 @@ func runWatch(calcdoc, dir string, d *watchDoc, saves int, write string, timeout
 		if err := saveFile(path, src, write); err != nil {
 			return nil, err
 		}
-		events := 0
+		wrote := time.Since(began)
+		events, pending, reloaded := 0, 0, false
 		for shown := false; !shown; {
+			var to string
 			select {
-			case _, ok := <-ch:
+			case ev, ok := <-ch:
 				if !ok {
 					return nil, fmt.Errorf("save %d: the event stream ended:\n%s", s, w.lastOutput())
 				}
+				to = ev
 			case <-time.After(timeout):
 				return nil, fmt.Errorf("save %d: no change event within %v:\n%s", s, timeout, w.lastOutput())
 			}
+			if strings.HasSuffix(to, pendingSuffix) {
+				pending++
+				continue
+			}
 			events++
-			st, page, err := w.get(ctx, "/doc.html", timeout)
+			if to == version {
+				continue
+			}
+			p, err := w.patch(ctx, "/doc.html", version, timeout)
 			if err != nil {
 				return nil, err
 			}
-			shown = st == http.StatusOK && d.shows(page, v)
+			if p == nil { // refused: reload, as the script does
+				reloaded = true
+				st, page, err := w.get(ctx, "/doc.html", timeout)
+				if err != nil {
+					return nil, err
+				}
+				if m := liveMeta.FindStringSubmatch(page); st == http.StatusOK && m != nil {
+					version = m[1]
+					shown = d.shows(page, v)
+				}
+				continue
+			}
+			version = p.V
+			for _, op := range p.Ops {
+				if d.shows(op.HTML, v) {
+					shown = true
+				}
+			}
 		}
 		took := time.Since(began)
+		// the whole page, for information, as a reload would fetch it
+		t0 := time.Now()
+		st, page, err := w.get(ctx, "/doc.html", timeout)
+		if err != nil {
+			return nil, err
+		}
+		full := time.Since(t0)
+		if st != http.StatusOK || !d.shows(page, v) {
+			return nil, fmt.Errorf("save %d: its patch shows %s = %d m, but the page does not (status %d)", s, d.name, v, st)
+		}
 		if s > watchWarmups {
 			res.lat = append(res.lat, took.Seconds())
+			res.full = append(res.full, full.Seconds())
+			res.writes = append(res.writes, wrote.Seconds())
 			res.events += events
+			res.pending += pending
+			res.pageBytes = len(page)
+			if reloaded {
+				res.reloads++
+			}
 		}
 		time.Sleep(settle)
-		for drained := false; !drained; { // late events of this save
+		for drained := false; !drained; { // late events of this save: followed, untimed
 			select {
-			case <-ch:
+			case ev := <-ch:
+				if strings.HasSuffix(ev, pendingSuffix) || ev == version {
+					continue
+				}
+				if s > watchWarmups {
+					res.late++
+				}
+				p, err := w.patch(ctx, "/doc.html", version, timeout)
+				if err != nil {
+					return nil, err
+				}
+				if p != nil {
+					version = p.V
+				} else if st, page, err := w.get(ctx, "/doc.html", timeout); err == nil && st == http.StatusOK {
+					if m := liveMeta.FindStringSubmatch(page); m != nil {
+						version = m[1]
+					}
+				}
 			default:
 				drained = true
 			}

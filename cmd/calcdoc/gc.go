@@ -37,13 +37,18 @@ const (
 
 // tuneGC applies the setting above unless the user set GOGC or GOMEMLIMIT.
 func tuneGC() {
-	if os.Getenv("GOGC") != "" || os.Getenv("GOMEMLIMIT") != "" {
+	if userGC() {
 		return
 	}
 	debug.SetGCPercent(-1)
 	debug.SetMemoryLimit(gcSoftLimit)
 	watchGC()
 }
+
+// userGC reports whether the user set the collector (GOGC or GOMEMLIMIT
+// in the environment): then the command changes nothing, and `watch`
+// does not collect when idle either (preview.Config.CollectWhenIdle).
+func userGC() bool { return os.Getenv("GOGC") != "" || os.Getenv("GOMEMLIMIT") != "" }
 
 // watchGC runs after each collection (a cleanup of an object nobody
 // holds runs once a collection has found it unreachable) and hands the

@@ -53,6 +53,9 @@ func (c *cli) watch(args []string) int {
 		Built:      sheetOptions,
 		Log:        c.stdout,
 		AllowHosts: allow,
+		// a long-lived process: collect between saves (gc.go's setting
+		// besides; docs/watch.md, "Latency")
+		CollectWhenIdle: !userGC(),
 	})
 	if err != nil {
 		ln.Close()

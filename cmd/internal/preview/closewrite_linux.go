@@ -12,11 +12,13 @@ import (
 	"golang.org/x/sys/unix"
 )
 
-// closeWatch reports the files in the watched folders that a writer has
-// closed (inotify's IN_CLOSE_WRITE, which fsnotify does not pass on). An
-// editor that saves in place closes the file once the save is complete,
-// so the rebuild starts then instead of after the quiet period. It has an
-// inotify instance of its own, watching the same folders.
+// closeWatch reports the files in the watched folders whose save is
+// complete: a file a writer has closed (inotify's IN_CLOSE_WRITE, which
+// fsnotify does not pass on), and a file renamed into place
+// (IN_MOVED_TO: an editor that saves atomically writes a temporary file
+// and renames it over the document, which is then whole). The rebuild
+// starts then instead of after the quiet period. It has an inotify
+// instance of its own, watching the same folders.
 type closeWatch struct {
 	fd   int      // the inotify descriptor, for adding and removing watches
 	f    *os.File // the same, read through the runtime's poller
@@ -27,8 +29,9 @@ type closeWatch struct {
 	ch   chan closeEvent
 }
 
-// closeEvent is a file closed after writing, and the number of writes to
-// it seen then: a later write makes the event stale (closeWatch.current).
+// closeEvent is a file closed after writing or renamed into place, and
+// the number of writes to it seen then: a later write makes the event
+// stale (closeWatch.current).
 type closeEvent struct {
 	name string
 	mods uint64
@@ -61,7 +64,7 @@ func (c *closeWatch) add(dir string) {
 	if c == nil {
 		return
 	}
-	wd, err := unix.InotifyAddWatch(c.fd, dir, unix.IN_CLOSE_WRITE|unix.IN_MODIFY|unix.IN_ONLYDIR)
+	wd, err := unix.InotifyAddWatch(c.fd, dir, unix.IN_CLOSE_WRITE|unix.IN_MOVED_TO|unix.IN_MODIFY|unix.IN_ONLYDIR)
 	if err != nil {
 		return
 	}
@@ -101,8 +104,8 @@ func (c *closeWatch) close() {
 	}
 }
 
-// read passes on each file closed after writing until the instance is
-// closed. A file is dropped when the loop is busy: the quiet period
+// read passes on each file closed after writing or renamed into place
+// until the instance is closed. A file is dropped when the loop is busy: the quiet period
 // follows that save.
 func (c *closeWatch) read() {
 	buf := make([]byte, 64*(unix.SizeofInotifyEvent+unix.NAME_MAX+1))
@@ -135,7 +138,7 @@ func (c *closeWatch) read() {
 			}
 			ev := closeEvent{name: file, mods: c.mods[file]}
 			c.mu.Unlock()
-			if !ok || name == "" || mask&unix.IN_CLOSE_WRITE == 0 {
+			if !ok || name == "" || mask&(unix.IN_CLOSE_WRITE|unix.IN_MOVED_TO) == 0 {
 				continue
 			}
 			select {

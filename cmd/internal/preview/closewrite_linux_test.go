@@ -66,3 +66,69 @@ func TestCloseWatch(t *testing.T) {
 	case <-time.After(50 * time.Millisecond):
 	}
 }
+
+// TestCloseWatchRename checks that a file renamed into a watched folder
+// (over a document, as an atomic save does, or moved in from a folder not
+// watched) is reported as complete at once: inotify(7) gives the folder
+// IN_MOVED_TO with the new name for a rename to it, and nothing of the
+// target name is closed after writing.
+func TestCloseWatchRename(t *testing.T) {
+	c := newCloseWatch()
+	if c == nil {
+		t.Skip("no inotify instance")
+	}
+	defer c.close()
+	dir, away := t.TempDir(), t.TempDir()
+	c.add(dir)
+	p := filepath.Join(dir, "a.md")
+	if err := os.WriteFile(p, []byte("```calc\nx = 1\n```\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	next := func(what string) closeEvent {
+		t.Helper()
+		select {
+		case ev := <-c.closed():
+			return ev
+		case <-time.After(deadline):
+			t.Fatalf("%s: nothing reported", what)
+		}
+		return closeEvent{}
+	}
+	if ev := next("written in place"); ev.name != p {
+		t.Fatalf("written in place: reported %q, want %q", ev.name, p)
+	}
+	// an atomic save: a temporary file beside it, renamed over it
+	tmp := filepath.Join(dir, ".a.md.tmp")
+	if err := os.WriteFile(tmp, []byte("```calc\nx = 2\n```\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if ev := next("the temporary file"); ev.name != tmp {
+		t.Fatalf("the temporary file closed: reported %q, want %q", ev.name, tmp)
+	}
+	if err := os.Rename(tmp, p); err != nil {
+		t.Fatal(err)
+	}
+	if ev := next("renamed over"); ev.name != p || !c.current(ev) {
+		t.Fatalf("renamed over the document: reported %q (current %v), want %q, current", ev.name, c.current(ev), p)
+	}
+	// moved in from a folder that is not watched
+	src := filepath.Join(away, "b.md")
+	if err := os.WriteFile(src, []byte("```calc\ny = 1\n```\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.Rename(src, filepath.Join(dir, "b.md")); err != nil {
+		t.Fatal(err)
+	}
+	if ev := next("moved in"); ev.name != filepath.Join(dir, "b.md") {
+		t.Fatalf("moved in: reported %q, want %q", ev.name, filepath.Join(dir, "b.md"))
+	}
+	// moved away: no report (IN_MOVED_FROM is not asked for)
+	if err := os.Rename(filepath.Join(dir, "b.md"), filepath.Join(away, "c.md")); err != nil {
+		t.Fatal(err)
+	}
+	select {
+	case ev := <-c.closed():
+		t.Fatalf("%s reported after it was moved away", ev.name)
+	case <-time.After(50 * time.Millisecond):
+	}
+}

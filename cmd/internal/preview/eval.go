@@ -48,12 +48,17 @@ type evalState struct {
 }
 
 // sameAsLatest reports whether src is what the document's newest save,
-// evaluated or being evaluated, holds.
+// evaluated or being evaluated, holds. cur is the page served when the
+// file was about to be read; an evaluation may have ended since, its page
+// now served (for the same file): the newest then.
 func (w *Watcher) sameAsLatest(key string, cur *page, src []byte) bool {
 	w.mu.RLock()
 	defer w.mu.RUnlock()
 	if st := w.evals[key]; st != nil {
 		return bytes.Equal(st.latest, src)
+	}
+	if p := w.docs[key]; p != nil && cur != nil && p.file == cur.file {
+		cur = p
 	}
 	return cur != nil && cur.src != nil && bytes.Equal(cur.src, src)
 }
@@ -72,6 +77,7 @@ func (w *Watcher) startEval(j *evalJob) {
 	}
 	st = &evalState{next: j, latest: j.src, since: j.at, file: j.file, display: j.display}
 	w.evals[j.key] = st
+	w.busyLocked()
 	w.workers.Add(1)
 	go w.evalWorker(j.key, st)
 }
@@ -116,6 +122,7 @@ func (w *Watcher) evalWorker(key string, st *evalState) {
 		if j == nil {
 			delete(w.evals, key)
 			w.wakeLocked() // the banner goes
+			w.idleLocked()
 			w.mu.Unlock()
 			return
 		}
@@ -127,6 +134,7 @@ func (w *Watcher) evalWorker(key string, st *evalState) {
 
 		p, line, next := w.evaluate(j, budget, b)
 
+		var shown *page // the page served now, when a patch can lead to it
 		w.mu.Lock()
 		st.budget = nil // done: a newer save stops none (and the base stays whole)
 		if !st.dropped {
@@ -142,7 +150,8 @@ func (w *Watcher) evalWorker(key string, st *evalState) {
 		default:
 			if cur := w.docs[key]; cur == nil || cur.file == j.file {
 				if cur != nil && cur.status == 200 && p.status == 200 {
-					p.before = &page{version: cur.version, body: cur.body}
+					p.before = &page{version: cur.version, body: cur.body, lay: cur.lay}
+					shown = p
 				}
 				w.docs[key] = p
 				// the sheets that use this one are evaluated again when
@@ -154,6 +163,11 @@ func (w *Watcher) evalWorker(key string, st *evalState) {
 		w.mu.Unlock()
 		if line != "" {
 			w.logf("%s", line)
+		}
+		if shown != nil && shown.before.lay.known.Load() {
+			// the patch an open page asks for next reads only the
+			// part of the page that changed (layout.go)
+			shown.layoutOf(shown.before)
 		}
 	}
 }
@@ -176,7 +190,7 @@ func (w *Watcher) evaluate(j *evalJob, budget *expr.Budget, b *base) (*page, str
 	}
 	doc := calcdoc.Reevaluate(prev, j.display, j.src, blockkind.Standard(), in)
 	next.doc = doc
-	p := &page{key: j.key, file: j.file, display: j.display, src: j.src, status: 200, version: w.nextVersion(), at: j.at,
+	p := &page{key: j.key, file: j.file, display: j.display, src: j.src, status: 200, version: w.nextVersion(), at: j.at, lay: &layoutCell{},
 		values: len(doc.Values), checks: len(doc.Checks), failed: doc.FailedChecks(),
 		errors: len(doc.Errors), warning: len(doc.Warnings)}
 	switch {

@@ -94,3 +94,25 @@ func TestSlowBesideFast(t *testing.T) {
 		t.Errorf("the log does not say the superseded save's evaluation was stopped:\n%s", log)
 	}
 }
+
+// TestSameAsLatestAfterEvaluation: a file read again just as the
+// evaluation of its bytes ended (the page served when the read began is
+// the one before) is not evaluated a second time: the page served now
+// holds those bytes. A save seen twice (an atomic save's rename reported
+// by both inotify instances) once gave a second version of one save.
+func TestSameAsLatestAfterEvaluation(t *testing.T) {
+	w := &Watcher{docs: map[string]*page{}, evals: map[string]*evalState{}}
+	old := &page{key: "a.html", file: "/d/a.md", src: []byte("old")}
+	w.docs["a.html"] = &page{key: "a.html", file: "/d/a.md", src: []byte("new")}
+	if !w.sameAsLatest("a.html", old, []byte("new")) {
+		t.Error("the bytes of the page served now are taken for a change")
+	}
+	if w.sameAsLatest("a.html", old, []byte("newer")) {
+		t.Error("a change is taken for the page served now")
+	}
+	// another file at the address (an earlier PATH's) says nothing of this one
+	w.docs["a.html"] = &page{key: "a.html", file: "/e/a.md", src: []byte("new")}
+	if w.sameAsLatest("a.html", old, []byte("new")) {
+		t.Error("another file's page is taken for this file's")
+	}
+}

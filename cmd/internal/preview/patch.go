@@ -3,7 +3,6 @@ package preview
 import (
 	"bytes"
 	"encoding/json"
-	"io"
 	"net/http"
 
 	"golang.org/x/net/html"
@@ -67,7 +66,15 @@ func (w *Watcher) servePatch(rw http.ResponseWriter, r *http.Request) {
 // none can say it; made once, for every open page that asks.
 func (b *page) patchTo(p *page) []byte {
 	b.patchOnce.Do(func() {
-		pt, ok := diffPages(b.body, p.body, b.version, p.version)
+		la := b.layoutOf(nil)
+		if la == nil {
+			return
+		}
+		lb := p.layoutOf(b)
+		if lb == nil {
+			return
+		}
+		pt, ok := diffShown(la.shown(b.body), lb.shown(p.body))
 		if !ok {
 			return
 		}
@@ -95,7 +102,16 @@ type shown struct {
 func diffPages(before, now []byte, vb, vn string) (patch, bool) {
 	a, ok1 := splitPage(before, vb)
 	b, ok2 := splitPage(now, vn)
-	if !ok1 || !ok2 || !bytes.Equal(a.head, b.head) || (a.mainAt < 0) != (b.mainAt < 0) {
+	if !ok1 || !ok2 {
+		return patch{}, false
+	}
+	return diffShown(a, b)
+}
+
+// diffShown is the patch from the page before (a) to the page now (b), or
+// false when a patch cannot say it.
+func diffShown(a, b shown) (patch, bool) {
+	if !bytes.Equal(a.head, b.head) || (a.mainAt < 0) != (b.mainAt < 0) {
 		return patch{}, false
 	}
 	var pt patch
@@ -161,11 +177,11 @@ func children(elem []byte) (tag, id string, kids [][]byte, ok bool) {
 			return "", "", nil, false
 		}
 		raw := z.Raw()
-		name, _ := z.TagName()
 		switch tt {
 		case html.StartTagToken, html.SelfClosingTagToken:
+			name := tagName(raw)
 			if depth == 0 {
-				if tt != html.StartTagToken || voids[string(name)] {
+				if tt != html.StartTagToken || isVoid(name) {
 					return "", "", nil, false
 				}
 				tag = string(raw)
@@ -182,7 +198,7 @@ func children(elem []byte) (tag, id string, kids [][]byte, ok bool) {
 				}
 				start = off
 			}
-			if tt == html.StartTagToken && !voids[string(name)] {
+			if tt == html.StartTagToken && !isVoid(name) {
 				depth++
 			}
 		case html.EndTagToken:
@@ -216,70 +232,9 @@ var voids = map[string]bool{"area": true, "base": true, "br": true, "col": true,
 // of its <main class="body">, each with the text after it up to the next
 // (the line end). main stands in the body's elements as "<main>".
 func splitPage(page []byte, version string) (shown, bool) {
-	s := shown{mainAt: -1}
-	i := bytes.Index(page, []byte("<body>"))
-	if i < 0 {
-		return s, false
+	l, ok := split(page, version)
+	if !ok {
+		return shown{mainAt: -1}, false
 	}
-	live := `<meta name="calcdoc-live" content="`
-	s.head = bytes.Replace(page[:i], []byte(live+html.EscapeString(version)+`"`), []byte(live+`"`), 1)
-	z := html.NewTokenizer(bytes.NewReader(page[i:]))
-	off, depth := i, 0
-	start, inMain := -1, false
-	var elems *[][]byte
-	flush := func(end int) {
-		if start >= 0 {
-			*elems = append(*elems, page[start:end])
-		}
-		start = -1
-	}
-	for {
-		tt := z.Next()
-		if tt == html.ErrorToken {
-			if z.Err() != io.EOF {
-				return s, false
-			}
-			break
-		}
-		raw := len(z.Raw())
-		name, _ := z.TagName()
-		switch tt {
-		case html.StartTagToken, html.SelfClosingTagToken:
-			if depth == 1 || depth == 2 && inMain {
-				flush(off)
-				if depth == 1 && tt == html.StartTagToken && string(name) == "main" {
-					s.mainAt = len(s.body)
-					s.body = append(s.body, []byte("<main>"))
-					inMain = true
-					depth++
-					off += raw
-					continue
-				}
-				elems = &s.body
-				if inMain {
-					elems = &s.mai
-				}
-				start = off
-			}
-			if tt == html.StartTagToken && !voids[string(name)] {
-				depth++
-			}
-		case html.EndTagToken:
-			depth--
-			if depth == 1 && inMain && string(name) == "main" {
-				flush(off)
-				inMain = false
-			}
-			if depth == 0 && string(name) == "body" {
-				flush(off)
-				return s, true
-			}
-		case html.TextToken:
-			if (depth == 1 || depth == 2 && inMain) && start < 0 && len(bytes.TrimSpace(z.Raw())) > 0 {
-				return s, false // text outside any element: no patch
-			}
-		}
-		off += raw
-	}
-	return s, false
+	return l.shown(page), true
 }

@@ -87,6 +87,10 @@ type Config struct {
 	// from reading the sheets through a host name that it points at this
 	// machine (DNS rebinding), on loopback and on the network alike.
 	AllowHosts []string
+	// CollectWhenIdle makes the watcher collect garbage once every
+	// evaluation is done and it has been idle for IdleGC (idlegc.go), so
+	// that the collector runs between saves rather than during one.
+	CollectWhenIdle bool
 }
 
 // ConfigError is a bad Config: a missing PATH, a file that is not .md, an
@@ -140,18 +144,22 @@ type Watcher struct {
 	shadowList map[string][]string   // a copy of shadow, for the listing
 	listVer    string                // version of the listing
 	tick       chan struct{}         // closed and replaced on every change
+	gcTimer    *time.Timer           // the idle collection (idlegc.go)
+	gcAllocs   atomic.Uint64         // the bytes allocated at the last idle collection
+	idleGCs    atomic.Int64          // the idle collections made
 	done       chan struct{}         // closed by Close
 	once       sync.Once
 }
 
 // page is what is served for one document: its latest evaluation.
 type page struct {
-	key     string // address, e.g. "sub/feeder.html"
-	file    string // absolute path of the file
-	display string // the path shown: the PATH given joined with the file's path below it
-	src     []byte // the bytes evaluated; nil when the file could not be read
-	body    []byte // the HTML served
-	before  *page  // the page before it (version and body only), for patches (patch.go)
+	key     string      // address, e.g. "sub/feeder.html"
+	file    string      // absolute path of the file
+	display string      // the path shown: the PATH given joined with the file's path below it
+	src     []byte      // the bytes evaluated; nil when the file could not be read
+	body    []byte      // the HTML served
+	before  *page       // the page before it (version, body and layout only), for patches (patch.go)
+	lay     *layoutCell // its elements, for patches (layout.go); nil for a page no patch says
 
 	patchOnce sync.Once // of a page before: the patch to the page after it, made once
 	patch     []byte
@@ -267,6 +275,9 @@ func (w *Watcher) Close() error {
 	var err error
 	w.once.Do(func() {
 		close(w.done)
+		w.mu.Lock()
+		w.busyLocked() // no idle collection after the end
+		w.mu.Unlock()
 		err = w.fsw.Close()
 		w.cw.close()
 		w.workers.Wait()
@@ -277,7 +288,8 @@ func (w *Watcher) Close() error {
 // Run handles file-system events until ctx ends or Close is called, then
 // closes the watcher. A burst of events is handled once it has been quiet
 // for Quiet, or MaxDelay after its first event, whichever comes first, or
-// at once when a file it names is closed after writing (Linux).
+// at once when a file it names is closed after writing or renamed into
+// place (Linux).
 func (w *Watcher) Run(ctx context.Context) error {
 	defer w.Close()
 	timer := time.NewTimer(time.Hour)
