@@ -63,6 +63,9 @@ func (d *Document) evalFrom(k int, t *trail) {
 		case *Block:
 			it.memo = &blockMemo{id: evalIDs.Add(1)}
 			d.evalBlock(it)
+			if d.inputs.AfterBlock != nil {
+				d.inputs.AfterBlock(it)
+			}
 		case *Inline:
 			d.evalInline(it)
 		}
@@ -129,6 +132,17 @@ func (d *Document) Redefines(b *Block) bool {
 		}
 	}
 	return false
+}
+
+// Mentions are the keys (expr.NameKey) of every name the text of an
+// evaluated block may mention (see mentions), made once for the block and
+// shared: the caller must not change the map. nil for a block not
+// evaluated. It is safe for use by several goroutines.
+func (b *Block) Mentions() map[string]bool {
+	if b.memo == nil {
+		return nil
+	}
+	return b.mentions()
 }
 
 // mentions are the keys of every name the block's text may mention: each

@@ -1,0 +1,307 @@
+package render
+
+import (
+	"sync"
+	"sync/atomic"
+
+	"calcdoc/calcdoc"
+	"calcdoc/expr"
+	"calcdoc/render/markup"
+)
+
+// Predraw draws the blocks of a document on a goroutine of its own while
+// the document is still being evaluated, so that a build uses a second
+// core: its Block method is the document's per-block hook
+// (calcdoc.Inputs.AfterBlock, calcdoc.Loader.ParseAfter), and the sheet
+// (Options.Predrawn) copies each drawing that is the one the serial pass
+// would write. The sheet's bytes are those of the serial pass.
+//
+// What it draws: blocks of a LocalDrawer kind (calc), whose drawing reads
+// nothing but the block, its evaluation, the front matter and the
+// document's final names for the names its text mentions
+// (calcdoc.Block.Mentions) or its evaluation looked up (the tables of its
+// look-ups), and writes nothing but the block in its place. Every other
+// kind is drawn in the serial pass: a solve block writes into the
+// appendix, whose order is the sheet's, and no other kind is proven to
+// read only its own names.
+//
+// Why the drawing is the serial one: the document's names are defined
+// once and never removed or replaced (expr.Env.Define), so a name the
+// block's drawing looks up that is defined when the block has been
+// evaluated has its final definition then. The hook, on the evaluating
+// goroutine, looks each name the drawing may read up in the document's
+// names and hands the definitions found to the drawing goroutine, which
+// keeps its own copy of the names (an expr.Env only it touches, so the
+// two goroutines never share a map); it remembers the names not found.
+// When the sheet is written (evaluation done) a drawing is copied only if
+// none of those names has been defined since (checked in the final
+// names); otherwise, and for a block whose drawing failed or wrote into
+// the appendix, the serial pass draws the block itself. The drawing
+// goroutine writes with a markup.Writer of its own: the writer's caches
+// (typeset values, check displays) give the same bytes whichever blocks
+// filled them.
+//
+// After evaluation the sheet and the drawing goroutine share what is
+// left: the sheet draws each block the goroutine has not started itself.
+// A Predraw serves one document once; it is safe for the hook and the
+// sheet to run on different goroutines one after the other.
+type Predraw struct {
+	mu      sync.Mutex
+	closed  bool              // Close was called: no more blocks
+	doc     *calcdoc.Document // the document the hook was called for
+	jobs    map[*calcdoc.Block]*preJob
+	queue   chan *preJob
+	closing sync.Once
+	done    chan struct{} // closed when the drawing goroutine ends
+	// Copied and Drawn count the blocks of the sheet copied from the
+	// drawing goroutine and drawn by the serial pass (of LocalDrawer
+	// kinds) after the sheet is written.
+	Copied, Drawn int
+	onEnd         func()
+	// isolate (tests) draws each block with a writer and names of its
+	// own, holding only the definitions its hook found: a drawing equal
+	// to the serial one then shows that it reads no other name.
+	isolate bool
+	// wait (tests) makes the sheet wait for every queued block to be
+	// drawn early instead of drawing those not started itself.
+	wait bool
+}
+
+// preJob is one block to draw early.
+type preJob struct {
+	b      *calcdoc.Block
+	d      markup.Drawer
+	defs   []preDef // definitions to add to the drawing goroutine's names first
+	absent []string // keys of names the drawing may read, not defined at the hook
+	counts [3]int   // expr.Env.Counts at the hook
+	state  atomic.Int32
+	ready  chan struct{} // closed when the drawing is done (state preDone)
+	bytes  []byte        // the drawing; nil when it cannot be used
+}
+
+// job states
+const (
+	preQueued int32 = iota
+	preDrawing
+	preDone
+	preSerial // taken by the sheet's serial pass
+)
+
+// preDef is one definition found at the hook: a value, a function or a
+// table.
+type preDef struct {
+	key string
+	v   *expr.Binding
+	f   *expr.Func
+	t   expr.Table
+}
+
+// NewPredraw makes a Predraw; onEnd, when not nil, is called once the
+// drawing goroutine has ended (the build gives its core back then).
+func NewPredraw(onEnd func()) *Predraw {
+	return &Predraw{jobs: map[*calcdoc.Block]*preJob{}, done: make(chan struct{}), onEnd: onEnd}
+}
+
+// Block is the per-block hook (calcdoc.Inputs.AfterBlock): it queues the
+// block for drawing when its kind is a LocalDrawer, with what the drawing
+// may read of the document's names. It runs on the evaluating goroutine.
+func (p *Predraw) Block(b *calcdoc.Block) {
+	d, local := b.KindOf().(LocalDrawer)
+	if !local || b.Mentions() == nil {
+		return
+	}
+	doc := b.Doc()
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	switch {
+	case p.closed:
+		return
+	case p.doc == nil:
+		p.start(doc)
+	case p.doc != doc:
+		return
+	}
+	env := doc.Env
+	j := &preJob{b: b, d: d, ready: make(chan struct{})}
+	j.counts[0], j.counts[1], j.counts[2] = env.Counts()
+	look := func(k string) {
+		switch v, f, t := env.Lookup(k), env.LookupFunc(k), env.LookupTable(k); {
+		case v != nil:
+			j.defs = append(j.defs, preDef{key: k, v: v})
+		case f != nil:
+			j.defs = append(j.defs, preDef{key: k, f: f})
+		case t != nil:
+			j.defs = append(j.defs, preDef{key: k, t: t})
+		default:
+			j.absent = append(j.absent, k)
+		}
+	}
+	for k := range b.Mentions() {
+		look(k)
+	}
+	// the tables its statements looked up (a look-up inside a function
+	// defined elsewhere names a table the block's text may not)
+	if stmts, ok := b.Result.([]*calcdoc.Stmt); ok {
+		for _, st := range stmts {
+			if st.Res == nil {
+				continue
+			}
+			for _, l := range st.Res.Trace.Lookups() {
+				look(expr.NameKey(l.Table))
+			}
+		}
+	}
+	p.jobs[b] = j
+	p.queue <- j
+}
+
+// start starts the drawing goroutine for doc, on the evaluating goroutine
+// at the first block: what it copies of the document (front matter, text,
+// file) is final before evaluation.
+func (p *Predraw) start(doc *calcdoc.Document) {
+	p.doc = doc
+	p.queue = make(chan *preJob, len(doc.Blocks))
+	view := *doc // the drawing's document: its own names, the rest as read
+	view.Env = expr.NewEnv()
+	view.Env.Preferred, view.Env.Cases = doc.Env.Preferred, doc.Env.Cases
+	go p.run(&view, p.queue)
+}
+
+// run draws the queued blocks in order, each into its own piece of one
+// buffer, after adding the definitions its hook found to its names.
+func (p *Predraw) run(view *calcdoc.Document, queue <-chan *preJob) {
+	defer func() {
+		close(p.done)
+		if p.onEnd != nil {
+			p.onEnd()
+		}
+	}()
+	w := markup.NewWriter(view)
+	for j := range queue {
+		if p.isolate {
+			own := *view
+			own.Env = expr.NewEnv()
+			own.Env.Preferred, own.Env.Cases = view.Env.Preferred, view.Env.Cases
+			w = markup.NewWriter(&own)
+		}
+		for _, def := range j.defs {
+			define(w.Doc.Env, def)
+		}
+		if !j.state.CompareAndSwap(preQueued, preDrawing) {
+			continue // the sheet draws it
+		}
+		if bs, ok := drawOne(w, j); ok {
+			j.bytes = bs
+		} else {
+			w = markup.NewWriter(view) // a drawing that failed may leave the writer in a row
+		}
+		j.state.Store(preDone)
+		close(j.ready)
+	}
+}
+
+// drawOne draws j's block at the end of w's buffer and returns its bytes;
+// false when the drawing wrote into the appendix or panicked (the serial
+// pass then draws it, and fails there as it would have).
+func drawOne(w *markup.Writer, j *preJob) (bs []byte, ok bool) {
+	defer func() {
+		if recover() != nil {
+			bs, ok = nil, false
+		}
+	}()
+	start := w.Len()
+	j.d.Draw(w, j.b)
+	if w.Appendix.Len() > 0 {
+		w.Appendix.Reset()
+		return nil, false
+	}
+	end := w.Len()
+	// the buffer only grows: a larger one is a new array, and this slice
+	// keeps the old one
+	return w.Bytes()[start:end:end], true
+}
+
+// define adds a definition found at a hook to the drawing's names, once.
+func define(env *expr.Env, def preDef) {
+	switch {
+	case def.v != nil:
+		if env.Lookup(def.key) == nil {
+			env.Define(def.v)
+		}
+	case def.f != nil:
+		if env.LookupFunc(def.key) == nil {
+			f := *def.f // DefineFunc sets fields of its function: a copy of its own
+			env.DefineFunc(&f)
+		}
+	case def.t != nil:
+		if env.LookupTable(def.key) == nil {
+			env.DefineTable(def.key, expr.Pos{}, def.t)
+		}
+	}
+}
+
+// Close ends the drawing goroutine once it has drawn what is queued: the
+// document is evaluated. The sheet closes it; a caller that writes no
+// sheet closes it itself. Close may be called more than once.
+func (p *Predraw) Close() {
+	if p == nil {
+		return
+	}
+	p.closing.Do(func() {
+		p.mu.Lock()
+		q := p.queue
+		p.queue, p.closed = nil, true
+		p.mu.Unlock()
+		if q != nil {
+			close(q)
+		} else {
+			close(p.done)
+			if p.onEnd != nil {
+				p.onEnd()
+			}
+		}
+	})
+}
+
+// take returns the early drawing of block b of doc when it is the serial
+// one; false when the serial pass must draw b (not queued, not started,
+// failed, or a name its drawing may read was defined after it).
+func (p *Predraw) take(doc *calcdoc.Document, b *calcdoc.Block) ([]byte, bool) {
+	if p == nil {
+		return nil, false
+	}
+	p.mu.Lock()
+	j := p.jobs[b]
+	if p.doc != doc {
+		j = nil
+	}
+	p.mu.Unlock()
+	if j == nil {
+		return nil, false
+	}
+	if !p.wait && j.state.CompareAndSwap(preQueued, preSerial) {
+		p.Drawn++
+		return nil, false
+	}
+	<-j.ready
+	if j.bytes == nil || !j.stillValid(doc.Env) {
+		p.Drawn++
+		return nil, false
+	}
+	p.Copied++
+	return j.bytes, true
+}
+
+// stillValid reports whether no name the drawing may read, undefined at
+// the hook, is defined in the final names env.
+func (j *preJob) stillValid(env *expr.Env) bool {
+	if v, f, t := env.Counts(); v == j.counts[0] && f == j.counts[1] && t == j.counts[2] {
+		return true // nothing defined since
+	}
+	for _, k := range j.absent {
+		if env.Lookup(k) != nil || env.LookupFunc(k) != nil || env.LookupTable(k) != nil {
+			return false
+		}
+	}
+	return true
+}
