@@ -5,6 +5,7 @@ import (
 	"math"
 	"os"
 	"reflect"
+	"strings"
 	"sync"
 	"sync/atomic"
 	"unicode/utf8"
@@ -177,8 +178,13 @@ func (b *Block) mentions() map[string]bool {
 				case !in && start >= 0:
 					w := s[start:i]
 					add(w)
-					for _, part := range bytes.Split([]byte(w), []byte(".")) {
-						add(string(part))
+					for rest := w; strings.IndexByte(w, '.') >= 0; {
+						part, after, found := strings.Cut(rest, ".")
+						add(part)
+						if !found {
+							break
+						}
+						rest = after
 					}
 					start = -1
 				}

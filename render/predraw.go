@@ -57,7 +57,6 @@ type Predraw struct {
 	// drawing goroutine and drawn by the serial pass (of LocalDrawer
 	// kinds) after the sheet is written.
 	Copied, Drawn int
-	onEnd         func()
 	// isolate (tests) draws each block with a writer and names of its
 	// own, holding only the definitions its hook found: a drawing equal
 	// to the serial one then shows that it reads no other name.
@@ -96,10 +95,9 @@ type preDef struct {
 	t   expr.Table
 }
 
-// NewPredraw makes a Predraw; onEnd, when not nil, is called once the
-// drawing goroutine has ended (the build gives its core back then).
-func NewPredraw(onEnd func()) *Predraw {
-	return &Predraw{jobs: map[*calcdoc.Block]*preJob{}, done: make(chan struct{}), onEnd: onEnd}
+// NewPredraw makes a Predraw for one document.
+func NewPredraw() *Predraw {
+	return &Predraw{jobs: map[*calcdoc.Block]*preJob{}, done: make(chan struct{})}
 }
 
 // Block is the per-block hook (calcdoc.Inputs.AfterBlock): it queues the
@@ -170,13 +168,9 @@ func (p *Predraw) start(doc *calcdoc.Document) {
 // run draws the queued blocks in order, each into its own piece of one
 // buffer, after adding the definitions its hook found to its names.
 func (p *Predraw) run(view *calcdoc.Document, queue <-chan *preJob) {
-	defer func() {
-		close(p.done)
-		if p.onEnd != nil {
-			p.onEnd()
-		}
-	}()
+	defer close(p.done)
 	w := markup.NewWriter(view)
+	w.Grow(localSize(view))
 	for j := range queue {
 		if p.isolate {
 			own := *view
@@ -198,6 +192,21 @@ func (p *Predraw) run(view *calcdoc.Document, queue <-chan *preJob) {
 		j.state.Store(preDone)
 		close(j.ready)
 	}
+}
+
+// localSize is the room the drawings of doc's blocks of LocalDrawer kinds
+// are likely to take: 17 bytes a byte of their text, as pageSize counts a
+// statement, so that the drawing goroutine's buffer seldom grows.
+func localSize(doc *calcdoc.Document) int {
+	n := 0
+	for _, b := range doc.Blocks {
+		if _, ok := b.KindOf().(LocalDrawer); ok {
+			for _, l := range b.Lines {
+				n += len(l) + 1
+			}
+		}
+	}
+	return 17*n + 4096
 }
 
 // drawOne draws j's block at the end of w's buffer and returns its bytes;
@@ -255,12 +264,20 @@ func (p *Predraw) Close() {
 		if q != nil {
 			close(q)
 		} else {
-			close(p.done)
-			if p.onEnd != nil {
-				p.onEnd()
-			}
+			close(p.done) // no drawing goroutine was started
 		}
 	})
+}
+
+// Wait closes p and waits for its drawing goroutine to end: after the
+// sheet, at once (the sheet has taken every block queued), so that the
+// build knows the core free again.
+func (p *Predraw) Wait() {
+	if p == nil {
+		return
+	}
+	p.Close()
+	<-p.done
 }
 
 // take returns the early drawing of block b of doc when it is the serial

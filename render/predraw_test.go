@@ -86,7 +86,7 @@ func TestPredrawSameBytes(t *testing.T) {
 		}
 		serial := predrawSheets(t, f, src, nil)
 		for _, mode := range []struct{ wait, isolate bool }{{false, false}, {true, false}, {true, true}} {
-			p := NewPredraw(nil)
+			p := NewPredraw()
 			p.wait, p.isolate = mode.wait, mode.isolate
 			isolate := mode.isolate
 			got := predrawSheets(t, f, src, p)
@@ -138,15 +138,16 @@ func firstDiff(a, b []byte) int {
 }
 
 // TestPredrawClosedWithoutBlocks: a Predraw closed before any block (a
-// document with no calc block, or no sheet written) ends at once and
-// calls its onEnd once.
+// document with no calc block, or no sheet written) ends at once, may be
+// closed again, and takes no block after.
 func TestPredrawClosedWithoutBlocks(t *testing.T) {
-	ends := 0
-	p := NewPredraw(func() { ends++ })
+	p := NewPredraw()
 	p.Close()
 	p.Close()
-	<-p.done
-	if ends != 1 {
-		t.Fatalf("onEnd called %d times, want 1", ends)
+	p.Wait()
+	doc := calcdoc.Parse("late.md", []byte("```calc\nx = 1 V\n```\n"), kind.Standard())
+	p.Block(doc.Blocks[0])
+	if _, ok := p.take(doc, doc.Blocks[0]); ok || p.queue != nil {
+		t.Fatal("a closed Predraw took a block")
 	}
 }

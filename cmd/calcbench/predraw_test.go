@@ -33,7 +33,7 @@ func TestPredrawGeneratedSameBytes(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		pre := render.NewPredraw(nil)
+		pre := render.NewPredraw()
 		d := calcdoc.NewLoader(kind.Standard()).ParseAfter(path, []byte(doc), pre.Block)
 		opt.Predrawn = pre
 		got, err := render.Sheet(d, opt)

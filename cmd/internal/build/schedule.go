@@ -62,7 +62,8 @@ func Evaluate(l *calcdoc.Loader, inputs []Input, workers int, fn func(i int, doc
 // goroutine only when fewer than GOMAXPROCS are busy (a folder of many
 // documents already keeps every core busy with one a document). The
 // sheets are those of Evaluate: the drawing goroutine changes no byte.
-// pre is closed after fn returns, whether or not fn drew the sheet.
+// After fn returns, EvaluateDraw closes pre and waits for its goroutine
+// to end (at once once the sheet is drawn), whether or not fn drew it.
 func EvaluateDraw(l *calcdoc.Loader, inputs []Input, workers int, fn func(i int, doc *calcdoc.Document, pre *render.Predraw)) []Evaluated {
 	return evaluate(l, inputs, workers, fn, true)
 }
@@ -109,7 +110,8 @@ func evaluate(l *calcdoc.Loader, inputs []Input, workers int, fn func(i int, doc
 		if n.err == nil {
 			if predraw && fn != nil && len(n.inputs) > 0 {
 				if busy.Add(1) <= cores {
-					pre = render.NewPredraw(func() { busy.Add(-1) })
+					pre = render.NewPredraw()
+					defer busy.Add(-1) // after pre.Wait below
 				} else {
 					busy.Add(-1)
 				}
@@ -129,10 +131,10 @@ func evaluate(l *calcdoc.Loader, inputs []Input, workers int, fn func(i int, doc
 			if fn != nil {
 				fn(i, out[i].Doc, pre)
 			}
-			pre.Close()
+			pre.Wait()
 			pre = nil // it drew the first input's blocks; a sheet ignores it for another document
 		}
-		pre.Close()
+		pre.Wait()
 	}
 	var mu sync.Mutex
 	ready := make(chan *node, len(nodes))
