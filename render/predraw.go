@@ -1,6 +1,8 @@
 package render
 
 import (
+	"bytes"
+	"io"
 	"sync"
 	"sync/atomic"
 
@@ -46,13 +48,19 @@ import (
 // A Predraw serves one document once; it is safe for the hook and the
 // sheet to run on different goroutines one after the other.
 type Predraw struct {
-	mu      sync.Mutex
-	closed  bool              // Close was called: no more blocks
-	doc     *calcdoc.Document // the document the hook was called for
-	jobs    map[*calcdoc.Block]*preJob
-	queue   chan *preJob
-	closing sync.Once
-	done    chan struct{} // closed when the drawing goroutine ends
+	mu       sync.Mutex
+	closed   bool              // Close was called: no more blocks
+	doc      *calcdoc.Document // the document the hook was called for
+	jobs     map[*calcdoc.Block]*preJob
+	queue    chan *preJob
+	closing  sync.Once
+	done     chan struct{}   // closed when the drawing goroutine ends
+	room     *sync.Cond      // on mu: held went down, or finished
+	held     int             // the bytes the drawings not yet copied hold (their buffers')
+	free     []*bytes.Buffer // buffers handed back by the sheet
+	last     *bytes.Buffer   // the buffer copyTo wrote from last
+	finished bool            // the sheet is written: hold no drawing back
+	limit    int             // predrawHeld; tests make it small
 	// Copied and Drawn count the blocks of the sheet copied from the
 	// drawing goroutine and drawn by the serial pass (of LocalDrawer
 	// kinds) after the sheet is written.
@@ -75,7 +83,7 @@ type preJob struct {
 	counts [3]int   // expr.Env.Counts at the hook
 	state  atomic.Int32
 	ready  chan struct{} // closed when the drawing is done (state preDone)
-	bytes  []byte        // the drawing; nil when it cannot be used
+	buf    *bytes.Buffer // the drawing; nil when it cannot be used
 }
 
 // job states
@@ -97,7 +105,9 @@ type preDef struct {
 
 // NewPredraw makes a Predraw for one document.
 func NewPredraw() *Predraw {
-	return &Predraw{jobs: map[*calcdoc.Block]*preJob{}, done: make(chan struct{})}
+	p := &Predraw{jobs: map[*calcdoc.Block]*preJob{}, done: make(chan struct{}), limit: predrawHeld}
+	p.room = sync.NewCond(&p.mu)
+	return p
 }
 
 // Block is the per-block hook (calcdoc.Inputs.AfterBlock): it queues the
@@ -165,12 +175,21 @@ func (p *Predraw) start(doc *calcdoc.Document) {
 	go p.run(&view, p.queue)
 }
 
-// run draws the queued blocks in order, each into its own piece of one
-// buffer, after adding the definitions its hook found to its names.
+// predrawHeld is the most the drawings made early and not yet copied into
+// the sheet may hold, in bytes: while the document is evaluated the
+// drawing goroutine stops there, and the sheet then hands each drawing's
+// buffer back as it copies it. The drawings of the 2,000-statement
+// document of cmd/calcbench take about 1.6 MB, so the whole of it is
+// drawn while it is evaluated; at 20,000 statements (16 MB) the limit
+// keeps the peak memory of a build close to that of a serial one.
+const predrawHeld = 6 << 20
+
+// run draws the queued blocks in order, each into a buffer of its own
+// (one the sheet has handed back, when there is one), after adding the
+// definitions its hook found to its names.
 func (p *Predraw) run(view *calcdoc.Document, queue <-chan *preJob) {
 	defer close(p.done)
 	w := markup.NewWriter(view)
-	w.Grow(localSize(view))
 	for j := range queue {
 		if p.isolate {
 			own := *view
@@ -181,12 +200,30 @@ func (p *Predraw) run(view *calcdoc.Document, queue <-chan *preJob) {
 		for _, def := range j.defs {
 			define(w.Doc.Env, def)
 		}
+		p.mu.Lock()
+		for p.held >= p.limit && !p.finished {
+			p.room.Wait()
+		}
+		var buf *bytes.Buffer
+		if n := len(p.free); n > 0 {
+			buf, p.free = p.free[n-1], p.free[:n-1]
+		}
+		p.mu.Unlock()
 		if !j.state.CompareAndSwap(preQueued, preDrawing) {
+			p.putBack(buf)
 			continue // the sheet draws it
 		}
-		if bs, ok := drawOne(w, j); ok {
-			j.bytes = bs
+		if buf == nil {
+			buf = new(bytes.Buffer)
+		}
+		buf.Grow(blockSize(j.b))
+		if drawOne(w, j, buf) {
+			j.buf = buf
+			p.mu.Lock()
+			p.held += buf.Cap()
+			p.mu.Unlock()
 		} else {
+			p.putBack(buf)
 			w = markup.NewWriter(view) // a drawing that failed may leave the writer in a row
 		}
 		j.state.Store(preDone)
@@ -194,40 +231,44 @@ func (p *Predraw) run(view *calcdoc.Document, queue <-chan *preJob) {
 	}
 }
 
-// localSize is the room the drawings of doc's blocks of LocalDrawer kinds
-// are likely to take: 17 bytes a byte of their text, as pageSize counts a
-// statement, so that the drawing goroutine's buffer seldom grows.
-func localSize(doc *calcdoc.Document) int {
+// blockSize is the room the drawing of b is likely to take: 17 bytes a
+// byte of its text, as pageSize counts a statement.
+func blockSize(b *calcdoc.Block) int {
 	n := 0
-	for _, b := range doc.Blocks {
-		if _, ok := b.KindOf().(LocalDrawer); ok {
-			for _, l := range b.Lines {
-				n += len(l) + 1
-			}
-		}
+	for _, l := range b.Lines {
+		n += len(l) + 1
 	}
-	return 17*n + 4096
+	return 17*n + 512
 }
 
-// drawOne draws j's block at the end of w's buffer and returns its bytes;
-// false when the drawing wrote into the appendix or panicked (the serial
-// pass then draws it, and fails there as it would have).
-func drawOne(w *markup.Writer, j *preJob) (bs []byte, ok bool) {
+// drawOne draws j's block into buf; false when the drawing wrote into the
+// appendix or panicked (the serial pass then draws it, and fails there as
+// it would have).
+func drawOne(w *markup.Writer, j *preJob, buf *bytes.Buffer) (ok bool) {
 	defer func() {
 		if recover() != nil {
-			bs, ok = nil, false
+			ok = false
 		}
+		w.SetOutput(nil)
 	}()
-	start := w.Len()
+	w.SetOutput(buf)
 	j.d.Draw(w, j.b)
 	if w.Appendix.Len() > 0 {
 		w.Appendix.Reset()
-		return nil, false
+		return false
 	}
-	end := w.Len()
-	// the buffer only grows: a larger one is a new array, and this slice
-	// keeps the old one
-	return w.Bytes()[start:end:end], true
+	return true
+}
+
+// putBack hands a drawing's buffer back for the next.
+func (p *Predraw) putBack(buf *bytes.Buffer) {
+	if buf == nil {
+		return
+	}
+	buf.Reset()
+	p.mu.Lock()
+	p.free = append(p.free, buf)
+	p.mu.Unlock()
 }
 
 // define adds a definition found at a hook to the drawing's names, once.
@@ -277,13 +318,28 @@ func (p *Predraw) Wait() {
 		return
 	}
 	p.Close()
+	p.finish()
 	<-p.done
 }
 
-// take returns the early drawing of block b of doc when it is the serial
-// one; false when the serial pass must draw b (not queued, not started,
-// failed, or a name its drawing may read was defined after it).
-func (p *Predraw) take(doc *calcdoc.Document, b *calcdoc.Block) ([]byte, bool) {
+// finish lets the drawing goroutine draw what is left without holding
+// back: the sheet has taken every block.
+func (p *Predraw) finish() {
+	if p == nil {
+		return
+	}
+	p.mu.Lock()
+	p.finished = true
+	p.mu.Unlock()
+	p.room.Broadcast()
+}
+
+// copyTo writes the early drawing of block b of doc to out and reports
+// true when it is the serial one (and returns its bytes, valid until the
+// next call: keep a copy); false when the serial pass must draw b (not
+// queued, not started, failed, or a name its drawing may read was
+// defined after it).
+func (p *Predraw) copyTo(out io.Writer, doc *calcdoc.Document, b *calcdoc.Block) ([]byte, bool) {
 	if p == nil {
 		return nil, false
 	}
@@ -291,6 +347,11 @@ func (p *Predraw) take(doc *calcdoc.Document, b *calcdoc.Block) ([]byte, bool) {
 	j := p.jobs[b]
 	if p.doc != doc {
 		j = nil
+	}
+	if p.last != nil { // the caller is done with the bytes of the last call
+		p.last.Reset()
+		p.free = append(p.free, p.last)
+		p.last = nil
 	}
 	p.mu.Unlock()
 	if j == nil {
@@ -301,12 +362,32 @@ func (p *Predraw) take(doc *calcdoc.Document, b *calcdoc.Block) ([]byte, bool) {
 		return nil, false
 	}
 	<-j.ready
-	if j.bytes == nil || !j.stillValid(doc.Env) {
+	buf := j.buf
+	if buf == nil {
 		p.Drawn++
 		return nil, false
 	}
-	p.Copied++
-	return j.bytes, true
+	j.buf = nil
+	var bs []byte
+	ok := j.stillValid(doc.Env)
+	if ok {
+		bs = buf.Bytes()
+		out.Write(bs)
+		p.Copied++
+	} else {
+		p.Drawn++
+	}
+	p.mu.Lock()
+	p.held -= buf.Cap()
+	if ok {
+		p.last = buf // handed back at the next call
+	} else {
+		buf.Reset()
+		p.free = append(p.free, buf)
+	}
+	p.mu.Unlock()
+	p.room.Signal()
+	return bs, ok
 }
 
 // stillValid reports whether no name the drawing may read, undefined at

@@ -2,6 +2,7 @@ package render
 
 import (
 	"bytes"
+	"io"
 	"io/fs"
 	"os"
 	"path/filepath"
@@ -36,7 +37,9 @@ var predrawDocs = map[string]string{
 // blocks; and a drawing made with no names but those its hook found
 // (isolate) is the serial one too, so that the drawing of a calc block
 // reads no other name. Run it with -race: the hook and the drawing
-// goroutine share the evaluated blocks while evaluation goes on.
+// goroutine share the evaluated blocks while evaluation goes on. With a
+// limit of one byte held, each early drawing waits for the sheet to take
+// the one before, and reuses its buffer.
 func TestPredrawSameBytes(t *testing.T) {
 	var files []string
 	err := filepath.WalkDir(filepath.Join("..", "examples"), func(p string, d fs.DirEntry, err error) error {
@@ -85,16 +88,22 @@ func TestPredrawSameBytes(t *testing.T) {
 			t.Fatal(err)
 		}
 		serial := predrawSheets(t, f, src, nil)
-		for _, mode := range []struct{ wait, isolate bool }{{false, false}, {true, false}, {true, true}} {
+		for _, mode := range []struct {
+			wait, isolate bool
+			limit         int
+		}{{false, false, 0}, {true, false, 0}, {true, true, 0}, {false, false, 1}, {true, false, 1}} {
 			p := NewPredraw()
 			p.wait, p.isolate = mode.wait, mode.isolate
+			if mode.limit > 0 {
+				p.limit = mode.limit // each drawing waits for the sheet to take the one before
+			}
 			isolate := mode.isolate
 			got := predrawSheets(t, f, src, p)
 			if !bytes.Equal(got, serial) {
 				t.Errorf("%s (%+v): the sheet with blocks drawn early differs from the serial sheet at byte %d", f, mode, firstDiff(got, serial))
 			}
 			copied += p.Copied
-			if mode.wait && !isolate {
+			if mode.wait && !isolate && mode.limit == 0 {
 				t.Logf("%s: %d blocks copied, %d drawn in the serial pass", filepath.Base(f), p.Copied, p.Drawn)
 			}
 			if filepath.Base(f) == "forward.md" && p.Drawn == 0 {
@@ -147,7 +156,7 @@ func TestPredrawClosedWithoutBlocks(t *testing.T) {
 	p.Wait()
 	doc := calcdoc.Parse("late.md", []byte("```calc\nx = 1 V\n```\n"), kind.Standard())
 	p.Block(doc.Blocks[0])
-	if _, ok := p.take(doc, doc.Blocks[0]); ok || p.queue != nil {
+	if _, ok := p.copyTo(io.Discard, doc, doc.Blocks[0]); ok || p.queue != nil {
 		t.Fatal("a closed Predraw took a block")
 	}
 }

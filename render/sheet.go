@@ -123,7 +123,9 @@ func body(w *markup.Writer, doc *calcdoc.Document, opt Options) error {
 	titleBlock(w, doc.Front, SheetTitle(doc))
 	summary(w, doc)
 	w.WriteString("<main class=\"body\">\n")
-	if err := prose(w, doc, opt.Blocks, opt.Predrawn); err != nil {
+	err := prose(w, doc, opt.Blocks, opt.Predrawn)
+	opt.Predrawn.finish() // every block is taken
+	if err != nil {
 		return err
 	}
 	w.WriteString("</main>\n")
@@ -355,8 +357,7 @@ func (n *nodes) fenced(out util.BufWriter, src []byte, node ast.Node, entering b
 	w := n.w
 	if b := w.Doc.BlockFor(node); b != nil {
 		if d, ok := b.KindOf().(markup.Drawer); ok {
-			if bs, ok := n.pre.take(w.Doc, b); ok {
-				out.Write(bs)
+			if bs, ok := n.pre.copyTo(out, w.Doc, b); ok {
 				n.cache.keep(d, b, bs)
 				return ast.WalkSkipChildren, nil
 			}
