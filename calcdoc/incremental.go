@@ -153,7 +153,11 @@ func (b *Block) Mentions() map[string]bool {
 func (b *Block) mentions() map[string]bool {
 	m := b.memo
 	m.once.Do(func() {
-		m.mentions = map[string]bool{}
+		n := len(b.Arg)
+		for _, l := range b.Lines {
+			n += len(l)
+		}
+		m.mentions = make(map[string]bool, n/8) // about a name in eight bytes
 		add := func(w string) {
 			for w != "" {
 				m.mentions[expr.NameKey(w)] = true
@@ -168,26 +172,31 @@ func (b *Block) mentions() map[string]bool {
 				break
 			}
 		}
+		word := func(w string) {
+			add(w)
+			for rest := w; strings.IndexByte(w, '.') >= 0; {
+				part, after, found := strings.Cut(rest, ".")
+				add(part)
+				if !found {
+					break
+				}
+				rest = after
+			}
+		}
 		scan := func(s string) {
 			start := -1
-			for i, r := range s + " " {
+			for i, r := range s {
 				in := r == '_' || r == '.' || r >= '0' && r <= '9' || r >= 'a' && r <= 'z' || r >= 'A' && r <= 'Z' || r >= utf8.RuneSelf && r != '\u00a0' && r != utf8.RuneError
 				switch {
 				case in && start < 0:
 					start = i
 				case !in && start >= 0:
-					w := s[start:i]
-					add(w)
-					for rest := w; strings.IndexByte(w, '.') >= 0; {
-						part, after, found := strings.Cut(rest, ".")
-						add(part)
-						if !found {
-							break
-						}
-						rest = after
-					}
+					word(s[start:i])
 					start = -1
 				}
+			}
+			if start >= 0 {
+				word(s[start:])
 			}
 		}
 		scan(b.Arg)

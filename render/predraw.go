@@ -133,18 +133,19 @@ func (p *Predraw) Block(b *calcdoc.Block) {
 	j := &preJob{b: b, d: d, ready: make(chan struct{})}
 	j.counts[0], j.counts[1], j.counts[2] = env.Counts()
 	look := func(k string) {
-		switch v, f, t := env.Lookup(k), env.LookupFunc(k), env.LookupTable(k); {
-		case v != nil:
+		if v := env.Lookup(k); v != nil {
 			j.defs = append(j.defs, preDef{key: k, v: v})
-		case f != nil:
+		} else if f := env.LookupFunc(k); f != nil {
 			j.defs = append(j.defs, preDef{key: k, f: f})
-		case t != nil:
+		} else if t := env.LookupTable(k); t != nil {
 			j.defs = append(j.defs, preDef{key: k, t: t})
-		default:
+		} else {
 			j.absent = append(j.absent, k)
 		}
 	}
-	for k := range b.Mentions() {
+	ms := b.Mentions()
+	j.defs = make([]preDef, 0, len(ms))
+	for k := range ms {
 		look(k)
 	}
 	// the tables its statements looked up (a look-up inside a function
