@@ -61,6 +61,7 @@ type Predraw struct {
 	last     *bytes.Buffer   // the buffer copyTo wrote from last
 	finished bool            // the sheet is written: hold no drawing back
 	limit    int             // predrawHeld; tests make it small
+	most     int             // predrawMost
 	// Copied and Drawn count the blocks of the sheet copied from the
 	// drawing goroutine and drawn by the serial pass (of LocalDrawer
 	// kinds) after the sheet is written.
@@ -105,7 +106,7 @@ type preDef struct {
 
 // NewPredraw makes a Predraw for one document.
 func NewPredraw() *Predraw {
-	p := &Predraw{jobs: map[*calcdoc.Block]*preJob{}, done: make(chan struct{}), limit: predrawHeld}
+	p := &Predraw{jobs: map[*calcdoc.Block]*preJob{}, done: make(chan struct{}), limit: predrawHeld, most: predrawMost}
 	p.room = sync.NewCond(&p.mu)
 	return p
 }
@@ -115,7 +116,7 @@ func NewPredraw() *Predraw {
 // may read of the document's names. It runs on the evaluating goroutine.
 func (p *Predraw) Block(b *calcdoc.Block) {
 	d, local := b.KindOf().(LocalDrawer)
-	if !local || b.Mentions() == nil {
+	if !local {
 		return
 	}
 	doc := b.Doc()
@@ -125,8 +126,18 @@ func (p *Predraw) Block(b *calcdoc.Block) {
 	case p.closed:
 		return
 	case p.doc == nil:
+		if drawingSize(doc) > p.most {
+			// a large document: its drawings, held until the sheet, would
+			// raise the build's memory more than the second core saves
+			p.closed = true
+			return
+		}
 		p.start(doc)
 	case p.doc != doc:
+		return
+	}
+	ms := b.Mentions()
+	if ms == nil {
 		return
 	}
 	env := doc.Env
@@ -143,7 +154,6 @@ func (p *Predraw) Block(b *calcdoc.Block) {
 			j.absent = append(j.absent, k)
 		}
 	}
-	ms := b.Mentions()
 	j.defs = make([]preDef, 0, len(ms))
 	for k := range ms {
 		look(k)
@@ -184,6 +194,14 @@ func (p *Predraw) start(doc *calcdoc.Document) {
 // drawn while it is evaluated; at 20,000 statements (16 MB) the limit
 // keeps the peak memory of a build close to that of a serial one.
 const predrawHeld = 6 << 20
+
+// predrawMost is the likely size of the drawings (drawingSize) above which
+// a document is drawn by the sheet alone: about 5,000 statements of the
+// benchmark's document. Measured (cmd/calcbench, whole process) at 20,000
+// statements, drawing early took more time than it saved and raised the
+// peak memory by 14 MB: every drawing is held until the sheet copies it,
+// and the collector, off below 64 MiB (cmd/calcdoc/gc.go), then runs.
+const predrawMost = 4 << 20
 
 // run draws the queued blocks in order, each into a buffer of its own
 // (one the sheet has handed back, when there is one), after adding the
@@ -230,6 +248,18 @@ func (p *Predraw) run(view *calcdoc.Document, queue <-chan *preJob) {
 		j.state.Store(preDone)
 		close(j.ready)
 	}
+}
+
+// drawingSize is the likely size of the drawings of doc's blocks of
+// LocalDrawer kinds (blockSize).
+func drawingSize(doc *calcdoc.Document) int {
+	n := 0
+	for _, b := range doc.Blocks {
+		if _, ok := b.KindOf().(LocalDrawer); ok {
+			n += blockSize(b)
+		}
+	}
+	return n
 }
 
 // blockSize is the room the drawing of b is likely to take: 17 bytes a

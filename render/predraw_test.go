@@ -160,3 +160,24 @@ func TestPredrawClosedWithoutBlocks(t *testing.T) {
 		t.Fatal("a closed Predraw took a block")
 	}
 }
+
+// TestPredrawLargeDocumentSerial: a document whose drawings would take
+// more than Predraw's most is drawn by the sheet alone (no goroutine, no
+// look-ups), and its sheet is the serial one.
+func TestPredrawLargeDocumentSerial(t *testing.T) {
+	path := filepath.Join("..", "examples", "motor-pfc.md")
+	src, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	p := NewPredraw()
+	p.most = 1
+	got := predrawSheets(t, path, src, p)
+	if !bytes.Equal(got, predrawSheets(t, path, src, nil)) {
+		t.Error("the sheet differs from the serial sheet")
+	}
+	if p.Copied != 0 || p.queue != nil || len(p.jobs) != 0 {
+		t.Errorf("a document over the limit had blocks drawn early: %d copied, %d queued", p.Copied, len(p.jobs))
+	}
+	p.Wait()
+}
