@@ -321,6 +321,13 @@ func define(env *expr.Env, def preDef) {
 	}
 }
 
+// DrawAllEarly makes the sheet wait for the drawing goroutine to draw
+// every block queued instead of drawing those not started itself: tests
+// that compare the early drawings with the serial ones use it, so that the
+// comparison does not depend on how the goroutines were scheduled. Call it
+// before the document is evaluated.
+func (p *Predraw) DrawAllEarly() { p.wait = true }
+
 // Close ends the drawing goroutine once it has drawn what is queued: the
 // document is evaluated. The sheet closes it; a caller that writes no
 // sheet closes it itself. Close may be called more than once.

@@ -34,6 +34,7 @@ func TestPredrawGeneratedSameBytes(t *testing.T) {
 			t.Fatal(err)
 		}
 		pre := render.NewPredraw()
+		pre.DrawAllEarly() // every block drawn early, however the goroutines are scheduled
 		d := calcdoc.NewLoader(kind.Standard()).ParseAfter(path, []byte(doc), pre.Block)
 		opt.Predrawn = pre
 		got, err := render.Sheet(d, opt)
