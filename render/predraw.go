@@ -358,6 +358,9 @@ func (p *Predraw) Wait() {
 	p.Close()
 	p.finish()
 	<-p.done
+	p.mu.Lock()
+	p.jobs, p.free, p.last = nil, nil, nil // the drawings' buffers go with the sheet
+	p.mu.Unlock()
 }
 
 // finish lets the drawing goroutine draw what is left without holding
