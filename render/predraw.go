@@ -85,6 +85,7 @@ type preJob struct {
 	state  atomic.Int32
 	ready  chan struct{} // closed when the drawing is done (state preDone)
 	buf    *bytes.Buffer // the drawing; nil when it cannot be used
+	held   bool          // buf counts in Predraw.held
 }
 
 // job states
@@ -205,49 +206,82 @@ const predrawMost = 4 << 20
 
 // run draws the queued blocks in order, each into a buffer of its own
 // (one the sheet has handed back, when there is one), after adding the
-// definitions its hook found to its names.
+// definitions its hook found to its names. Once the document is evaluated
+// (Close) the sheet draws from the first block it has not got and this
+// goroutine from the last one queued, back to where they meet, so that
+// the two share what is left instead of one waiting on the other.
 func (p *Predraw) run(view *calcdoc.Document, queue <-chan *preJob) {
 	defer close(p.done)
-	w := markup.NewWriter(view)
+	shared := markup.NewWriter(view)
+	var left []*preJob // received after Close: drawn from the last
 	for j := range queue {
-		if p.isolate {
-			own := *view
-			own.Env = expr.NewEnv()
-			own.Env.Preferred, own.Env.Cases = view.Env.Preferred, view.Env.Cases
-			w = markup.NewWriter(&own)
-		}
 		for _, def := range j.defs {
-			define(w.Doc.Env, def)
+			define(view.Env, def)
 		}
 		p.mu.Lock()
-		for p.held >= p.limit && !p.finished {
+		for p.held >= p.limit && !p.finished && !p.closed {
 			p.room.Wait()
 		}
-		var buf *bytes.Buffer
-		if n := len(p.free); n > 0 {
-			buf, p.free = p.free[n-1], p.free[:n-1]
-		}
+		closed := p.closed
 		p.mu.Unlock()
-		if !j.state.CompareAndSwap(preQueued, preDrawing) {
-			p.putBack(buf)
-			continue // the sheet draws it
+		if closed && !p.wait {
+			left = append(left, j)
+			continue
 		}
-		if buf == nil {
-			buf = new(bytes.Buffer)
+		shared = p.drawJob(view, shared, j, true)
+	}
+	for k := len(left) - 1; k >= 0; k-- {
+		if left[k].state.Load() != preQueued {
+			break // the sheet has come to it
 		}
-		buf.Grow(blockSize(j.b))
-		if drawOne(w, j, buf) {
-			j.buf = buf
+		shared = p.drawJob(view, shared, left[k], false)
+	}
+}
+
+// drawJob draws j with the writer w (or, isolated, a writer and names of
+// its own) unless the sheet has taken it, and returns the writer for the
+// next; held says whether the drawing counts against the limit of
+// drawings held.
+func (p *Predraw) drawJob(view *calcdoc.Document, w *markup.Writer, j *preJob, held bool) *markup.Writer {
+	p.mu.Lock()
+	var buf *bytes.Buffer
+	if n := len(p.free); n > 0 {
+		buf, p.free = p.free[n-1], p.free[:n-1]
+	}
+	p.mu.Unlock()
+	if !j.state.CompareAndSwap(preQueued, preDrawing) {
+		p.putBack(buf)
+		return w // the sheet draws it
+	}
+	dw := w
+	if p.isolate {
+		own := *view
+		own.Env = expr.NewEnv()
+		own.Env.Preferred, own.Env.Cases = view.Env.Preferred, view.Env.Cases
+		for _, def := range j.defs {
+			define(own.Env, def)
+		}
+		dw = markup.NewWriter(&own)
+	}
+	if buf == nil {
+		buf = new(bytes.Buffer)
+	}
+	buf.Grow(blockSize(j.b))
+	if drawOne(dw, j, buf) {
+		j.buf = buf
+		if held {
 			p.mu.Lock()
 			p.held += buf.Cap()
 			p.mu.Unlock()
-		} else {
-			p.putBack(buf)
-			w = markup.NewWriter(view) // a drawing that failed may leave the writer in a row
 		}
-		j.state.Store(preDone)
-		close(j.ready)
+		j.held = held
+	} else {
+		p.putBack(buf)
+		w = markup.NewWriter(view) // a drawing that failed may leave the writer in a row
 	}
+	j.state.Store(preDone)
+	close(j.ready)
+	return w
 }
 
 // drawingSize is the likely size of the drawings of doc's blocks of
@@ -340,6 +374,7 @@ func (p *Predraw) Close() {
 		q := p.queue
 		p.queue, p.closed = nil, true
 		p.mu.Unlock()
+		p.room.Broadcast() // a drawing held back goes on: the sheet is begun
 		if q != nil {
 			close(q)
 		} else {
@@ -419,7 +454,9 @@ func (p *Predraw) copyTo(out io.Writer, doc *calcdoc.Document, b *calcdoc.Block)
 		p.Drawn++
 	}
 	p.mu.Lock()
-	p.held -= buf.Cap()
+	if j.held {
+		p.held -= buf.Cap()
+	}
 	if ok {
 		p.last = buf // handed back at the next call
 	} else {
