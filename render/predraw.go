@@ -48,10 +48,15 @@ import (
 // A Predraw serves one document once; it is safe for the hook and the
 // sheet to run on different goroutines one after the other.
 type Predraw struct {
-	mu       sync.Mutex
-	closed   bool              // Close was called: no more blocks
-	doc      *calcdoc.Document // the document the hook was called for
-	jobs     map[*calcdoc.Block]*preJob
+	mu     sync.Mutex
+	closed bool              // Close was called: no more blocks
+	doc    *calcdoc.Document // the document the hook was called for
+	jobs   map[*calcdoc.Block]*preJob
+	// names are the keys each block's text may mention, by its index
+	// among the document's blocks, made ahead by the drawing goroutine
+	// (nil where it has not yet come); index finds a block's.
+	names    []atomic.Pointer[map[string]bool]
+	index    map[*calcdoc.Block]int
 	queue    chan *preJob
 	closing  sync.Once
 	done     chan struct{}   // closed when the drawing goroutine ends
@@ -137,9 +142,16 @@ func (p *Predraw) Block(b *calcdoc.Block) {
 	case p.doc != doc:
 		return
 	}
-	ms := b.Mentions()
+	var ms map[string]bool
+	if k, ok := p.index[b]; ok {
+		if m := p.names[k].Load(); m != nil {
+			ms = *m // made ahead by the drawing goroutine
+		}
+	}
 	if ms == nil {
-		return
+		if ms = b.Mentions(); ms == nil {
+			return
+		}
 	}
 	env := doc.Env
 	j := &preJob{b: b, d: d, ready: make(chan struct{})}
@@ -184,6 +196,11 @@ func (p *Predraw) start(doc *calcdoc.Document) {
 	view := *doc // the drawing's document: its own names, the rest as read
 	view.Env = expr.NewEnv()
 	view.Env.Preferred, view.Env.Cases = doc.Env.Preferred, doc.Env.Cases
+	p.names = make([]atomic.Pointer[map[string]bool], len(doc.Blocks))
+	p.index = make(map[*calcdoc.Block]int, len(doc.Blocks))
+	for k, b := range doc.Blocks {
+		p.index[b] = k
+	}
 	go p.run(&view, p.queue)
 }
 
@@ -212,6 +229,14 @@ const predrawMost = 4 << 20
 // the two share what is left instead of one waiting on the other.
 func (p *Predraw) run(view *calcdoc.Document, queue <-chan *preJob) {
 	defer close(p.done)
+	// the names each block's text may mention, ahead of the hook, which
+	// then only looks them up (Block.TextMentions: the block's text alone)
+	for k, b := range view.Blocks {
+		if _, ok := b.KindOf().(LocalDrawer); ok && k > 0 {
+			m := b.TextMentions()
+			p.names[k].Store(&m)
+		}
+	}
 	shared := markup.NewWriter(view)
 	var left []*preJob // received after Close: drawn from the last
 	for j := range queue {
