@@ -44,9 +44,14 @@ import (
 // filled them.
 //
 // After evaluation the sheet and the drawing goroutine share what is
-// left: the sheet draws each block the goroutine has not started itself.
-// A Predraw serves one document once; it is safe for the hook and the
-// sheet to run on different goroutines one after the other.
+// left: the sheet goes on from the first block it has not got, drawing
+// each the goroutine has not started itself, and the goroutine from the
+// last block back. A document whose drawings would take more than
+// predrawMost is left to the sheet alone, and while the document is
+// evaluated at most predrawHeld of drawings wait to be copied (memory).
+// Call Wait once the sheet is written (or not to be written). A Predraw
+// serves one document once; it is safe for the hook and the sheet to run
+// on different goroutines one after the other.
 type Predraw struct {
 	mu     sync.Mutex
 	closed bool              // Close was called: no more blocks
