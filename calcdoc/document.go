@@ -195,6 +195,7 @@ func parse(path string, src []byte, reg *Registry, in Inputs) *Document {
 		d.Env.Budget = in.Budget
 	}
 	d.Evaluate()
+	d.inputs.AfterBlock = nil // called during evaluation only: the document keeps nothing of the caller's
 	return d
 }
 

@@ -35,6 +35,14 @@ type Inputs struct {
 	// without the disk (ResolveLexical), and returns its bytes. diff uses
 	// it to read a document's files at a git revision.
 	Read func(path string) ([]byte, error)
+	// AfterBlock, when set, is called with each block right after its
+	// evaluation, on the goroutine that evaluates the document, in
+	// document order: the block's Result, Errors and DrawErrors are then
+	// final, and the document's names (Env) hold everything defined up to
+	// the block's end and nothing below it. The sheet writer draws blocks
+	// from it while the rest is evaluated (render.Predraw). It must not
+	// change the document.
+	AfterBlock func(b *Block)
 }
 
 // DataFile is one file the document's blocks read.

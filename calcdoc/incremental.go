@@ -5,6 +5,7 @@ import (
 	"math"
 	"os"
 	"reflect"
+	"strings"
 	"sync"
 	"sync/atomic"
 	"unicode/utf8"
@@ -63,6 +64,9 @@ func (d *Document) evalFrom(k int, t *trail) {
 		case *Block:
 			it.memo = &blockMemo{id: evalIDs.Add(1)}
 			d.evalBlock(it)
+			if d.inputs.AfterBlock != nil {
+				d.inputs.AfterBlock(it)
+			}
 		case *Inline:
 			d.evalInline(it)
 		}
@@ -137,51 +141,86 @@ func (d *Document) Redefines(b *Block) bool {
 	return false
 }
 
+// Mentions are the keys (expr.NameKey) of every name the text of an
+// evaluated block may mention (see mentions), made once for the block and
+// shared: the caller must not change the map. nil for a block not
+// evaluated. It is safe for use by several goroutines.
+func (b *Block) Mentions() map[string]bool {
+	if b.memo == nil {
+		return nil
+	}
+	return b.mentions()
+}
+
 // mentions are the keys of every name the block's text may mention: each
 // run of letters, digits, '_', '.' and characters beyond ASCII, whole, cut
 // at its dots, and without its leading digits (a name written straight
 // after a number). It errs on the side of too many.
 func (b *Block) mentions() map[string]bool {
 	m := b.memo
-	m.once.Do(func() {
-		m.mentions = map[string]bool{}
-		add := func(w string) {
-			for w != "" {
-				m.mentions[expr.NameKey(w)] = true
-				i := 0
-				for i < len(w) && (w[i] >= '0' && w[i] <= '9' || w[i] == '.') {
-					i++
-				}
-				if i > 0 {
-					w = w[i:]
-					continue
-				}
+	m.once.Do(func() { m.mentions = textMentions(b) })
+	return m.mentions
+}
+
+// TextMentions is Mentions made anew from the block's text, for a block
+// evaluated or not: the same keys. It reads only the block's text, so it
+// may run on any goroutine while the document is evaluated.
+func (b *Block) TextMentions() map[string]bool { return textMentions(b) }
+
+// textMentions are the keys of the names the block's text may mention
+// (mentions).
+func textMentions(b *Block) map[string]bool {
+	n := len(b.Arg)
+	for _, l := range b.Lines {
+		n += len(l)
+	}
+	out := make(map[string]bool, n/8) // about a name in eight bytes
+	add := func(w string) {
+		for w != "" {
+			out[expr.NameKey(w)] = true
+			i := 0
+			for i < len(w) && (w[i] >= '0' && w[i] <= '9' || w[i] == '.') {
+				i++
+			}
+			if i > 0 {
+				w = w[i:]
+				continue
+			}
+			break
+		}
+	}
+	word := func(w string) {
+		add(w)
+		for rest := w; strings.IndexByte(w, '.') >= 0; {
+			part, after, found := strings.Cut(rest, ".")
+			add(part)
+			if !found {
 				break
 			}
+			rest = after
 		}
-		scan := func(s string) {
-			start := -1
-			for i, r := range s + " " {
-				in := r == '_' || r == '.' || r >= '0' && r <= '9' || r >= 'a' && r <= 'z' || r >= 'A' && r <= 'Z' || r >= utf8.RuneSelf && r != '\u00a0' && r != utf8.RuneError
-				switch {
-				case in && start < 0:
-					start = i
-				case !in && start >= 0:
-					w := s[start:i]
-					add(w)
-					for _, part := range bytes.Split([]byte(w), []byte(".")) {
-						add(string(part))
-					}
-					start = -1
-				}
+	}
+	scan := func(s string) {
+		start := -1
+		for i, r := range s {
+			in := r == '_' || r == '.' || r >= '0' && r <= '9' || r >= 'a' && r <= 'z' || r >= 'A' && r <= 'Z' || r >= utf8.RuneSelf && r != '\u00a0' && r != utf8.RuneError
+			switch {
+			case in && start < 0:
+				start = i
+			case !in && start >= 0:
+				word(s[start:i])
+				start = -1
 			}
 		}
-		scan(b.Arg)
-		for _, l := range b.Lines {
-			scan(l)
+		if start >= 0 {
+			word(s[start:])
 		}
-	})
-	return m.mentions
+	}
+	scan(b.Arg)
+	for _, l := range b.Lines {
+		scan(l)
+	}
+	return out
 }
 
 // Reevaluate reads a document from its bytes and evaluates it as

@@ -116,9 +116,16 @@ func (l *Loader) Load(path string) (*Document, error) {
 // already evaluated from the same bytes at the same place. Its Path is
 // path.
 func (l *Loader) Parse(path string, src []byte) *Document {
+	return l.ParseAfter(path, src, nil)
+}
+
+// ParseAfter is Parse that, when this call evaluates the document, calls
+// after with each block as soon as it is evaluated (Inputs.AfterBlock);
+// when it returns a document evaluated before, after is never called.
+func (l *Loader) ParseAfter(path string, src []byte, after func(*Block)) *Document {
 	real := realPath(path)
 	v := &view{l: l, fallback: l.rootFor(real, path)}
-	d, _ := l.eval(path, real, src, v)
+	d, _ := l.eval(path, real, src, v, after)
 	return d
 }
 
@@ -133,7 +140,7 @@ func (l *Loader) Sheets(path string) Sheets {
 
 // eval evaluates src as the document at real, reached through the view
 // parent (whose chain it extends), or returns it from the memo.
-func (l *Loader) eval(path, real string, src []byte, parent *view) (*Document, *loaded) {
+func (l *Loader) eval(path, real string, src []byte, parent *view, after func(*Block)) (*Document, *loaded) {
 	key := real + "\x00" + hashHex(src)
 	child := &view{l: l, fallback: parent.fallback, chain: append(append([]string(nil), parent.chain...), real), names: append(append([]string(nil), parent.names...), path)}
 	l.mu.Lock()
@@ -143,7 +150,7 @@ func (l *Loader) eval(path, real string, src []byte, parent *view) (*Document, *
 		l.memo[key] = e
 		l.mu.Unlock()
 		l.evals.Add(1)
-		e.doc = ParseWith(path, src, l.kinds, Inputs{Sheets: child, Root: child.fallback, Read: l.readFn})
+		e.doc = ParseWith(path, src, l.kinds, Inputs{Sheets: child, Root: child.fallback, Read: l.readFn, AfterBlock: after})
 		close(e.done)
 		return e.doc, e
 	}
@@ -156,7 +163,7 @@ func (l *Loader) eval(path, real string, src []byte, parent *view) (*Document, *
 		// copy rather than wait (waiting could deadlock on a cycle that
 		// two goroutines entered from its two ends)
 		l.evals.Add(1)
-		d := ParseWith(path, src, l.kinds, Inputs{Sheets: child, Root: child.fallback, Read: l.readFn})
+		d := ParseWith(path, src, l.kinds, Inputs{Sheets: child, Root: child.fallback, Read: l.readFn, AfterBlock: after})
 		c := &loaded{doc: d}
 		return d, c
 	}
@@ -218,7 +225,7 @@ func (v *view) Sheet(from *Document, rel string) (*Sheet, error) {
 	if err != nil {
 		return nil, fmt.Errorf("%s cannot be read: %v", rel, err)
 	}
-	_, e := v.l.eval(shown, real, src, v)
+	_, e := v.l.eval(shown, real, src, v, nil)
 	return e.sheetOf(), nil
 }
 

@@ -81,3 +81,15 @@ func (c *BlockCache) draw(w *markup.Writer, out util.BufWriter, d markup.Drawer,
 	c.next[id] = buf.Bytes()
 	c.Drawn++
 }
+
+// keep keeps a copy of bs, the drawing of block b by its kind d written
+// by other means (Predraw, which reuses the bytes), as draw would have
+// kept it.
+func (c *BlockCache) keep(d markup.Drawer, b *calcdoc.Block, bs []byte) {
+	id := b.EvalID()
+	if _, local := d.(LocalDrawer); c == nil || c.next == nil || !local || id == 0 {
+		return
+	}
+	c.next[id] = bytes.Clone(bs)
+	c.Drawn++
+}

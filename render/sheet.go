@@ -40,10 +40,16 @@ type Options struct {
 	// Blocks, when set, keeps the drawing of blocks for the next sheet of
 	// the same document (the live preview); the bytes do not change.
 	Blocks *BlockCache
+	// Predrawn, when set, holds the blocks drawn while the document was
+	// evaluated (the build: Predraw's Block was the document's per-block
+	// hook); the sheet copies each that is the serial drawing and draws
+	// the rest. The bytes do not change.
+	Predrawn *Predraw
 }
 
 // Sheet writes the HTML sheet of a document.
 func Sheet(doc *calcdoc.Document, opt Options) ([]byte, error) {
+	opt.Predrawn.Close() // the document is evaluated: nothing more is queued
 	w := markup.NewWriter(doc)
 	// the page buffer is grown once: from the source (pageSize), or from
 	// the last sheet of this document when the preview keeps one
@@ -100,6 +106,7 @@ func pageSize(doc *calcdoc.Document) int {
 // sheets (a package) composes it with CSS, PageCSS and HeadTitle, as Sheet
 // does.
 func Body(doc *calcdoc.Document, opt Options) ([]byte, error) {
+	opt.Predrawn.Close()
 	w := markup.NewWriter(doc)
 	w.Grow(pageSize(doc))
 	if err := body(w, doc, opt); err != nil {
@@ -116,7 +123,9 @@ func body(w *markup.Writer, doc *calcdoc.Document, opt Options) error {
 	titleBlock(w, doc.Front, SheetTitle(doc))
 	summary(w, doc)
 	w.WriteString("<main class=\"body\">\n")
-	if err := prose(w, doc, opt.Blocks); err != nil {
+	err := prose(w, doc, opt.Blocks, opt.Predrawn)
+	opt.Predrawn.finish() // every block is taken
+	if err != nil {
 		return err
 	}
 	w.WriteString("</main>\n")
@@ -310,12 +319,12 @@ func plural(n int) string {
 
 // prose renders the Markdown body with goldmark, drawing evaluated blocks
 // and inline values through calcdoc's node renderers.
-func prose(w *markup.Writer, doc *calcdoc.Document, cache *BlockCache) error {
+func prose(w *markup.Writer, doc *calcdoc.Document, cache *BlockCache, pre *Predraw) error {
 	r := renderer.NewRenderer(renderer.WithNodeRenderers(
 		util.Prioritized(ghtml.NewRenderer(), 1000),
 		util.Prioritized(gfmhtml.NewTableHTMLRenderer(), 500),
 		util.Prioritized(gfmhtml.NewStrikethroughHTMLRenderer(), 500),
-		util.Prioritized(&nodes{w: w, cache: cache}, 100),
+		util.Prioritized(&nodes{w: w, cache: cache, pre: pre}, 100),
 	))
 	// the node renderers write into the writer goldmark hands them
 	// (SetOutput); after the body the page's own buffer again
@@ -329,6 +338,7 @@ func prose(w *markup.Writer, doc *calcdoc.Document, cache *BlockCache) error {
 type nodes struct {
 	w     *markup.Writer
 	cache *BlockCache // nil: every block drawn
+	pre   *Predraw    // nil: every block drawn here
 }
 
 func (n *nodes) RegisterFuncs(reg renderer.NodeRendererFuncRegisterer) {
@@ -347,6 +357,10 @@ func (n *nodes) fenced(out util.BufWriter, src []byte, node ast.Node, entering b
 	w := n.w
 	if b := w.Doc.BlockFor(node); b != nil {
 		if d, ok := b.KindOf().(markup.Drawer); ok {
+			if bs, ok := n.pre.copyTo(out, w.Doc, b); ok {
+				n.cache.keep(d, b, bs)
+				return ast.WalkSkipChildren, nil
+			}
 			n.cache.draw(w, out, d, b)
 			return ast.WalkSkipChildren, nil
 		}

@@ -202,10 +202,12 @@ func (c *cli) build(args []string) int {
 	stamper.Prefetch(inputs) // git runs while the documents are evaluated
 	werr := make([]error, len(inputs))
 	targets := make([]string, len(inputs))
-	evald := build.Evaluate(build.NewLoader(kind.Standard(), inputs), inputs, 0, func(i int, doc *calcdoc.Document) {
+	evald := build.EvaluateDraw(build.NewLoader(kind.Standard(), inputs), inputs, 0, func(i int, doc *calcdoc.Document, pre *build.Predraw) {
 		in := inputs[i]
 		targets[i] = build.Target(*out, in.Path, in.Rel)
-		werr[i] = build.Write(doc, stamper.Stamped(doc), in.Path, targets[i], nil)
+		opt := stamper.Stamped(doc)
+		opt.Predrawn = pre // blocks drawn on a second core while doc was evaluated
+		werr[i] = build.Write(doc, opt, in.Path, targets[i], nil)
 	})
 	st := exitOK
 	for i, ev := range evald {

@@ -15,6 +15,10 @@ import (
 // the preview reaches the sheet writer only through this package.
 type Options = render.Options
 
+// Predraw is the drawing of a document's blocks while it is evaluated
+// (render.Predraw; EvaluateDraw).
+type Predraw = render.Predraw
+
 // Stamped are the options of a built sheet: stamped from git (render/stamp)
 // and carrying its source, so that verify can check it. The stamp lists
 // each sheet the document uses, with its own git facts and whether it is

@@ -7,8 +7,10 @@ import (
 	"sort"
 	"strings"
 	"sync"
+	"sync/atomic"
 
 	"calcdoc/calcdoc"
+	"calcdoc/render"
 )
 
 // Evaluated is one input of a build, evaluated: its document, or the error
@@ -43,9 +45,35 @@ type node struct {
 // workers: a sheet is a function of its document and the documents it
 // uses, which the loader evaluates once.
 func Evaluate(l *calcdoc.Loader, inputs []Input, workers int, fn func(i int, doc *calcdoc.Document)) []Evaluated {
+	var draw func(int, *calcdoc.Document, *render.Predraw)
+	if fn != nil {
+		draw = func(i int, doc *calcdoc.Document, _ *render.Predraw) { fn(i, doc) }
+	}
+	return evaluate(l, inputs, workers, draw, false)
+}
+
+// EvaluateDraw is Evaluate for a build that draws each input's sheet in
+// fn: while an input is evaluated, a goroutine of its own draws its
+// blocks (render.Predraw), when a core is free for it, and fn gets it
+// (pre, nil when there was none) to give the sheet (Options.Predrawn), so
+// that one document uses two cores. At most GOMAXPROCS goroutines
+// evaluate or draw at once: the workers evaluating and the drawing
+// goroutines alive count together, and a document gets a drawing
+// goroutine only when fewer than GOMAXPROCS are busy (a folder of many
+// documents already keeps every core busy with one a document). The
+// sheets are those of Evaluate: the drawing goroutine changes no byte.
+// After fn returns, EvaluateDraw closes pre and waits for its goroutine
+// to end (at once once the sheet is drawn), whether or not fn drew it.
+func EvaluateDraw(l *calcdoc.Loader, inputs []Input, workers int, fn func(i int, doc *calcdoc.Document, pre *render.Predraw)) []Evaluated {
+	return evaluate(l, inputs, workers, fn, true)
+}
+
+func evaluate(l *calcdoc.Loader, inputs []Input, workers int, fn func(i int, doc *calcdoc.Document, pre *render.Predraw), predraw bool) []Evaluated {
 	if workers <= 0 {
 		workers = runtime.GOMAXPROCS(0)
 	}
+	cores := int64(runtime.GOMAXPROCS(0))
+	var busy atomic.Int64 // workers evaluating and drawing goroutines alive
 	out := make([]Evaluated, len(inputs))
 	byReal := map[string]*node{}
 	var nodes []*node
@@ -76,8 +104,23 @@ func Evaluate(l *calcdoc.Loader, inputs []Input, workers int, fn func(i int, doc
 		n.inputs = append(n.inputs, i)
 	}
 	eval := func(n *node) {
+		busy.Add(1)
+		defer busy.Add(-1)
+		var pre *render.Predraw
 		if n.err == nil {
-			l.Parse(n.shown, n.src)
+			if predraw && fn != nil && len(n.inputs) > 0 {
+				if busy.Add(1) <= cores {
+					pre = render.NewPredraw()
+					defer busy.Add(-1) // after pre.Wait below
+				} else {
+					busy.Add(-1)
+				}
+			}
+			if pre != nil {
+				l.ParseAfter(n.shown, n.src, pre.Block)
+			} else {
+				l.Parse(n.shown, n.src)
+			}
 		}
 		for _, i := range n.inputs {
 			if n.err != nil {
@@ -86,9 +129,12 @@ func Evaluate(l *calcdoc.Loader, inputs []Input, workers int, fn func(i int, doc
 			}
 			out[i].Doc = l.Parse(inputs[i].Path, n.src)
 			if fn != nil {
-				fn(i, out[i].Doc)
+				fn(i, out[i].Doc, pre)
 			}
+			pre.Wait()
+			pre = nil // it drew the first input's blocks; a sheet ignores it for another document
 		}
+		pre.Wait()
 	}
 	var mu sync.Mutex
 	ready := make(chan *node, len(nodes))
