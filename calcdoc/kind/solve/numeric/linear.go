@@ -127,14 +127,7 @@ func (e *evaluator) linearize() (lin *Linear, ok bool, err error) {
 	d := make([]float64, n)
 	maxDev := 0.0
 	for j := 0; j < LinearProbes; j++ {
-		for k := 0; k < n; k++ {
-			u := 0.5 + rng.Float64()
-			if j == 0 || rng.IntN(2) == 0 {
-				u = -u
-			}
-			x[k] = x0[k] + u*e.scale[k]
-			d[k] = x[k] - x0[k]
-		}
+		probePoint(rng, j == 0, x0, e.scale, x, d)
 		if err := e.eval(x, r); err != nil {
 			return nil, false, nil
 		}
@@ -369,4 +362,20 @@ func nullIndices(q *mat.Dense, rank int) []int {
 		}
 	}
 	return out
+}
+
+// probePoint sets x to the next probe point about x0 and d to x − x0:
+// x[k] = x0[k] + u·scale[k] with |u| drawn uniformly from [0.5, 1.5) and
+// its sign negative on the first probe and with probability ½ after it.
+// The dense and the sparse construction call it in the same order, so
+// that both probe the same points.
+func probePoint(rng *rand.Rand, first bool, x0, scale, x, d []float64) {
+	for k := range x0 {
+		u := 0.5 + rng.Float64()
+		if first || rng.IntN(2) == 0 {
+			u = -u
+		}
+		x[k] = x0[k] + u*scale[k]
+		d[k] = x[k] - x0[k]
+	}
 }

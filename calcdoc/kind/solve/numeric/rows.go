@@ -65,14 +65,7 @@ func (e *evaluator) linearizeBlocks() (lin *Linear, ok bool, err error) {
 	d := make([]float64, n)
 	maxDev := 0.0
 	for j := 0; j < LinearProbes; j++ {
-		for k := 0; k < n; k++ {
-			u := 0.5 + rng.Float64()
-			if j == 0 || rng.IntN(2) == 0 {
-				u = -u
-			}
-			x[k] = x0[k] + u*e.scale[k]
-			d[k] = x[k] - x0[k]
-		}
+		probePoint(rng, j == 0, x0, e.scale, x, d)
 		if err := e.evalBlocks(x, r); err != nil {
 			return nil, false, nil
 		}
