@@ -1,11 +1,13 @@
 package expr
 
 import (
+	"bytes"
 	"fmt"
 	"math"
 	"math/cmplx"
 	"strconv"
 	"strings"
+	"unsafe"
 )
 
 // ShownKind says how a value was laid out.
@@ -155,8 +157,8 @@ func FormatScalar(s *Scalar, d *Display, digits int) Shown {
 		}
 		return Shown{Kind: ShownPolar, A: fmtNum(m, digits), B: fmtAngle(deg, digits), Unit: unit}
 	case FormRect:
-		dec := decimalsFor(mag, digits)
-		if rm := roundSig(mag, digits); rm != 0 && (rm >= 1e6 || rm >= math.Pow(10, float64(digits)) || rm < 1e-3) {
+		rm, dec := sigDecimals(mag, digits)
+		if rm != 0 && (rm >= 1e6 || rm >= pow10(digits) || rm < 1e-3) {
 			// exponent form, like a real number (fmtNum)
 			return Shown{Kind: ShownRect, A: fmtNum(real(z), digits), B: fmtNum(imag(z), digits), Unit: unit}
 		}
@@ -244,7 +246,7 @@ func chooseUnit(s *Scalar, d *Display, digits int) unitChoice {
 		// raised to pow, [1, 1000^pow)) is used: below pico and above tera
 		// the value is shown in the base unit in exponent form, never as
 		// "0.1000 pF" or "1.000e8 TV".
-		if r := rm / f; (pf != "" || f != 1) && r >= 1-1e-12 && r < math.Pow(1000, float64(pow)) {
+		if r := rm / f; (pf != "" || f != 1) && r >= 1-1e-12 && r < pow10(3*pow) {
 			c.unit = pf + base
 			c.scale *= f
 		}
@@ -328,38 +330,98 @@ func defaultSymbol(d Dim, kind PowerKind, complexValue bool) (sym string, pow in
 func choosePrefix(mag float64, pow int) (string, float64) {
 	best := 4
 	for k := 0; k < len(engPrefix); k++ {
-		f := math.Pow(10, float64(3*(k-4)*pow))
+		f := pow10(3 * (k - 4) * pow)
 		if mag/f >= 1-1e-12 {
 			best = k
 		}
 	}
-	if mag < math.Pow(10, float64(-12*pow)) {
+	if mag < pow10(-12*pow) {
 		best = 0
 	}
-	return engPrefix[best], math.Pow(10, float64(3*(best-4)*pow))
+	return engPrefix[best], pow10(3 * (best - 4) * pow)
+}
+
+// pow10Tab holds math.Pow(10, k) for k in [-maxPow10, maxPow10], the
+// powers choosePrefix and the exponent-form tests ask for (a prefix of a
+// unit cubed: 10^±36; digits: at most 10^15), so that the same values are
+// read from a table rather than computed again for every number shown.
+const maxPow10 = 48
+
+var pow10Tab = func() (t [2*maxPow10 + 1]float64) {
+	for k := range t {
+		t[k] = math.Pow(10, float64(k-maxPow10))
+	}
+	return t
+}()
+
+// pow10 is math.Pow(10, k), from the table where k is in it.
+func pow10(k int) float64 {
+	if k < -maxPow10 || k > maxPow10 {
+		return math.Pow(10, float64(k))
+	}
+	return pow10Tab[k+maxPow10]
+}
+
+// eForm writes x in exponent form with n significant figures (as
+// strconv.FormatFloat(x, 'e', n-1, 64)) into buf and returns the text and
+// its decimal exponent (0 when the text has none: Inf, NaN).
+func eForm(buf []byte, x float64, n int) ([]byte, int) {
+	s := strconv.AppendFloat(buf[:0], x, 'e', n-1, 64)
+	i := bytes.IndexByte(s, 'e')
+	if i < 0 || i+2 >= len(s) {
+		return s, 0
+	}
+	e := 0
+	for _, c := range s[i+2:] {
+		e = e*10 + int(c-'0')
+	}
+	if s[i+1] == '-' {
+		e = -e
+	}
+	return s, e
+}
+
+// sigDecimals returns roundSig(x, n) and decimalsFor(|x|, n) from one
+// formatting of x.
+func sigDecimals(x float64, n int) (float64, int) {
+	var buf [40]byte
+	s, e := eForm(buf[:], x, n)
+	return parseSig(x, s), decimalsOf(x, n, e)
+}
+
+// parseSig reads back the text s that eForm wrote for x: x rounded to
+// its significant figures.
+func parseSig(x float64, s []byte) float64 {
+	if x == 0 || math.IsInf(x, 0) || math.IsNaN(x) {
+		return x
+	}
+	v, _ := strconv.ParseFloat(unsafe.String(unsafe.SliceData(s), len(s)), 64)
+	return v
+}
+
+// decimalsOf is decimalsFor given the exponent e of x's exponent form.
+func decimalsOf(x float64, n, e int) int {
+	if x == 0 {
+		return n - 1
+	}
+	return max(n-1-e, 0)
 }
 
 func roundSig(x float64, n int) float64 {
 	if x == 0 || math.IsInf(x, 0) || math.IsNaN(x) {
 		return x
 	}
-	v, _ := strconv.ParseFloat(strconv.FormatFloat(x, 'e', n-1, 64), 64)
-	return v
+	var buf [40]byte
+	s, _ := eForm(buf[:], x, n)
+	return parseSig(x, s)
 }
 
 // decimalsFor is the number of decimals that shows mag with n significant
-// figures, or -1 when mag needs more digits before the point than n.
+// figures (0 when mag needs more digits before the point than n).
 func decimalsFor(mag float64, n int) int {
-	if mag == 0 {
-		return n - 1
-	}
-	s := strconv.FormatFloat(mag, 'e', n-1, 64)
-	e, _ := strconv.Atoi(s[strings.IndexByte(s, 'e')+1:])
-	dec := n - 1 - e
-	if dec < 0 {
-		return 0
-	}
-	return dec
+	var buf [40]byte
+	_, e := eForm(buf[:], mag, n)
+	return decimalsOf(mag, n, e)
 }
 
 func fmtFixed(x float64, dec int) string {
@@ -368,11 +430,6 @@ func fmtFixed(x float64, dec int) string {
 		s = s[1:]
 	}
 	return s
-}
-
-// fmtSig writes x with n significant figures in fixed notation.
-func fmtSig(x float64, n int) string {
-	return fmtFixed(x, decimalsFor(math.Abs(x), n))
 }
 
 // fmtNum writes x with n significant figures, in exponent form outside
@@ -386,15 +443,18 @@ func fmtNum(x float64, n int) string {
 	if math.IsInf(x, -1) {
 		return "-∞"
 	}
-	a := math.Abs(roundSig(x, n))
-	if a != 0 && (a >= 1e6 || a >= math.Pow(10, float64(n)) || a < 1e-3) {
-		s := strconv.FormatFloat(x, 'e', n-1, 64)
+	var buf [40]byte
+	s, e := eForm(buf[:], x, n)
+	a := math.Abs(parseSig(x, s))
+	if a != 0 && (a >= 1e6 || a >= pow10(n) || a < 1e-3) {
 		// 1.234e-05 -> 1.234e-5
-		i := strings.IndexByte(s, 'e')
-		e, _ := strconv.Atoi(s[i+1:])
-		return s[:i] + "e" + strconv.Itoa(e)
+		i := bytes.IndexByte(s, 'e')
+		out := strconv.AppendInt(append(s[:i:i], 'e'), int64(e), 10)
+		return string(out)
 	}
-	return fmtSig(x, n)
+	// fixed notation with n significant figures (the exponent of |x| is
+	// the exponent of x)
+	return fmtFixed(x, decimalsOf(x, n, e))
 }
 
 // fmtDegrees writes an angle value in degrees with n significant figures;

@@ -94,18 +94,31 @@ func nameKey(name string, ascii bool) string {
 // hasGreekPart reports whether a "_"-separated part of name is a spelled
 // Greek name.
 func hasGreekPart(name string) bool {
-	for len(name) > 0 {
-		p := name
-		if i := strings.IndexByte(name, '_'); i >= 0 {
-			p, name = name[:i], name[i+1:]
-		} else {
-			name = ""
+	start := 0
+	for i := 0; i <= len(name); i++ {
+		if i < len(name) && name[i] != '_' {
+			continue
 		}
-		if len(p) >= 2 && len(p) <= 7 {
-			if _, ok := greekNames[p]; ok {
-				return true
-			}
+		if n := i - start; n >= 2 && n <= 7 && isGreekName(name[start:i]) {
+			return true
 		}
+		start = i + 1
+	}
+	return false
+}
+
+// isGreekName reports whether p is a key of greekNames (the test holds
+// the two lists together); a switch on constant strings compares lengths
+// and bytes, with no hashing, for the many names that are not Greek.
+func isGreekName(p string) bool {
+	switch p {
+	case "alpha", "beta", "gamma", "delta", "epsilon", "zeta",
+		"eta", "theta", "iota", "kappa", "lambda", "mu",
+		"nu", "xi", "pi", "rho", "sigma", "tau",
+		"upsilon", "phi", "chi", "psi", "omega",
+		"Gamma", "Delta", "Theta", "Lambda", "Xi", "Pi",
+		"Sigma", "Phi", "Psi", "Omega":
+		return true
 	}
 	return false
 }
