@@ -152,9 +152,15 @@ func (e *Env) Define(b *Binding) *Error {
 	if err := e.canDefine(b.Name, key, b.Pos); err != nil {
 		return err
 	}
+	e.put(key, b)
+	return nil
+}
+
+// put is Define of a binding whose name, of the given key, has passed
+// canDefine with nothing defined since: one look-up of the key, not two.
+func (e *Env) put(key string, b *Binding) {
 	e.vars[key] = b
 	e.order = append(e.order, b.Name)
-	return nil
 }
 
 // DefineFunc adds a user function.

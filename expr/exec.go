@@ -220,7 +220,7 @@ func (e *Env) exec(s Stmt, r *Result) {
 						}
 					}
 				}
-				e.Define(b)
+				e.put(id.key(), b) // each name passed canDefine above
 			}
 			return
 		}
@@ -258,7 +258,7 @@ func (e *Env) exec(s Stmt, r *Result) {
 		r.Display = disp
 		b := e.memory().bindings.alloc(slabLimit)
 		*b = Binding{Name: s.Names[0].Name, Value: v, Pos: s.Names[0].P, Display: disp, Cases: cases}
-		e.Define(b)
+		e.put(s.Names[0].key(), b) // the name passed canDefine above
 	case *FuncDef:
 		if err := e.CanDefine(s.Name.Name, s.Name.P); err != nil {
 			r.Err = err
@@ -324,8 +324,8 @@ func (e *Env) defineUnavailable(names []*Ident) {
 // failure at cause.
 func (e *Env) defineUnavailableAt(names []*Ident, cause Pos) {
 	for _, id := range names {
-		if e.CanDefine(id.Name, id.P) == nil {
-			e.Define(&Binding{Name: id.Name, Pos: id.P, Unavailable: true, Cause: cause})
+		if key := id.key(); e.canDefine(id.Name, key, id.P) == nil {
+			e.put(key, &Binding{Name: id.Name, Pos: id.P, Unavailable: true, Cause: cause})
 		}
 	}
 }

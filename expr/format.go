@@ -157,8 +157,10 @@ func FormatScalar(s *Scalar, d *Display, digits int) Shown {
 		}
 		return Shown{Kind: ShownPolar, A: fmtNum(m, digits), B: fmtAngle(deg, digits), Unit: unit}
 	case FormRect:
-		rm, dec := sigDecimals(mag, digits)
-		if rm != 0 && (rm >= 1e6 || rm >= pow10(digits) || rm < 1e-3) {
+		var buf [40]byte
+		_, e := eForm(buf[:], mag, digits)
+		dec := decimalsOf(mag, digits, e)
+		if expForm(mag, e, digits) {
 			// exponent form, like a real number (fmtNum)
 			return Shown{Kind: ShownRect, A: fmtNum(real(z), digits), B: fmtNum(imag(z), digits), Unit: unit}
 		}
@@ -381,12 +383,22 @@ func eForm(buf []byte, x float64, n int) ([]byte, int) {
 	return s, e
 }
 
-// sigDecimals returns roundSig(x, n) and decimalsFor(|x|, n) from one
-// formatting of x.
-func sigDecimals(x float64, n int) (float64, int) {
-	var buf [40]byte
-	s, e := eForm(buf[:], x, n)
-	return parseSig(x, s), decimalsOf(x, n, e)
+// expForm reports whether x, whose exponent form with n significant
+// figures has the exponent e, is written in exponent form: when x rounded
+// to n figures (r) is not 0 and r ≥ 1e6, r ≥ 10^n or r < 1e-3. The
+// exponent decides each test without reading r back: r is d.dd…×10^e
+// with 1 ≤ d.dd… < 10, so r ≥ 10^k exactly when e ≥ k, and r < 1e-3
+// exactly when e ≤ -4; at n ≤ 15 figures the largest r below a threshold
+// is at least 1e-15 of it below, more than two steps of a float64 (2.2e-16
+// of it), so the float read back from r falls on the same side.
+func expForm(x float64, e, n int) bool {
+	switch {
+	case x == 0 || math.IsNaN(x):
+		return false
+	case math.IsInf(x, 0):
+		return true
+	}
+	return e >= 6 || e >= n || e <= -4
 }
 
 // parseSig reads back the text s that eForm wrote for x: x rounded to
@@ -445,8 +457,7 @@ func fmtNum(x float64, n int) string {
 	}
 	var buf [40]byte
 	s, e := eForm(buf[:], x, n)
-	a := math.Abs(parseSig(x, s))
-	if a != 0 && (a >= 1e6 || a >= pow10(n) || a < 1e-3) {
+	if expForm(x, e, n) {
 		// 1.234e-05 -> 1.234e-5
 		i := bytes.IndexByte(s, 'e')
 		out := strconv.AppendInt(append(s[:i:i], 'e'), int64(e), 10)

@@ -13,8 +13,14 @@ import (
 // library, the definitions they replace).
 func TestFormatHelpersMatchStrconv(t *testing.T) {
 	r := rand.New(rand.NewPCG(20, 20))
-	xs := []float64{0, math.Copysign(0, -1), 1, -1, 999.95, 9.9995, 0.00099995, 999999.5,
+	xs := []float64{0, math.Copysign(0, -1), 1, -1, 999.95, 999999.5, 9999995, 0.0009999995, 0.00099999999999999995,
+		999999.999999999, 99999.9999999999, 0.000999999999999999, 9.9995, 0.00099995, 999999.5,
 		1e6, 1e-3, 123456789, 5e-324, math.MaxFloat64, math.Inf(1), math.Inf(-1), math.NaN()}
+	for _, th := range []float64{1e6, 1e-3, 1e2, 1e3, 1e4, 1e5, 1e7, 1e15, 1e16} {
+		for _, v := range []float64{th, math.Nextafter(th, 0), math.Nextafter(th, 2*th)} {
+			xs = append(xs, v, -v, v*(1-1e-15), v*(1-1e-14), v*(1-5e-16))
+		}
+	}
 	for range 20000 {
 		x := math.Float64frombits(r.Uint64())
 		if r.IntN(2) == 0 {
@@ -35,7 +41,10 @@ func TestFormatHelpersMatchStrconv(t *testing.T) {
 				e, _ := strconv.Atoi(sa[strings.IndexByte(sa, 'e')+1:])
 				wantDec = max(n-1-e, 0)
 			}
-			got, dec := sigDecimals(x, n)
+			got := roundSig(x, n)
+			var buf [40]byte
+			_, e := eForm(buf[:], x, n)
+			dec := decimalsOf(x, n, e)
 			if math.Float64bits(got) != math.Float64bits(want) && !(math.IsNaN(got) && math.IsNaN(want)) {
 				t.Fatalf("roundSig(%v, %d) = %v, strconv gives %v", x, n, got, want)
 			}
@@ -44,6 +53,18 @@ func TestFormatHelpersMatchStrconv(t *testing.T) {
 			}
 			if d := decimalsFor(math.Abs(x), n); d != wantDec {
 				t.Fatalf("decimalsFor(%v, %d) = %d, want %d", x, n, d, wantDec)
+			}
+			// the exponent form test by the exponent alone, against the
+			// rounded value read back by strconv
+			a := math.Abs(want)
+			wantExp := a != 0 && (a >= 1e6 || a >= math.Pow(10, float64(n)) || a < 1e-3)
+			if got := expForm(x, e, n); got != wantExp {
+				t.Fatalf("expForm(%v, %d, %d) = %v, strconv's rounded %v says %v", x, e, n, got, want, wantExp)
+			}
+			if !math.IsInf(x, 0) {
+				if got, want := fmtNum(x, n), fmtNumStrconv(x, n); got != want {
+					t.Fatalf("fmtNum(%v, %d) = %q, by strconv alone %q", x, n, got, want)
+				}
 			}
 		}
 	}
@@ -100,4 +121,33 @@ func TestFmtNumExponentForm(t *testing.T) {
 			t.Errorf("fmtNum(%v, %d) = %q, want %q", c.x, c.n, got, c.want)
 		}
 	}
+}
+
+// fmtNumStrconv is fmtNum as strconv alone defines it: round to n
+// figures, read back, and choose the form from that value.
+func fmtNumStrconv(x float64, n int) string {
+	a := 0.0
+	if x != 0 && !math.IsNaN(x) {
+		a, _ = strconv.ParseFloat(strconv.FormatFloat(x, 'e', n-1, 64), 64)
+		a = math.Abs(a)
+	} else {
+		a = math.Abs(x)
+	}
+	if a != 0 && (a >= 1e6 || a >= math.Pow(10, float64(n)) || a < 1e-3) {
+		s := strconv.FormatFloat(x, 'e', n-1, 64)
+		i := strings.IndexByte(s, 'e')
+		e, _ := strconv.Atoi(s[i+1:])
+		return s[:i] + "e" + strconv.Itoa(e)
+	}
+	dec := n - 1
+	if x != 0 {
+		s := strconv.FormatFloat(math.Abs(x), 'e', n-1, 64)
+		e, _ := strconv.Atoi(s[strings.IndexByte(s, 'e')+1:])
+		dec = max(n-1-e, 0)
+	}
+	s := strconv.FormatFloat(x, 'f', dec, 64)
+	if strings.HasPrefix(s, "-") && strings.Trim(s[1:], "0.") == "" {
+		s = s[1:]
+	}
+	return s
 }
