@@ -83,6 +83,9 @@ func IsBuiltin(name string) bool { return isBuiltinKey(NameKey(name)) }
 
 // isBuiltinKey is IsBuiltin of a name's key.
 func isBuiltinKey(key string) bool {
+	if !builtinShaped(key) {
+		return false
+	}
 	if _, ok := builtins[key]; ok {
 		return true
 	}
@@ -91,6 +94,19 @@ func isBuiltinKey(key string) bool {
 }
 
 var reserved = map[string]bool{"check": true, "casemax": true, "casemin": true}
+
+// builtinShaped reports whether key could be a built-in's: no built-in
+// function, constant or keyword holds '_' or a capital ASCII letter
+// (TestBuiltinShape holds them to it), while most names a document
+// defines do, so most keys skip the three look-ups.
+func builtinShaped(key string) bool {
+	for i := 0; i < len(key); i++ {
+		if c := key[i]; c == '_' || c >= 'A' && c <= 'Z' {
+			return false
+		}
+	}
+	return true
+}
 
 // BuiltinNames lists the built-in functions, sorted.
 func BuiltinNames() []string {

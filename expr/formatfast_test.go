@@ -151,3 +151,36 @@ func fmtNumStrconv(x float64, n int) string {
 	}
 	return s
 }
+
+// TestBuiltinShape holds the built-in names to the shape isBuiltinKey
+// tests first (no '_', no capital ASCII letter).
+func TestBuiltinShape(t *testing.T) {
+	n := 0
+	for _, m := range []map[string]bool{keysOf(builtins), keysOf(constants), reserved} {
+		for k := range m {
+			n++
+			if !builtinShaped(k) {
+				t.Errorf("built-in %q holds '_' or a capital letter: isBuiltinKey would miss it", k)
+			}
+			if !isBuiltinKey(k) || !IsBuiltin(k) {
+				t.Errorf("isBuiltinKey(%q) = false", k)
+			}
+		}
+	}
+	if n < 30 {
+		t.Errorf("only %d built-in names seen", n)
+	}
+	for _, k := range []string{"V_1", "Sqrt", "S_pi", "I_f1", "Z"} {
+		if isBuiltinKey(k) {
+			t.Errorf("isBuiltinKey(%q) = true", k)
+		}
+	}
+}
+
+func keysOf[V any](m map[string]V) map[string]bool {
+	out := map[string]bool{}
+	for k := range m {
+		out[k] = true
+	}
+	return out
+}

@@ -39,14 +39,25 @@ func GreekLetter(s string) (string, bool) {
 // A name of ASCII characters with no spelled Greek part is its own key,
 // with no allocation.
 func NameKey(name string) string {
-	ascii := true
-	for i := 0; i < len(name); i++ {
-		if name[i] >= utf8.RuneSelf {
-			ascii = false
-			break
+	// one pass: ASCII throughout, and no "_"-separated part Greek
+	ascii, greek, start := true, false, 0
+	for i := 0; i <= len(name); i++ {
+		if i < len(name) {
+			c := name[i]
+			if c >= utf8.RuneSelf {
+				ascii = false
+				break
+			}
+			if c != '_' {
+				continue
+			}
 		}
+		if n := i - start; !greek && n >= 2 && n <= 7 && isGreekName(name[start:i]) {
+			greek = true
+		}
+		start = i + 1
 	}
-	if ascii && !hasGreekPart(name) {
+	if ascii && !greek {
 		return name
 	}
 	if k, ok := keyCache.Load(name); ok {
