@@ -266,7 +266,32 @@ func (d *Document) Evaluate() {
 		return
 	}
 	d.evaluated = true
+	d.Env.Reserve(d.namesAbout())
 	d.evalFrom(0, newTrail(d))
+}
+
+// maxReserve bounds the names an environment makes room for ahead
+// (Env.Reserve): beyond it the table grows as it would.
+const maxReserve = 1 << 16
+
+// namesAbout is about the number of names the document's blocks define:
+// their lines that hold "=" (a statement defines a name per line, a few
+// none and a few more), at most maxReserve.
+func (d *Document) namesAbout() int {
+	n := 0
+	for _, it := range d.order {
+		if b, ok := it.(*Block); ok {
+			for _, l := range b.Lines {
+				if strings.IndexByte(l, '=') >= 0 {
+					n++
+				}
+			}
+		}
+		if n >= maxReserve {
+			return maxReserve
+		}
+	}
+	return n
 }
 
 // readerLines returns the file's text as a reader sees it, so that the

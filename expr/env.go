@@ -69,6 +69,18 @@ func NewEnv() *Env {
 	return &Env{vars: map[string]*Binding{}, funcs: map[string]*Func{}, Budget: NewBudget(DefaultBudget)}
 }
 
+// Reserve makes room for about n names in an environment that holds
+// none yet, so that its table is made once at its size instead of growing
+// (and moving every name) as the names come; it does nothing to an
+// environment that holds names. Room never changes what is defined.
+func (e *Env) Reserve(n int) {
+	if n <= 0 || len(e.vars) > 0 || len(e.order) > 0 {
+		return
+	}
+	e.vars = make(map[string]*Binding, n)
+	e.order = make([]string, 0, n)
+}
+
 // Lookup returns the binding of a name, or nil.
 func (e *Env) Lookup(name string) *Binding { return e.vars[NameKey(name)] }
 

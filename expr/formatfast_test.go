@@ -184,3 +184,26 @@ func keysOf[V any](m map[string]V) map[string]bool {
 	}
 	return out
 }
+
+// Reserve gives room and changes nothing else: the names defined after
+// it are found, a second definition is refused, and an environment that
+// holds names keeps them (common practice: a capacity hint is no content).
+func TestReserveKeepsNames(t *testing.T) {
+	e := NewEnv()
+	e.Reserve(100)
+	for _, n := range []string{"a", "phi", "V_1"} {
+		if err := e.Define(&Binding{Name: n, Value: &Scalar{Z: 1}}); err != nil {
+			t.Fatal(err)
+		}
+	}
+	e.Reserve(1000) // holds names: nothing happens
+	if e.Lookup("φ") == nil || e.Lookup("a") == nil || e.Lookup("V_1") == nil {
+		t.Fatal("a name defined after Reserve is lost")
+	}
+	if e.Define(&Binding{Name: "a", Value: &Scalar{Z: 2}}) == nil {
+		t.Error("a second definition of a is accepted")
+	}
+	if got := e.Names(); len(got) != 3 || got[0] != "a" || got[2] != "V_1" {
+		t.Errorf("Names() = %v", got)
+	}
+}
