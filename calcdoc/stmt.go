@@ -130,10 +130,10 @@ func EvalStatements(b *Block, stmts []expr.Stmt, errs expr.ErrorList) []*Stmt {
 		case *expr.Assign:
 			if st.Res.Value != nil {
 				if len(s.Names) == 1 {
-					disp := s.Display
-					if bd := b.Env().Lookup(s.Names[0].Name); bd != nil && bd.Value == st.Res.Value {
-						disp = bd.Display // includes the unit a literal is written in
-					}
+					// a value of a one-name line is the binding Exec defined,
+					// with the display it chose (includes the unit a literal is
+					// written in): no look-up of the name again
+					disp := st.Res.Display
 					named = append(named, NamedValue{Name: s.Names[0].Name, Pos: s.Names[0].Pos(), Value: st.Res.Value, Display: disp, Cases: st.Res.Cases})
 					b.AddValue(&named[len(named)-1])
 				} else if m, ok := st.Res.Value.(*expr.Matrix); ok && len(m.E) == len(s.Names) {
