@@ -118,10 +118,22 @@ func hasGreekPart(name string) bool {
 	return false
 }
 
+// greekFirst marks the first bytes of the spelled Greek names: a part
+// that starts with another (a digit, most letters) is not one of them.
+var greekFirst = func() (t [256]bool) {
+	for k := range greekNames {
+		t[k[0]] = true
+	}
+	return t
+}()
+
 // isGreekName reports whether p is a key of greekNames (the test holds
 // the two lists together); a switch on constant strings compares lengths
 // and bytes, with no hashing, for the many names that are not Greek.
 func isGreekName(p string) bool {
+	if p == "" || !greekFirst[p[0]] {
+		return false
+	}
 	switch p {
 	case "alpha", "beta", "gamma", "delta", "epsilon", "zeta",
 		"eta", "theta", "iota", "kappa", "lambda", "mu",
