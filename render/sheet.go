@@ -50,6 +50,7 @@ type Options struct {
 // Sheet writes the HTML sheet of a document.
 func Sheet(doc *calcdoc.Document, opt Options) ([]byte, error) {
 	opt.Predrawn.Close() // the document is evaluated: nothing more is queued
+	opt.Predrawn.startAfter(doc)
 	w := markup.NewWriter(doc)
 	// the page buffer is grown once: from the source (pageSize), or from
 	// the last sheet of this document when the preview keeps one
@@ -107,6 +108,7 @@ func pageSize(doc *calcdoc.Document) int {
 // does.
 func Body(doc *calcdoc.Document, opt Options) ([]byte, error) {
 	opt.Predrawn.Close()
+	opt.Predrawn.startAfter(doc)
 	w := markup.NewWriter(doc)
 	w.Grow(pageSize(doc))
 	if err := body(w, doc, opt); err != nil {
