@@ -402,7 +402,8 @@ func drawingSize(doc *calcdoc.Document) int {
 }
 
 // blockSize is the room the drawing of b is likely to take: 17 bytes a
-// byte of its text, as pageSize counts a statement.
+// byte of its text (pageSize counts 16 for the whole sheet, whose
+// embedded source and prose take less than a statement's rows).
 func blockSize(b *calcdoc.Block) int {
 	n := 0
 	for _, l := range b.Lines {
