@@ -47,8 +47,12 @@ import (
 // left: the sheet goes on from the first block it has not got, drawing
 // each the goroutine has not started itself, and the goroutine from the
 // last block back. A document whose drawings would take more than
-// predrawMost is left to the sheet alone, and while the document is
-// evaluated at most predrawHeld of drawings wait to be copied (memory).
+// predrawMost has nothing drawn while it is evaluated (its drawings, held
+// until the sheet, would raise the build's memory): the sheet then starts
+// the goroutine (startAfter), which draws every second block just ahead
+// of the sheet with the document's final names, holding at most
+// predrawHeldAfter. While the document is evaluated at most predrawHeld
+// of drawings wait to be copied (memory).
 // Call Wait once the sheet is written (or not to be written). A Predraw
 // serves one document once; it is safe for the hook and the sheet to run
 // on different goroutines one after the other.
@@ -72,6 +76,12 @@ type Predraw struct {
 	finished bool            // the sheet is written: hold no drawing back
 	limit    int             // predrawHeld; tests make it small
 	most     int             // predrawMost
+	// after: the document's drawings would pass most, so none is drawn
+	// while it is evaluated; the sheet starts the drawing goroutine
+	// (startAfter), which draws every other block ahead of the sheet
+	// with the document's own names, holding at most predrawHeldAfter.
+	after     bool
+	afterOnce sync.Once // the goroutine of after started, or done closed
 	// Copied and Drawn count the blocks of the sheet copied from the
 	// drawing goroutine and drawn by the serial pass (of LocalDrawer
 	// kinds) after the sheet is written.
@@ -139,8 +149,9 @@ func (p *Predraw) Block(b *calcdoc.Block) {
 	case p.doc == nil:
 		if drawingSize(doc) > p.most {
 			// a large document: its drawings, held until the sheet, would
-			// raise the build's memory more than the second core saves
-			p.closed = true
+			// raise the build's memory more than the second core saves;
+			// they are shared with the sheet after evaluation (startAfter)
+			p.closed, p.doc, p.after = true, doc, true
 			return
 		}
 		p.start(doc)
@@ -226,6 +237,70 @@ const predrawHeld = 6 << 20
 // and the collector, off below 64 MiB (cmd/calcdoc/gc.go), then runs.
 const predrawMost = 4 << 20
 
+// predrawHeldAfter is the most the drawings made ahead of the sheet of a
+// document above predrawMost may hold (startAfter).
+const predrawHeldAfter = 1 << 20
+
+// startAfter starts, for a document above predrawMost once it is
+// evaluated, the goroutine that draws with the sheet: the sheet and it go
+// through the blocks of LocalDrawer kinds in order, it drawing every
+// second one (the sheet copies it) and the sheet the others, so that the
+// drawing takes both cores while at most predrawHeldAfter of drawings
+// wait to be copied. The names are final: the goroutine draws with the
+// document's own, which nothing writes any more, and with a writer of its
+// own. A block the goroutine has not started when the sheet comes to it
+// is drawn by the sheet.
+func (p *Predraw) startAfter(doc *calcdoc.Document) {
+	if p == nil {
+		return
+	}
+	p.mu.Lock()
+	start := p.after && p.doc == doc
+	p.mu.Unlock()
+	if !start {
+		return
+	}
+	p.afterOnce.Do(func() {
+		var jobs []*preJob
+		v, f, t := doc.Env.Counts()
+		for _, b := range doc.Blocks {
+			if d, ok := b.KindOf().(LocalDrawer); ok {
+				j := &preJob{b: b, d: d, ready: make(chan struct{}), counts: [3]int{v, f, t}}
+				jobs = append(jobs, j)
+			}
+		}
+		p.mu.Lock()
+		for _, j := range jobs {
+			p.jobs[j.b] = j
+		}
+		p.limit = min(p.limit, predrawHeldAfter)
+		p.mu.Unlock()
+		go p.runAfter(doc, jobs)
+	})
+}
+
+// runAfter draws the jobs of startAfter: every second one, or every one
+// when the sheet waits for all (DrawAllEarly).
+func (p *Predraw) runAfter(doc *calcdoc.Document, jobs []*preJob) {
+	defer close(p.done)
+	w := markup.NewWriter(doc)
+	for k, j := range jobs {
+		if k%2 == 0 && !p.wait {
+			continue // the sheet's
+		}
+		p.mu.Lock()
+		for p.held >= p.limit && !p.finished {
+			p.room.Wait()
+		}
+		finished := p.finished
+		p.mu.Unlock()
+		if finished {
+			return
+		}
+		w = p.drawJob(doc, w, j, true)
+	}
+}
+
 // run draws the queued blocks in order, each into a buffer of its own
 // (one the sheet has handed back, when there is one), after adding the
 // definitions its hook found to its names. Once the document is evaluated
@@ -284,7 +359,7 @@ func (p *Predraw) drawJob(view *calcdoc.Document, w *markup.Writer, j *preJob, h
 		return w // the sheet draws it
 	}
 	dw := w
-	if p.isolate {
+	if p.isolate && !p.after {
 		own := *view
 		own.Env = expr.NewEnv()
 		own.Env.Preferred, own.Env.Cases = view.Env.Preferred, view.Env.Cases
@@ -327,7 +402,8 @@ func drawingSize(doc *calcdoc.Document) int {
 }
 
 // blockSize is the room the drawing of b is likely to take: 17 bytes a
-// byte of its text, as pageSize counts a statement.
+// byte of its text (pageSize counts 16 for the whole sheet, whose
+// embedded source and prose take less than a statement's rows).
 func blockSize(b *calcdoc.Block) int {
 	n := 0
 	for _, l := range b.Lines {
@@ -407,7 +483,7 @@ func (p *Predraw) Close() {
 		p.room.Broadcast() // a drawing held back goes on: the sheet is begun
 		if q != nil {
 			close(q)
-		} else {
+		} else if !p.after {
 			close(p.done) // no drawing goroutine was started
 		}
 	})
@@ -422,6 +498,12 @@ func (p *Predraw) Wait() {
 	}
 	p.Close()
 	p.finish()
+	p.mu.Lock()
+	after := p.after
+	p.mu.Unlock()
+	if after {
+		p.afterOnce.Do(func() { close(p.done) }) // no sheet started it
+	}
 	<-p.done
 	p.mu.Lock()
 	p.jobs, p.free, p.last = nil, nil, nil // the drawings' buffers go with the sheet

@@ -50,6 +50,7 @@ type Options struct {
 // Sheet writes the HTML sheet of a document.
 func Sheet(doc *calcdoc.Document, opt Options) ([]byte, error) {
 	opt.Predrawn.Close() // the document is evaluated: nothing more is queued
+	opt.Predrawn.startAfter(doc)
 	w := markup.NewWriter(doc)
 	// the page buffer is grown once: from the source (pageSize), or from
 	// the last sheet of this document when the preview keeps one
@@ -76,17 +77,20 @@ func Sheet(doc *calcdoc.Document, opt Options) ([]byte, error) {
 // written, from the document's source, so that writing the page never grows
 // it again (each growth copies the page written so far). The rule: 24 KiB
 // for the parts every sheet has (stylesheet, title block, summary, stamp,
-// caution: 16 to 20 KiB on the examples) and 17 bytes a byte of source. A
-// source of statements gives the most sheet a byte: 16.4 on the
-// 2,000-statement sheet of cmd/calcbench with its source embedded (a
-// statement of about 46 source bytes becomes about 760 bytes of rows);
-// the examples, with their prose, give 1.5 to 14. A kind that makes more
+// caution: 16 to 20 KiB on the examples) and 16 bytes a byte of source. A
+// source of statements gives the most sheet a byte: 15.1 on the
+// 2,000-statement and 14.3 on the 20,000-statement sheets of cmd/calcbench
+// with their source embedded (a statement of about 46 source bytes
+// becomes about 650 bytes of rows); the examples, with their prose, give
+// 1.5 to 14. Room beyond the sheet is not free: the buffer is cleared
+// when it reuses memory the collector freed (at 20,000 statements, 17
+// bytes a source byte cost about 1 MB more peak memory than 16). A kind that makes more
 // of a byte of its block says how much (markup.PageBytes: a network, 32).
 // Only what a few source bytes can make large (a sweep of many points,
 // the matrices of a large equation set in the appendix) outgrows it, and
 // the buffer then grows as it must.
 func pageSize(doc *calcdoc.Document) int {
-	const fixed, perByte = 24 << 10, 17
+	const fixed, perByte = 24 << 10, 16
 	size := fixed + perByte*len(doc.Source)
 	for _, b := range doc.Blocks {
 		if k, ok := b.KindOf().(markup.PageBytes); ok {
@@ -107,6 +111,7 @@ func pageSize(doc *calcdoc.Document) int {
 // does.
 func Body(doc *calcdoc.Document, opt Options) ([]byte, error) {
 	opt.Predrawn.Close()
+	opt.Predrawn.startAfter(doc)
 	w := markup.NewWriter(doc)
 	w.Grow(pageSize(doc))
 	if err := body(w, doc, opt); err != nil {

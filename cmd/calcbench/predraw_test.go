@@ -16,10 +16,15 @@ import (
 // feeder schedule with the ladder or the meshed feeder) give the same
 // sheet, byte for byte, when their calc blocks are drawn on a second
 // goroutine while they are evaluated (render.Predraw, as calcdoc build
-// does) and when the sheet draws every block itself.
+// does) and when the sheet draws every block itself. At 6,000 statements
+// the drawings pass the limit of what is drawn during evaluation
+// (render.Predraw's most): the blocks are drawn after evaluation, every
+// second one on the goroutine, and that sheet is compared both with every
+// block drawn on the goroutine and with the goroutine and the sheet
+// sharing them as a build does.
 func TestPredrawGeneratedSameBytes(t *testing.T) {
 	dir := t.TempDir()
-	for _, p := range []Params{{Statements: 2000, Nodes: 60}, {Statements: 600, Nodes: 0}, {Statements: 1200, Nodes: 20, Mesh: true}} {
+	for _, p := range []Params{{Statements: 2000, Nodes: 60}, {Statements: 600, Nodes: 0}, {Statements: 1200, Nodes: 20, Mesh: true}, {Statements: 6000, Nodes: 0}} {
 		doc, _, err := Generate(p)
 		if err != nil {
 			t.Fatal(err)
@@ -33,20 +38,29 @@ func TestPredrawGeneratedSameBytes(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		pre := render.NewPredraw()
-		pre.DrawAllEarly() // every block drawn early, however the goroutines are scheduled
-		d := calcdoc.NewLoader(kind.Standard()).ParseAfter(path, []byte(doc), pre.Block)
-		opt.Predrawn = pre
-		got, err := render.Sheet(d, opt)
-		if err != nil {
-			t.Fatal(err)
+		waits := []bool{true}
+		if p.Statements >= 6000 {
+			waits = append(waits, false)
 		}
-		if !bytes.Equal(got, serial) {
-			t.Errorf("%+v: the sheet with blocks drawn early differs from the serial sheet", p)
+		for _, all := range waits {
+			pre := render.NewPredraw()
+			if all {
+				pre.DrawAllEarly() // every block drawn on the goroutine, however the goroutines are scheduled
+			}
+			d := calcdoc.NewLoader(kind.Standard()).ParseAfter(path, []byte(doc), pre.Block)
+			opt.Predrawn = pre
+			got, err := render.Sheet(d, opt)
+			pre.Wait()
+			if err != nil {
+				t.Fatal(err)
+			}
+			if !bytes.Equal(got, serial) {
+				t.Errorf("%+v (all on the goroutine %v): the sheet with blocks drawn on the goroutine differs from the serial sheet", p, all)
+			}
+			if all && pre.Copied == 0 {
+				t.Errorf("%+v: no block copied from the goroutine's drawing (%d drawn in the sheet's pass)", p, pre.Drawn)
+			}
+			t.Logf("%+v (all %v): %d blocks copied, %d drawn in the sheet's pass", p, all, pre.Copied, pre.Drawn)
 		}
-		if pre.Copied == 0 {
-			t.Errorf("%+v: no block copied from the early drawing (%d drawn in the sheet's pass)", p, pre.Drawn)
-		}
-		t.Logf("%+v: %d blocks copied, %d drawn in the sheet's pass", p, pre.Copied, pre.Drawn)
 	}
 }

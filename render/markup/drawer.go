@@ -11,7 +11,7 @@ type Drawer interface {
 
 // PageBytes is a kind whose drawing takes more of the sheet for each byte
 // of its block's text than a block of statements does (render sizes the
-// page buffer once from the source: 17 bytes a source byte): it gives its
+// page buffer once from the source: 16 bytes a source byte): it gives its
 // own figure.
 type PageBytes interface {
 	PageBytesPerSourceByte() int
