@@ -160,6 +160,15 @@ func (w *Watcher) evalWorker(key string, st *evalState) {
 				w.queueReads(j.file, p.dataFiles, cur == nil || p.fp == "" || cur.fp != p.fp)
 			}
 		}
+		// With no newer save waiting, the evaluation ends in the same
+		// critical section that published its page: the page just
+		// published is never served as "a newer save is being evaluated".
+		finished := st.next == nil
+		if finished {
+			delete(w.evals, key)
+			w.wakeLocked() // the banner goes
+			w.idleLocked()
+		}
 		w.mu.Unlock()
 		if line != "" {
 			w.logf("%s", line)
@@ -168,6 +177,9 @@ func (w *Watcher) evalWorker(key string, st *evalState) {
 			// the patch an open page asks for next reads only the
 			// part of the page that changed (layout.go)
 			shown.layoutOf(shown.before)
+		}
+		if finished {
+			return
 		}
 	}
 }
