@@ -60,6 +60,8 @@ type Document struct {
 	inlineN   map[ast.Node]*Inline
 	order     []any // the blocks and inline values in document order
 	evaluated bool
+	room      int    // namesAbout, as Evaluate made room for it
+	sum       string // hex SHA-256 of Source when the loader made it (SourceSHA256)
 	trail     *trail // what each item of order added (incremental.go)
 	serial    uint64 // this reading's number; basis: the one Reevaluate took over from
 	basis     uint64
@@ -219,6 +221,7 @@ func parseOnly(path string, src []byte, reg *Registry, in Inputs) *Document {
 	}
 	d := &Document{Path: path, Source: src, Env: expr.NewEnv(), Kinds: reg, Files: &expr.FileSet{}, inputs: in, sheets: in.Sheets, serial: docSerials.Add(1), byNode: map[ast.Node]*Block{}, inlineN: map[ast.Node]*Inline{}}
 	d.Env.Budget = expr.NewBudget(expr.DefaultBudget)
+	d.sum = in.sum
 	txt := readerLines(src)
 	var bad []int
 	if !utf8.Valid(txt) {
@@ -266,8 +269,19 @@ func (d *Document) Evaluate() {
 		return
 	}
 	d.evaluated = true
-	d.Env.Reserve(d.namesAbout())
+	d.room = d.namesAbout()
+	d.Env.Reserve(d.room)
 	d.evalFrom(0, newTrail(d))
+}
+
+// NamesAbout is about the number of names the document's blocks define,
+// as its own names were made room for (expr.Env.Reserve): the room for
+// another environment that takes them over.
+func (d *Document) NamesAbout() int {
+	if d.room > 0 {
+		return d.room
+	}
+	return d.namesAbout()
 }
 
 // maxReserve bounds the names an environment makes room for ahead

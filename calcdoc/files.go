@@ -43,6 +43,11 @@ type Inputs struct {
 	// from it while the rest is evaluated (render.Predraw). It must not
 	// change the document.
 	AfterBlock func(b *Block)
+
+	// sum is the hex SHA-256 of the source when the caller made it (the
+	// loader keys its documents by it): the document keeps it
+	// (SourceSHA256) instead of hashing the same bytes again.
+	sum string
 }
 
 // DataFile is one file the document's blocks read.

@@ -141,7 +141,8 @@ func (l *Loader) Sheets(path string) Sheets {
 // eval evaluates src as the document at real, reached through the view
 // parent (whose chain it extends), or returns it from the memo.
 func (l *Loader) eval(path, real string, src []byte, parent *view, after func(*Block)) (*Document, *loaded) {
-	key := real + "\x00" + hashHex(src)
+	sum := hashHex(src)
+	key := real + "\x00" + sum
 	child := &view{l: l, fallback: parent.fallback, chain: append(append([]string(nil), parent.chain...), real), names: append(append([]string(nil), parent.names...), path)}
 	l.mu.Lock()
 	e := l.memo[key]
@@ -150,7 +151,7 @@ func (l *Loader) eval(path, real string, src []byte, parent *view, after func(*B
 		l.memo[key] = e
 		l.mu.Unlock()
 		l.evals.Add(1)
-		e.doc = ParseWith(path, src, l.kinds, Inputs{Sheets: child, Root: child.fallback, Read: l.readFn, AfterBlock: after})
+		e.doc = ParseWith(path, src, l.kinds, Inputs{Sheets: child, Root: child.fallback, Read: l.readFn, AfterBlock: after, sum: sum})
 		close(e.done)
 		return e.doc, e
 	}
@@ -163,7 +164,7 @@ func (l *Loader) eval(path, real string, src []byte, parent *view, after func(*B
 		// copy rather than wait (waiting could deadlock on a cycle that
 		// two goroutines entered from its two ends)
 		l.evals.Add(1)
-		d := ParseWith(path, src, l.kinds, Inputs{Sheets: child, Root: child.fallback, Read: l.readFn, AfterBlock: after})
+		d := ParseWith(path, src, l.kinds, Inputs{Sheets: child, Root: child.fallback, Read: l.readFn, AfterBlock: after, sum: sum})
 		c := &loaded{doc: d}
 		return d, c
 	}
@@ -243,6 +244,16 @@ func realPath(path string) string {
 
 // SHA256 is the lower-case hex SHA-256 (FIPS 180-4) of b.
 func SHA256(b []byte) string { return hashHex(b) }
+
+// SourceSHA256 is SHA256(d.Source): the hash the loader made when it read
+// the document (a build hashes its source once, not for each of the memo,
+// the stamp and the embedded source), else made now.
+func (d *Document) SourceSHA256() string {
+	if d.sum != "" {
+		return d.sum
+	}
+	return hashHex(d.Source)
+}
 
 func hashHex(b []byte) string {
 	sum := sha256.Sum256(b)

@@ -72,7 +72,7 @@ func (s *Sheet) index() *Sheet {
 
 // SheetOf is the sheet a document offers to use statements.
 func SheetOf(d *Document) *Sheet {
-	s := &Sheet{Path: d.Path, SHA256: hashHex(d.Source), Number: d.Front.Number, Revision: d.Front.Revision, Title: d.Front.Title, Errors: len(d.Errors), Doc: d}
+	s := &Sheet{Path: d.Path, SHA256: d.SourceSHA256(), Number: d.Front.Number, Revision: d.Front.Revision, Title: d.Front.Title, Errors: len(d.Errors), Doc: d}
 	if len(d.Errors) > 0 {
 		s.FirstError = "line " + d.Errors[0].Pos.String() + ": " + d.Errors[0].Msg
 	}

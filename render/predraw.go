@@ -211,6 +211,7 @@ func (p *Predraw) start(doc *calcdoc.Document) {
 	p.queue = make(chan *preJob, len(doc.Blocks))
 	view := *doc // the drawing's document: its own names, the rest as read
 	view.Env = expr.NewEnv()
+	view.Env.Reserve(doc.NamesAbout()) // made once, not grown name by name
 	view.Env.Preferred, view.Env.Cases = doc.Env.Preferred, doc.Env.Cases
 	p.names = make([]atomic.Pointer[map[string]bool], len(doc.Blocks))
 	p.index = make(map[*calcdoc.Block]int, len(doc.Blocks))

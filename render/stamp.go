@@ -193,7 +193,7 @@ func embedSource(w *markup.Writer, doc *calcdoc.Document) {
 	if !text {
 		enc = "base64"
 	}
-	w.Printf("<pre hidden id=\"%s\" data-path=\"%s\" data-encoding=\"%s\" data-sha256=\"%s\">", SourceID, esc(doc.Path), enc, SourceHash(doc.Source))
+	w.Printf("<pre hidden id=\"%s\" data-path=\"%s\" data-encoding=\"%s\" data-sha256=\"%s\">", SourceID, esc(doc.Path), enc, doc.SourceSHA256())
 	if text {
 		escapeInto(&w.Buffer, doc.Source)
 	} else {

@@ -103,9 +103,13 @@ func (s *Session) Start(path string) *Pending {
 }
 
 // Stamp waits for git's facts and stamps the file's bytes src.
-func (p *Pending) Stamp(src []byte) Stamp {
+func (p *Pending) Stamp(src []byte) Stamp { return p.StampSum(src, Hash(src)) }
+
+// StampSum is Stamp of src whose hash the caller has made: sum is
+// Hash(src).
+func (p *Pending) StampSum(src []byte, sum string) Stamp {
 	<-p.done
-	st := Stamp{SHA256: Hash(src)}
+	st := Stamp{SHA256: sum}
 	f := &p.f
 	if f.final != nil {
 		st.State, st.Detail = f.final.State, f.final.Detail

@@ -58,14 +58,15 @@ func (s *Stamper) Stamped(doc *calcdoc.Document) Options {
 }
 
 func (s *Stamper) stampOf(doc *calcdoc.Document, depth int) *render.StampInfo {
-	key := calcdoc.RealPath(doc.Path) + "\x00" + calcdoc.SHA256(doc.Source)
+	sum := doc.SourceSHA256()
+	key := calcdoc.RealPath(doc.Path) + "\x00" + sum
 	s.mu.Lock()
 	if st := s.memo[key]; st != nil {
 		s.mu.Unlock()
 		return st
 	}
 	s.mu.Unlock()
-	st := s.git.Start(doc.Path).Stamp(doc.Source)
+	st := s.git.Start(doc.Path).StampSum(doc.Source, sum)
 	st.Files = s.git.Files(doc.DataFiles)
 	seen := map[string]bool{}
 	for _, u := range doc.Uses {

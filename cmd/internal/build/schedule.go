@@ -107,6 +107,7 @@ func evaluate(l *calcdoc.Loader, inputs []Input, workers int, fn func(i int, doc
 		busy.Add(1)
 		defer busy.Add(-1)
 		var pre *render.Predraw
+		var first *calcdoc.Document // the document evaluated here, under n.shown
 		if n.err == nil {
 			if predraw && fn != nil && len(n.inputs) > 0 {
 				if busy.Add(1) <= cores {
@@ -117,9 +118,9 @@ func evaluate(l *calcdoc.Loader, inputs []Input, workers int, fn func(i int, doc
 				}
 			}
 			if pre != nil {
-				l.ParseAfter(n.shown, n.src, pre.Block)
+				first = l.ParseAfter(n.shown, n.src, pre.Block)
 			} else {
-				l.Parse(n.shown, n.src)
+				first = l.Parse(n.shown, n.src)
 			}
 		}
 		for _, i := range n.inputs {
@@ -127,7 +128,14 @@ func evaluate(l *calcdoc.Loader, inputs []Input, workers int, fn func(i int, doc
 				out[i].Err = n.err
 				continue
 			}
-			out[i].Doc = l.Parse(inputs[i].Path, n.src)
+			if inputs[i].Path == n.shown {
+				// what the loader would give again for the same path
+				// and bytes (without resolving the path and hashing the
+				// bytes once more)
+				out[i].Doc = first
+			} else {
+				out[i].Doc = l.Parse(inputs[i].Path, n.src)
+			}
 			if fn != nil {
 				fn(i, out[i].Doc, pre)
 			}

@@ -5,6 +5,7 @@ import (
 	"path/filepath"
 	"regexp"
 	"strconv"
+	"strings"
 	"time"
 )
 
@@ -48,10 +49,18 @@ func RemoveStale(path string) []string {
 	if err != nil {
 		return nil
 	}
-	pats := staleNames(base)
+	var pats []*regexp.Regexp // compiled when a name may match
 	var removed []string
 	for _, e := range entries {
 		name := e.Name()
+		// every stale name starts with a dot and holds base: a folder
+		// with none such compiles no pattern
+		if !strings.HasPrefix(name, ".") || !strings.Contains(name, base) {
+			continue
+		}
+		if pats == nil {
+			pats = staleNames(base)
+		}
 		var m []string
 		for _, p := range pats {
 			if m = p.FindStringSubmatch(name); m != nil {

@@ -2,7 +2,6 @@ package preview
 
 import (
 	"runtime"
-	"runtime/metrics"
 	"time"
 )
 
@@ -59,12 +58,11 @@ func (w *Watcher) collectIdle() {
 	if !idle {
 		return
 	}
-	s := []metrics.Sample{{Name: "/gc/heap/allocs:bytes"}}
-	metrics.Read(s)
-	if s[0].Value.Kind() != metrics.KindUint64 {
-		return
-	}
-	now := s[0].Value.Uint64()
+	// the bytes allocated so far (runtime.MemStats rather than
+	// runtime/metrics, whose package initialisation every command pays)
+	var m runtime.MemStats
+	runtime.ReadMemStats(&m)
+	now := m.TotalAlloc
 	if now-w.gcAllocs.Load() < idleGCBytes {
 		return
 	}
