@@ -80,22 +80,13 @@ func WriteSheet(out io.Writer, doc *calcdoc.Document, opt Options) error {
 // 50), small enough to stay in the processor's cache.
 const spillAt = 256 << 10
 
-// spill is the page's writer while WriteSheet draws: goldmark writes the
-// body into it (through its own buffer), and it hands the page buffer to
-// out whenever it passes spillAt; flush hands what is left.
+// spill hands the page buffer of WriteSheet to out whenever it passes
+// spillAt (page.check), and what is left at the end.
 type spill struct {
 	w   *markup.Writer
 	out io.Writer
 	n   int   // bytes handed to out
 	err error // out's first error: nothing more is written
-}
-
-func (s *spill) Write(p []byte) (int, error) {
-	s.w.Buffer.Write(p)
-	if s.w.Buffer.Len() >= spillAt {
-		s.flush()
-	}
-	return len(p), nil
 }
 
 // flush hands the page buffer to out; nothing when s is nil (Sheet: the
@@ -109,6 +100,50 @@ func (s *spill) flush() {
 	}
 	s.n += s.w.Buffer.Len()
 	s.w.Buffer.Reset()
+}
+
+// page is the writer goldmark renders the body into: the page buffer
+// itself (goldmark's util.BufWriter, so that it adds no buffer of its
+// own and no copy), handed out by s (nil: none) as it fills. The node
+// renderers draw a block straight into the page buffer (nodes.setOutput).
+type page struct {
+	w *markup.Writer
+	s *spill
+}
+
+func (p *page) Write(b []byte) (int, error) {
+	p.w.Buffer.Write(b)
+	p.check()
+	return len(b), nil
+}
+
+func (p *page) WriteString(s string) (int, error) {
+	p.w.Buffer.WriteString(s)
+	p.check()
+	return len(s), nil
+}
+
+func (p *page) WriteByte(c byte) error {
+	p.w.Buffer.WriteByte(c)
+	p.check()
+	return nil
+}
+
+func (p *page) WriteRune(r rune) (int, error) {
+	n, _ := p.w.Buffer.WriteRune(r)
+	p.check()
+	return n, nil
+}
+
+func (p *page) Available() int { return p.w.Buffer.Available() }
+func (p *page) Buffered() int  { return p.w.Buffer.Len() }
+func (p *page) Flush() error   { return nil }
+
+// check hands the page buffer out once it passes spillAt.
+func (p *page) check() {
+	if p.s != nil && p.w.Buffer.Len() >= spillAt {
+		p.s.flush()
+	}
 }
 
 // writeSheet writes the sheet into w's buffer, which s (nil: none)
@@ -195,7 +230,8 @@ func body(w *markup.Writer, doc *calcdoc.Document, opt Options, s *spill) error 
 	summary(w, doc)
 	w.WriteString("<main class=\"body\">\n")
 	s.flush() // the head, title block and summary
-	err := prose(w, doc, opt.Blocks, opt.Predrawn, s)
+	pg := &page{w: w, s: s}
+	err := prose(w, doc, opt.Blocks, opt.Predrawn, pg)
 	opt.Predrawn.finish() // every block is taken
 	if err != nil {
 		return err
@@ -212,9 +248,9 @@ func body(w *markup.Writer, doc *calcdoc.Document, opt Options, s *spill) error 
 	w.Printf("<footer class=\"caution\"><p>%s</p></footer>\n", esc(Caution))
 	if opt.EmbedSource {
 		s.flush() // the body and the stamp
-		embedSource(w, doc)
-		embedFiles(w, doc)
-		embedUses(w, doc)
+		embedSource(w, pg, doc)
+		embedFiles(w, pg, doc)
+		embedUses(w, pg, doc)
 	}
 	return nil
 }
@@ -392,20 +428,17 @@ func plural(n int) string {
 
 // prose renders the Markdown body with goldmark, drawing evaluated blocks
 // and inline values through calcdoc's node renderers.
-func prose(w *markup.Writer, doc *calcdoc.Document, cache *BlockCache, pre *Predraw, s *spill) error {
+func prose(w *markup.Writer, doc *calcdoc.Document, cache *BlockCache, pre *Predraw, pg *page) error {
 	r := renderer.NewRenderer(renderer.WithNodeRenderers(
 		util.Prioritized(ghtml.NewRenderer(), 1000),
 		util.Prioritized(gfmhtml.NewTableHTMLRenderer(), 500),
 		util.Prioritized(gfmhtml.NewStrikethroughHTMLRenderer(), 500),
-		util.Prioritized(&nodes{w: w, cache: cache, pre: pre}, 100),
+		util.Prioritized(&nodes{w: w, cache: cache, pre: pre, page: pg}, 100),
 	))
-	// the node renderers write into the writer goldmark hands them
-	// (SetOutput); after the body the page's own buffer again
-	var out io.Writer = &w.Buffer
-	if s != nil {
-		out = s // the page handed out as it fills
-	}
-	err := r.Render(out, doc.Text, doc.Markdown)
+	// goldmark writes into the page buffer through pg, the node renderers
+	// into the page buffer too (nodes.setOutput); after the body the
+	// writer writes into its own buffer (the page) again
+	err := r.Render(pg, doc.Text, doc.Markdown)
 	w.SetOutput(nil)
 	return err
 }
@@ -416,6 +449,18 @@ type nodes struct {
 	w     *markup.Writer
 	cache *BlockCache // nil: every block drawn
 	pre   *Predraw    // nil: every block drawn here
+	page  *page       // the writer goldmark renders into
+}
+
+// setOutput points the page's markup.Writer at out, the writer goldmark
+// hands a node renderer: at its own buffer (the page) when out is the
+// page, so that a block is written with no writer between.
+func (n *nodes) setOutput(out util.BufWriter) {
+	if p, ok := out.(*page); ok && p == n.page {
+		n.w.SetOutput(nil)
+		return
+	}
+	n.w.SetOutput(out)
 }
 
 func (n *nodes) RegisterFuncs(reg renderer.NodeRendererFuncRegisterer) {
@@ -427,7 +472,7 @@ func (n *nodes) RegisterFuncs(reg renderer.NodeRendererFuncRegisterer) {
 }
 
 func (n *nodes) fenced(out util.BufWriter, src []byte, node ast.Node, entering bool) (ast.WalkStatus, error) {
-	n.w.SetOutput(out)
+	n.setOutput(out)
 	if !entering {
 		return ast.WalkSkipChildren, nil
 	}
@@ -439,6 +484,8 @@ func (n *nodes) fenced(out util.BufWriter, src []byte, node ast.Node, entering b
 				return ast.WalkSkipChildren, nil
 			}
 			n.cache.draw(w, out, d, b)
+			n.setOutput(out) // the cache may have pointed it elsewhere
+			n.page.check()
 			return ast.WalkSkipChildren, nil
 		}
 	}
@@ -464,7 +511,7 @@ func (n *nodes) fenced(out util.BufWriter, src []byte, node ast.Node, entering b
 }
 
 func (n *nodes) codeSpan(out util.BufWriter, src []byte, node ast.Node, entering bool) (ast.WalkStatus, error) {
-	n.w.SetOutput(out)
+	n.setOutput(out)
 	if !entering {
 		return ast.WalkSkipChildren, nil
 	}
@@ -521,7 +568,7 @@ func displayFor(doc *calcdoc.Document, d *expr.Display, text string) *expr.Displ
 }
 
 func (n *nodes) rawHTML(out util.BufWriter, src []byte, node ast.Node, entering bool) (ast.WalkStatus, error) {
-	n.w.SetOutput(out)
+	n.setOutput(out)
 	if entering {
 		raw := node.(*ast.RawHTML)
 		for i := 0; i < raw.Segments.Len(); i++ {
@@ -533,7 +580,7 @@ func (n *nodes) rawHTML(out util.BufWriter, src []byte, node ast.Node, entering 
 }
 
 func (n *nodes) htmlBlock(out util.BufWriter, src []byte, node ast.Node, entering bool) (ast.WalkStatus, error) {
-	n.w.SetOutput(out)
+	n.setOutput(out)
 	if entering {
 		hb := node.(*ast.HTMLBlock)
 		n.w.WriteString("<pre class=\"rawhtml\">")
@@ -553,7 +600,7 @@ func (n *nodes) htmlBlock(out util.BufWriter, src []byte, node ast.Node, enterin
 // image shows an image reference as text: a sheet loads nothing from
 // outside itself.
 func (n *nodes) image(out util.BufWriter, src []byte, node ast.Node, entering bool) (ast.WalkStatus, error) {
-	n.w.SetOutput(out)
+	n.setOutput(out)
 	if entering {
 		img := node.(*ast.Image)
 		alt := string(img.Text(src)) //nolint:staticcheck // the alt text
