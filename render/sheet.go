@@ -174,9 +174,11 @@ func writeSheet(w *markup.Writer, doc *calcdoc.Document, opt Options, s *spill) 
 	return nil
 }
 
-// pageSize is the size the page buffer is given once, before anything is
-// written, from the document's source, so that writing the page never grows
-// it again (each growth copies the page written so far). The rule: 24 KiB
+// pageSize is the size the page buffer of Sheet (the page held whole: the
+// preview, a package) is given once, before anything is written, from the
+// document's source, so that writing the page never grows it again (each
+// growth copies the page written so far); WriteSheet gives it at most a
+// piece's room (spillAt). The rule: 24 KiB
 // for the parts every sheet has (stylesheet, title block, summary, stamp,
 // caution: 16 to 20 KiB on the examples) and 16 bytes a byte of source. A
 // source of statements gives the most sheet a byte: 15.1 on the
