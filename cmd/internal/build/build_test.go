@@ -165,3 +165,29 @@ func TestWriteDiskFull(t *testing.T) {
 		}
 	}
 }
+
+// TestWriteAtomicPanic: a fill of the temporary file that panics (a
+// sheet whose drawing panics while it is streamed into the file) leaves
+// no temporary file behind, and the panic goes on.
+func TestWriteAtomicPanic(t *testing.T) {
+	dir := t.TempDir()
+	target := filepath.Join(dir, "a.html")
+	write(t, target, "the sheet before")
+	func() {
+		defer func() {
+			if recover() == nil {
+				t.Error("the panic of the fill was swallowed")
+			}
+		}()
+		writeAtomic(target, createTemp, func(tmp TempFile) error {
+			tmp.Write([]byte("part of a sheet"))
+			panic("a drawing failed")
+		})
+	}()
+	if es, _ := os.ReadDir(dir); len(es) != 1 {
+		t.Errorf("%d files in the folder, want the sheet alone (the temporary file removed)", len(es))
+	}
+	if b, _ := os.ReadFile(target); string(b) != "the sheet before" {
+		t.Errorf("the sheet before was changed: %q", b)
+	}
+}

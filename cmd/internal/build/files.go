@@ -134,7 +134,7 @@ func writeAtomic(path string, create func(dir, pattern string) (TempFile, error)
 		os.Remove(name)
 		return e
 	}
-	if err := fill(tmp); err != nil {
+	if err := fillOrRemove(tmp, fill); err != nil {
 		return fail(err)
 	}
 	if err := tmp.Sync(); err != nil {
@@ -203,4 +203,18 @@ func TrimExt(p string) string {
 		return p[:len(p)-len(".md")]
 	}
 	return p
+}
+
+// fillOrRemove runs fill; should it panic (a sheet drawn into the file as
+// it goes, whose drawing fails so), the temporary file is closed and
+// removed before the panic goes on, as an error would remove it.
+func fillOrRemove(tmp TempFile, fill func(TempFile) error) error {
+	defer func() {
+		if p := recover(); p != nil {
+			tmp.Close()
+			os.Remove(tmp.Name())
+			panic(p)
+		}
+	}()
+	return fill(tmp)
 }
