@@ -64,7 +64,8 @@ func Sheet(doc *calcdoc.Document, opt Options) ([]byte, error) {
 // in pieces of about spillAt bytes, so that the page is never held whole
 // in memory (a build writes it into its file this way: at 20,000
 // statements the page is 13 MB). The bytes are those of Sheet. The error
-// is the drawing's, else the first of out's.
+// is the drawing's, else the first of out's; after an error out may hold
+// part of the sheet (a build removes its temporary file).
 func WriteSheet(out io.Writer, doc *calcdoc.Document, opt Options) error {
 	w := markup.NewWriter(doc)
 	w.Grow(min(max(pageSize(doc), opt.Blocks.sizeHint()), spillAt+spillAt/4))
