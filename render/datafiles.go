@@ -62,7 +62,7 @@ func FileID(n int) string { return "calcdoc-file-" + strconv.Itoa(n) }
 // source is carried (embedSource), so that verify evaluates the sheet
 // from the sheet alone; a file that could not be read is carried as the
 // error it gave (data-error).
-func embedFiles(w *markup.Writer, doc *calcdoc.Document) {
+func embedFiles(w *markup.Writer, pg *page, doc *calcdoc.Document) {
 	for i, f := range doc.DataFiles {
 		if f.Err != "" {
 			w.Printf("<pre hidden id=\"%s\" data-file=\"%s\" data-error=\"%s\"></pre>\n", FileID(i+1), esc(f.Path), esc(f.Err))
@@ -75,7 +75,7 @@ func embedFiles(w *markup.Writer, doc *calcdoc.Document) {
 		}
 		w.Printf("<pre hidden id=\"%s\" data-file=\"%s\" data-encoding=\"%s\" data-sha256=\"%s\">", FileID(i+1), esc(f.Path), enc, SourceHash(f.Bytes))
 		if text {
-			escapeInto(&w.Buffer, f.Bytes)
+			escapeInto(pg, f.Bytes)
 		} else {
 			w.WriteString(base64.StdEncoding.EncodeToString(f.Bytes))
 		}

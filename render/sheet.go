@@ -6,6 +6,7 @@ package render
 
 import (
 	"fmt"
+	"io"
 	"sort"
 	"strings"
 
@@ -49,12 +50,108 @@ type Options struct {
 
 // Sheet writes the HTML sheet of a document.
 func Sheet(doc *calcdoc.Document, opt Options) ([]byte, error) {
-	opt.Predrawn.Close() // the document is evaluated: nothing more is queued
-	opt.Predrawn.startAfter(doc)
 	w := markup.NewWriter(doc)
 	// the page buffer is grown once: from the source (pageSize), or from
 	// the last sheet of this document when the preview keeps one
 	w.Grow(max(pageSize(doc), opt.Blocks.sizeHint()))
+	if err := writeSheet(w, doc, opt, nil); err != nil {
+		return nil, err
+	}
+	return w.Bytes(), nil
+}
+
+// WriteSheet writes the HTML sheet of a document to out as it is drawn,
+// in pieces of about spillAt bytes, so that the page is never held whole
+// in memory (a build writes it into its file this way: at 20,000
+// statements the page is 13 MB). The bytes are those of Sheet. The error
+// is the drawing's, else the first of out's; after an error out may hold
+// part of the sheet (a build removes its temporary file).
+func WriteSheet(out io.Writer, doc *calcdoc.Document, opt Options) error {
+	w := markup.NewWriter(doc)
+	w.Grow(min(max(pageSize(doc), opt.Blocks.sizeHint()), spillAt+spillAt/4))
+	s := &spill{w: w, out: out}
+	if err := writeSheet(w, doc, opt, s); err != nil {
+		return err
+	}
+	return s.err
+}
+
+// spillAt is the size at which WriteSheet hands the page drawn so far to
+// its writer: large enough that the writes are few (a 13 MB page in about
+// 50), small enough to stay in the processor's cache.
+const spillAt = 256 << 10
+
+// spill hands the page buffer of WriteSheet to out whenever it passes
+// spillAt (page.check), and what is left at the end.
+type spill struct {
+	w   *markup.Writer
+	out io.Writer
+	n   int   // bytes handed to out
+	err error // out's first error: nothing more is written
+}
+
+// flush hands the page buffer to out; nothing when s is nil (Sheet: the
+// page stays whole in the buffer).
+func (s *spill) flush() {
+	if s == nil {
+		return
+	}
+	if s.err == nil {
+		_, s.err = s.out.Write(s.w.Buffer.Bytes())
+	}
+	s.n += s.w.Buffer.Len()
+	s.w.Buffer.Reset()
+}
+
+// page is the writer goldmark renders the body into: the page buffer
+// itself (goldmark's util.BufWriter, so that it adds no buffer of its
+// own and no copy), handed out by s (nil: none) as it fills. The node
+// renderers draw a block straight into the page buffer (nodes.setOutput).
+type page struct {
+	w *markup.Writer
+	s *spill
+}
+
+func (p *page) Write(b []byte) (int, error) {
+	p.w.Buffer.Write(b)
+	p.check()
+	return len(b), nil
+}
+
+func (p *page) WriteString(s string) (int, error) {
+	p.w.Buffer.WriteString(s)
+	p.check()
+	return len(s), nil
+}
+
+func (p *page) WriteByte(c byte) error {
+	p.w.Buffer.WriteByte(c)
+	p.check()
+	return nil
+}
+
+func (p *page) WriteRune(r rune) (int, error) {
+	n, _ := p.w.Buffer.WriteRune(r)
+	p.check()
+	return n, nil
+}
+
+func (p *page) Available() int { return p.w.Buffer.Available() }
+func (p *page) Buffered() int  { return p.w.Buffer.Len() }
+func (p *page) Flush() error   { return nil }
+
+// check hands the page buffer out once it passes spillAt.
+func (p *page) check() {
+	if p.s != nil && p.w.Buffer.Len() >= spillAt {
+		p.s.flush()
+	}
+}
+
+// writeSheet writes the sheet into w's buffer, which s (nil: none)
+// empties as it fills.
+func writeSheet(w *markup.Writer, doc *calcdoc.Document, opt Options, s *spill) error {
+	opt.Predrawn.Close() // the document is evaluated: nothing more is queued
+	opt.Predrawn.startAfter(doc)
 	w.WriteString("<!DOCTYPE html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n")
 	w.Printf("<meta name=\"generator\" content=\"calcdoc %s\">\n", esc(opt.Version))
 	w.Printf("<title>%s</title>\n", esc(HeadTitle(doc)))
@@ -65,17 +162,24 @@ func Sheet(doc *calcdoc.Document, opt Options) ([]byte, error) {
 	w.WriteString(opt.HeadExtra)
 	w.WriteString("</head>\n<body>\n")
 	opt.Blocks.begin()
-	if err := body(w, doc, opt); err != nil {
-		return nil, err
+	if err := body(w, doc, opt, s); err != nil {
+		return err
 	}
 	w.WriteString("</body>\n</html>\n")
-	opt.Blocks.end(doc, w.Len())
-	return w.Bytes(), nil
+	n := 0
+	if s != nil {
+		n = s.n
+	}
+	opt.Blocks.end(doc, n+w.Len())
+	s.flush()
+	return nil
 }
 
-// pageSize is the size the page buffer is given once, before anything is
-// written, from the document's source, so that writing the page never grows
-// it again (each growth copies the page written so far). The rule: 24 KiB
+// pageSize is the size the page buffer of Sheet (the page held whole: the
+// preview, a package) is given once, before anything is written, from the
+// document's source, so that writing the page never grows it again (each
+// growth copies the page written so far); WriteSheet gives it at most a
+// piece's room (spillAt). The rule: 24 KiB
 // for the parts every sheet has (stylesheet, title block, summary, stamp,
 // caution: 16 to 20 KiB on the examples) and 16 bytes a byte of source. A
 // source of statements gives the most sheet a byte: 15.1 on the
@@ -114,13 +218,13 @@ func Body(doc *calcdoc.Document, opt Options) ([]byte, error) {
 	opt.Predrawn.startAfter(doc)
 	w := markup.NewWriter(doc)
 	w.Grow(pageSize(doc))
-	if err := body(w, doc, opt); err != nil {
+	if err := body(w, doc, opt, nil); err != nil {
 		return nil, err
 	}
 	return w.Bytes(), nil
 }
 
-func body(w *markup.Writer, doc *calcdoc.Document, opt Options) error {
+func body(w *markup.Writer, doc *calcdoc.Document, opt Options, s *spill) error {
 	if m := MarkerText(doc, opt); m != "" {
 		w.Printf("<div class=\"marker\" aria-hidden=\"true\"><span>%s</span></div>\n", esc(m))
 		w.Printf("<p class=\"marker-text\">%s</p>\n", esc(m))
@@ -128,7 +232,9 @@ func body(w *markup.Writer, doc *calcdoc.Document, opt Options) error {
 	titleBlock(w, doc.Front, SheetTitle(doc))
 	summary(w, doc)
 	w.WriteString("<main class=\"body\">\n")
-	err := prose(w, doc, opt.Blocks, opt.Predrawn)
+	s.flush() // the head, title block and summary
+	pg := &page{w: w, s: s}
+	err := prose(w, doc, opt.Blocks, opt.Predrawn, pg)
 	opt.Predrawn.finish() // every block is taken
 	if err != nil {
 		return err
@@ -144,9 +250,10 @@ func body(w *markup.Writer, doc *calcdoc.Document, opt Options) error {
 	}
 	w.Printf("<footer class=\"caution\"><p>%s</p></footer>\n", esc(Caution))
 	if opt.EmbedSource {
-		embedSource(w, doc)
-		embedFiles(w, doc)
-		embedUses(w, doc)
+		s.flush() // the body and the stamp
+		embedSource(w, pg, doc)
+		embedFiles(w, pg, doc)
+		embedUses(w, pg, doc)
 	}
 	return nil
 }
@@ -324,16 +431,17 @@ func plural(n int) string {
 
 // prose renders the Markdown body with goldmark, drawing evaluated blocks
 // and inline values through calcdoc's node renderers.
-func prose(w *markup.Writer, doc *calcdoc.Document, cache *BlockCache, pre *Predraw) error {
+func prose(w *markup.Writer, doc *calcdoc.Document, cache *BlockCache, pre *Predraw, pg *page) error {
 	r := renderer.NewRenderer(renderer.WithNodeRenderers(
 		util.Prioritized(ghtml.NewRenderer(), 1000),
 		util.Prioritized(gfmhtml.NewTableHTMLRenderer(), 500),
 		util.Prioritized(gfmhtml.NewStrikethroughHTMLRenderer(), 500),
-		util.Prioritized(&nodes{w: w, cache: cache, pre: pre}, 100),
+		util.Prioritized(&nodes{w: w, cache: cache, pre: pre, page: pg}, 100),
 	))
-	// the node renderers write into the writer goldmark hands them
-	// (SetOutput); after the body the page's own buffer again
-	err := r.Render(&w.Buffer, doc.Text, doc.Markdown)
+	// goldmark writes into the page buffer through pg, the node renderers
+	// into the page buffer too (nodes.setOutput); after the body the
+	// writer writes into its own buffer (the page) again
+	err := r.Render(pg, doc.Text, doc.Markdown)
 	w.SetOutput(nil)
 	return err
 }
@@ -344,6 +452,18 @@ type nodes struct {
 	w     *markup.Writer
 	cache *BlockCache // nil: every block drawn
 	pre   *Predraw    // nil: every block drawn here
+	page  *page       // the writer goldmark renders into
+}
+
+// setOutput points the page's markup.Writer at out, the writer goldmark
+// hands a node renderer: at its own buffer (the page) when out is the
+// page, so that a block is written with no writer between.
+func (n *nodes) setOutput(out util.BufWriter) {
+	if p, ok := out.(*page); ok && p == n.page {
+		n.w.SetOutput(nil)
+		return
+	}
+	n.w.SetOutput(out)
 }
 
 func (n *nodes) RegisterFuncs(reg renderer.NodeRendererFuncRegisterer) {
@@ -355,7 +475,7 @@ func (n *nodes) RegisterFuncs(reg renderer.NodeRendererFuncRegisterer) {
 }
 
 func (n *nodes) fenced(out util.BufWriter, src []byte, node ast.Node, entering bool) (ast.WalkStatus, error) {
-	n.w.SetOutput(out)
+	n.setOutput(out)
 	if !entering {
 		return ast.WalkSkipChildren, nil
 	}
@@ -367,6 +487,8 @@ func (n *nodes) fenced(out util.BufWriter, src []byte, node ast.Node, entering b
 				return ast.WalkSkipChildren, nil
 			}
 			n.cache.draw(w, out, d, b)
+			n.setOutput(out) // the cache may have pointed it elsewhere
+			n.page.check()
 			return ast.WalkSkipChildren, nil
 		}
 	}
@@ -392,7 +514,7 @@ func (n *nodes) fenced(out util.BufWriter, src []byte, node ast.Node, entering b
 }
 
 func (n *nodes) codeSpan(out util.BufWriter, src []byte, node ast.Node, entering bool) (ast.WalkStatus, error) {
-	n.w.SetOutput(out)
+	n.setOutput(out)
 	if !entering {
 		return ast.WalkSkipChildren, nil
 	}
@@ -449,7 +571,7 @@ func displayFor(doc *calcdoc.Document, d *expr.Display, text string) *expr.Displ
 }
 
 func (n *nodes) rawHTML(out util.BufWriter, src []byte, node ast.Node, entering bool) (ast.WalkStatus, error) {
-	n.w.SetOutput(out)
+	n.setOutput(out)
 	if entering {
 		raw := node.(*ast.RawHTML)
 		for i := 0; i < raw.Segments.Len(); i++ {
@@ -461,7 +583,7 @@ func (n *nodes) rawHTML(out util.BufWriter, src []byte, node ast.Node, entering 
 }
 
 func (n *nodes) htmlBlock(out util.BufWriter, src []byte, node ast.Node, entering bool) (ast.WalkStatus, error) {
-	n.w.SetOutput(out)
+	n.setOutput(out)
 	if entering {
 		hb := node.(*ast.HTMLBlock)
 		n.w.WriteString("<pre class=\"rawhtml\">")
@@ -481,7 +603,7 @@ func (n *nodes) htmlBlock(out util.BufWriter, src []byte, node ast.Node, enterin
 // image shows an image reference as text: a sheet loads nothing from
 // outside itself.
 func (n *nodes) image(out util.BufWriter, src []byte, node ast.Node, entering bool) (ast.WalkStatus, error) {
-	n.w.SetOutput(out)
+	n.setOutput(out)
 	if entering {
 		img := node.(*ast.Image)
 		alt := string(img.Text(src)) //nolint:staticcheck // the alt text

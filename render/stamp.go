@@ -1,7 +1,6 @@
 package render
 
 import (
-	"bytes"
 	"calcdoc/render/markup"
 	"crypto/sha256"
 	"encoding/base64"
@@ -187,7 +186,7 @@ const SourceID = "calcdoc-source"
 // embedSource carries the document's source in the sheet, inert (a hidden
 // <pre>, never a script) and escaped, so that verify can recover it byte
 // for byte. A source that is not valid UTF-8 is carried as base64.
-func embedSource(w *markup.Writer, doc *calcdoc.Document) {
+func embedSource(w *markup.Writer, pg *page, doc *calcdoc.Document) {
 	text := utf8.Valid(doc.Source)
 	enc := "text"
 	if !text {
@@ -195,7 +194,7 @@ func embedSource(w *markup.Writer, doc *calcdoc.Document) {
 	}
 	w.Printf("<pre hidden id=\"%s\" data-path=\"%s\" data-encoding=\"%s\" data-sha256=\"%s\">", SourceID, esc(doc.Path), enc, doc.SourceSHA256())
 	if text {
-		escapeInto(&w.Buffer, doc.Source)
+		escapeInto(pg, doc.Source)
 	} else {
 		w.WriteString(base64.StdEncoding.EncodeToString(doc.Source))
 	}
@@ -203,8 +202,14 @@ func embedSource(w *markup.Writer, doc *calcdoc.Document) {
 }
 
 // escapeInto writes b escaped exactly as html.EscapeString would (& < > '
-// " become &amp; &lt; &gt; &#39; &#34;), without a copy of the whole text.
-func escapeInto(w *bytes.Buffer, b []byte) {
+// " become &amp; &lt; &gt; &#39; &#34;), without a copy of the whole text,
+// in pieces of at most escapePiece bytes, so that the page is handed out
+// as it fills (page.check) rather than grown to the whole text.
+func escapeInto(w *page, b []byte) {
+	for len(b) > escapePiece {
+		escapeInto(w, b[:escapePiece])
+		b = b[escapePiece:]
+	}
 	last := 0
 	for i, c := range b {
 		var r string
@@ -228,3 +233,6 @@ func escapeInto(w *bytes.Buffer, b []byte) {
 	}
 	w.Write(b[last:])
 }
+
+// escapePiece is the most of a text escapeInto writes at once.
+const escapePiece = 32 << 10

@@ -63,13 +63,13 @@ func useStampRows(w *markup.Writer, s *StampInfo) {
 // embedUses carries the values of the used sheets (calcdoc.UseRecords),
 // inert and escaped as the source is, so that verify evaluates the sheet
 // from itself alone.
-func embedUses(w *markup.Writer, doc *calcdoc.Document) {
+func embedUses(w *markup.Writer, pg *page, doc *calcdoc.Document) {
 	recs := calcdoc.UseRecords(doc)
 	if len(recs) == 0 {
 		return
 	}
 	w.Printf("<pre hidden id=\"%s\" data-encoding=\"json\">", UsesID)
-	escapeInto(&w.Buffer, calcdoc.MarshalUseRecords(recs))
+	escapeInto(pg, calcdoc.MarshalUseRecords(recs))
 	w.WriteString("</pre>\n")
 }
 

@@ -14,8 +14,9 @@ import (
 // evaluated document and its sheet) stays live until the sheet is written:
 // a collection mostly finds nothing to free. So the collector is off
 // (GOGC=off) below a soft memory limit of gcSoftLimit: a document whose
-// heap stays below it (below about 7,000 statements of the benchmark's document) runs without a
-// single collection. A larger document reaches the limit, and the runtime
+// heap stays below it (the 20,000-statement document of cmd/calcbench,
+// whose sheet goes into its file as it is drawn and is never held whole,
+// render.WriteSheet) runs without a single collection. A larger document reaches the limit, and the runtime
 // collects to stay under it. When a collection leaves more than half the
 // limit live, collecting to the limit would soon run without pause, so the
 // collector is handed back to Go's default proportional target

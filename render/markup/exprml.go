@@ -26,6 +26,15 @@ type ExprML struct {
 	// cache holds values already typeset on this sheet (a name's value is
 	// shown on every line that uses it).
 	cache map[valueKey]shownValue
+	// last is the node substituted asked about last, with its trace and
+	// answer: typesetting an operand asks for its form, whether it leads
+	// with a sign and then writes it, each asking the same.
+	last struct {
+		n  expr.Node
+		t  *expr.Trace
+		s  shownValue
+		ok bool
+	}
 }
 
 type valueKey struct {
@@ -138,6 +147,16 @@ func (m *ExprML) substituted(n expr.Node) (shownValue, bool) {
 	if !m.Subst {
 		return shownValue{}, false
 	}
+	if n == m.last.n && m.Trace == m.last.t {
+		return m.last.s, m.last.ok
+	}
+	s, ok := m.substitute(n)
+	m.last.n, m.last.t, m.last.s, m.last.ok = n, m.Trace, s, ok
+	return s, ok
+}
+
+// substitute is substituted without its memory of the last node.
+func (m *ExprML) substitute(n expr.Node) (shownValue, bool) {
 	switch n := n.(type) {
 	case *expr.Ident:
 		if v, ok := m.Trace.Value(n); ok && !IsConstant(n.Name) {

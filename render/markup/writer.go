@@ -104,7 +104,10 @@ func (w *Writer) UnavailableRow(u *expr.UnavailableError) {
 
 // NewWriter returns a writer for the sheet of doc.
 func NewWriter(doc *calcdoc.Document) *Writer {
-	return &Writer{Doc: doc, values: map[valueKey]shownValue{}}
+	// the typeset values are about one a value the document defines (a
+	// result, shown again where later rows use its name): the cache is
+	// made that large at once instead of growing through its sizes
+	return &Writer{Doc: doc, values: make(map[valueKey]shownValue, len(doc.Values))}
 }
 
 // Plural is "s" unless n is one.

@@ -2,6 +2,7 @@ package build
 
 import (
 	"errors"
+	"io"
 	"os"
 	"path/filepath"
 	"sync"
@@ -112,26 +113,58 @@ func (e *WriteError) Unwrap() error { return e.Err }
 // Write is the build step of an evaluated document: it draws the sheet
 // with opt, refuses a target that is the source file (ErrOverSource),
 // makes the target's folder and writes the sheet atomically, the temporary
-// file made by create (nil: os.CreateTemp). The error is a *RenderError,
-// ErrOverSource or a *WriteError.
+// file made by create (nil: os.CreateTemp). The sheet goes into the
+// temporary file as it is drawn (render.WriteSheet), never held whole in
+// memory. The error is a *RenderError, ErrOverSource or a *WriteError; a
+// sheet that cannot be drawn is a *RenderError whatever else fails.
 func Write(doc *calcdoc.Document, opt Options, source, target string, create func(dir, pattern string) (TempFile, error)) error {
-	html, err := Sheet(doc, opt)
-	if err != nil {
-		return &RenderError{err}
+	over := SameFile(target, source)
+	var dirErr error
+	if !over {
+		dirErr = os.MkdirAll(filepath.Dir(target), 0o755)
 	}
-	if SameFile(target, source) {
-		return ErrOverSource
-	}
-	if err := os.MkdirAll(filepath.Dir(target), 0o755); err != nil {
-		return &WriteError{Target: target, Folder: true, Err: err}
+	if over || dirErr != nil {
+		// nothing to write to: draw the sheet for its error alone
+		if err := render.WriteSheet(io.Discard, doc, opt); err != nil {
+			return &RenderError{err}
+		}
+		if over {
+			return ErrOverSource
+		}
+		return &WriteError{Target: target, Folder: true, Err: dirErr}
 	}
 	if create == nil {
 		create = createTemp
 	}
-	if err := WriteFileAtomicWith(target, html, create); err != nil {
+	var drawErr error
+	err := writeAtomic(target, create, func(tmp TempFile) error {
+		out := &firstError{w: tmp}
+		if drawErr = render.WriteSheet(out, doc, opt); drawErr != nil {
+			return drawErr
+		}
+		return out.err
+	})
+	if drawErr != nil {
+		return &RenderError{drawErr}
+	}
+	if err != nil {
 		return &WriteError{Target: target, Err: err}
 	}
 	return nil
+}
+
+// firstError is a writer that keeps its writer's first error and writes
+// nothing after it.
+type firstError struct {
+	w   io.Writer
+	err error
+}
+
+func (f *firstError) Write(p []byte) (int, error) {
+	if f.err == nil {
+		_, f.err = f.w.Write(p)
+	}
+	return len(p), nil
 }
 
 func createTemp(dir, pattern string) (TempFile, error) { return os.CreateTemp(dir, pattern) }

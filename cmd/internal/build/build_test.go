@@ -2,9 +2,11 @@ package build
 
 import (
 	"errors"
+	"io/fs"
 	"os"
 	"path/filepath"
 	"reflect"
+	"syscall"
 	"testing"
 
 	"calcdoc/calcdoc"
@@ -106,5 +108,86 @@ func TestWrite(t *testing.T) {
 	var we *WriteError
 	if err := Write(doc, Options{Version: "t"}, src, filepath.Join(blocked, "a.html"), nil); !errors.As(err, &we) || !we.Folder {
 		t.Errorf("a folder that cannot be made: %v", err)
+	}
+}
+
+// fillingFile is a temporary file on a disk that fills up after room
+// bytes: a write past it fails with ENOSPC.
+type fillingFile struct {
+	*os.File
+	room int
+}
+
+func (f *fillingFile) Write(p []byte) (int, error) {
+	if len(p) > f.room {
+		return 0, &fs.PathError{Op: "write", Path: f.Name(), Err: syscall.ENOSPC}
+	}
+	f.room -= len(p)
+	return f.File.Write(p)
+}
+
+// TestWriteDiskFull: the sheet streamed into its temporary file
+// (render.WriteSheet) on a disk that fills up part way is a WriteError;
+// the temporary file is removed and the sheet written before is left as
+// it was.
+func TestWriteDiskFull(t *testing.T) {
+	dir := t.TempDir()
+	src := filepath.Join(dir, "a.md")
+	write(t, src, calcDoc)
+	doc, err := calcdoc.Load(src, kind.Standard())
+	if err != nil {
+		t.Fatal(err)
+	}
+	out := filepath.Join(dir, "out")
+	target := Target(out, src, "a.md")
+	if err := os.MkdirAll(out, 0o755); err != nil {
+		t.Fatal(err)
+	}
+	write(t, target, "the sheet before")
+	for _, room := range []int{0, 100} {
+		create := func(dir, pattern string) (TempFile, error) {
+			f, err := os.CreateTemp(dir, pattern)
+			if err != nil {
+				return nil, err
+			}
+			return &fillingFile{File: f, room: room}, nil
+		}
+		var we *WriteError
+		err := Write(doc, Options{Version: "t"}, src, target, create)
+		if !errors.As(err, &we) || we.Folder || !errors.Is(err, syscall.ENOSPC) {
+			t.Errorf("room %d: a full disk gave %v, want a WriteError of ENOSPC", room, err)
+		}
+		if b, _ := os.ReadFile(target); string(b) != "the sheet before" {
+			t.Errorf("room %d: the sheet before was changed: %.40q", room, b)
+		}
+		if es, _ := os.ReadDir(out); len(es) != 1 {
+			t.Errorf("room %d: %d files in the output folder, want the sheet alone (the temporary file removed)", room, len(es))
+		}
+	}
+}
+
+// TestWriteAtomicPanic: a fill of the temporary file that panics (a
+// sheet whose drawing panics while it is streamed into the file) leaves
+// no temporary file behind, and the panic goes on.
+func TestWriteAtomicPanic(t *testing.T) {
+	dir := t.TempDir()
+	target := filepath.Join(dir, "a.html")
+	write(t, target, "the sheet before")
+	func() {
+		defer func() {
+			if recover() == nil {
+				t.Error("the panic of the fill was swallowed")
+			}
+		}()
+		writeAtomic(target, createTemp, func(tmp TempFile) error {
+			tmp.Write([]byte("part of a sheet"))
+			panic("a drawing failed")
+		})
+	}()
+	if es, _ := os.ReadDir(dir); len(es) != 1 {
+		t.Errorf("%d files in the folder, want the sheet alone (the temporary file removed)", len(es))
+	}
+	if b, _ := os.ReadFile(target); string(b) != "the sheet before" {
+		t.Errorf("the sheet before was changed: %q", b)
 	}
 }

@@ -114,6 +114,15 @@ type TempFile interface {
 // WriteFileAtomicWith is WriteFileAtomic with the temporary file made by
 // create (os.CreateTemp; tests pass one whose disk fills up).
 func WriteFileAtomicWith(path string, data []byte, create func(dir, pattern string) (TempFile, error)) error {
+	return writeAtomic(path, create, func(tmp TempFile) error {
+		_, err := tmp.Write(data)
+		return err
+	})
+}
+
+// writeAtomic is WriteFileAtomicWith with the file's bytes written by
+// fill; an error of fill fails the write as a failed Write does.
+func writeAtomic(path string, create func(dir, pattern string) (TempFile, error), fill func(TempFile) error) error {
 	RemoveStale(path)
 	tmp, err := create(filepath.Dir(path), tempPattern(path))
 	if err != nil {
@@ -125,7 +134,7 @@ func WriteFileAtomicWith(path string, data []byte, create func(dir, pattern stri
 		os.Remove(name)
 		return e
 	}
-	if _, err := tmp.Write(data); err != nil {
+	if err := fillOrRemove(tmp, fill); err != nil {
 		return fail(err)
 	}
 	if err := tmp.Sync(); err != nil {
@@ -194,4 +203,18 @@ func TrimExt(p string) string {
 		return p[:len(p)-len(".md")]
 	}
 	return p
+}
+
+// fillOrRemove runs fill; should it panic (a sheet drawn into the file as
+// it goes, whose drawing fails so), the temporary file is closed and
+// removed before the panic goes on, as an error would remove it.
+func fillOrRemove(tmp TempFile, fill func(TempFile) error) error {
+	defer func() {
+		if p := recover(); p != nil {
+			tmp.Close()
+			os.Remove(tmp.Name())
+			panic(p)
+		}
+	}()
+	return fill(tmp)
 }
