@@ -283,7 +283,11 @@ func (b *bench) main() error {
 		time.Now().UTC().Format("2006-01-02 15:04 UTC"), runtime.GOOS, runtime.GOARCH, runtime.NumCPU(),
 		strings.TrimSpace(string(cdv)), runtime.Version(), pyv)
 	fmt.Fprintf(b.out, "whole processes: %d timed alternations (calcdoc, script, calcdoc, script, ...) after one untimed run of each, wall time\n", o.runs)
-	fmt.Fprintf(b.out, "calcdoc: %s build -o sheet.html doc.md; script: %s script.py table.html\n", b.calcdoc, o.python)
+	built := "built by calcbench with CGO_ENABLED=0, as the README installs it"
+	if b.o.calcdoc != "" {
+		built = "given by -calcdoc"
+	}
+	fmt.Fprintf(b.out, "calcdoc: %s build -o sheet.html doc.md (%s); script: %s script.py table.html\n", b.calcdoc, built, o.python)
 	var targets []target
 	if o.figures[1] {
 		t, err := b.figure1()
@@ -373,7 +377,10 @@ func (b *bench) buildCalcdoc() error {
 	if runtime.GOOS == "windows" {
 		bin += ".exe"
 	}
+	// as the README installs it: a static binary (no cgo), which starts
+	// without the dynamic loader and runs wherever it is copied
 	cmd := exec.Command("go", "build", "-o", bin, "calcdoc/cmd/calcdoc")
+	cmd.Env = append(os.Environ(), "CGO_ENABLED=0")
 	if out, err := cmd.CombinedOutput(); err != nil {
 		return fmt.Errorf("go build calcdoc/cmd/calcdoc (run calcbench inside the repository, or give -calcdoc PATH): %v\n%s", err, out)
 	}
