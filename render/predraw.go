@@ -70,7 +70,7 @@ type Predraw struct {
 	closing  sync.Once
 	done     chan struct{}   // closed when the drawing goroutine ends
 	room     *sync.Cond      // on mu: held went down, or finished
-	held     int             // the bytes the drawings not yet copied hold (their buffers')
+	held     int             // the bytes the drawings not yet copied hold (their lengths: a buffer's room beyond is not touched, markup.Room)
 	free     []*bytes.Buffer // buffers handed back by the sheet
 	last     *bytes.Buffer   // the buffer copyTo wrote from last
 	finished bool            // the sheet is written: hold no drawing back
@@ -221,6 +221,18 @@ func (p *Predraw) start(doc *calcdoc.Document) {
 	go p.run(&view, p.queue)
 }
 
+// drawsEarly reports whether p draws doc's blocks of LocalDrawer kinds
+// while doc is evaluated: the sheet then copies most of them and
+// typesets few values itself.
+func (p *Predraw) drawsEarly(doc *calcdoc.Document) bool {
+	if p == nil {
+		return false
+	}
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	return p.doc == doc && !p.after
+}
+
 // predrawHeld is the most the drawings made early and not yet copied into
 // the sheet may hold, in bytes: while the document is evaluated the
 // drawing goroutine stops there, and the sheet then hands each drawing's
@@ -318,7 +330,9 @@ func (p *Predraw) run(view *calcdoc.Document, queue <-chan *preJob) {
 			p.names[k].Store(&m)
 		}
 	}
-	shared := markup.NewWriter(view)
+	// the typeset values' cache made once for the names the document
+	// will define (view.Values is still empty), not grown through its sizes
+	shared := markup.NewWriterFor(view, view.NamesAbout())
 	var left []*preJob // received after Close: drawn from the last
 	for j := range queue {
 		for _, def := range j.defs {
@@ -370,14 +384,19 @@ func (p *Predraw) drawJob(view *calcdoc.Document, w *markup.Writer, j *preJob, h
 		dw = markup.NewWriter(&own)
 	}
 	if buf == nil {
-		buf = new(bytes.Buffer)
+		// room for a drawing larger than its likely size, so that it is
+		// not grown (a copy, and the room of both touched): the room is
+		// touched only as far as the drawing goes
+		size := blockSize(j.b)
+		buf = markup.Room(size + size/2)
+	} else {
+		buf.Grow(blockSize(j.b))
 	}
-	buf.Grow(blockSize(j.b))
 	if drawOne(dw, j, buf) {
 		j.buf = buf
 		if held {
 			p.mu.Lock()
-			p.held += buf.Cap()
+			p.held += buf.Len()
 			p.mu.Unlock()
 		}
 		j.held = held
@@ -568,7 +587,7 @@ func (p *Predraw) copyTo(out io.Writer, doc *calcdoc.Document, b *calcdoc.Block)
 	}
 	p.mu.Lock()
 	if j.held {
-		p.held -= buf.Cap()
+		p.held -= buf.Len()
 	}
 	if ok {
 		p.last = buf // handed back at the next call
