@@ -272,10 +272,10 @@ func shownForm(s expr.Shown) form {
 	case expr.ShownRect:
 		if s.A == "" {
 			if strings.HasPrefix(s.B, "-") {
-				return form{lv: lvUnary, signed: true, after: atom(s.B)}
+				return form{lv: lvUnary, signed: true, after: int8(atom(s.B))}
 			}
 			a := atom(s.B)
-			return form{lv: a, after: a}
+			return form{lv: int8(a), after: int8(a)}
 		}
 		if s.Unit != "" {
 			return form{lv: lvPostfix, after: lvPostfix}
@@ -283,10 +283,10 @@ func shownForm(s expr.Shown) form {
 		return form{lv: lvAdd, signed: strings.HasPrefix(s.A, "-"), after: lvAdd}
 	}
 	if strings.HasPrefix(s.A, "-") {
-		return form{lv: lvUnary, signed: true, after: atom(s.A[1:])}
+		return form{lv: lvUnary, signed: true, after: int8(atom(s.A[1:]))}
 	}
 	a := atom(s.A)
-	return form{lv: a, after: a}
+	return form{lv: int8(a), after: int8(a)}
 }
 
 // ValueML typesets any value: a scalar, or a matrix as a bracketed grid.
