@@ -3,6 +3,7 @@ package render
 import (
 	"bytes"
 	"io"
+	"slices"
 	"sync"
 	"sync/atomic"
 
@@ -64,18 +65,21 @@ type Predraw struct {
 	// names are the keys each block's text may mention, by its index
 	// among the document's blocks, made ahead by the drawing goroutine
 	// (nil where it has not yet come); index finds a block's.
-	names    []atomic.Pointer[map[string]bool]
-	index    map[*calcdoc.Block]int
-	queue    chan *preJob
-	closing  sync.Once
-	done     chan struct{}   // closed when the drawing goroutine ends
-	room     *sync.Cond      // on mu: held went down, or finished
-	held     int             // the bytes the drawings not yet copied hold (their lengths: a buffer's room beyond is not touched, markup.Room)
-	free     []*bytes.Buffer // buffers handed back by the sheet
-	last     *bytes.Buffer   // the buffer copyTo wrote from last
-	finished bool            // the sheet is written: hold no drawing back
-	limit    int             // predrawHeld; tests make it small
-	most     int             // predrawMost
+	names   []atomic.Pointer[map[string]bool]
+	index   map[*calcdoc.Block]int
+	queue   chan *preJob
+	closing sync.Once
+	done    chan struct{}   // closed when the drawing goroutine ends
+	room    *sync.Cond      // on mu: held went down, or finished
+	held    int             // the bytes the drawings not yet copied hold (their lengths: a buffer's room beyond is not touched, markup.Room)
+	free    []*bytes.Buffer // buffers handed back by the sheet
+	// freeDefs are lists of definitions (preJob.defs) the drawing
+	// goroutine has added to its names, handed back for the next hook
+	freeDefs [][]preDef
+	last     *bytes.Buffer // the buffer copyTo wrote from last
+	finished bool          // the sheet is written: hold no drawing back
+	limit    int           // predrawHeld; tests make it small
+	most     int           // predrawMost
 	// after: the document's drawings would pass most, so none is drawn
 	// while it is evaluated; the sheet starts the drawing goroutine
 	// (startAfter), which draws every other block ahead of the sheet
@@ -183,7 +187,10 @@ func (p *Predraw) Block(b *calcdoc.Block) {
 			j.absent = append(j.absent, k)
 		}
 	}
-	j.defs = make([]preDef, 0, len(ms))
+	if n := len(p.freeDefs); n > 0 {
+		j.defs, p.freeDefs = p.freeDefs[n-1], p.freeDefs[:n-1]
+	}
+	j.defs = slices.Grow(j.defs, len(ms))
 	for k := range ms {
 		look(k)
 	}
@@ -349,6 +356,7 @@ func (p *Predraw) run(view *calcdoc.Document, queue <-chan *preJob) {
 			continue
 		}
 		shared = p.drawJob(view, shared, j, true)
+		p.putBackDefs(j)
 	}
 	for k := len(left) - 1; k >= 0; k-- {
 		if left[k].state.Load() != preQueued {
@@ -462,6 +470,24 @@ func (p *Predraw) putBack(buf *bytes.Buffer) {
 	p.mu.Unlock()
 }
 
+// putBackDefs hands j's list of definitions, added to the drawing
+// goroutine's names and drawn with, back for the next hook to fill (the
+// hook makes one for every word of its block's text, most of them no
+// name: made anew for each block they would be memory touched once and
+// dropped). Not when the tests draw each block in isolation: its drawing
+// reads the list.
+func (p *Predraw) putBackDefs(j *preJob) {
+	if p.isolate || j.defs == nil {
+		return
+	}
+	defs := j.defs[:0]
+	clear(j.defs) // no pointer kept alive by a list waiting to be filled
+	j.defs = nil
+	p.mu.Lock()
+	p.freeDefs = append(p.freeDefs, defs)
+	p.mu.Unlock()
+}
+
 // define adds a definition found at a hook to the drawing's names, once.
 func define(env *expr.Env, def preDef) {
 	switch {
@@ -526,7 +552,7 @@ func (p *Predraw) Wait() {
 	}
 	<-p.done
 	p.mu.Lock()
-	p.jobs, p.free, p.last = nil, nil, nil // the drawings' buffers go with the sheet
+	p.jobs, p.free, p.last, p.freeDefs = nil, nil, nil, nil // the drawings' buffers go with the sheet
 	p.mu.Unlock()
 }
 
