@@ -49,15 +49,29 @@ func nameML(name string) string {
 		// a name ending in "_" is another name than the one without it
 		return "<mi>" + Esc(GreekOf(base)) + "_</mi>"
 	}
-	b := "<mi>" + Esc(GreekOf(base)) + "</mi>"
 	if !hasSub {
-		return b
+		return "<mi>" + Esc(GreekOf(base)) + "</mi>"
 	}
-	parts := strings.Split(sub, "_")
-	for i, p := range parts {
-		parts[i] = GreekOf(p)
+	// written into one string: the subscript's parts, each a Greek
+	// letter where spelled, joined by commas (Esc leaves "," as it is)
+	var b strings.Builder
+	b.Grow(len(name) + 32)
+	b.WriteString("<msub><mi>")
+	b.WriteString(Esc(GreekOf(base)))
+	b.WriteString("</mi><mi>")
+	for i := 0; ; i++ {
+		p, rest, more := strings.Cut(sub, "_")
+		if i > 0 {
+			b.WriteByte(',')
+		}
+		b.WriteString(Esc(GreekOf(p)))
+		if !more {
+			break
+		}
+		sub = rest
 	}
-	return "<msub>" + b + "<mi>" + Esc(strings.Join(parts, ",")) + "</mi></msub>"
+	b.WriteString("</mi></msub>")
+	return b.String()
 }
 
 // NameHTML writes a name as HTML text with a <sub> subscript.
