@@ -3,6 +3,7 @@ package render
 import (
 	"bytes"
 	"io"
+	"slices"
 	"sync"
 	"sync/atomic"
 
@@ -64,18 +65,21 @@ type Predraw struct {
 	// names are the keys each block's text may mention, by its index
 	// among the document's blocks, made ahead by the drawing goroutine
 	// (nil where it has not yet come); index finds a block's.
-	names    []atomic.Pointer[map[string]bool]
-	index    map[*calcdoc.Block]int
-	queue    chan *preJob
-	closing  sync.Once
-	done     chan struct{}   // closed when the drawing goroutine ends
-	room     *sync.Cond      // on mu: held went down, or finished
-	held     int             // the bytes the drawings not yet copied hold (their buffers')
-	free     []*bytes.Buffer // buffers handed back by the sheet
-	last     *bytes.Buffer   // the buffer copyTo wrote from last
-	finished bool            // the sheet is written: hold no drawing back
-	limit    int             // predrawHeld; tests make it small
-	most     int             // predrawMost
+	names   []atomic.Pointer[map[string]bool]
+	index   map[*calcdoc.Block]int
+	queue   chan *preJob
+	closing sync.Once
+	done    chan struct{}   // closed when the drawing goroutine ends
+	room    *sync.Cond      // on mu: held went down, or finished
+	held    int             // the bytes the drawings not yet copied hold (their lengths: a buffer's room beyond is not touched, markup.Room)
+	free    []*bytes.Buffer // buffers handed back by the sheet
+	// freeDefs are lists of definitions (preJob.defs) the drawing
+	// goroutine has added to its names, handed back for the next hook
+	freeDefs [][]preDef
+	last     *bytes.Buffer // the buffer copyTo wrote from last
+	finished bool          // the sheet is written: hold no drawing back
+	limit    int           // predrawHeld; tests make it small
+	most     int           // predrawMost
 	// after: the document's drawings would pass most, so none is drawn
 	// while it is evaluated; the sheet starts the drawing goroutine
 	// (startAfter), which draws every other block ahead of the sheet
@@ -183,7 +187,10 @@ func (p *Predraw) Block(b *calcdoc.Block) {
 			j.absent = append(j.absent, k)
 		}
 	}
-	j.defs = make([]preDef, 0, len(ms))
+	if n := len(p.freeDefs); n > 0 {
+		j.defs, p.freeDefs = p.freeDefs[n-1], p.freeDefs[:n-1]
+	}
+	j.defs = slices.Grow(j.defs, len(ms))
 	for k := range ms {
 		look(k)
 	}
@@ -219,6 +226,18 @@ func (p *Predraw) start(doc *calcdoc.Document) {
 		p.index[b] = k
 	}
 	go p.run(&view, p.queue)
+}
+
+// drawsEarly reports whether p draws doc's blocks of LocalDrawer kinds
+// while doc is evaluated: the sheet then copies most of them and
+// typesets few values itself.
+func (p *Predraw) drawsEarly(doc *calcdoc.Document) bool {
+	if p == nil {
+		return false
+	}
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	return p.doc == doc && !p.after
 }
 
 // predrawHeld is the most the drawings made early and not yet copied into
@@ -318,7 +337,9 @@ func (p *Predraw) run(view *calcdoc.Document, queue <-chan *preJob) {
 			p.names[k].Store(&m)
 		}
 	}
-	shared := markup.NewWriter(view)
+	// the typeset values' cache made once for the names the document
+	// will define (view.Values is still empty), not grown through its sizes
+	shared := markup.NewWriterFor(view, view.NamesAbout())
 	var left []*preJob // received after Close: drawn from the last
 	for j := range queue {
 		for _, def := range j.defs {
@@ -335,6 +356,7 @@ func (p *Predraw) run(view *calcdoc.Document, queue <-chan *preJob) {
 			continue
 		}
 		shared = p.drawJob(view, shared, j, true)
+		p.putBackDefs(j)
 	}
 	for k := len(left) - 1; k >= 0; k-- {
 		if left[k].state.Load() != preQueued {
@@ -370,14 +392,19 @@ func (p *Predraw) drawJob(view *calcdoc.Document, w *markup.Writer, j *preJob, h
 		dw = markup.NewWriter(&own)
 	}
 	if buf == nil {
-		buf = new(bytes.Buffer)
+		// room for a drawing larger than its likely size, so that it is
+		// not grown (a copy, and the room of both touched): the room is
+		// touched only as far as the drawing goes
+		size := blockSize(j.b)
+		buf = markup.Room(size + size/2)
+	} else {
+		buf.Grow(blockSize(j.b))
 	}
-	buf.Grow(blockSize(j.b))
 	if drawOne(dw, j, buf) {
 		j.buf = buf
 		if held {
 			p.mu.Lock()
-			p.held += buf.Cap()
+			p.held += buf.Len()
 			p.mu.Unlock()
 		}
 		j.held = held
@@ -440,6 +467,24 @@ func (p *Predraw) putBack(buf *bytes.Buffer) {
 	buf.Reset()
 	p.mu.Lock()
 	p.free = append(p.free, buf)
+	p.mu.Unlock()
+}
+
+// putBackDefs hands j's list of definitions, added to the drawing
+// goroutine's names and drawn with, back for the next hook to fill (the
+// hook makes one for every word of its block's text, most of them no
+// name: made anew for each block they would be memory touched once and
+// dropped). Not when the tests draw each block in isolation: its drawing
+// reads the list.
+func (p *Predraw) putBackDefs(j *preJob) {
+	if p.isolate || j.defs == nil {
+		return
+	}
+	defs := j.defs[:0]
+	clear(j.defs) // no pointer kept alive by a list waiting to be filled
+	j.defs = nil
+	p.mu.Lock()
+	p.freeDefs = append(p.freeDefs, defs)
 	p.mu.Unlock()
 }
 
@@ -507,7 +552,7 @@ func (p *Predraw) Wait() {
 	}
 	<-p.done
 	p.mu.Lock()
-	p.jobs, p.free, p.last = nil, nil, nil // the drawings' buffers go with the sheet
+	p.jobs, p.free, p.last, p.freeDefs = nil, nil, nil, nil // the drawings' buffers go with the sheet
 	p.mu.Unlock()
 }
 
@@ -568,7 +613,7 @@ func (p *Predraw) copyTo(out io.Writer, doc *calcdoc.Document, b *calcdoc.Block)
 	}
 	p.mu.Lock()
 	if j.held {
-		p.held -= buf.Cap()
+		p.held -= buf.Len()
 	}
 	if ok {
 		p.last = buf // handed back at the next call

@@ -71,10 +71,12 @@ const (
 // form is the level of an operand's typeset form. signed: it is a sign or
 // a negative value (see leadSign for the rest); after: the level of what
 // follows that sign.
+// (The levels are small numbers: int8 keeps a typeset value in the
+// sheet's cache, one a value of the document, small.)
 type form struct {
-	lv     int
+	lv     int8
 	signed bool
-	after  int
+	after  int8
 }
 
 // stringWriter is what typesetting writes into: a strings.Builder or the
@@ -203,7 +205,7 @@ func (m *ExprML) form(n expr.Node) form {
 		return form{lv: lvUnary, signed: true, after: after}
 	case *expr.Binary:
 		lv := binLevel(n.Op)
-		return form{lv: lv, after: lv}
+		return form{lv: int8(lv), after: int8(lv)}
 	case *expr.Call:
 		if len(n.Args) == 1 && (n.Fun.Name == "conj" || n.Fun.Name == "transpose") {
 			return form{lv: lvPostfix, after: lvPostfix}
@@ -251,7 +253,7 @@ func (m *ExprML) leadSign(n expr.Node) bool {
 			}
 			n = a
 		case *expr.Binary:
-			if binLevel(x.Op) > lvAngle || m.form(x.X).lv < m.leftNeed(x.Op) {
+			if binLevel(x.Op) > lvAngle || int(m.form(x.X).lv) < m.leftNeed(x.Op) {
 				return false // a power's base, a fraction, a bracketed left operand
 			}
 			n = x.X
@@ -295,7 +297,7 @@ func rightNeed(op expr.Kind) int {
 // a sign and noSign is set.
 func (m *ExprML) operand(b StringWriter, n expr.Node, need int, noSign bool) {
 	f := m.form(n)
-	if f.lv < need || noSign && m.leadSign(n) {
+	if int(f.lv) < need || noSign && m.leadSign(n) {
 		b.WriteString("<mrow><mo>(</mo>")
 		m.write(b, n)
 		b.WriteString("<mo>)</mo></mrow>")
@@ -308,7 +310,7 @@ func (m *ExprML) operand(b StringWriter, n expr.Node, need int, noSign bool) {
 // of a <msup>): what write puts as several is grouped in an <mrow>.
 func (m *ExprML) operandOne(b StringWriter, n expr.Node, need int, noSign bool) {
 	f := m.form(n)
-	if f.lv < need || noSign && m.leadSign(n) {
+	if int(f.lv) < need || noSign && m.leadSign(n) {
 		m.operand(b, n, need, noSign)
 		return
 	}
@@ -628,7 +630,7 @@ func (m *ExprML) splitsFactors(n expr.Node, need int, noSign bool) bool {
 	if _, subst := m.substituted(expr.Unparen(n)); subst {
 		return false
 	}
-	return m.form(n).lv >= need && !(noSign && m.leadSign(n))
+	return int(m.form(n).lv) >= need && !(noSign && m.leadSign(n))
 }
 
 func IsConstant(name string) bool { return name == "pi" || name == "π" || name == "j" }

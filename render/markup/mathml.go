@@ -49,15 +49,29 @@ func nameML(name string) string {
 		// a name ending in "_" is another name than the one without it
 		return "<mi>" + Esc(GreekOf(base)) + "_</mi>"
 	}
-	b := "<mi>" + Esc(GreekOf(base)) + "</mi>"
 	if !hasSub {
-		return b
+		return "<mi>" + Esc(GreekOf(base)) + "</mi>"
 	}
-	parts := strings.Split(sub, "_")
-	for i, p := range parts {
-		parts[i] = GreekOf(p)
+	// written into one string: the subscript's parts, each a Greek
+	// letter where spelled, joined by commas (Esc leaves "," as it is)
+	var b strings.Builder
+	b.Grow(len(name) + 32)
+	b.WriteString("<msub><mi>")
+	b.WriteString(Esc(GreekOf(base)))
+	b.WriteString("</mi><mi>")
+	for i := 0; ; i++ {
+		p, rest, more := strings.Cut(sub, "_")
+		if i > 0 {
+			b.WriteByte(',')
+		}
+		b.WriteString(Esc(GreekOf(p)))
+		if !more {
+			break
+		}
+		sub = rest
 	}
-	return "<msub>" + b + "<mi>" + Esc(strings.Join(parts, ",")) + "</mi></msub>"
+	b.WriteString("</mi></msub>")
+	return b.String()
 }
 
 // NameHTML writes a name as HTML text with a <sub> subscript.
@@ -272,10 +286,10 @@ func shownForm(s expr.Shown) form {
 	case expr.ShownRect:
 		if s.A == "" {
 			if strings.HasPrefix(s.B, "-") {
-				return form{lv: lvUnary, signed: true, after: atom(s.B)}
+				return form{lv: lvUnary, signed: true, after: int8(atom(s.B))}
 			}
 			a := atom(s.B)
-			return form{lv: a, after: a}
+			return form{lv: int8(a), after: int8(a)}
 		}
 		if s.Unit != "" {
 			return form{lv: lvPostfix, after: lvPostfix}
@@ -283,10 +297,10 @@ func shownForm(s expr.Shown) form {
 		return form{lv: lvAdd, signed: strings.HasPrefix(s.A, "-"), after: lvAdd}
 	}
 	if strings.HasPrefix(s.A, "-") {
-		return form{lv: lvUnary, signed: true, after: atom(s.A[1:])}
+		return form{lv: lvUnary, signed: true, after: int8(atom(s.A[1:]))}
 	}
 	a := atom(s.A)
-	return form{lv: a, after: a}
+	return form{lv: int8(a), after: int8(a)}
 }
 
 // ValueML typesets any value: a scalar, or a matrix as a bracketed grid.

@@ -107,8 +107,36 @@ func NewWriter(doc *calcdoc.Document) *Writer {
 	// the typeset values are about one a value the document defines (a
 	// result, shown again where later rows use its name): the cache is
 	// made that large at once instead of growing through its sizes
-	return &Writer{Doc: doc, values: make(map[valueKey]shownValue, len(doc.Values))}
+	return NewWriterFor(doc, len(doc.Values))
 }
+
+// NewWriterFor returns a writer for the sheet of doc whose cache of
+// typeset values is made for about values of them: a writer that draws
+// while the document is evaluated (doc.Values still empty) says how many
+// the document will have, one that draws little says few (a map made
+// large is touched, page by page, when it is made).
+func NewWriterFor(doc *calcdoc.Document, values int) *Writer {
+	return &Writer{Doc: doc, values: make(map[valueKey]shownValue, values)}
+}
+
+// Reserve makes the writer's buffer hold at least n bytes before it
+// grows. An empty buffer gets fresh room (Room) rather than
+// bytes.Buffer.Grow's, which clears all of it: room from an estimate is
+// then touched only as far as the sheet fills it.
+func (w *Writer) Reserve(n int) {
+	if w.Buffer.Len() == 0 && w.Buffer.Cap() < n {
+		w.Buffer = *Room(n)
+		return
+	}
+	w.Buffer.Grow(n)
+}
+
+// Room is an empty buffer with room for n bytes, made without clearing
+// them: bytes.Buffer.Grow clears the room it adds, so memory never used
+// is still touched (a page fault for every 4 KiB of a fresh page), while
+// a new slice of bytes comes from the runtime already zero when its pages
+// are fresh. For a buffer sized from an estimate.
+func Room(n int) *bytes.Buffer { return bytes.NewBuffer(make([]byte, 0, n)) }
 
 // Plural is "s" unless n is one.
 func Plural(n int) string {

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"strings"
+	"sync"
 
 	"calcdoc/calcdoc"
 	"calcdoc/calcdoc/kind/network/mna"
@@ -259,8 +260,15 @@ func sci(x float64) string {
 	case math.IsNaN(x):
 		return "—"
 	}
-	return strings.NewReplacer("e-0", "e-", "e+0", "e", "e+", "e").Replace(fmt.Sprintf("%.3g", x))
+	return sciExponent().Replace(fmt.Sprintf("%.3g", x))
 }
+
+// sciExponent shortens the exponent of a figure: "e-05" to "e-5",
+// "e+10" to "e10". Made once, on first use (a replacer of several strings
+// builds tables: made on each call it cost more than the figure).
+var sciExponent = sync.OnceValue(func() *strings.Replacer {
+	return strings.NewReplacer("e-0", "e-", "e+0", "e", "e+", "e")
+})
 
 // substitution is an element's expression with every name replaced by its
 // value, as a calc row's substitution is written, after "= " on a line of
