@@ -2,7 +2,6 @@ package render
 
 import (
 	"encoding/json"
-	"io/fs"
 	"os"
 	"path/filepath"
 	"regexp"
@@ -12,6 +11,7 @@ import (
 	"calcdoc/calcdoc"
 	"calcdoc/calcdoc/kind"
 	"calcdoc/expr"
+	"calcdoc/render/internal/sheettest"
 )
 
 // No shipped example shows a reactive or apparent power in W (IEEE Std
@@ -21,16 +21,7 @@ import (
 // the one its IEEE 1459 letter symbol (P, Q, S) names.
 func TestExamplesShowPowersByKind(t *testing.T) {
 	// every example, in subfolders too (examples/plant/...)
-	var files []string
-	err := filepath.WalkDir(filepath.Join("..", "examples"), func(p string, d fs.DirEntry, err error) error {
-		if err == nil && !d.IsDir() && strings.HasSuffix(p, ".md") {
-			files = append(files, p)
-		}
-		return err
-	})
-	if err != nil || len(files) == 0 {
-		t.Fatalf("no examples: %v", err)
-	}
+	files := sheettest.Examples(t, filepath.Join("..", "examples"))
 	rowUnit := regexp.MustCompile(`<mi class="u">([^<]*)</mi>(?:</mrow>)?</math>`)
 	powers := 0
 	for _, f := range files {

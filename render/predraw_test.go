@@ -3,7 +3,6 @@ package render
 import (
 	"bytes"
 	"io"
-	"io/fs"
 	"os"
 	"path/filepath"
 	"strings"
@@ -11,6 +10,7 @@ import (
 
 	"calcdoc/calcdoc"
 	"calcdoc/calcdoc/kind"
+	"calcdoc/render/internal/sheettest"
 )
 
 // predrawDocs are documents of our own that exercise what the drawing of
@@ -41,16 +41,7 @@ var predrawDocs = map[string]string{
 // limit of one byte held, each early drawing waits for the sheet to take
 // the one before, and reuses its buffer.
 func TestPredrawSameBytes(t *testing.T) {
-	var files []string
-	err := filepath.WalkDir(filepath.Join("..", "examples"), func(p string, d fs.DirEntry, err error) error {
-		if err == nil && !d.IsDir() && strings.HasSuffix(p, ".md") {
-			files = append(files, p)
-		}
-		return err
-	})
-	if err != nil || len(files) == 0 {
-		t.Fatalf("no examples: %v", err)
-	}
+	files := sheettest.Examples(t, filepath.Join("..", "examples"))
 	dir := t.TempDir()
 	for name, src := range predrawDocs {
 		if err := os.WriteFile(filepath.Join(dir, name), []byte(src), 0o644); err != nil {

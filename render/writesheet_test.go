@@ -3,7 +3,6 @@ package render
 import (
 	"bytes"
 	"errors"
-	"io/fs"
 	"os"
 	"path/filepath"
 	"strings"
@@ -11,6 +10,7 @@ import (
 
 	"calcdoc/calcdoc"
 	"calcdoc/calcdoc/kind"
+	"calcdoc/render/internal/sheettest"
 )
 
 // pieces records the writes of a streamed sheet.
@@ -34,16 +34,7 @@ func (p *pieces) Write(b []byte) (int, error) {
 // pieces of the long one are no larger than a piece's room and the
 // largest block drawn into it.
 func TestWriteSheetSameBytes(t *testing.T) {
-	var files []string
-	err := filepath.WalkDir(filepath.Join("..", "examples"), func(p string, d fs.DirEntry, err error) error {
-		if err == nil && !d.IsDir() && strings.HasSuffix(p, ".md") {
-			files = append(files, p)
-		}
-		return err
-	})
-	if err != nil || len(files) == 0 {
-		t.Fatalf("no examples: %v", err)
-	}
+	files := sheettest.Examples(t, filepath.Join("..", "examples"))
 	// a long document: 400 blocks of statements and prose (about 1.5 MB
 	// of sheet), with a quote and an ampersand in the source to escape
 	var long strings.Builder

@@ -4,6 +4,7 @@ package sheettest
 
 import (
 	"fmt"
+	"io/fs"
 	"os"
 	"os/exec"
 	"path/filepath"
@@ -84,4 +85,21 @@ func Sha256sum(t *testing.T, path string) string {
 		t.Fatalf("sha256sum printed %q", out)
 	}
 	return f[0]
+}
+
+// Examples lists the .md files under the folder examples (subfolders too),
+// in lexical order; the test fails when there is none.
+func Examples(t *testing.T, examples string) []string {
+	t.Helper()
+	var files []string
+	err := filepath.WalkDir(examples, func(p string, d fs.DirEntry, err error) error {
+		if err == nil && !d.IsDir() && strings.HasSuffix(p, ".md") {
+			files = append(files, p)
+		}
+		return err
+	})
+	if err != nil || len(files) == 0 {
+		t.Fatalf("no examples in %s: %v", examples, err)
+	}
+	return files
 }
