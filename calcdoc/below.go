@@ -21,8 +21,9 @@ import (
 //     front matter is the same bytes, and neither evaluation ran out of
 //     budget;
 //   - B' starts at the same offset and is written alike (the same kind,
-//     info string, lines, each at the same offset), and B, B' and every
-//     line of them are at the same line and column;
+//     info string, lines, each at the same offset), B and B' start at the
+//     same line and column and the text from there to their end is the
+//     same bytes (so every place in them is at the same line and column);
 //   - neither B nor B' read a data file or used a sheet, and the case
 //     state before each is the same;
 //   - every name B's text may mention (Block.Mentions) is, in the final
@@ -52,8 +53,10 @@ import (
 func (b *Block) DrawnLike() uint64 { return b.twin }
 
 // markTwins sets Block.twin for each block of d at or after item k (the
-// first item evaluated again), d having been evaluated from prev's
-// evaluation of the items above it.
+// first item evaluated again) whose kind draws it from nothing but the
+// block, its evaluation, the front matter and the final names its text
+// mentions (LocalDrawing: render.LocalDrawer), d having been evaluated
+// from prev's evaluation of the items above it.
 func (d *Document) markTwins(prev *Document, k int) {
 	if !d.compatible(prev) || d.trail == nil || len(d.trail.marks) != len(d.order)+1 || d.Env.Budget == nil ||
 		d.Env.Budget.Over() != nil || prev.trail.marks[len(prev.trail.marks)-1].over || !sameFront(prev.Source, d.Source) {
@@ -66,6 +69,9 @@ func (d *Document) markTwins(prev *Document, k int) {
 		b, ok := d.order[i].(*Block)
 		if !ok {
 			continue
+		}
+		if _, local := b.kind.(interface{ LocalDrawing() }); !local {
+			continue // only a drawing that reads nothing else is kept (render.LocalDrawer)
 		}
 		off := b.Pos.Off
 		for j < len(prev.order) && itemStart(prev.order[j]) < off {
@@ -83,13 +89,14 @@ func (d *Document) markTwins(prev *Document, k int) {
 
 // twins reports whether block b (d's item i) draws as o (prev's item j).
 func (d *Document) twins(prev *Document, i int, b *Block, j int, o *Block) bool {
-	if !sameItem(o, b, math.MaxInt) || !samePos(o.Pos, b.Pos) || !samePos(o.InfoPos, b.InfoPos) || !samePos(o.ArgPos, b.ArgPos) {
+	// the same text from the block's start to its end, starting at the
+	// same line and column: every place in it at the same line and column
+	if !sameItem(o, b, math.MaxInt) || !samePos(o.Pos, b.Pos) {
 		return false
 	}
-	for l := range b.LinePos {
-		if !samePos(o.LinePos[l], b.LinePos[l]) {
-			return false
-		}
+	end := blockEnd(b)
+	if end > len(d.Text) || end > len(prev.Text) || b.Pos.Off < 0 || b.Pos.Off > end || !bytes.Equal(d.Text[b.Pos.Off:end], prev.Text[b.Pos.Off:end]) {
+		return false
 	}
 	n0, n1 := d.trail.marks[i], d.trail.marks[i+1]
 	p0, p1 := prev.trail.marks[j], prev.trail.marks[j+1]
@@ -110,15 +117,31 @@ func (d *Document) twins(prev *Document, i int, b *Block, j int, o *Block) bool 
 	// the same text: the same names; the new block's map is the old one's
 	m := o.mentions()
 	b.memo.once.Do(func() { b.memo.mentions = m })
+	_, df, dt := d.Env.Counts()
+	_, pf, pt := prev.Env.Counts()
 	for key := range m {
-		if d.Env.LookupFunc(key) != nil || prev.Env.LookupFunc(key) != nil || d.Env.LookupTable(key) != nil || prev.Env.LookupTable(key) != nil {
+		if df+pf > 0 && (d.Env.LookupFunc(key) != nil || prev.Env.LookupFunc(key) != nil) ||
+			dt+pt > 0 && (d.Env.LookupTable(key) != nil || prev.Env.LookupTable(key) != nil) {
 			return false
 		}
-		if !sameBinding(prev.Env.Lookup(key), d.Env.Lookup(key)) {
+		if !sameBinding(prev.Env.LookupKey(key), d.Env.LookupKey(key)) {
 			return false
 		}
 	}
 	return true
+}
+
+// blockEnd is the offset just after the last byte of a block's text (its
+// info string, argument and lines).
+func blockEnd(b *Block) int {
+	end := b.InfoPos.Off
+	if b.Arg != "" {
+		end = max(end, b.ArgPos.Off+len(b.Arg))
+	}
+	for i, l := range b.Lines {
+		end = max(end, b.LinePos[i].Off+len(l))
+	}
+	return end
 }
 
 // compatible reports whether d may take anything over from prev: the same
