@@ -20,15 +20,17 @@ import (
 //   - both documents read their files alike (takeable's first tests), their
 //     front matter is the same bytes, and neither evaluation ran out of
 //     budget;
-//   - B' starts at the same offset and is written alike (the same kind,
-//     info string, lines, each at the same offset), B and B' start at the
-//     same line and column and the text from there to their end is the
-//     same bytes (so every place in them is at the same line and column);
+//   - B' starts at the same offset, or at the offset moved by the change
+//     in the text's length, and is written alike (the same kind, info
+//     string and lines, each at the same distance from the start); B and
+//     B' start at the same line and column and the text from there to
+//     their end is the same bytes (so every place in them is at the same
+//     line and column);
 //   - neither B nor B' read a data file or used a sheet, and the case
 //     state before each is the same;
 //   - every name B's text may mention (Block.Mentions) is, in the final
 //     names of both documents, either absent from both or a value defined
-//     at the same position, with the same name as written, the same
+//     at the same line and column, with the same name as written, the same
 //     display and an equal value (complex parts bit for bit, the same
 //     dimension, flags and unit; a matrix entry by entry; the same for
 //     each case), and no such name is a user function or a table in
@@ -44,8 +46,8 @@ import (
 // final names its text mentions. With all of these alike the evaluation
 // is alike (names are defined once, so a name's value when B is evaluated
 // is its final one, or none when it is defined after B, which the same
-// offset of B and of the definition keep the same in both), and so is the
-// drawing. The last test checks the outcome besides.
+// line and column of B and of the definition keep the same in both), and
+// so is the drawing, which shows places by line and column only. The last test checks the outcome besides.
 
 // DrawnLike is the EvalID of the evaluation of the save before whose
 // drawing is also this block's (see markTwins), or 0 when there is none
@@ -63,24 +65,37 @@ func (d *Document) markTwins(prev *Document, k int) {
 		return
 	}
 	d.basis = prev.serial // the drawings of prev's blocks serve d's
-	// j: the item of prev at or after the one looked at
-	j := 0
+	// a block of prev is looked for at the same offset and, below an edit
+	// that kept the lines but not the length of the text, at the offset
+	// moved by the difference in length
+	var at map[int]int // prev's blocks by offset: their item
+	shift := len(d.Text) - len(prev.Text)
 	for i := k; i < len(d.order); i++ {
 		b, ok := d.order[i].(*Block)
-		if !ok {
+		if !ok || b.memo == nil {
 			continue
 		}
 		if _, local := b.kind.(interface{ LocalDrawing() }); !local {
 			continue // only a drawing that reads nothing else is kept (render.LocalDrawer)
 		}
-		off := b.Pos.Off
-		for j < len(prev.order) && itemStart(prev.order[j]) < off {
-			j++
+		if at == nil {
+			at = make(map[int]int, len(prev.Blocks))
+			for j, it := range prev.order {
+				if o, ok := it.(*Block); ok {
+					at[o.Pos.Off] = j
+				}
+			}
 		}
-		// an inline value and a block never start at one offset
-		for jj := j; jj < len(prev.order) && itemStart(prev.order[jj]) == off; jj++ {
-			if o, ok := prev.order[jj].(*Block); ok && o.memo != nil && b.memo != nil && d.twins(prev, i, b, jj, o) {
+		for _, off := range [2]int{b.Pos.Off, b.Pos.Off - shift} {
+			j, ok := at[off]
+			if !ok {
+				continue
+			}
+			if o := prev.order[j].(*Block); o.memo != nil && d.twins(prev, i, b, j, o) {
 				b.twin = o.memo.id
+				break
+			}
+			if shift == 0 {
 				break
 			}
 		}
@@ -91,11 +106,12 @@ func (d *Document) markTwins(prev *Document, k int) {
 func (d *Document) twins(prev *Document, i int, b *Block, j int, o *Block) bool {
 	// the same text from the block's start to its end, starting at the
 	// same line and column: every place in it at the same line and column
-	if !sameItem(o, b, math.MaxInt) || !samePos(o.Pos, b.Pos) {
+	if !sameShape(o, b) || !samePos(o.Pos, b.Pos) {
 		return false
 	}
-	end := blockEnd(b)
-	if end > len(d.Text) || end > len(prev.Text) || b.Pos.Off < 0 || b.Pos.Off > end || !bytes.Equal(d.Text[b.Pos.Off:end], prev.Text[b.Pos.Off:end]) {
+	nb, no := blockEnd(b)-b.Pos.Off, blockEnd(o)-o.Pos.Off
+	if nb != no || nb < 0 || b.Pos.Off+nb > len(d.Text) || o.Pos.Off+no > len(prev.Text) ||
+		!bytes.Equal(d.Text[b.Pos.Off:b.Pos.Off+nb], prev.Text[o.Pos.Off:o.Pos.Off+no]) {
 		return false
 	}
 	n0, n1 := d.trail.marks[i], d.trail.marks[i+1]
@@ -129,6 +145,30 @@ func (d *Document) twins(prev *Document, i int, b *Block, j int, o *Block) bool 
 		}
 	}
 	return true
+}
+
+// sameShape reports whether two blocks (of two saves) are written alike:
+// the same kind, info string and lines, each at the same distance from
+// the block's start.
+func sameShape(a, b *Block) bool {
+	if a.Kind != b.Kind || a.kind != b.kind || a.Arg != b.Arg || len(a.Lines) != len(b.Lines) ||
+		rel(a.ArgPos, a.Pos) != rel(b.ArgPos, b.Pos) || rel(a.InfoPos, a.Pos) != rel(b.InfoPos, b.Pos) {
+		return false
+	}
+	for i := range a.Lines {
+		if a.Lines[i] != b.Lines[i] || rel(a.LinePos[i], a.Pos) != rel(b.LinePos[i], b.Pos) {
+			return false
+		}
+	}
+	return true
+}
+
+// rel is the distance of p from start; -1 for no place.
+func rel(p, start expr.Pos) int {
+	if !p.IsValid() {
+		return -1
+	}
+	return p.Off - start.Off
 }
 
 // blockEnd is the offset just after the last byte of a block's text (its
@@ -180,13 +220,18 @@ func frontLen(src []byte) int {
 	return len(src)
 }
 
-// samePos reports whether two positions (of two saves) are the same place:
-// the same file name, offset, line and column.
+// samePos reports whether two positions (of two saves) are the same place
+// as a reader sees it: the same file name, line and column (a drawing
+// shows no offset, and within one save the order of places by line and
+// column is that by offset).
 func samePos(a, b expr.Pos) bool {
 	if a.File == nil || b.File == nil {
 		return a.File == nil && b.File == nil && a.Off == b.Off
 	}
-	return a.Off == b.Off && (a.File == b.File || a.File.Name() == b.File.Name() && a.Position() == b.Position())
+	if a.File == b.File && a.Off == b.Off {
+		return true
+	}
+	return a.File.Name() == b.File.Name() && a.Position() == b.Position()
 }
 
 // sameErrors reports whether two lists of errors say the same at the same

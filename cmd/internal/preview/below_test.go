@@ -15,12 +15,12 @@ import (
 )
 
 // belowDoc is a long document of our own invention whose first block
-// defines p_1 and p_2 (first, its two lines as given) and whose blocks
+// defines p_1 and p_2 (first, its lines as given) and whose blocks
 // below either use neither (kind 1), use p_1 (kind 0), use p_2 (kind 2),
 // or use p_1 through a value of a block above (kind 3). Every line of the
 // first block is padded to one width, so that an edit of it that keeps
 // the line's length moves nothing below.
-func belowDoc(first [2]string, blocks int) string {
+func belowDoc(first []string, blocks int) string {
 	var b strings.Builder
 	b.WriteString("---\ntitle: Below the first change\n---\n\n# Feeder\n\n```calc\n")
 	for _, l := range first {
@@ -48,12 +48,16 @@ func belowDoc(first [2]string, blocks int) string {
 	return b.String()
 }
 
-// TestBelowFirstChange edits the first block of a long document in place
-// (its length kept, so nothing below moves) and checks, after each edit,
+// TestBelowFirstChange edits the first block of a long document, mostly in
+// place (its length kept, so nothing below moves; or its lines kept, so
+// the text below moves by some bytes but every place in it keeps its line
+// and column; once a line added: everything below on another line), and
+// checks, after each edit,
 // that the sheet drawn from the save before (calcdoc.Reevaluate and the
 // block cache) is byte for byte the full build's, that every calc block
 // below that reads none of the names whose definition changed was copied
-// from the sheet before, and that every block that reads one was drawn.
+// from the sheet before (all of them drawn after the line added), and
+// that every block that reads one was drawn.
 func TestBelowFirstChange(t *testing.T) {
 	const blocks = 24
 	dir := t.TempDir()
@@ -71,22 +75,28 @@ func TestBelowFirstChange(t *testing.T) {
 	// and with it the values of kind 0 that kind 3 reads
 	steps := []struct {
 		what    string
-		first   [2]string
+		first   []string
 		changed []string
 		moved   bool
 	}{
-		{"the first save", [2]string{"p_1 = 230 V   # supply", "p_2 = 10 A    # load"}, nil, false},
-		{"a number changed in place", [2]string{"p_1 = 240 V   # supply", "p_2 = 10 A    # load"}, []string{"p_1"}, true},
-		{"a comment changed", [2]string{"p_1 = 240 V   # source", "p_2 = 10 A    # load"}, nil, false},
-		{"a value written anew, the same value", [2]string{"p_1 = 240 V   # source", "p_2 = 10.0 A  # load"}, nil, false},
+		{"the first save", []string{"p_1 = 230 V   # supply", "p_2 = 10 A    # load"}, nil, false},
+		{"a number changed in place", []string{"p_1 = 240 V   # supply", "p_2 = 10 A    # load"}, []string{"p_1"}, true},
+		{"a comment changed", []string{"p_1 = 240 V   # source", "p_2 = 10 A    # load"}, nil, false},
+		{"a value written anew, the same value", []string{"p_1 = 240 V   # source", "p_2 = 10.0 A  # load"}, nil, false},
 		// a literal's unit is the display of the value it defines
-		{"the same value with no literal's unit", [2]string{"p_1 = 240 V   # source", "p_2 = 2*5 A   # load"}, []string{"p_2"}, false},
-		{"another number changed in place", [2]string{"p_1 = 240 V   # source", "p_2 = 12 A    # feed"}, []string{"p_2"}, false},
-		{"a display unit", [2]string{"p_1[kV] = 240 V   # source", "p_2 = 12 A    # feed"}, []string{"p_1"}, false},
-		{"the display unit taken out", [2]string{"p_1 = 240 V   # source", "p_2 = 12 A    # feed"}, []string{"p_1"}, false},
-		{"a definition moved", [2]string{"p_2 = 12 A    # feed", "p_1 = 240 V   # source"}, []string{"p_1", "p_2"}, false},
-		{"the same value written otherwise", [2]string{"p_2 = 12 A    # feed", "p_1 = 0.24 kV # source"}, []string{"p_1"}, false},
-		{"saved unchanged", [2]string{"p_2 = 12 A    # feed", "p_1 = 0.24 kV # source"}, nil, false},
+		{"the same value with no literal's unit", []string{"p_1 = 240 V   # source", "p_2 = 2*5 A   # load"}, []string{"p_2"}, false},
+		{"another number changed in place", []string{"p_1 = 240 V   # source", "p_2 = 12 A    # feed"}, []string{"p_2"}, false},
+		{"a display unit", []string{"p_1[kV] = 240 V   # source", "p_2 = 12 A    # feed"}, []string{"p_1"}, false},
+		{"the display unit taken out", []string{"p_1 = 240 V   # source", "p_2 = 12 A    # feed"}, []string{"p_1"}, false},
+		{"a definition moved", []string{"p_2 = 12 A    # feed", "p_1 = 240 V   # source"}, []string{"p_1", "p_2"}, false},
+		{"the same value written otherwise", []string{"p_2 = 12 A    # feed", "p_1 = 0.24 kV # source"}, []string{"p_1"}, false},
+		// the text below moves by some bytes, its lines stay
+		{"a line made longer, the same value", []string{"p_2 = 12 A    # feed", "p_1 = 0.24000000000000 kV   # source"}, nil, false},
+		{"a line made longer, another value", []string{"p_2 = 12.5 A    # feed of the branches", "p_1 = 0.24000000000000 kV   # source"}, []string{"p_2"}, false},
+		{"a line made shorter, the same value", []string{"p_2 = 12.5 A", "p_1 = 0.24000000000000 kV   # source"}, nil, false},
+		// every block below on another line
+		{"a line added", []string{"p_2 = 12.5 A", "p_1 = 0.24000000000000 kV   # source", "p_3 = 1"}, []string{"all"}, false},
+		{"saved unchanged", []string{"p_2 = 12.5 A", "p_1 = 0.24000000000000 kV   # source", "p_3 = 1"}, nil, false},
 	}
 	for n, st := range steps {
 		src := []byte(belowDoc(st.first, blocks))
@@ -111,9 +121,9 @@ func TestBelowFirstChange(t *testing.T) {
 		if n == 0 {
 			continue
 		}
-		p1, p2 := false, false
+		p1, p2, all := false, false, false
 		for _, c := range st.changed {
-			p1, p2 = p1 || c == "p_1", p2 || c == "p_2"
+			p1, p2, all = p1 || c == "p_1", p2 || c == "p_2", all || c == "all"
 		}
 		wantCopied, wantDrawn := 0, 0
 		if st.what == "saved unchanged" {
@@ -122,7 +132,7 @@ func TestBelowFirstChange(t *testing.T) {
 			wantDrawn = 1 // the first block, whose text changed
 		}
 		for i := 0; i < blocks; i++ {
-			if k := i % 4; k == 0 && p1 || k == 3 && st.moved || k == 2 && p2 {
+			if k := i % 4; all || k == 0 && p1 || k == 3 && st.moved || k == 2 && p2 {
 				wantDrawn++
 			} else if st.what != "saved unchanged" {
 				wantCopied++

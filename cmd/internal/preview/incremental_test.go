@@ -253,8 +253,9 @@ func (d *editDoc) edit(r *rand.Rand, dir string) string {
 }
 
 // digitInPlace changes one digit of a number in one of the first calc
-// blocks to another (or the same) digit: the text below does not move, so
-// the blocks below that read no name whose value moved draw as before.
+// blocks to another (or the same) digit from 1 to 9, or writes one more
+// digit: the lines below keep their numbers and columns, so the blocks
+// below that read no name whose value moved draw as before.
 func (d *editDoc) digitInPlace(r *rand.Rand, calcs []*editSec) string {
 	s := calcs[r.Intn(min(3, len(calcs)))]
 	for tries := 0; tries < 5; tries++ {
@@ -275,7 +276,14 @@ func (d *editDoc) digitInPlace(r *rand.Rand, calcs []*editSec) string {
 		}
 		j := at[r.Intn(len(at))]
 		// never 0: a divisor of 0 would leave an error for good
-		s.lines[i] = l[:j] + string(rune('1'+r.Intn(9))) + l[j+1:]
+		digit := string(rune('1' + r.Intn(9)))
+		if r.Intn(2) == 0 {
+			// one digit more: the text below moves by a byte, its lines
+			// and columns stay
+			s.lines[i] = l[:j] + digit + l[j:]
+		} else {
+			s.lines[i] = l[:j] + digit + l[j+1:]
+		}
 		return "change a digit in place in a first block"
 	}
 	return "no digit found in a first block"
@@ -327,7 +335,7 @@ func newEditDoc(r *rand.Rand) *editDoc {
 // the front matter (digits, cases, title), edit prose and its inline
 // values, break a line and fix it, change a used sheet's value and a
 // CSV file the document reads, and change a digit of a number in one of
-// the first calc blocks in place (nothing below moves: the blocks below
+// the first calc blocks in place (no line below moves: the blocks below
 // that read no value that moved are copied, Block.DrawnLike).
 func TestIncrementalSameBytes(t *testing.T) {
 	steps := 400
