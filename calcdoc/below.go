@@ -58,9 +58,10 @@ func (b *Block) DrawnLike() uint64 { return b.twin }
 // first item evaluated again) whose kind draws it from nothing but the
 // block, its evaluation, the front matter and the final names its text
 // mentions (LocalDrawing: render.LocalDrawer), d having been evaluated
-// from prev's evaluation of the items above it.
+// from prev's evaluation of the items above it; d is compatible with
+// prev.
 func (d *Document) markTwins(prev *Document, k int) {
-	if !d.compatible(prev) || d.trail == nil || len(d.trail.marks) != len(d.order)+1 || d.Env.Budget == nil ||
+	if d.trail == nil || len(d.trail.marks) != len(d.order)+1 || d.Env.Budget == nil ||
 		d.Env.Budget.Over() != nil || prev.trail.marks[len(prev.trail.marks)-1].over || !sameFront(prev.Source, d.Source) {
 		return
 	}

@@ -249,12 +249,18 @@ func Reevaluate(prev *Document, path string, src []byte, reg *Registry, in Input
 		d.Env.Budget = in.Budget
 	}
 	d.evaluated = true
-	k := d.takeable(prev)
+	compat := d.compatible(prev)
+	k := 0
+	if compat {
+		k = d.takeable(prev)
+	}
 	if k == 0 || !d.takeOver(prev, k) {
 		k = 0
 		d.evalFrom(0, newTrail(d))
 	}
-	d.markTwins(prev, k)
+	if compat {
+		d.markTwins(prev, k)
+	}
 	return d
 }
 
@@ -326,11 +332,8 @@ func (d *Document) takeOver(prev *Document, k int) bool {
 }
 
 // takeable is the number of d's items (d.order) whose evaluation can be
-// taken over from prev.
+// taken over from prev, d being compatible with prev.
 func (d *Document) takeable(prev *Document) int {
-	if !d.compatible(prev) {
-		return 0
-	}
 	// the first byte that differs, in the text positions count (the file
 	// less a byte-order mark, the same in both); one byte less, since a
 	// lone CR reads as a line end by what follows it
