@@ -29,6 +29,7 @@ type Block struct {
 	kind       Kind
 	memo       *blockMemo // shared with the block it was taken over from (incremental.go)
 	takenOver  bool
+	twin       uint64 // DrawnLike (below.go)
 }
 
 // KindOf returns the kind that evaluated the block.

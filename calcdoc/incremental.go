@@ -119,7 +119,9 @@ func (d *Document) EvaluatedFrom(prev *Document) bool {
 // drawing reads the document's final names for the names it shows (their
 // display, whether a name is a function); when none of them is defined
 // below the first change, the drawing of a block taken over is the one
-// of the save before. It reports true for a block not taken over.
+// of the save before. It reports true for a block not taken over (a block
+// below the first change draws as one of the save before when
+// Block.DrawnLike says so).
 func (d *Document) Redefines(b *Block) bool {
 	if !b.takenOver || b.memo == nil {
 		return true
@@ -237,18 +239,27 @@ func textMentions(b *Block) map[string]bool {
 // again. The document is the one ParseWith gives: the same values,
 // checks, errors and warnings in the same order, every position at the
 // same line and column (positions of the items taken over are in prev's
-// text, which is the same up to them). prev is not changed, and may be
-// nil (then nothing is taken over).
+// text, which is the same up to them). Each block below the first change
+// whose drawing is that of a block of prev is marked (Block.DrawnLike,
+// below.go). prev is not changed, and may be nil (then nothing is taken
+// over).
 func Reevaluate(prev *Document, path string, src []byte, reg *Registry, in Inputs) *Document {
 	d := parseOnly(path, src, reg, in)
 	if in.Budget != nil {
 		d.Env.Budget = in.Budget
 	}
 	d.evaluated = true
-	k := d.takeable(prev)
+	compat := d.compatible(prev)
+	k := 0
+	if compat {
+		k = d.takeable(prev)
+	}
 	if k == 0 || !d.takeOver(prev, k) {
+		k = 0
 		d.evalFrom(0, newTrail(d))
-		return d
+	}
+	if compat {
+		d.markTwins(prev, k)
 	}
 	return d
 }
@@ -321,19 +332,12 @@ func (d *Document) takeOver(prev *Document, k int) bool {
 }
 
 // takeable is the number of d's items (d.order) whose evaluation can be
-// taken over from prev.
+// taken over from prev, d being compatible with prev.
 func (d *Document) takeable(prev *Document) int {
-	if prev == nil || prev.trail == nil || prev.Kinds != d.Kinds || prev.Path != d.Path || !sameInputs(prev.inputs, d.inputs) ||
-		prev.Env.Budget.Stopped() || len(prev.trail.marks) != len(prev.order)+1 {
-		return 0
-	}
 	// the first byte that differs, in the text positions count (the file
 	// less a byte-order mark, the same in both); one byte less, since a
 	// lone CR reads as a line end by what follows it
 	bom := []byte("\uFEFF")
-	if bytes.HasPrefix(prev.Source, bom) != bytes.HasPrefix(d.Source, bom) || !utf8.Valid(prev.Source) || !utf8.Valid(d.Source) {
-		return 0
-	}
 	diff := 0
 	for n := min(len(prev.Source), len(d.Source)); diff < n && prev.Source[diff] == d.Source[diff]; diff++ {
 	}

@@ -84,6 +84,9 @@ func (e *Env) Reserve(n int) {
 // Lookup returns the binding of a name, or nil.
 func (e *Env) Lookup(name string) *Binding { return e.vars[NameKey(name)] }
 
+// LookupKey is Lookup of a name by its key (NameKey), made before.
+func (e *Env) LookupKey(key string) *Binding { return e.vars[key] }
+
 // LookupFunc returns a user function, or nil.
 func (e *Env) LookupFunc(name string) *Func { return e.funcs[NameKey(name)] }
 

@@ -11,12 +11,15 @@ import (
 
 // BlockCache keeps the drawing of the blocks of the last sheet drawn of
 // one document (Options.Blocks), so that the sheet of its next save,
-// evaluated with calcdoc.Reevaluate, copies each block taken over whose
-// drawing cannot have changed instead of drawing it again: a block of a
-// LocalDrawer kind, taken over from the document drawn last, none of
-// whose names is defined again below the first change
-// (Document.Redefines). The bytes are those drawing would write. A
-// BlockCache is not safe for concurrent use.
+// evaluated with calcdoc.Reevaluate, copies each block whose drawing
+// cannot have changed instead of drawing it again. Such a block is of a
+// LocalDrawer kind, and either taken over from the document drawn last
+// (above the first change) with none of its names defined again below
+// the first change (Document.Redefines), or evaluated again (below the
+// first change) and the twin of a block of the document drawn last: at
+// the same place, written alike, seeing the same final names with equal
+// values and evaluated alike (Block.DrawnLike). The bytes are those
+// drawing would write. A BlockCache is not safe for concurrent use.
 type BlockCache struct {
 	doc        *calcdoc.Document // the document drawn last
 	prev, next map[uint64][]byte // drawings by Block.EvalID
@@ -65,8 +68,15 @@ func (c *BlockCache) draw(w *markup.Writer, out util.BufWriter, d markup.Drawer,
 		d.Draw(w, b)
 		return
 	}
-	if c.doc != nil && b.TakenOver() && w.Doc.EvaluatedFrom(c.doc) && !w.Doc.Redefines(b) {
-		if bs, ok := c.prev[id]; ok {
+	if c.doc != nil && w.Doc.EvaluatedFrom(c.doc) {
+		from := uint64(0)
+		switch {
+		case b.TakenOver() && !w.Doc.Redefines(b):
+			from = id // above the first change
+		case !b.TakenOver():
+			from = b.DrawnLike() // below it
+		}
+		if bs, ok := c.prev[from]; ok && from != 0 {
 			out.Write(bs)
 			c.next[id] = bs
 			c.Copied++

@@ -207,13 +207,21 @@ func (h *harness) getSized(path string) (int, []byte) {
 // before.
 //
 //	go test -run '^$' -bench Rebuild -cpuprofile cpu.out ./cmd/internal/preview/
-func BenchmarkRebuild(b *testing.B) {
+func BenchmarkRebuild(b *testing.B) { rebuild(b, true) }
+
+// BenchmarkRebuildFirst is BenchmarkRebuild with the edit in the first
+// block: every block below it is evaluated again, and the drawing of
+// those that read nothing the edit changed is copied from the sheet
+// before (calcdoc.Block.DrawnLike).
+func BenchmarkRebuildFirst(b *testing.B) { rebuild(b, false) }
+
+func rebuild(b *testing.B, last bool) {
 	w := &Watcher{boot: "bench"}
-	j := &evalJob{key: "big.html", file: "/bench/big.md", rel: "big.md", display: "big.md", src: []byte(longDoc(0, 100, true))}
+	j := &evalJob{key: "big.html", file: "/bench/big.md", rel: "big.md", display: "big.md", src: []byte(longDoc(0, 100, last))}
 	p, _, next := w.evaluate(j, expr.NewBudget(expr.DefaultBudget), nil)
 	b.ResetTimer()
 	for k := 1; k <= b.N; k++ {
-		j := &evalJob{key: j.key, file: j.file, rel: j.rel, display: j.display, src: []byte(longDoc(k, 100, true))}
+		j := &evalJob{key: j.key, file: j.file, rel: j.rel, display: j.display, src: []byte(longDoc(k, 100, last))}
 		q, _, nb := w.evaluate(j, expr.NewBudget(expr.DefaultBudget), next)
 		q.before = &page{version: p.version, body: p.body, lay: p.lay}
 		if q.before.patchTo(q) == nil {

@@ -162,7 +162,7 @@ func (d *editDoc) edit(r *rand.Rand, dir string) string {
 	if r.Intn(2) == 0 {
 		s = calcs[len(calcs)-1-r.Intn(min(2, len(calcs)))]
 	}
-	switch op := r.Intn(21); {
+	switch op := r.Intn(24); {
 	case op < 5:
 		for tries := 0; tries < 5; tries++ {
 			i := r.Intn(len(s.lines))
@@ -245,9 +245,57 @@ func (d *editDoc) edit(r *rand.Rand, dir string) string {
 			panic(err)
 		}
 		return "change the CSV file"
+	case op >= 21:
+		return d.digitInPlace(r, calcs)
 	default:
 		return "save unchanged"
 	}
+}
+
+// digitInPlace changes one digit of a number in one of the first calc
+// blocks to another (or the same) digit from 1 to 9, or writes one more
+// digit: the lines below keep their numbers and columns, so the blocks
+// below that read no name whose value moved draw as before.
+func (d *editDoc) digitInPlace(r *rand.Rand, calcs []*editSec) string {
+	s := calcs[r.Intn(min(3, len(calcs)))]
+	for tries := 0; tries < 5; tries++ {
+		i := r.Intn(len(s.lines))
+		l := s.lines[i]
+		eq := strings.Index(l, "= ")
+		if eq < 0 || strings.HasPrefix(l, "use") {
+			continue
+		}
+		var at []int // digits of numbers, not of names
+		for j := eq; j < len(l) && l[j] != '#'; j++ {
+			if c := l[j]; c >= '0' && c <= '9' && (l[j-1] == ' ' || l[j-1] == '.' || l[j-1] >= '0' && l[j-1] <= '9' && !inName(l, j)) {
+				at = append(at, j)
+			}
+		}
+		if len(at) == 0 {
+			continue
+		}
+		j := at[r.Intn(len(at))]
+		// never 0: a divisor of 0 would leave an error for good
+		digit := string(rune('1' + r.Intn(9)))
+		if r.Intn(2) == 0 {
+			// one digit more: the text below moves by a byte, its lines
+			// and columns stay
+			s.lines[i] = l[:j] + digit + l[j:]
+		} else {
+			s.lines[i] = l[:j] + digit + l[j+1:]
+		}
+		return "change a digit in place in a first block"
+	}
+	return "no digit found in a first block"
+}
+
+// inName reports whether the digit at j of l ends a run that starts with
+// a letter or '_' (a name such as a_12).
+func inName(l string, j int) bool {
+	for j > 0 && (l[j-1] >= '0' && l[j-1] <= '9') {
+		j--
+	}
+	return j > 0 && (l[j-1] == '_' || l[j-1] >= 'a' && l[j-1] <= 'z' || l[j-1] >= 'A' && l[j-1] <= 'Z')
 }
 
 // otherSheet is the sheet the document uses: its value moves with k.
@@ -285,8 +333,10 @@ func newEditDoc(r *rand.Rand) *editDoc {
 // of the same source (calcdoc.ParseWith, drawn whole). The edits change
 // numbers, insert and delete statements, add and remove blocks, change
 // the front matter (digits, cases, title), edit prose and its inline
-// values, break a line and fix it, and change a used sheet's value and a
-// CSV file the document reads.
+// values, break a line and fix it, change a used sheet's value and a
+// CSV file the document reads, and change a digit of a number in one of
+// the first calc blocks in place (no line below moves: the blocks below
+// that read no value that moved are copied, Block.DrawnLike).
 func TestIncrementalSameBytes(t *testing.T) {
 	steps := 400
 	if testing.Short() {
@@ -308,6 +358,7 @@ func TestIncrementalSameBytes(t *testing.T) {
 	var prev *calcdoc.Document
 	var prevSheet []byte
 	reusedSteps, copied, drawn, errSteps := 0, 0, 0, 0
+	firstEdits, copiedBelow := 0, 0 // in-place edits of a first block; calc blocks below it copied (Block.DrawnLike)
 	for step := 0; step < steps; step++ {
 		what := "first"
 		if step > 0 {
@@ -345,12 +396,22 @@ func TestIncrementalSameBytes(t *testing.T) {
 		}
 		copied += cache.Copied
 		drawn += cache.Drawn
+		if what == "change a digit in place in a first block" {
+			firstEdits++
+			for _, b := range inc.Blocks {
+				if !b.TakenOver() && b.DrawnLike() != 0 {
+					copiedBelow++
+				}
+			}
+		}
 		prev, prevSheet = inc, got
 	}
-	t.Logf("%d steps: %d took blocks over, %d had errors; calc blocks copied %d, drawn %d", steps, reusedSteps, errSteps, copied, drawn)
+	t.Logf("%d steps: %d took blocks over, %d had errors; calc blocks copied %d, drawn %d; %d in-place edits of a first block, %d calc blocks below one copied",
+		steps, reusedSteps, errSteps, copied, drawn, firstEdits, copiedBelow)
 	// the sequence must exercise what it checks
-	if reusedSteps < steps/3 || copied < drawn/2 || errSteps < steps/20 || errSteps == steps {
-		t.Errorf("the edits exercise too little: %d of %d steps took blocks over, %d copied and %d drawn, %d with errors", reusedSteps, steps, copied, drawn, errSteps)
+	if reusedSteps < steps/3 || copied < drawn/2 || errSteps < steps/20 || errSteps == steps || firstEdits < steps/20 || copiedBelow < firstEdits {
+		t.Errorf("the edits exercise too little: %d of %d steps took blocks over, %d copied and %d drawn, %d with errors, %d in-place edits of a first block with %d blocks copied below",
+			reusedSteps, steps, copied, drawn, errSteps, firstEdits, copiedBelow)
 	}
 }
 
