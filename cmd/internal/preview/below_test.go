@@ -1,7 +1,6 @@
 package preview
 
 import (
-	"bytes"
 	"fmt"
 	"os"
 	"path/filepath"
@@ -9,8 +8,6 @@ import (
 	"testing"
 
 	"calcdoc/calcdoc"
-	"calcdoc/calcdoc/kind"
-	"calcdoc/cmd/internal/build"
 	"calcdoc/render"
 )
 
@@ -65,7 +62,6 @@ func TestBelowFirstChange(t *testing.T) {
 	if err := os.WriteFile(path, nil, 0o644); err != nil {
 		t.Fatal(err)
 	}
-	reg := kind.Standard()
 	in := calcdoc.Inputs{Root: dir}
 	cache := &render.BlockCache{}
 	var prev *calcdoc.Document
@@ -100,22 +96,12 @@ func TestBelowFirstChange(t *testing.T) {
 	}
 	for n, st := range steps {
 		src := []byte(belowDoc(st.first, blocks))
-		full := calcdoc.ParseWith(path, src, reg, in)
+		full, inc, _, diff := incrementalAgainstFull(t, prev, path, src, in, cache)
 		if len(full.Errors) > 0 {
 			t.Fatalf("%s: the document has errors: %v", st.what, full.Errors[0])
 		}
-		want, err := build.Sheet(full, build.Options{Version: "test", EmbedSource: true})
-		if err != nil {
-			t.Fatal(err)
-		}
-		inc := calcdoc.Reevaluate(prev, path, src, reg, in)
-		got, err := build.Sheet(inc, build.Options{Version: "test", EmbedSource: true, Blocks: cache})
-		if err != nil {
-			t.Fatal(err)
-		}
-		if !bytes.Equal(got, want) {
-			i := firstDiff(got, want)
-			t.Fatalf("%s: the incremental sheet differs from the full build at byte %d:\nincremental: %q\nfull:        %q", st.what, i, around(got, i), around(want, i))
+		if diff != "" {
+			t.Fatalf("%s: %s", st.what, diff)
 		}
 		prev = inc
 		if n == 0 {

@@ -352,7 +352,6 @@ func TestIncrementalSameBytes(t *testing.T) {
 	path := filepath.Join(dir, "doc.md")
 	r := rand.New(rand.NewSource(20))
 	d := newEditDoc(r)
-	reg := kind.Standard()
 	in := calcdoc.Inputs{Root: dir}
 	cache := &render.BlockCache{}
 	var prev *calcdoc.Document
@@ -365,21 +364,9 @@ func TestIncrementalSameBytes(t *testing.T) {
 			what = d.edit(r, dir)
 		}
 		src := []byte(d.text())
-		full := calcdoc.ParseWith(path, src, reg, in)
-		// the sheet as build writes it, carrying its source, data files and
-		// used values (the stamp's git facts are not of this test)
-		want, err := build.Sheet(full, build.Options{Version: "test", EmbedSource: true})
-		if err != nil {
-			t.Fatal(err)
-		}
-		inc := calcdoc.Reevaluate(prev, path, src, reg, in)
-		got, err := build.Sheet(inc, build.Options{Version: "test", EmbedSource: true, Blocks: cache})
-		if err != nil {
-			t.Fatal(err)
-		}
-		if !bytes.Equal(got, want) {
-			t.Fatalf("step %d (%s): the incremental sheet differs from the full build at byte %d:\nincremental: %q\nfull:        %q\nsource:\n%s",
-				step, what, firstDiff(got, want), around(got, firstDiff(got, want)), around(want, firstDiff(got, want)), src)
+		full, inc, got, diff := incrementalAgainstFull(t, prev, path, src, in, cache)
+		if diff != "" {
+			t.Fatalf("step %d (%s): %s\nsource:\n%s", step, what, diff, src)
 		}
 		if prev != nil && step%20 == 0 {
 			// the evaluation taken over from is not changed
@@ -477,4 +464,29 @@ func TestServedSameAsBuilt(t *testing.T) {
 	if took < 3 {
 		t.Errorf("%d of the 6 saves in the last block were evaluated from the save before (3 blocks taken over and copied), want most", took)
 	}
+}
+
+// incrementalAgainstFull evaluates src in full and again from prev
+// (calcdoc.Reevaluate, its sheet drawn through cache: got), each sheet as
+// build writes it, carrying its source, data files and used values (the
+// stamp's git facts are not of these tests); diff says where the two
+// sheets first differ ("" when they are the same bytes).
+func incrementalAgainstFull(t *testing.T, prev *calcdoc.Document, path string, src []byte, in calcdoc.Inputs, cache *render.BlockCache) (full, inc *calcdoc.Document, got []byte, diff string) {
+	t.Helper()
+	reg := kind.Standard()
+	full = calcdoc.ParseWith(path, src, reg, in)
+	want, err := build.Sheet(full, build.Options{Version: "test", EmbedSource: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	inc = calcdoc.Reevaluate(prev, path, src, reg, in)
+	got, err = build.Sheet(inc, build.Options{Version: "test", EmbedSource: true, Blocks: cache})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !bytes.Equal(got, want) {
+		i := firstDiff(got, want)
+		diff = fmt.Sprintf("the incremental sheet differs from the full build at byte %d:\nincremental: %q\nfull:        %q", i, around(got, i), around(want, i))
+	}
+	return full, inc, got, diff
 }
