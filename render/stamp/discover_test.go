@@ -6,9 +6,10 @@ import (
 	"os"
 	"os/exec"
 	"path/filepath"
-	"runtime"
 	"strings"
 	"testing"
+
+	"calcdoc/render/stamp/gitrec"
 )
 
 // The references of these tests are git's own commands, run beside the
@@ -20,49 +21,6 @@ import (
 // --error-unmatch` (the index holds it), `git check-ignore` and `git
 // rev-parse --is-shallow-repository`. The count of git runs is read from
 // a stand-in git on PATH that records each call and runs the real one.
-
-// recordGit puts first on PATH a git that appends its arguments, one call
-// a line, to the file it returns, and then runs the real git.
-func recordGit(t *testing.T) string {
-	t.Helper()
-	if runtime.GOOS == "windows" {
-		t.Skip("the recording git is a shell script, which Windows does not run as git.exe")
-	}
-	real, err := exec.LookPath("git")
-	if err != nil {
-		t.Skip("git is not installed; on Debian: apt-get install git")
-	}
-	dir := t.TempDir()
-	log := filepath.Join(dir, "calls")
-	script := "#!/bin/sh\nprintf '%s\\n' \"$*\" >> '" + log + "'\nexec '" + real + "' \"$@\"\n"
-	if err := os.WriteFile(filepath.Join(dir, "git"), []byte(script), 0o755); err != nil {
-		t.Fatal(err)
-	}
-	if err := os.WriteFile(log, nil, 0o644); err != nil {
-		t.Fatal(err)
-	}
-	t.Setenv("PATH", dir+string(os.PathListSeparator)+os.Getenv("PATH"))
-	return log
-}
-
-// calls returns the git calls recorded in log and empties it.
-func calls(t *testing.T, log string) []string {
-	t.Helper()
-	b, err := os.ReadFile(log)
-	if err != nil {
-		t.Fatal(err)
-	}
-	if err := os.WriteFile(log, nil, 0o644); err != nil {
-		t.Fatal(err)
-	}
-	var out []string
-	for _, l := range strings.Split(strings.TrimRight(string(b), "\n"), "\n") {
-		if l != "" {
-			out = append(out, l)
-		}
-	}
-	return out
-}
 
 // gitFinds reports whether git itself finds a repository from dir, with
 // the environment of the test: `git rev-parse --show-toplevel` answers
@@ -86,7 +44,7 @@ func gitFinds(t *testing.T, dir string) (string, bool) {
 // Outside any repository the stamp runs no git, and says what git says.
 func TestNoGitOutsideRepository(t *testing.T) {
 	isolate(t)
-	log := recordGit(t)
+	log := gitrec.Record(t)
 	dir := t.TempDir()
 	var paths []string
 	for _, name := range []string{"a.md", "sub/b.md", "sub/deeper/c.md"} {
@@ -101,7 +59,7 @@ func TestNoGitOutsideRepository(t *testing.T) {
 			t.Errorf("%s: %+v, want NoRepo", p, got)
 		}
 	}
-	if c := calls(t, log); len(c) != 0 {
+	if c := gitrec.Calls(t, log); len(c) != 0 {
 		t.Errorf("git ran %d times outside any repository: %q", len(c), c)
 	}
 	// the reference: git itself finds no repository there
@@ -154,9 +112,9 @@ func TestFindRepoCeilings(t *testing.T) {
 				t.Errorf("walk finds %v, git finds %v (%s)", kind != noRepo, gitOK, top)
 			}
 			write(t, filepath.Join(deep, "x.md"), "x\n")
-			log := recordGit(t)
+			log := gitrec.Record(t)
 			st := Of(filepath.Join(deep, "x.md"), []byte("x\n"))
-			n := len(calls(t, log))
+			n := len(gitrec.Calls(t, log))
 			if !gitOK && (n != 0 || st.State != NoRepo) {
 				t.Errorf("git finds no repository, but the stamp ran git %d times and says %v", n, st.State)
 			}
@@ -265,7 +223,7 @@ func TestStampFactsAsGitSays(t *testing.T) {
 	git(t, super, nil, "-c", "protocol.file.allow=always", "submodule", "add", "-q", "file://"+repo, "sub")
 	repos = append(repos, filepath.Join(super, "sub"))
 
-	log := recordGit(t)
+	log := gitrec.Record(t)
 	for _, r := range repos {
 		s := NewSession()
 		ents, err := os.ReadDir(r)
@@ -281,9 +239,9 @@ func TestStampFactsAsGitSays(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			calls(t, log)
+			gitrec.Calls(t, log)
 			got := s.Of(p, src)
-			n := len(calls(t, log))
+			n := len(gitrec.Calls(t, log))
 			want := gitSays(t, r, e.Name(), src)
 			t.Logf("%s: %v in %d git runs: %s", p, got.State, n, got.Detail)
 			if got.State != want.State || got.Commit != want.Commit || got.CommitDate != want.CommitDate {

@@ -4,7 +4,6 @@ import (
 	"os"
 	"os/exec"
 	"path/filepath"
-	"runtime"
 	"strings"
 	"sync"
 	"testing"
@@ -12,49 +11,22 @@ import (
 	"calcdoc/calcdoc"
 	"calcdoc/calcdoc/kind"
 	"calcdoc/render"
+	"calcdoc/render/stamp/gitrec"
 )
 
 // The references here: git's own commands (`git diff --quiet -- FILE`
 // says whether a file differs from what is committed) and the calls a
 // stand-in git on PATH records before it runs the real one.
 
-// recordGit isolates git from the user's configuration, puts first on
-// PATH a git that appends each call's arguments to the file it returns
-// and runs the real git, and keeps repositories above the test's folders
-// out (GIT_CEILING_DIRECTORIES).
+// recordGit isolates git from the user's configuration, keeps
+// repositories above the test's folders out (GIT_CEILING_DIRECTORIES),
+// and records each git call (gitrec.Record).
 func recordGit(t *testing.T) string {
 	t.Helper()
-	if runtime.GOOS == "windows" {
-		t.Skip("the recording git is a shell script, which Windows does not run as git.exe")
-	}
-	real, err := exec.LookPath("git")
-	if err != nil {
-		t.Skip("git is not installed; on Debian: apt-get install git")
-	}
 	t.Setenv("GIT_CONFIG_GLOBAL", os.DevNull)
 	t.Setenv("GIT_CONFIG_NOSYSTEM", "1")
 	t.Setenv("GIT_CEILING_DIRECTORIES", filepath.Dir(t.TempDir()))
-	dir := t.TempDir()
-	log := filepath.Join(dir, "calls")
-	script := "#!/bin/sh\nprintf '%s\\n' \"$*\" >> '" + log + "'\nexec '" + real + "' \"$@\"\n"
-	if err := os.WriteFile(filepath.Join(dir, "git"), []byte(script), 0o755); err != nil {
-		t.Fatal(err)
-	}
-	t.Setenv("PATH", dir+string(os.PathListSeparator)+os.Getenv("PATH"))
-	return log
-}
-
-// gitCalls reads the calls recorded in log.
-func gitCalls(t *testing.T, log string) []string {
-	t.Helper()
-	b, err := os.ReadFile(log)
-	if os.IsNotExist(err) {
-		return nil
-	}
-	if err != nil {
-		t.Fatal(err)
-	}
-	return strings.Split(strings.TrimRight(string(b), "\n"), "\n")
+	return gitrec.Record(t)
 }
 
 // stampFolder builds the stamps of every document of dir as the command
@@ -92,7 +64,7 @@ func TestBuildRunsNoGitOutsideRepository(t *testing.T) {
 			t.Errorf("%s: %v (%s), want no-repo", rel, s.State, s.Detail)
 		}
 	}
-	if c := gitCalls(t, log); len(c) != 0 {
+	if c := gitrec.Calls(t, log); len(c) != 0 {
 		t.Errorf("git ran %d times: %q", len(c), c)
 	}
 }
@@ -124,7 +96,7 @@ func TestBuildSharesRepositoryFacts(t *testing.T) {
 	os.Remove(log)
 	stamps := stampFolder(t, dir)
 	logs, lsFiles := 0, 0
-	for _, c := range gitCalls(t, log) {
+	for _, c := range gitrec.Calls(t, log) {
 		switch {
 		case strings.Contains(c, " log -1 "):
 			logs++
